@@ -1,0 +1,185 @@
+"""The ``workbench`` command: solve, check and size case files; open the workbench; records.
+
+Bad input never ends in a traceback: the command prints one line naming the field and what is
+wrong, on stderr, and exits with status 2.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import Any
+
+from workbench.solver.errors import InputError, WorkbenchError
+
+EXIT_OK, EXIT_FAILED_CHECK, EXIT_BAD_INPUT = 0, 1, 2
+
+#: The bundled demo case (a scenario of our own).
+DEMO_CASE = Path(__file__).parent / "cases" / "press_drive.json"
+
+CAUTION = (
+    "Caution: these results are an aid to design, not a design approval. A qualified engineer "
+    "must verify them against the applicable codes and standards and licensed professional "
+    "practice before use."
+)
+
+
+def _print_json(document: Any) -> None:
+    sys.stdout.write(json.dumps(document, indent=None, separators=(",", ":"), allow_nan=False))
+    sys.stdout.write("\n")
+
+
+def _command_solve(arguments: argparse.Namespace) -> int:
+    from workbench.solver.analysis import solve  # noqa: PLC0415 - keep `--help` fast
+    from workbench.solver.io import load_case  # noqa: PLC0415
+    from workbench.solver.tables import results_document, results_text  # noqa: PLC0415
+
+    model = load_case(arguments.case)
+    results = solve(model)
+    if arguments.json:
+        _print_json(results_document(results))
+    else:
+        sys.stdout.write(results_text(results))
+        sys.stdout.write(f"\n{CAUTION}\n")
+    return EXIT_OK
+
+
+def _command_check(arguments: argparse.Namespace) -> int:
+    from workbench.solver.analysis import solve  # noqa: PLC0415
+    from workbench.solver.checks import check_document, check_text, run_checks  # noqa: PLC0415
+    from workbench.solver.io import load_case  # noqa: PLC0415
+
+    model = load_case(arguments.case)
+    report = run_checks(solve(model))
+    if arguments.json:
+        _print_json(check_document(report))
+    else:
+        sys.stdout.write(check_text(report))
+    return EXIT_OK if report.passes else EXIT_FAILED_CHECK
+
+
+def _command_size(arguments: argparse.Namespace) -> int:
+    from workbench.solver.io import load_case, save_case  # noqa: PLC0415
+    from workbench.solver.sizing import SizingRequest, size_shafts, sizing_document, sizing_text  # noqa: PLC0415
+
+    model = load_case(arguments.case)
+    request = SizingRequest.from_arguments(
+        model,
+        segments=arguments.segment,
+        series=arguments.series,
+        sizes=arguments.sizes,
+        keep=arguments.keep,
+    )
+    outcome = size_shafts(model, request)
+    if arguments.json:
+        _print_json(sizing_document(outcome))
+    else:
+        sys.stdout.write(sizing_text(outcome))
+    if arguments.output:
+        save_case(outcome.model, arguments.output)
+    return EXIT_OK if outcome.passes else EXIT_FAILED_CHECK
+
+
+def _command_schema(arguments: argparse.Namespace) -> int:
+    from workbench.solver.schema import case_schema  # noqa: PLC0415
+
+    sys.stdout.write(json.dumps(case_schema(), indent=2, ensure_ascii=False) + "\n")
+    return EXIT_OK
+
+
+def _command_demo(arguments: argparse.Namespace) -> int:
+    sys.stdout.write(f"Demo case: {DEMO_CASE}\n\n")
+    arguments.case = str(DEMO_CASE)
+    arguments.json = False
+    _command_solve(arguments)
+    try:
+        import workbench.solver.checks  # noqa: F401, PLC0415
+    except ImportError:
+        return EXIT_OK
+    sys.stdout.write("\n")
+    _command_check(arguments)
+    return EXIT_OK
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser of the ``workbench`` command."""
+    parser = argparse.ArgumentParser(
+        prog="workbench",
+        description="Design and check members loaded in torsion.",
+        epilog=CAUTION,
+    )
+    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+
+    solve_parser = commands.add_parser("solve", help="solve every load case and combination")
+    solve_parser.add_argument("case", help="case file (JSON)")
+    solve_parser.add_argument("--json", action="store_true", help="print the JSON document")
+    solve_parser.set_defaults(run=_command_solve)
+
+    check_parser = commands.add_parser(
+        "check", help="check stress and twist; exit 0 all pass, 1 any fails, 2 bad input"
+    )
+    check_parser.add_argument("case", help="case file (JSON)")
+    check_parser.add_argument("--json", action="store_true", help="print the JSON document")
+    check_parser.set_defaults(run=_command_check)
+
+    size_parser = commands.add_parser(
+        "size", help="find the smallest preferred diameters that pass every check"
+    )
+    size_parser.add_argument("case", help="case file (JSON)")
+    size_parser.add_argument(
+        "--segment", action="append", metavar="SHAFT:INDEX",
+        help="segment to size, e.g. main:0 (repeatable; default: every circular segment)",
+    )
+    size_parser.add_argument(
+        "--series", default="R40", choices=["R5", "R10", "R20", "R40"],
+        help="ISO 3 Renard series of preferred sizes (default R40)",
+    )
+    size_parser.add_argument(
+        "--sizes", metavar="LIST", help="comma-separated diameters to choose from instead, "
+        "in the file's length unit",
+    )
+    size_parser.add_argument(
+        "--keep", default="ratio", choices=["ratio", "wall"],
+        help="for tubes: keep the bore ratio (default) or the wall thickness",
+    )
+    size_parser.add_argument("-o", "--output", help="write the sized case file here")
+    size_parser.add_argument("--json", action="store_true", help="print the JSON document")
+    size_parser.set_defaults(run=_command_size)
+
+    schema_parser = commands.add_parser("schema", help="print the case file's JSON Schema")
+    schema_parser.set_defaults(run=_command_schema)
+
+    demo_parser = commands.add_parser("demo", help="solve and check the bundled demo case")
+    demo_parser.set_defaults(run=_command_demo)
+
+    for register in _EXTRA_COMMANDS:
+        register(commands)
+    return parser
+
+
+#: Further sub-commands (the panel's and the record's) register themselves here.
+_EXTRA_COMMANDS: list[Callable[[Any], None]] = []
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; return the exit status."""
+    parser = build_parser()
+    arguments = parser.parse_args(argv)
+    try:
+        status: int = arguments.run(arguments)
+    except InputError as error:
+        sys.stderr.write(f"{error}\n")
+        return EXIT_BAD_INPUT
+    except WorkbenchError as error:
+        sys.stderr.write(f"error: {error}\n")
+        return EXIT_BAD_INPUT
+    except BrokenPipeError:
+        return EXIT_OK
+    return status
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

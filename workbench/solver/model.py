@@ -1,0 +1,565 @@
+"""The validated model of a torsion system: frozen dataclasses in SI units.
+
+Data flows one way: a case file (or the panel) builds a :class:`Model`; the analysis solves it; the
+checks judge the results. Every constructor validates its own fields and every cross-reference is
+checked by :class:`Model`, so an invalid model cannot exist. Errors are :class:`InputError` naming
+the field by its dotted path in the case file (``supports[1].x``).
+
+Sign conventions (right-hand rule about each shaft's +x axis): applied torques, reactions and
+rotations are positive along +x; a spring support exerts −stiffness·(θ − rotation).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import functools
+import math
+from collections.abc import Iterator, Mapping
+from dataclasses import dataclass, field
+from typing import Literal
+
+import numpy as np
+
+from workbench.solver.errors import InputError
+from workbench.solver.materials import Material
+from workbench.solver.sections import FloatArray, Section, require_non_negative, require_positive
+from workbench.solver.units import SI, UnitSystem, quote
+
+#: Two positions on one shaft closer than this fraction of its length are the same point.
+POSITION_TOLERANCE = 1e-9
+
+
+def join_path(prefix: str, name: str) -> str:
+    """Join a field path and a sub-field: ``join_path("shafts[0]", "length")``."""
+    if not prefix:
+        return name
+    if not name:
+        return prefix
+    return f"{prefix}{name}" if name.startswith("[") else f"{prefix}.{name}"
+
+
+@contextlib.contextmanager
+def field_path(prefix: str) -> Iterator[None]:
+    """Prefix the field of any :class:`InputError` raised inside the block with ``prefix``."""
+    try:
+        yield
+    except InputError as error:
+        raise type(error)(join_path(prefix, error.field), error.message) from None
+
+
+def require_finite(name: str, value: float) -> None:
+    """Raise :class:`InputError` unless ``value`` is a finite real number (sign free)."""
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        raise InputError(name, f"must be a number, not {value!r}")
+    if not math.isfinite(value):
+        raise InputError(name, f"must be a finite number, not {value}")
+
+
+@dataclass(frozen=True)
+class Layer:
+    """One member of a segment: a material and a cross-section.
+
+    Parameters
+    ----------
+    material
+        The layer's material (shear modulus in Pa).
+    section
+        The layer's cross-section (SI).
+    """
+
+    material: Material
+    section: Section
+
+
+@dataclass(frozen=True)
+class Segment:
+    """A length of shaft with one cross-section, or several bonded coaxial layers acting together.
+
+    Parameters
+    ----------
+    length
+        Length along the shaft (m).
+    layers
+        One layer for an ordinary segment; several for bonded coaxial members that share the twist
+        (a tube shrunk or bonded over a core). Layered segments take circular layers whose radial
+        extents do not overlap.
+    fillet_radius
+        Fillet radius of the shoulder at the segment's start (m), used by the stress-concentration
+        check; ``None`` when there is no shoulder or it is not known.
+
+    Notes
+    -----
+    Layers share the rotation of each cross-section, so their rigidities add:
+    G·K = Σ Gᵢ·Kᵢ, and layer i carries Tᵢ = T·Gᵢ·Kᵢ/ΣG·K.
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.8 (composite bars in torsion).
+    """
+
+    length: float
+    layers: tuple[Layer, ...]
+    fillet_radius: float | None = None
+
+    def __post_init__(self) -> None:
+        require_positive("length", self.length)
+        if not self.layers:
+            raise InputError("layers", "a segment needs at least one layer")
+        if self.fillet_radius is not None:
+            require_non_negative("fillet_radius", self.fillet_radius)
+        if len(self.layers) > 1:
+            self._check_layers_nest()
+
+    def _check_layers_nest(self) -> None:
+        spans = []
+        for index, layer in enumerate(self.layers):
+            if not layer.section.circular:
+                msg = (
+                    f"shape {layer.section.shape!r} cannot be a bonded layer: layered segments "
+                    "take circular layers (solid, tube, tapered)"
+                )
+                raise InputError(f"layers[{index}].section.shape", msg)
+            fractions = np.linspace(0.0, 1.0, 5)
+            spans.append(
+                (
+                    layer.section.inner_radius_at(fractions),
+                    layer.section.outer_radius_at(fractions),
+                    index,
+                )
+            )
+        spans.sort(key=lambda span: float(span[0][0]))
+        for (_, outer, inner_index), (inner, _, outer_index) in zip(spans, spans[1:], strict=False):
+            if np.any(inner < outer * (1.0 - 1e-9)):
+                msg = (
+                    f"overlaps layer {inner_index}: its bore "
+                    f"({quote(2 * float(inner.min()), 'length')}) is smaller than that layer's "
+                    f"outer diameter ({quote(2 * float(outer.max()), 'length')})"
+                )
+                raise InputError(f"layers[{outer_index}].section", msg)
+
+    @classmethod
+    def single(
+        cls,
+        length: float,
+        material: Material,
+        section: Section,
+        fillet_radius: float | None = None,
+    ) -> Segment:
+        """Build an ordinary one-layer segment."""
+        return cls(length, (Layer(material, section),), fillet_radius)
+
+    @property
+    def prismatic(self) -> bool:
+        """Whether every layer's section is constant along the segment."""
+        return all(layer.section.prismatic for layer in self.layers)
+
+    @property
+    def torsional_rigidity(self) -> float:
+        """G·K of a prismatic segment (N·m²)."""
+        if len(self.layers) == 1:
+            layer = self.layers[0]
+            return layer.material.shear_modulus * layer.section.torsion_constant
+        return sum(
+            layer.material.shear_modulus * layer.section.torsion_constant for layer in self.layers
+        )
+
+    def torsional_rigidity_at(self, fraction: FloatArray) -> FloatArray:
+        """Σ Gᵢ·Kᵢ (N·m²) at fractions of the segment length."""
+        total = np.zeros(np.shape(fraction))
+        for layer in self.layers:
+            total = total + layer.material.shear_modulus * layer.section.torsion_constant_at(
+                fraction
+            )
+        return total
+
+    def shear_stress_per_torque_at(self, fraction: FloatArray) -> FloatArray:
+        """Largest shear stress over all layers per unit segment torque (1/m³).
+
+        Layer i sees τᵢ = T·(Gᵢ·Kᵢ/ΣG·K)·sᵢ, with sᵢ its own peak stress per unit torque.
+        """
+        if len(self.layers) == 1:
+            return self.layers[0].section.shear_stress_per_torque_at(fraction)
+        rigidity = self.torsional_rigidity_at(fraction)
+        peak = np.zeros(np.shape(fraction))
+        for layer in self.layers:
+            share = layer.material.shear_modulus * layer.section.torsion_constant_at(fraction)
+            peak = np.maximum(peak, share * layer.section.shear_stress_per_torque_at(fraction))
+        return peak / rigidity
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Largest shear stress per unit torque (1/m³) of a prismatic segment."""
+        if len(self.layers) == 1:
+            return self.layers[0].section.shear_stress_per_torque
+        return float(self.shear_stress_per_torque_at(np.zeros(1))[0])
+
+    def outer_radius_at(self, fraction: FloatArray) -> FloatArray:
+        """Largest outer radius over the layers (m), for drawing."""
+        return np.max([layer.section.outer_radius_at(fraction) for layer in self.layers], axis=0)
+
+    def quadrature_breaks(self) -> FloatArray:
+        """Fractions where the segment's 1/(G·K) may need a new quadrature piece."""
+        return np.unique(np.concatenate([layer.section.quadrature_breaks() for layer in self.layers]))
+
+
+@dataclass(frozen=True)
+class Shaft:
+    """A shaft: segments end to end along its own x axis, x = 0 at its start.
+
+    Parameters
+    ----------
+    id
+        The shaft's name, unique in the model.
+    segments
+        Segments from x = 0 onwards.
+    """
+
+    id: str
+    segments: tuple[Segment, ...]
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.id, str) or not self.id.strip():
+            raise InputError("id", f"must be a non-empty name, not {self.id!r}")
+        if not self.segments:
+            raise InputError("segments", "a shaft needs at least one segment")
+
+    @functools.cached_property
+    def length(self) -> float:
+        """Total length (m)."""
+        return float(self.boundaries[-1])
+
+    @functools.cached_property
+    def boundaries(self) -> FloatArray:
+        """x of every segment end, from 0 to the shaft's length (m)."""
+        return np.concatenate([[0.0], np.cumsum([segment.length for segment in self.segments])])
+
+    def contains(self, x: float) -> bool:
+        """Whether the position x (m) lies on the shaft, within the position tolerance."""
+        tolerance = POSITION_TOLERANCE * self.length
+        return -tolerance <= x <= self.length + tolerance
+
+
+SupportKind = Literal["fixed", "spring"]
+
+
+@dataclass(frozen=True)
+class Support:
+    """A support that restrains a shaft's rotation at one point.
+
+    Parameters
+    ----------
+    shaft
+        Id of the shaft.
+    x
+        Position along the shaft (m).
+    kind
+        ``"fixed"``: the rotation there is held at ``rotation``; ``"spring"``: the support exerts
+        −stiffness·(θ − rotation).
+    stiffness
+        Rotational stiffness of a spring support (N·m/rad).
+    rotation
+        Prescribed rotation of the support (rad): a misfit or pre-twist; 0 by default.
+    """
+
+    shaft: str
+    x: float
+    kind: SupportKind = "fixed"
+    stiffness: float | None = None
+    rotation: float = 0.0
+
+    def __post_init__(self) -> None:
+        require_finite("x", self.x)
+        require_finite("rotation", self.rotation)
+        if self.kind not in ("fixed", "spring"):
+            raise InputError("kind", f"must be 'fixed' or 'spring', not {self.kind!r}")
+        if self.kind == "spring":
+            if self.stiffness is None:
+                raise InputError("stiffness", "a spring support needs a stiffness")
+            require_positive("stiffness", self.stiffness, "stiffness")
+        elif self.stiffness is not None:
+            raise InputError("stiffness", "only a spring support takes a stiffness")
+
+
+@dataclass(frozen=True)
+class GearPosition:
+    """Where one gear of a mesh sits.
+
+    Parameters
+    ----------
+    shaft
+        Id of the shaft carrying the gear.
+    x
+        Position along the shaft (m).
+    radius
+        Pitch radius (m).
+    """
+
+    shaft: str
+    x: float
+    radius: float
+
+    def __post_init__(self) -> None:
+        require_finite("x", self.x)
+        require_positive("radius", self.radius)
+
+
+MeshKind = Literal["external", "internal"]
+
+
+@dataclass(frozen=True)
+class GearMesh:
+    """Two gears in mesh, rigid teeth, no backlash.
+
+    Parameters
+    ----------
+    a, b
+        The two gears.
+    mesh
+        ``"external"`` (the shafts turn in opposite senses: r_a·θ_a = −r_b·θ_b) or ``"internal"``
+        (a pinion inside a ring gear, same sense: r_a·θ_a = r_b·θ_b).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.8 (gear trains: compatibility of
+       arc lengths at the pitch circles).
+    """
+
+    a: GearPosition
+    b: GearPosition
+    mesh: MeshKind = "external"
+
+    def __post_init__(self) -> None:
+        if self.mesh not in ("external", "internal"):
+            raise InputError("mesh", f"must be 'external' or 'internal', not {self.mesh!r}")
+
+    @property
+    def coefficients(self) -> tuple[float, float]:
+        """(c_a, c_b) of the constraint c_a·θ_a + c_b·θ_b = 0 (m)."""
+        sign = 1.0 if self.mesh == "external" else -1.0
+        return self.a.radius, sign * self.b.radius
+
+
+@dataclass(frozen=True)
+class PointTorque:
+    """A concentrated torque applied at a point.
+
+    Parameters
+    ----------
+    shaft
+        Id of the shaft.
+    x
+        Position (m).
+    torque
+        Torque (N·m), positive along +x.
+    """
+
+    shaft: str
+    x: float
+    torque: float
+
+    def __post_init__(self) -> None:
+        require_finite("x", self.x)
+        require_finite("torque", self.torque)
+
+
+@dataclass(frozen=True)
+class DistributedTorque:
+    """A distributed torque varying linearly from ``start`` to ``end``.
+
+    Parameters
+    ----------
+    shaft
+        Id of the shaft.
+    start, end
+        Where the load begins and ends (m), start < end.
+    intensity_start, intensity_end
+        Torque per length at start and at end (N·m/m), positive along +x.
+    """
+
+    shaft: str
+    start: float
+    end: float
+    intensity_start: float
+    intensity_end: float
+
+    def __post_init__(self) -> None:
+        for name in ("start", "end", "intensity_start", "intensity_end"):
+            require_finite(name, getattr(self, name))
+        if self.end <= self.start:
+            msg = (
+                f"must be greater than start ({quote(self.end, 'length')} ≤ "
+                f"{quote(self.start, 'length')})"
+            )
+            raise InputError("end", msg)
+
+    def intensity_at(self, x: FloatArray) -> FloatArray:
+        """Intensity (N·m/m) at positions inside [start, end]."""
+        fraction = (np.asarray(x) - self.start) / (self.end - self.start)
+        return self.intensity_start + (self.intensity_end - self.intensity_start) * fraction
+
+    @property
+    def resultant(self) -> float:
+        """Total torque (N·m)."""
+        return 0.5 * (self.intensity_start + self.intensity_end) * (self.end - self.start)
+
+
+@dataclass(frozen=True)
+class LoadCase:
+    """A named set of applied torques.
+
+    Parameters
+    ----------
+    name
+        Unique name.
+    torques
+        Point torques.
+    distributed
+        Distributed torques.
+    """
+
+    name: str
+    torques: tuple[PointTorque, ...] = ()
+    distributed: tuple[DistributedTorque, ...] = ()
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.name, str) or not self.name.strip():
+            raise InputError("name", f"must be a non-empty name, not {self.name!r}")
+
+
+@dataclass(frozen=True)
+class Combination:
+    """A factored sum of load cases, obtained by superposition of their results.
+
+    Parameters
+    ----------
+    name
+        Unique name (not shared with any load case).
+    factors
+        (load-case name, factor) pairs.
+
+    Notes
+    -----
+    A support's prescribed rotation belongs to every load case, so a combination scales it with
+    the factors like any other effect of its cases.
+    """
+
+    name: str
+    factors: tuple[tuple[str, float], ...]
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.name, str) or not self.name.strip():
+            raise InputError("name", f"must be a non-empty name, not {self.name!r}")
+        if not self.factors:
+            raise InputError("factors", "a combination needs at least one load case")
+        for case_name, factor in self.factors:
+            require_finite(f"factors.{case_name}", factor)
+
+    @classmethod
+    def of(cls, name: str, factors: Mapping[str, float]) -> Combination:
+        """Build from a mapping of load-case name to factor."""
+        return cls(name, tuple(factors.items()))
+
+
+@dataclass(frozen=True)
+class Model:
+    """A whole torsion system, validated, in SI units.
+
+    Parameters
+    ----------
+    shafts
+        The shafts.
+    supports
+        Supports (at least one per group of shafts joined by gears).
+    gears
+        Gear meshes joining shafts.
+    load_cases
+        At least one load case.
+    combinations
+        Factored sums of load cases.
+    title
+        Free text.
+    materials
+        The named materials the case file defined (kept for saving); segments hold their own.
+    units
+        The units the case was written in, used to report it back.
+    design
+        Design criteria for the checks (``workbench.solver.checks.DesignCriteria``), or ``None``.
+    """
+
+    shafts: tuple[Shaft, ...]
+    supports: tuple[Support, ...]
+    load_cases: tuple[LoadCase, ...]
+    gears: tuple[GearMesh, ...] = ()
+    combinations: tuple[Combination, ...] = ()
+    title: str = ""
+    materials: tuple[Material, ...] = ()
+    units: UnitSystem = SI
+    design: object | None = None
+    _shaft_index: dict[str, int] = field(default_factory=dict, init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        if not self.shafts:
+            raise InputError("shafts", "the model needs at least one shaft")
+        index: dict[str, int] = {}
+        for number, shaft in enumerate(self.shafts):
+            if shaft.id in index:
+                raise InputError(f"shafts[{number}].id", f"duplicate shaft id {shaft.id!r}")
+            index[shaft.id] = number
+        object.__setattr__(self, "_shaft_index", index)
+        for number, support in enumerate(self.supports):
+            self._check_point(f"supports[{number}]", support.shaft, support.x, "x")
+        for number, gear in enumerate(self.gears):
+            self._check_point(f"gears[{number}].a", gear.a.shaft, gear.a.x, "x")
+            self._check_point(f"gears[{number}].b", gear.b.shaft, gear.b.x, "x")
+            if gear.a.shaft == gear.b.shaft:
+                raise InputError(f"gears[{number}].b.shaft", "a gear cannot mesh with its own shaft")
+        if not self.load_cases:
+            raise InputError("load_cases", "the model needs at least one load case")
+        names: set[str] = set()
+        for number, case in enumerate(self.load_cases):
+            if case.name in names:
+                raise InputError(f"load_cases[{number}].name", f"duplicate name {case.name!r}")
+            names.add(case.name)
+            for item, torque in enumerate(case.torques):
+                self._check_point(f"load_cases[{number}].torques[{item}]", torque.shaft, torque.x, "x")
+            for item, load in enumerate(case.distributed):
+                path = f"load_cases[{number}].distributed[{item}]"
+                self._check_point(path, load.shaft, load.start, "start")
+                self._check_point(path, load.shaft, load.end, "end")
+        case_names = set(names)
+        for number, combination in enumerate(self.combinations):
+            if combination.name in names:
+                msg = f"duplicate name {combination.name!r} (names are shared with load cases)"
+                raise InputError(f"combinations[{number}].name", msg)
+            names.add(combination.name)
+            for case_name, _ in combination.factors:
+                if case_name not in case_names:
+                    msg = f"unknown load case {case_name!r}; known: {', '.join(sorted(case_names))}"
+                    raise InputError(f"combinations[{number}].factors.{case_name}", msg)
+
+    def _check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
+        if shaft_id not in self._shaft_index:
+            known = ", ".join(repr(name) for name in self._shaft_index)
+            raise InputError(f"{path}.shaft", f"unknown shaft {shaft_id!r}; known: {known}")
+        shaft = self.shaft(shaft_id)
+        if not shaft.contains(x):
+            msg = (
+                f"{quote(x, 'length')} is off shaft {shaft_id!r}, which runs from 0 to "
+                f"{quote(shaft.length, 'length')}"
+            )
+            raise InputError(f"{path}.{key}", msg)
+
+    def shaft(self, shaft_id: str) -> Shaft:
+        """Return the shaft with this id."""
+        return self.shafts[self._shaft_index[shaft_id]]
+
+    def shaft_number(self, shaft_id: str) -> int:
+        """Return the index of the shaft with this id."""
+        return self._shaft_index[shaft_id]
+
+    @property
+    def result_names(self) -> tuple[str, ...]:
+        """Load cases, then combinations, in file order."""
+        return tuple(case.name for case in self.load_cases) + tuple(
+            combination.name for combination in self.combinations
+        )

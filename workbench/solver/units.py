@@ -1,0 +1,201 @@
+"""Units at the edges: one pint registry, a unit system per case file, SI floats inside.
+
+A :class:`UnitSystem` names a unit for each base quantity of a case file (length, torque, stress,
+angle, ...). Derived quantities follow from them: a rotational stiffness is torque/angle, a
+distributed torque is torque/length, a shear modulus is in stress units, a twist rate is
+angle/length. ``to_si`` and ``from_si`` convert plain floats and numpy arrays; pint is imported only
+when a unit other than SI is named, so a purely SI session never pays for it.
+"""
+
+from __future__ import annotations
+
+import contextvars
+import functools
+import math
+from dataclasses import dataclass, field, fields
+from typing import Any
+
+import numpy as np
+
+from workbench.solver.errors import InputError
+
+#: SI unit of every quantity the solver works in.
+SI_UNITS: dict[str, str] = {
+    "length": "m",
+    "torque": "N*m",
+    "stress": "Pa",
+    "angle": "rad",
+    "power": "W",
+    "speed": "rad/s",
+    "inertia": "kg*m**2",
+    "density": "kg/m**3",
+}
+
+#: Derived quantities: name -> (numerator base quantity, denominator base quantity, power of
+#: the denominator).
+DERIVED: dict[str, tuple[str | None, str | None, int]] = {
+    "stiffness": ("torque", "angle", 1),
+    "distributed_torque": ("torque", "length", 1),
+    "shear_modulus": ("stress", None, 0),
+    "area": ("length", None, 0),
+    "twist_rate": ("angle", "length", 1),
+}
+
+_SIMPLE_FACTORS: dict[str, float] = {
+    # Units so common that converting them must not cost a pint import.
+    "m": 1.0,
+    "mm": 1e-3,
+    "cm": 1e-2,
+    "N*m": 1.0,
+    "N·m": 1.0,
+    "N m": 1.0,
+    "kN*m": 1e3,
+    "N*mm": 1e-3,
+    "Pa": 1.0,
+    "kPa": 1e3,
+    "MPa": 1e6,
+    "GPa": 1e9,
+    "rad": 1.0,
+    "deg": math.pi / 180.0,
+    "degree": math.pi / 180.0,
+    "W": 1.0,
+    "kW": 1e3,
+    "rad/s": 1.0,
+    "rpm": 2.0 * math.pi / 60.0,
+    "kg*m**2": 1.0,
+    "kg*m^2": 1.0,
+    "kg/m**3": 1.0,
+    "kg/m^3": 1.0,
+}
+
+
+@functools.lru_cache(maxsize=1)
+def registry() -> Any:
+    """Return the application's single pint unit registry (created on first use)."""
+    import pint  # noqa: PLC0415 - imported lazily: pint costs ~0.3 s and SI cases do not need it
+
+    ureg = pint.UnitRegistry()
+    ureg.formatter.default_format = "~"
+    return ureg
+
+
+@functools.lru_cache(maxsize=256)
+def _si_factor(unit: str, quantity: str) -> float:
+    """Return the factor that turns a value in ``unit`` into SI for ``quantity``."""
+    if unit in _SIMPLE_FACTORS:
+        return _SIMPLE_FACTORS[unit]
+    ureg = registry()
+    import pint  # noqa: PLC0415
+
+    try:
+        parsed = ureg.Quantity(1.0, unit)
+    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
+            TypeError, ValueError, AssertionError, KeyError, SyntaxError) as exc:
+        msg = f"unknown unit {unit!r}"
+        raise InputError(f"units.{quantity}", msg) from exc
+    expected = ureg.Quantity(1.0, SI_UNITS[quantity]).dimensionality
+    if parsed.dimensionality != expected:
+        msg = (
+            f"{unit!r} is not a unit of {quantity.replace('_', ' ')} "
+            f"(it has dimension {parsed.dimensionality or 'none'})"
+        )
+        raise InputError(f"units.{quantity}", msg)
+    return float(parsed.to(SI_UNITS[quantity]).magnitude)
+
+
+@dataclass(frozen=True)
+class UnitSystem:
+    """The unit of each base quantity in a case file or a report.
+
+    Parameters
+    ----------
+    length, torque, stress, angle, power, speed, inertia, density
+        Any unit string pint can parse, of the matching dimension (``"mm"``, ``"lbf*in"``,
+        ``"ksi"``, ``"deg"``, ``"kW"``, ``"rpm"``, ...).
+    """
+
+    length: str = "m"
+    torque: str = "N*m"
+    stress: str = "Pa"
+    angle: str = "rad"
+    power: str = "W"
+    speed: str = "rad/s"
+    inertia: str = "kg*m**2"
+    density: str = "kg/m**3"
+    _factors: dict[str, float] = field(default_factory=dict, init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        factors = {}
+        for f in fields(self):
+            if f.name.startswith("_"):
+                continue
+            unit = getattr(self, f.name)
+            if not isinstance(unit, str) or not unit.strip():
+                raise InputError(f"units.{f.name}", f"must be a unit string, not {unit!r}")
+            factors[f.name] = _si_factor(unit, f.name)
+        for name, (numerator, denominator, power) in DERIVED.items():
+            value = factors[numerator] if numerator else 1.0
+            if denominator:
+                value /= factors[denominator] ** power
+            factors[name] = value
+        factors["area"] = factors["length"] ** 2
+        object.__setattr__(self, "_factors", factors)
+
+    def factor(self, quantity: str) -> float:
+        """Return the factor from this system's unit of ``quantity`` to SI."""
+        return self._factors[quantity]
+
+    def to_si(self, value: Any, quantity: str) -> Any:
+        """Convert a float or array from this system's unit of ``quantity`` to SI."""
+        return value * self._factors[quantity]
+
+    def from_si(self, value: Any, quantity: str) -> Any:
+        """Convert a float or array from SI to this system's unit of ``quantity``."""
+        return value / self._factors[quantity]
+
+    def label(self, quantity: str) -> str:
+        """Return the unit string to print beside a value of ``quantity``."""
+        if quantity in SI_UNITS:
+            return str(getattr(self, quantity))
+        numerator, denominator, power = DERIVED[quantity]
+        top = getattr(self, numerator) if numerator else "1"
+        if quantity == "area":
+            return f"{self.length}^2"
+        if denominator is None:
+            return str(top)
+        return f"{top}/{getattr(self, denominator)}"
+
+    def as_dict(self) -> dict[str, str]:
+        """Return the unit strings keyed by base quantity (for the case file's ``units``)."""
+        return {f.name: getattr(self, f.name) for f in fields(self) if not f.name.startswith("_")}
+
+
+SI = UnitSystem()
+#: The display system "SI (engineering)": mm, N·m, MPa, deg.
+SI_ENGINEERING = UnitSystem(length="mm", torque="N*m", stress="MPa", angle="deg", power="kW",
+                            speed="rpm")
+
+
+@functools.lru_cache(maxsize=1)
+def us_customary() -> UnitSystem:
+    """The display system "US customary": in, lbf·in, psi, deg (built on first use: needs pint)."""
+    return UnitSystem(length="in", torque="lbf*in", stress="psi", angle="deg", power="hp",
+                      speed="rpm", inertia="lb*in**2", density="lb/in**3")
+
+#: Units in which model-validation messages quote values; io sets the case file's own system.
+display_units: contextvars.ContextVar[UnitSystem] = contextvars.ContextVar(
+    "display_units", default=SI
+)
+
+
+def quote(value: float, quantity: str) -> str:
+    """Format an SI value in the current display units, e.g. ``"30 mm"``, for messages."""
+    system = display_units.get()
+    shown = system.from_si(value, quantity)
+    return f"{_short(shown)} {system.label(quantity)}"
+
+
+def _short(value: float) -> str:
+    if not np.isfinite(value):
+        return str(value)
+    return f"{value:.6g}"
