@@ -1,0 +1,260 @@
+"""Allowable shear stress of a shaft material and rule-of-thumb limits on the rate of twist.
+
+How the factor of safety applies (the choice this module makes, stated in every result):
+
+* ``"von_mises"`` and ``"tresca"`` turn the tensile yield strength into a shear yield strength
+  (Sy/√3 and Sy/2) and divide it by the factor of safety.
+* ``"shafting_code"`` returns the allowable of the ASME *Code for Design of Transmission Shafting*,
+  min(0.30 Sy, 0.18 Su), × 0.75 where keyways are present. Those percentages are the code's own
+  margin, so the factor of safety is **not** applied again (``factor_of_safety_applied`` is 1).
+* ``"allowable"`` uses an allowable shear stress the user states; it is taken as already
+  including its margin, so the factor of safety is not applied either.
+
+Keyways reduce the allowable only under the code. With the other criteria a keyseat is taken
+into account by its stress-concentration factor on the stress
+(:func:`workbench.solver.concentration.keyseat_kts`), which the basis sentence says.
+
+The twist-rate limits are rules of thumb of common practice, not code requirements.
+
+References
+----------
+.. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, McGraw-Hill,
+   ch. 5 (maximum-shear-stress and distortion-energy theories: Ssy = 0.5 Sy and 0.577 Sy).
+.. [2] ASME, *Code for Design of Transmission Shafting* (ASA B17c-1927): allowable shear 30 % of
+   the yield strength but not over 18 % of the ultimate strength, reduced by 25 % with keyways.
+.. [3] A. S. Hall, A. R. Holowenko and H. G. Laughlin, *Schaum's Outline of Machine Design*,
+   McGraw-Hill, chapter on shaft design (angle-of-twist guidance: about 0.08°/ft for machine
+   shafts, about 1°/ft for line shafting).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from workbench.solver.errors import InputError
+from workbench.solver.materials import Material
+from workbench.solver.sections import require_positive
+from workbench.solver.units import quote
+
+#: Criteria :func:`allowable_shear_stress` accepts.
+SHEAR_CRITERIA: tuple[str, ...] = ("von_mises", "tresca", "shafting_code", "allowable")
+
+#: ASME transmission-shafting code fractions (of Sy, of Su) and the keyway reduction.
+SHAFTING_CODE_YIELD_FRACTION = 0.30
+SHAFTING_CODE_ULTIMATE_FRACTION = 0.18
+SHAFTING_CODE_KEYWAY_FACTOR = 0.75
+
+_FOOT = 0.3048  # m, exact (international foot, 1959)
+
+
+@dataclass(frozen=True)
+class Allowable:
+    """An allowable shear stress and how it was obtained.
+
+    Parameters
+    ----------
+    value
+        Allowable shear stress (Pa).
+    basis
+        One human sentence with the formula and the numbers, for reports.
+    criterion
+        The criterion used, one of :data:`SHEAR_CRITERIA`.
+    factor_of_safety_applied
+        The divisor actually applied to the strength (dimensionless): the factor of safety for
+        ``"von_mises"`` and ``"tresca"``, 1 for ``"shafting_code"`` and ``"allowable"``.
+    """
+
+    value: float
+    basis: str
+    criterion: str = ""
+    factor_of_safety_applied: float = 1.0
+
+
+def _require_strength(material: Material | None, attribute: str, criterion: str) -> float:
+    if material is None:
+        msg = f"criterion {criterion!r} needs a material"
+        raise InputError(field="material", message=msg)
+    value = getattr(material, attribute)
+    if value is None:
+        label = attribute.replace("_", " ")
+        msg = f"material {material.name!r} has no {label}; criterion {criterion!r} needs it"
+        raise InputError(attribute, msg)
+    return float(value)
+
+
+def allowable_shear_stress(
+    material: Material | None,
+    criterion: str,
+    factor_of_safety: float,
+    keyway: bool = False,
+    stated_allowable: float | None = None,
+) -> Allowable:
+    """Return the allowable shear stress of a shaft by a named criterion.
+
+    Parameters
+    ----------
+    material
+        The shaft material; its ``yield_strength`` (Pa) and, for the code, ``ultimate_strength``
+        (Pa) are used. May be ``None`` with ``criterion="allowable"``.
+    criterion
+        ``"von_mises"`` (Sy/√3), ``"tresca"`` (Sy/2), ``"shafting_code"``
+        (min(0.30 Sy, 0.18 Su), × 0.75 with keyways) or ``"allowable"`` (``stated_allowable``).
+    factor_of_safety
+        Factor of safety n ≥ 1 (dimensionless); divides the shear yield strength of the yield
+        criteria, not applied to the code value nor to a stated allowable.
+    keyway
+        Whether the section has a keyway (reduces the code allowable by 25 %).
+    stated_allowable
+        Allowable shear stress (Pa) for ``criterion="allowable"``; must be ``None`` otherwise.
+
+    Returns
+    -------
+    Allowable
+        The value (Pa) with its basis sentence.
+
+    Raises
+    ------
+    InputError
+        Unknown criterion, factor of safety below 1, missing strength or stated allowable.
+
+    References
+    ----------
+    .. [1] Shigley's *Mechanical Engineering Design*, ch. 5: Ssy = Sy/2 (Tresca),
+       Ssy = Sy/√3 (von Mises).
+    .. [2] ASME *Code for Design of Transmission Shafting*: 0.30 Sy, not over 0.18 Su, × 0.75
+       with keyways.
+    """
+    if criterion not in SHEAR_CRITERIA:
+        msg = f"unknown criterion {criterion!r}; choose one of {', '.join(SHEAR_CRITERIA)}"
+        raise InputError(field="criterion", message=msg)
+    if (
+        not isinstance(factor_of_safety, (int, float))
+        or isinstance(factor_of_safety, bool)
+        or not math.isfinite(factor_of_safety)
+        or factor_of_safety < 1.0
+    ):
+        msg = f"must be a finite number of at least 1, not {factor_of_safety!r}"
+        raise InputError(field="factor_of_safety", message=msg)
+    if criterion != "allowable" and stated_allowable is not None:
+        msg = f"is used only with criterion 'allowable', not {criterion!r}"
+        raise InputError(field="stated_allowable", message=msg)
+    fos = float(factor_of_safety)
+    keyway_note = (
+        "; keyway not reduced here: apply its stress-concentration factor to the stress"
+        if keyway
+        else ""
+    )
+
+    if criterion in ("von_mises", "tresca"):
+        yield_strength = _require_strength(material, "yield_strength", criterion)
+        if criterion == "von_mises":
+            value = yield_strength / math.sqrt(3.0) / fos
+            formula, divisor = "von Mises: Sy/√3/FoS", "√3"
+        else:
+            value = yield_strength / 2.0 / fos
+            formula, divisor = "Tresca: Sy/2/FoS", "2"
+        basis = (
+            f"{formula} = {quote(yield_strength, 'stress')}/{divisor}/{fos:g} = "
+            f"{quote(value, 'stress')}{keyway_note}"
+        )
+        return Allowable(value, basis, criterion, fos)
+
+    if criterion == "shafting_code":
+        yield_strength = _require_strength(material, "yield_strength", criterion)
+        ultimate = _require_strength(material, "ultimate_strength", criterion)
+        by_yield = SHAFTING_CODE_YIELD_FRACTION * yield_strength
+        by_ultimate = SHAFTING_CODE_ULTIMATE_FRACTION * ultimate
+        value = min(by_yield, by_ultimate)
+        basis = (
+            f"ASME transmission-shafting code: min(0.30 Sy, 0.18 Su) = "
+            f"min(0.30 × {quote(yield_strength, 'stress')}, 0.18 × {quote(ultimate, 'stress')})"
+            f" = {quote(value, 'stress')}"
+        )
+        if keyway:
+            value *= SHAFTING_CODE_KEYWAY_FACTOR
+            basis += f", × 0.75 for the keyway = {quote(value, 'stress')}"
+        basis += (
+            f"; the code value carries its own margin, so the factor of safety ({fos:g}) is not "
+            "applied"
+        )
+        return Allowable(value, basis, criterion, 1.0)
+
+    # criterion == "allowable"
+    if stated_allowable is None:
+        msg = "criterion 'allowable' needs a stated allowable shear stress"
+        raise InputError(field="stated_allowable", message=msg)
+    require_positive("stated_allowable", stated_allowable, "stress")
+    value = float(stated_allowable)
+    basis = (
+        f"stated allowable shear stress {quote(value, 'stress')}, used as given (taken to "
+        f"include its margin; the factor of safety ({fos:g}) is not applied){keyway_note}"
+    )
+    return Allowable(value, basis, criterion, 1.0)
+
+
+# --- twist-rate limits ---------------------------------------------------------------------------
+@dataclass(frozen=True)
+class TwistRateLimit:
+    """A rule-of-thumb limit on the rate of twist of a shaft.
+
+    Parameters
+    ----------
+    value
+        Largest rate of twist (rad/m).
+    label
+        Short human label, e.g. ``"0.08°/ft (machine shafts)"``.
+    source
+        Where the rule comes from; rules of thumb are marked as such.
+    """
+
+    value: float
+    label: str
+    source: str
+
+
+#: Rate-of-twist limits of common practice, in rad/m.
+TWIST_RATE_PRESETS: dict[str, TwistRateLimit] = {
+    "machine-shaft": TwistRateLimit(
+        math.radians(0.08) / _FOOT,
+        "0.08°/ft ≈ 0.26°/m (machine shafts)",
+        "rule of thumb (common practice): Hall, Holowenko & Laughlin, Schaum's Outline of "
+        "Machine Design",
+    ),
+    "line-shaft": TwistRateLimit(
+        math.radians(1.0) / _FOOT,
+        "1°/ft ≈ 3.3°/m (line shafting)",
+        "rule of thumb (common practice): Hall, Holowenko & Laughlin, Schaum's Outline of "
+        "Machine Design",
+    ),
+}
+
+
+def twist_rate_one_degree_in_twenty_diameters(diameter: float) -> TwistRateLimit:
+    """Return the "1° in 20 diameters" rate-of-twist limit for a shaft of diameter d.
+
+    Parameters
+    ----------
+    diameter
+        Shaft diameter d (m).
+
+    Returns
+    -------
+    TwistRateLimit
+        A limit of (π/180)/(20 d) rad/m.
+
+    Raises
+    ------
+    InputError
+        ``diameter`` is not a finite positive number.
+
+    References
+    ----------
+    .. [1] Common practice, no source.
+    """
+    require_positive("diameter", diameter)
+    return TwistRateLimit(
+        math.radians(1.0) / (20.0 * diameter),
+        f"1° in 20 diameters (d = {quote(diameter, 'length')})",
+        "rule of thumb (common practice, no source)",
+    )
