@@ -1,0 +1,548 @@
+"""Non-circular prismatic sections: solid rectangle, thin-walled closed and open sections.
+
+Each shape is a frozen dataclass in SI metres subclassing
+:class:`~workbench.solver.sections.Section`. It answers the same two questions as the circular
+sections: the Saint-Venant torsion constant K (m⁴, so that the twist rate is T/(G·K)) and the
+largest shear stress per unit torque (1/m³).
+
+The solid rectangle uses the exact Saint-Venant series. The thin-walled shapes use the classical
+thin-wall theories — Bredt–Batho for closed cells, the sum of thin strips for open sections — and
+refuse walls too thick for those theories to hold (see :data:`THIN_WALL_LIMIT`).
+
+References
+----------
+.. [1] S. P. Timoshenko and J. N. Goodier, *Theory of Elasticity*, 3rd ed., McGraw-Hill, 1970,
+   ch. 10, torsion of bars of rectangular cross section (the series for β and k).
+.. [2] W. C. Young and R. G. Budynas, *Roark's Formulas for Stress and Strain*, 7th ed.,
+   McGraw-Hill, 2002, ch. 10 and Table 10.1 (rectangle fit, thin tubes, thin open sections;
+   table placement from memory).
+.. [3] J. M. Gere and B. J. Goodno, *Mechanics of Materials*, 8th ed., Cengage, 2013, §3.11,
+   thin-walled tubes: shear flow q = T/(2·A_m), τ = q/t, K = 4·A_m²/∮ds/t (Bredt–Batho).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import ClassVar
+
+import numpy as np
+from scipy.special import ellipe, zeta
+
+from workbench.solver.errors import InputError
+from workbench.solver.sections import Section, require_positive
+from workbench.solver.units import quote
+
+#: Largest thin-wall parameter λ = t_max·P/(2·A_m) a closed cell may have (P the centre-line
+#: perimeter, A_m the enclosed area, so 2·A_m/P is the cell's "hydraulic radius" and equals the
+#: mean radius r of a circular tube). λ ≤ 0.1 is the usual "t ≤ r/10" thin-wall rule (common
+#: practice, no source) carried over to any cell. Bredt–Batho gives the wall-mean shear stress; the
+#: surface stress at mid-wall exceeds it by about λ/2 in a circular tube and about λ in a
+#: flat-walled box (checked against sectionproperties in tests/validation/test_noncircular.py), so
+#: the limit keeps that unconservative error near 10 % or less. For open sections the same limit
+#: bounds the free-end deficit of the walls, see :class:`ThinWalledOpen`.
+THIN_WALL_LIMIT = 0.1
+
+#: Coefficient of the free-end deficit of a thin strip, K ≈ b·t³/3 − 0.21·t⁴ (Roark's fit for the
+#: rectangle, [2] Table 10.1 case 4, taken at a long strip).
+_STRIP_END_DEFICIT = 0.21
+
+#: Relative excess over the isoperimetric bound P²/(4π) accepted for the enclosed area of a closed
+#: cell: a circular cell entered to four significant figures may overshoot the bound by a few
+#: parts in 10⁴; anything more is not a closed curve of that perimeter.
+_ISOPERIMETRIC_SLACK = 1e-3
+
+#: Relative size below which a term of the rectangle series no longer changes the sum in double
+#: precision.
+_SERIES_TOLERANCE = 1e-16
+
+
+def rectangle_coefficients(aspect_ratio: float) -> tuple[float, float]:
+    """Saint-Venant coefficients α and β of a solid rectangle.
+
+    For a rectangle with long side a and short side b, K = β·a·b³ and τ_max = T/(α·a·b²); τ_max
+    acts at the middle of the long sides.
+
+    Parameters
+    ----------
+    aspect_ratio
+        a/b, long side over short side (dimensionless), at least 1; ``math.inf`` gives the limit
+        of a thin strip, α = β = 1/3.
+
+    Returns
+    -------
+    tuple of float
+        ``(alpha, beta)``, dimensionless.
+
+    Raises
+    ------
+    InputError
+        If ``aspect_ratio`` is not a number of at least 1.
+
+    Notes
+    -----
+    With r = a/b and n running over the odd integers,
+
+    β = (1/3)·[1 − (192/π⁵)·(1/r)·Σ tanh(nπr/2)/n⁵],
+    k = 1 − (8/π²)·Σ 1/(n²·cosh(nπr/2)),  α = β/k.
+
+    The tanh sum is split as Σ 1/n⁵ − Σ (1 − tanh(nπr/2))/n⁵ with Σ_{n odd} 1/n⁵ = (1 − 2⁻⁵)·ζ(5)
+    exactly, so that both remaining sums fall off like e^(−nπr/2); they are summed until a term is
+    below 10⁻¹⁶ of the first. 1 − tanh x and 1/cosh x are evaluated through e^(−x), which cannot
+    overflow.
+
+    References
+    ----------
+    .. [1] Timoshenko & Goodier, *Theory of Elasticity*, 3rd ed., ch. 10, torsion of rectangular
+       bars (series for the torque and the largest stress, and the table of α and β).
+    .. [2] Σ_{n odd} n⁻ˢ = (1 − 2⁻ˢ)·ζ(s): split the zeta series into odd and even terms (any
+       text on the Riemann zeta function; derivable).
+    """
+    if not isinstance(aspect_ratio, (int, float)) or isinstance(aspect_ratio, bool):
+        msg = f"must be a number, not {aspect_ratio!r}"
+        field_name = "aspect_ratio"
+        raise InputError(field_name, msg)
+    if math.isnan(aspect_ratio) or aspect_ratio < 1.0:
+        msg = f"must be the long side over the short side, at least 1 (not {aspect_ratio})"
+        field_name = "aspect_ratio"
+        raise InputError(field_name, msg)
+    ratio = float(aspect_ratio)
+    # Terms shrink like e^(−nπr/2): stop where the last is below the tolerance relative to n = 1.
+    last = 1.0 + 2.0 * math.log(1.0 / _SERIES_TOLERANCE) / (math.pi * ratio)
+    odd = np.arange(1.0, last + 2.0, 2.0)
+    decay = np.exp(-odd * math.pi * ratio / 2.0)  # e^(−x), x = nπr/2
+    one_minus_tanh = 2.0 * decay**2 / (1.0 + decay**2)
+    sech = 2.0 * decay / (1.0 + decay**2)
+    odd_zeta_5 = (1.0 - 2.0**-5) * float(zeta(5.0))
+    tanh_sum = odd_zeta_5 - float(np.sum(one_minus_tanh / odd**5))
+    beta = (1.0 - 192.0 / math.pi**5 / ratio * tanh_sum) / 3.0
+    stress_factor = 1.0 - 8.0 / math.pi**2 * float(np.sum(sech / odd**2))
+    return beta / stress_factor, beta
+
+
+def _require_thin(
+    field_name: str, thickness: float, enclosed_area: float, perimeter: float
+) -> None:
+    """Raise :class:`InputError` when a closed cell's wall is too thick for Bredt–Batho."""
+    hydraulic_radius = 2.0 * enclosed_area / perimeter
+    if thickness > THIN_WALL_LIMIT * hydraulic_radius:
+        msg = (
+            f"is too thick for thin-walled (Bredt–Batho) theory: {quote(thickness, 'length')} "
+            f"exceeds {THIN_WALL_LIMIT:g} × 2·A/P = "
+            f"{quote(THIN_WALL_LIMIT * hydraulic_radius, 'length')} for this cell"
+        )
+        raise InputError(field_name, msg)
+
+
+def _require_walls(field_name: str, walls: object) -> tuple[Wall, ...]:
+    """Return ``walls`` as a tuple of :class:`Wall`, or raise :class:`InputError`."""
+    if not isinstance(walls, (tuple, list)):
+        msg = f"must be a list of walls, not {walls!r}"
+        raise InputError(field_name, msg)
+    for index, wall in enumerate(walls):
+        if not isinstance(wall, Wall):
+            msg = f"must be a wall with a length and a thickness, not {wall!r}"
+            entry = f"{field_name}[{index}]"
+            raise InputError(entry, msg)
+    if not walls:
+        msg = "needs at least one wall"
+        raise InputError(field_name, msg)
+    return tuple(walls)
+
+
+@dataclass(frozen=True)
+class Wall:
+    """One straight or curved panel of a thin-walled section, measured on its centre line.
+
+    Parameters
+    ----------
+    length
+        Length of the panel along the wall's centre line (m).
+    thickness
+        Wall thickness, uniform over the panel (m).
+    """
+
+    length: float
+    thickness: float
+
+    def __post_init__(self) -> None:
+        require_positive("length", self.length)
+        require_positive("thickness", self.thickness)
+
+
+@dataclass(frozen=True)
+class Rectangle(Section):
+    """Solid rectangular section.
+
+    Parameters
+    ----------
+    width
+        Overall width (m).
+    height
+        Overall height, the depth of the section (m). Either side may be the longer.
+
+    Notes
+    -----
+    With a the longer and b the shorter side, K = β·a·b³ and τ_max = T/(α·a·b²) at the middle of
+    the long sides, α and β from :func:`rectangle_coefficients` (the exact series, not a fit).
+
+    References
+    ----------
+    .. [1] Timoshenko & Goodier, *Theory of Elasticity*, 3rd ed., ch. 10, torsion of rectangular
+       bars.
+    """
+
+    width: float
+    height: float
+    shape: ClassVar[str] = "rectangle"
+
+    def __post_init__(self) -> None:
+        require_positive("width", self.width)
+        require_positive("height", self.height)
+
+    @property
+    def _long_short(self) -> tuple[float, float]:
+        return max(self.width, self.height), min(self.width, self.height)
+
+    @property
+    def torsion_constant(self) -> float:
+        """Torsion constant K = β·a·b³ (m⁴)."""
+        long_side, short_side = self._long_short
+        _, beta = rectangle_coefficients(long_side / short_side)
+        return beta * long_side * short_side**3
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Largest shear stress per unit torque, 1/(α·a·b²) (1/m³)."""
+        long_side, short_side = self._long_short
+        alpha, _ = rectangle_coefficients(long_side / short_side)
+        return 1.0 / (alpha * long_side * short_side**2)
+
+    @property
+    def outer_radius(self) -> float:
+        """Half the height (m)."""
+        return self.height / 2.0
+
+
+@dataclass(frozen=True)
+class ThinWalledClosed(Section):
+    """Single-cell thin-walled closed section described by its wall panels (Bredt–Batho).
+
+    Parameters
+    ----------
+    enclosed_area
+        A_m, the area enclosed by the centre line of the wall (m²).
+    walls
+        The wall panels round the centre line, each with its length (m) and thickness (m); their
+        lengths add up to the centre-line perimeter P.
+
+    Notes
+    -----
+    K = 4·A_m²/Σ(lᵢ/tᵢ), τ_max = T/(2·A_m·t_min). This is the wall-mean stress of thin-walled
+    theory: the wall must be thin, t_max ≤ :data:`THIN_WALL_LIMIT` × 2·A_m/P, and the centre line
+    must be able to enclose A_m (isoperimetric inequality A_m ≤ P²/(4π), with 0.1 % allowed for
+    rounding of the entered values). Stress concentrations at
+    sharp re-entrant corners are not included.
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.11, thin-walled tubes
+       (Bredt–Batho).
+    .. [2] Young & Budynas, *Roark's Formulas for Stress and Strain*, 7th ed., Table 10.1, thin
+       tubes (from memory for the case number).
+    .. [3] Isoperimetric inequality 4πA ≤ P² (any text on plane geometry).
+    """
+
+    enclosed_area: float = field(metadata={"quantity": "area"})
+    walls: tuple[Wall, ...]
+    shape: ClassVar[str] = "thin_closed"
+
+    def __post_init__(self) -> None:
+        require_positive("enclosed_area", self.enclosed_area, "area")
+        object.__setattr__(self, "walls", _require_walls("walls", self.walls))
+        perimeter = self.perimeter
+        largest_area = perimeter**2 / (4.0 * math.pi)
+        if self.enclosed_area > largest_area * (1.0 + _ISOPERIMETRIC_SLACK):
+            msg = (
+                f"is larger than any wall perimeter of {quote(perimeter, 'length')} can enclose "
+                f"({quote(self.enclosed_area, 'area')} > P²/(4π) = {quote(largest_area, 'area')})"
+            )
+            field_name = "enclosed_area"
+            raise InputError(field_name, msg)
+        thickest = max(range(len(self.walls)), key=lambda index: self.walls[index].thickness)
+        _require_thin(
+            f"walls[{thickest}].thickness",
+            self.walls[thickest].thickness,
+            self.enclosed_area,
+            perimeter,
+        )
+
+    @property
+    def perimeter(self) -> float:
+        """Centre-line perimeter P = Σ lᵢ (m)."""
+        return math.fsum(wall.length for wall in self.walls)
+
+    @property
+    def torsion_constant(self) -> float:
+        """Torsion constant K = 4·A_m²/Σ(lᵢ/tᵢ) (m⁴)."""
+        compliance = math.fsum(wall.length / wall.thickness for wall in self.walls)
+        return 4.0 * self.enclosed_area**2 / compliance
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Wall-mean shear stress per unit torque in the thinnest wall, 1/(2·A_m·t_min) (1/m³)."""
+        thinnest = min(wall.thickness for wall in self.walls)
+        return 1.0 / (2.0 * self.enclosed_area * thinnest)
+
+    @property
+    def outer_radius(self) -> float:
+        """Drawing size (m): radius of the circle of area A_m plus half the thickest wall."""
+        thickest = max(wall.thickness for wall in self.walls)
+        return math.sqrt(self.enclosed_area / math.pi) + thickest / 2.0
+
+    @property
+    def inner_radius(self) -> float:
+        """Drawing size (m): radius of the circle of area A_m less half the thickest wall."""
+        thickest = max(wall.thickness for wall in self.walls)
+        return math.sqrt(self.enclosed_area / math.pi) - thickest / 2.0
+
+
+@dataclass(frozen=True)
+class Box(Section):
+    """Rectangular hollow section of uniform wall thickness, sharp corners (Bredt–Batho).
+
+    Parameters
+    ----------
+    width
+        Overall outer width (m).
+    height
+        Overall outer height, the depth of the section (m).
+    thickness
+        Wall thickness (m); 2·t must be less than the smaller outer side, and the wall thin:
+        t ≤ :data:`THIN_WALL_LIMIT` × 2·A_m/P.
+
+    Notes
+    -----
+    On the centre line, A_m = (w − t)(h − t) and P = 2(w − t) + 2(h − t); K = 4·A_m²·t/P and
+    τ = T/(2·A_m·t), the wall-mean stress (corner concentrations not included).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.11, thin-walled tubes
+       (Bredt–Batho; rectangular tube example).
+    """
+
+    width: float
+    height: float
+    thickness: float
+    shape: ClassVar[str] = "box"
+
+    def __post_init__(self) -> None:
+        require_positive("width", self.width)
+        require_positive("height", self.height)
+        require_positive("thickness", self.thickness)
+        smaller = min(self.width, self.height)
+        if 2.0 * self.thickness >= smaller:
+            msg = (
+                f"leaves no hollow: twice {quote(self.thickness, 'length')} is not less than the "
+                f"smaller outer side {quote(smaller, 'length')}"
+            )
+            field_name = "thickness"
+            raise InputError(field_name, msg)
+        _require_thin("thickness", self.thickness, self.enclosed_area, self.perimeter)
+
+    @property
+    def enclosed_area(self) -> float:
+        """Area A_m enclosed by the wall's centre line (m²)."""
+        return (self.width - self.thickness) * (self.height - self.thickness)
+
+    @property
+    def perimeter(self) -> float:
+        """Centre-line perimeter P (m)."""
+        return 2.0 * (self.width - self.thickness) + 2.0 * (self.height - self.thickness)
+
+    @property
+    def torsion_constant(self) -> float:
+        """Torsion constant K = 4·A_m²·t/P (m⁴)."""
+        return 4.0 * self.enclosed_area**2 * self.thickness / self.perimeter
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Wall-mean shear stress per unit torque, 1/(2·A_m·t) (1/m³)."""
+        return 1.0 / (2.0 * self.enclosed_area * self.thickness)
+
+    @property
+    def outer_radius(self) -> float:
+        """Half the outer height (m)."""
+        return self.height / 2.0
+
+    @property
+    def inner_radius(self) -> float:
+        """Half the inner height (m)."""
+        return self.height / 2.0 - self.thickness
+
+
+@dataclass(frozen=True)
+class EllipticalTube(Section):
+    """Elliptical tube of uniform wall thickness (Bredt–Batho on the centre-line ellipse).
+
+    Parameters
+    ----------
+    width
+        Overall outer axis across the width (m).
+    height
+        Overall outer axis across the height, the depth of the section (m).
+    thickness
+        Wall thickness (m); 2·t must be less than the smaller axis, the wall thin
+        (t ≤ :data:`THIN_WALL_LIMIT` × 2·A_m/P), and t/2 less than the centre line's smallest
+        radius of curvature b²/a so the inner face stays a smooth curve.
+
+    Notes
+    -----
+    The centre line is the ellipse of semi-axes a = (max(w, h) − t)/2 and b = (min(w, h) − t)/2:
+    A_m = π·a·b and P = 4·a·E(m), E the complete elliptic integral of the second kind with
+    parameter m = 1 − b²/a² (scipy's ``ellipe`` takes the parameter m = k², not the modulus k).
+    K = 4·A_m²·t/P, τ = T/(2·A_m·t), the wall-mean stress.
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.11, thin-walled tubes
+       (Bredt–Batho).
+    .. [2] M. Abramowitz and I. A. Stegun, *Handbook of Mathematical Functions*, 1964, §17.3
+       (complete elliptic integral E(m); ellipse perimeter 4·a·E(1 − b²/a²)).
+    """
+
+    width: float
+    height: float
+    thickness: float
+    shape: ClassVar[str] = "elliptical_tube"
+
+    def __post_init__(self) -> None:
+        require_positive("width", self.width)
+        require_positive("height", self.height)
+        require_positive("thickness", self.thickness)
+        smaller = min(self.width, self.height)
+        if 2.0 * self.thickness >= smaller:
+            msg = (
+                f"leaves no hollow: twice {quote(self.thickness, 'length')} is not less than the "
+                f"smaller outer axis {quote(smaller, 'length')}"
+            )
+            field_name = "thickness"
+            raise InputError(field_name, msg)
+        major, minor = self._semi_axes
+        sharpest = minor**2 / major
+        if self.thickness / 2.0 >= sharpest:
+            msg = (
+                f"is too thick for the curvature at the ends of the long axis: half of "
+                f"{quote(self.thickness, 'length')} is not less than the centre line's radius "
+                f"of curvature {quote(sharpest, 'length')} there"
+            )
+            field_name = "thickness"
+            raise InputError(field_name, msg)
+        _require_thin("thickness", self.thickness, self.enclosed_area, self.perimeter)
+
+    @property
+    def _semi_axes(self) -> tuple[float, float]:
+        major = (max(self.width, self.height) - self.thickness) / 2.0
+        minor = (min(self.width, self.height) - self.thickness) / 2.0
+        return major, minor
+
+    @property
+    def enclosed_area(self) -> float:
+        """Area A_m = π·a·b enclosed by the centre-line ellipse (m²)."""
+        major, minor = self._semi_axes
+        return math.pi * major * minor
+
+    @property
+    def perimeter(self) -> float:
+        """Perimeter P = 4·a·E(1 − b²/a²) of the centre-line ellipse (m)."""
+        major, minor = self._semi_axes
+        return 4.0 * major * float(ellipe(1.0 - (minor / major) ** 2))
+
+    @property
+    def torsion_constant(self) -> float:
+        """Torsion constant K = 4·A_m²·t/P (m⁴)."""
+        return 4.0 * self.enclosed_area**2 * self.thickness / self.perimeter
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Wall-mean shear stress per unit torque, 1/(2·A_m·t) (1/m³)."""
+        return 1.0 / (2.0 * self.enclosed_area * self.thickness)
+
+    @property
+    def outer_radius(self) -> float:
+        """Half the outer height (m)."""
+        return self.height / 2.0
+
+    @property
+    def inner_radius(self) -> float:
+        """Half the inner height (m)."""
+        return self.height / 2.0 - self.thickness
+
+
+@dataclass(frozen=True)
+class ThinWalledOpen(Section):
+    """Thin-walled open section (flat strip, angle, channel, ...) as a set of thin walls.
+
+    Parameters
+    ----------
+    walls
+        The walls, each with its centre-line length b (m) and thickness t (m).
+
+    Notes
+    -----
+    K = Σ bᵢ·tᵢ³/3 and τ_max = T·t_max/K, at the faces of the thickest wall away from its ends and
+    junctions (re-entrant corners are not included). Each thin strip's true constant is smaller by
+    about 0.21·t⁴ per strip (Roark's rectangle fit); the walls must be slender enough that this
+    summed deficit is at most :data:`THIN_WALL_LIMIT` of K, i.e. b/t ≳ 6.3 for a lone strip.
+
+    References
+    ----------
+    .. [1] Young & Budynas, *Roark's Formulas for Stress and Strain*, 7th ed., ch. 10, thin-walled
+       open sections, K = Σ b·t³/3 (from memory; table number not checked), and Table 10.1
+       case 4 (rectangle fit K = a·b³[1/3 − 0.21(b/a)(1 − b⁴/12a⁴)]).
+    .. [2] Timoshenko & Goodier, *Theory of Elasticity*, 3rd ed., ch. 10, thin rectangles and
+       rolled sections (from memory).
+    """
+
+    walls: tuple[Wall, ...]
+    shape: ClassVar[str] = "thin_open"
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "walls", _require_walls("walls", self.walls))
+        deficit = math.fsum(_STRIP_END_DEFICIT * wall.thickness**4 for wall in self.walls)
+        if deficit > THIN_WALL_LIMIT * self.torsion_constant:
+            stubbiest = min(
+                range(len(self.walls)),
+                key=lambda index: self.walls[index].length / self.walls[index].thickness,
+            )
+            wall = self.walls[stubbiest]
+            msg = (
+                f"is too thick for thin-walled open-section theory: the walls' end effects "
+                f"(0.21·t⁴ each) exceed {THIN_WALL_LIMIT:g} of Σ b·t³/3; the stubbiest wall has "
+                f"{quote(wall.thickness, 'length')} over a length of {quote(wall.length, 'length')}"
+            )
+            field_name = f"walls[{stubbiest}].thickness"
+            raise InputError(field_name, msg)
+
+    @property
+    def torsion_constant(self) -> float:
+        """Torsion constant K = Σ b·t³/3 (m⁴)."""
+        return math.fsum(wall.length * wall.thickness**3 for wall in self.walls) / 3.0
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Largest shear stress per unit torque, t_max/K (1/m³)."""
+        thickest = max(wall.thickness for wall in self.walls)
+        return thickest / self.torsion_constant
+
+    @property
+    def outer_radius(self) -> float:
+        """Drawing size (m): half the longest wall; the walls' layout is not known."""
+        return max(wall.length for wall in self.walls) / 2.0
+
+
+#: Non-circular shapes by their case-file name.
+NONCIRCULAR_SHAPES: dict[str, type[Section]] = {
+    cls.shape: cls for cls in (Rectangle, ThinWalledClosed, Box, EllipticalTube, ThinWalledOpen)
+}
