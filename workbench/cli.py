@@ -130,19 +130,26 @@ def build_parser() -> argparse.ArgumentParser:
     )
     size_parser.add_argument("case", help="case file (JSON)")
     size_parser.add_argument(
-        "--segment", action="append", metavar="SHAFT:INDEX",
+        "--segment",
+        action="append",
+        metavar="SHAFT:INDEX",
         help="segment to size, e.g. main:0 (repeatable; default: every circular segment)",
     )
     size_parser.add_argument(
-        "--series", default="R40", choices=["R5", "R10", "R20", "R40"],
+        "--series",
+        default="R40",
+        choices=["R5", "R10", "R20", "R40"],
         help="ISO 3 Renard series of preferred sizes (default R40)",
     )
     size_parser.add_argument(
-        "--sizes", metavar="LIST", help="comma-separated diameters to choose from instead, "
-        "in the file's length unit",
+        "--sizes",
+        metavar="LIST",
+        help="comma-separated diameters to choose from instead, in the file's length unit",
     )
     size_parser.add_argument(
-        "--keep", default="ratio", choices=["ratio", "wall"],
+        "--keep",
+        default="ratio",
+        choices=["ratio", "wall"],
         help="for tubes: keep the bore ratio (default) or the wall thickness",
     )
     size_parser.add_argument("-o", "--output", help="write the sized case file here")

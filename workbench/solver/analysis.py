@@ -69,6 +69,7 @@ class Mesh:
     station_u: FloatArray  # local coordinate from the element start (m)
     station_moments: FloatArray  # (n_stations, 3): ∫₀ᵘ v^k dv/(G·K)
     station_stress_per_torque: FloatArray  # (1/m³)
+    station_rigidity: FloatArray  # G·K (N·m²)
     station_is_end: np.ndarray[Any, np.dtype[np.bool_]]  # the station is its element's end
     shaft_station_start: IntArray  # (n_shafts + 1,)
 
@@ -93,6 +94,9 @@ def _merge_points(points: FloatArray, length: float) -> FloatArray:
 
 def _key_points(model: Model) -> list[list[float]]:
     points: list[list[float]] = [[] for _ in model.shafts]
+    # Design checks may ask for values at given points (rotation limits): make them nodes.
+    for shaft_id, x in getattr(model.design, "key_points", lambda: [])():
+        points[model.shaft_number(shaft_id)].append(x)
     for support in model.supports:
         points[model.shaft_number(support.shaft)].append(support.x)
     for gear in model.gears:
@@ -120,9 +124,11 @@ def _segment_constants(segment: Segment) -> tuple[float, float]:
 
 def _varying_element(
     segment: Segment, fraction_start: float, fraction_end: float
-) -> tuple[FloatArray, FloatArray, FloatArray]:
-    """Stations, cumulative flexibility moments and stress factors of an element of a varying
-    segment, by 8-point Gauss–Legendre on pieces graded so the rule is exact to rounding."""
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
+    """Stations, cumulative flexibility moments, stress factors and rigidity of a varying element.
+
+    8-point Gauss–Legendre on pieces graded so that the rule is exact to rounding.
+    """
     breaks = segment.quadrature_breaks()
     inside = breaks[(breaks > fraction_start) & (breaks < fraction_end)]
     fractions = np.unique(
@@ -136,7 +142,12 @@ def _varying_element(
     pieces = np.stack([(compliance * local**k).sum(axis=1) for k in range(3)], axis=1)
     moments = np.vstack([np.zeros((1, 3)), np.cumsum(pieces, axis=0)])
     station_u = (fractions - fraction_start) * segment.length
-    return station_u, moments, segment.shear_stress_per_torque_at(fractions)
+    return (
+        station_u,
+        moments,
+        segment.shear_stress_per_torque_at(fractions),
+        segment.torsional_rigidity_at(fractions),
+    )
 
 
 def build_mesh(model: Model) -> Mesh:
@@ -196,9 +207,7 @@ def build_mesh(model: Model) -> Mesh:
             varying_elements.append(
                 (
                     element_count + int(local_index),
-                    _varying_element(
-                        segment, max(start_fraction, 0.0), min(end_fraction, 1.0)
-                    ),
+                    _varying_element(segment, max(start_fraction, 0.0), min(end_fraction, 1.0)),
                 )
             )
         element_count += n_elements
@@ -209,7 +218,7 @@ def build_mesh(model: Model) -> Mesh:
     node_x = np.concatenate(node_x_parts)
     # Station counts: ends only where T is constant and θ linear; a curve elsewhere.
     counts = np.where(loaded, CURVE_PIECES + 1, 2)
-    for element, (station_u, _, _) in varying_elements:
+    for element, (station_u, _, _, _) in varying_elements:
         counts[element] = len(station_u)
     station_element = np.repeat(np.arange(element_count), counts)
     offsets = np.cumsum(counts) - counts
@@ -220,14 +229,16 @@ def build_mesh(model: Model) -> Mesh:
         [u / element_rigidity, u**2 / (2 * element_rigidity), u**3 / (3 * element_rigidity)], axis=1
     )
     station_stress = stress_factor[station_element].copy()
+    station_rigidity = element_rigidity.copy()
     flexibility = np.stack(
         [lengths / rigidity, lengths**2 / (2 * rigidity), lengths**3 / (3 * rigidity)], axis=1
     )
-    for element, (station_u, moments, stress) in varying_elements:
+    for element, (station_u, moments, stress, station_gk) in varying_elements:
         window = slice(offsets[element], offsets[element] + counts[element])
         u[window] = station_u
         station_moments[window] = moments
         station_stress[window] = stress
+        station_rigidity[window] = station_gk
         flexibility[element] = moments[-1]
     station_x = node_x[start_nodes[station_element]] + u
     station_is_end = local == counts[station_element] - 1
@@ -235,7 +246,15 @@ def build_mesh(model: Model) -> Mesh:
     shaft_station_start = np.concatenate(
         [[0], element_end[np.searchsorted(shafts, np.arange(len(model.shafts)), side="right") - 1]]
     )
-    for array in (node_x, u, station_moments, station_stress, flexibility, station_x):
+    for array in (
+        node_x,
+        u,
+        station_moments,
+        station_stress,
+        station_rigidity,
+        flexibility,
+        station_x,
+    ):
         array.setflags(write=False)
     return Mesh(
         node_x=node_x,
@@ -250,6 +269,7 @@ def build_mesh(model: Model) -> Mesh:
         station_u=u,
         station_moments=station_moments,
         station_stress_per_torque=station_stress,
+        station_rigidity=station_rigidity,
         station_is_end=station_is_end,
         shaft_station_start=shaft_station_start,
     )
@@ -509,17 +529,19 @@ def _load_table(model: Model, mesh: Mesh) -> _LoadTable:
     middles = 0.5 * (element_start + element_end)
     loaded_mask = np.zeros(len(middles), dtype=bool)
     for _, shaft_number, load in spans:
-        loaded_mask |= (mesh.element_shaft == shaft_number) & (middles > load.start) & (
-            middles < load.end
+        loaded_mask |= (
+            (mesh.element_shaft == shaft_number) & (middles > load.start) & (middles < load.end)
         )
     elements = np.flatnonzero(loaded_mask)
     starts, ends = element_start[elements], element_end[elements]
     intensity_start = np.zeros((n_cases, len(elements)))
     intensity_end = np.zeros((n_cases, len(elements)))
     for row, shaft_number, load in spans:
-        inside = (mesh.element_shaft[elements] == shaft_number) & (
-            0.5 * (starts + ends) > load.start
-        ) & (0.5 * (starts + ends) < load.end)
+        inside = (
+            (mesh.element_shaft[elements] == shaft_number)
+            & (0.5 * (starts + ends) > load.start)
+            & (0.5 * (starts + ends) < load.end)
+        )
         intensity_start[row, inside] += load.intensity_at(starts[inside])
         intensity_end[row, inside] += load.intensity_at(ends[inside])
     return _LoadTable(point, elements, intensity_start, intensity_end)
@@ -586,8 +608,8 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
         slope = (loads.intensity_end - loads.intensity_start) / (2.0 * length)
         start_part = (loads.intensity_start * moments[:, 1] + slope * moments[:, 2]) / moments[:, 0]
         total = 0.5 * (loads.intensity_start + loads.intensity_end) * length
-        np.add.at(nodal, (slice(None), node_a[loads.elements]), start_part)
-        np.add.at(nodal, (slice(None), node_b[loads.elements]), total - start_part)
+        np.add.at(nodal.T, node_a[loads.elements], start_part.T)
+        np.add.at(nodal.T, node_b[loads.elements], (total - start_part).T)
 
     diagonal = np.zeros(n_nodes)
     spring_rhs = np.zeros(n_nodes)
@@ -666,9 +688,7 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     element = mesh.station_element
     u = mesh.station_u
     station_torque = (
-        start_torque[:, element]
-        - intensity_start[:, element] * u
-        - slope[:, element] * u**2
+        start_torque[:, element] - intensity_start[:, element] * u - slope[:, element] * u**2
     )
     moments = mesh.station_moments
     station_angle = (
@@ -682,7 +702,14 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     station_angle[:, ends] = node_angle[:, node_b[element[ends]]]
 
     reactions = _reactions(
-        model, mesh, support_nodes, node_angle, start_torque, end_torque, loads.point, gear_torques,
+        model,
+        mesh,
+        support_nodes,
+        node_angle,
+        start_torque,
+        end_torque,
+        loads.point,
+        gear_torques,
         gear_nodes,
     )
     return _with_combinations(
@@ -823,4 +850,3 @@ __all__ = [
     "solve",
     "torsion_stiffness_matrix",
 ]
-

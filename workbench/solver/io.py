@@ -178,7 +178,9 @@ def _parse_section(data: Any, path: str, units: UnitSystem) -> Section:
 
 def _parse_material(name: str, data: Any, path: str, units: UnitSystem) -> Material:
     reader = _Object(data, path, [*_MATERIAL_KEYS, "source"], units)
-    values = {key: reader.optional_number(key, quantity) for key, quantity in _MATERIAL_KEYS.items()}
+    values = {
+        key: reader.optional_number(key, quantity) for key, quantity in _MATERIAL_KEYS.items()
+    }
     if values["shear_modulus"] is None:
         raise InputError(reader.at("shear_modulus"), "is required")
     with field_path(path):
@@ -188,9 +190,24 @@ def _parse_material(name: str, data: Any, path: str, units: UnitSystem) -> Mater
 def _parse_segment(
     data: Any, path: str, units: UnitSystem, find_material: Callable[[str, str], Material]
 ) -> Segment:
-    reader = _Object(data, path, ["length", "material", "section", "layers", "fillet_radius"], units)
+    reader = _Object(
+        data,
+        path,
+        [
+            "length",
+            "material",
+            "section",
+            "layers",
+            "fillet_radius",
+            "keyseat",
+            "cross_hole_diameter",
+        ],
+        units,
+    )
     length = reader.number("length", "length")
     fillet = reader.optional_number("fillet_radius", "length")
+    keyseat = reader.flag("keyseat", False)
+    hole = reader.optional_number("cross_hole_diameter", "length")
     if reader.has("layers"):
         if reader.has("material") or reader.has("section"):
             msg = "give either material and section, or layers, not both"
@@ -210,14 +227,15 @@ def _parse_segment(
         material = find_material(reader.text("material"), reader.at("material"))
         layers = [Layer(material, _parse_section(data.get("section"), reader.at("section"), units))]
     with field_path(path):
-        return Segment(length, tuple(layers), fillet)
+        return Segment(length, tuple(layers), fillet, keyseat, hole)
 
 
 def _parse_point(data: Any, path: str, units: UnitSystem) -> GearPosition:
     reader = _Object(data, path, ["shaft", "x", "radius"], units)
     with field_path(path):
-        return GearPosition(reader.text("shaft"), reader.number("x", "length"),
-                            reader.number("radius", "length"))
+        return GearPosition(
+            reader.text("shaft"), reader.number("x", "length"), reader.number("radius", "length")
+        )
 
 
 def _parse_torque(data: Any, path: str, units: UnitSystem) -> PointTorque:
@@ -254,8 +272,17 @@ def parse_case(data: Any) -> Model:
     InputError
         On any invalid key, value or reference, naming the field.
     """
-    top_keys = ["title", "units", "materials", "shafts", "supports", "gears", "load_cases",
-                "combinations", "design"]
+    top_keys = [
+        "title",
+        "units",
+        "materials",
+        "shafts",
+        "supports",
+        "gears",
+        "load_cases",
+        "combinations",
+        "design",
+    ]
     if not isinstance(data, dict):
         raise InputError("", f"a case file must be a JSON object, not {_kind(data)}")
     units = parse_units(data.get("units"))
@@ -328,8 +355,10 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
         distributed = []
         for load_path, load_item in case.items("distributed"):
             load = _Object(
-                load_item, load_path,
-                ["shaft", "start", "end", "intensity_start", "intensity_end"], units,
+                load_item,
+                load_path,
+                ["shaft", "start", "end", "intensity_start", "intensity_end"],
+                units,
             )
             with field_path(load_path):
                 distributed.append(
@@ -454,7 +483,7 @@ def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any
         out["units"] = units.as_dict()
     materials: dict[str, Any] = {}
     for material in model.materials:
-        entry = {
+        entry: dict[str, Any] = {
             key: _number(units.from_si(value, quantity) if quantity else value)
             for key, quantity in _MATERIAL_KEYS.items()
             if (value := getattr(material, key)) is not None
@@ -478,12 +507,18 @@ def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any
                 entry["section"] = _section_to_dict(segment.layers[0].section, units)
             else:
                 entry["layers"] = [
-                    {"material": layer.material.name,
-                     "section": _section_to_dict(layer.section, units)}
+                    {
+                        "material": layer.material.name,
+                        "section": _section_to_dict(layer.section, units),
+                    }
                     for layer in segment.layers
                 ]
             if segment.fillet_radius is not None:
                 entry["fillet_radius"] = length(segment.fillet_radius)
+            if segment.keyseat:
+                entry["keyseat"] = True
+            if segment.cross_hole_diameter is not None:
+                entry["cross_hole_diameter"] = length(segment.cross_hole_diameter)
             segments.append(entry)
         shafts.append({"id": shaft.id, "segments": segments})
     out["shafts"] = shafts
@@ -523,8 +558,11 @@ def _load_case_to_dict(case: LoadCase, units: UnitSystem) -> dict[str, Any]:
     entry: dict[str, Any] = {"name": case.name}
     if case.torques:
         entry["torques"] = [
-            {"shaft": torque.shaft, "x": _number(units.from_si(torque.x, "length")),
-             "torque": _number(units.from_si(torque.torque, "torque"))}
+            {
+                "shaft": torque.shaft,
+                "x": _number(units.from_si(torque.x, "length")),
+                "torque": _number(units.from_si(torque.torque, "torque")),
+            }
             for torque in case.torques
         ]
     if case.distributed:
@@ -533,7 +571,9 @@ def _load_case_to_dict(case: LoadCase, units: UnitSystem) -> dict[str, Any]:
                 "shaft": load.shaft,
                 "start": _number(units.from_si(load.start, "length")),
                 "end": _number(units.from_si(load.end, "length")),
-                "intensity_start": _number(units.from_si(load.intensity_start, "distributed_torque")),
+                "intensity_start": _number(
+                    units.from_si(load.intensity_start, "distributed_torque")
+                ),
                 "intensity_end": _number(units.from_si(load.intensity_end, "distributed_torque")),
             }
             for load in case.distributed
@@ -541,7 +581,9 @@ def _load_case_to_dict(case: LoadCase, units: UnitSystem) -> dict[str, Any]:
     return entry
 
 
-def write_json_atomic(path: str | os.PathLike[str], document: Mapping[str, Any] | list[Any]) -> None:
+def write_json_atomic(
+    path: str | os.PathLike[str], document: Mapping[str, Any] | list[Any]
+) -> None:
     """Write JSON to ``path`` atomically: a temporary file in the same folder, then a rename.
 
     A crash or a full disk mid-write leaves the old file whole.

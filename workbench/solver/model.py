@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import contextlib
 import functools
+import itertools
 import math
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
@@ -86,6 +87,10 @@ class Segment:
     fillet_radius
         Fillet radius of the shoulder at the segment's start (m), used by the stress-concentration
         check; ``None`` when there is no shoulder or it is not known.
+    keyseat
+        Whether the segment carries an end-milled keyseat (stress concentration in the checks).
+    cross_hole_diameter
+        Diameter of a transverse through hole in the segment (m), or ``None``.
 
     Notes
     -----
@@ -100,6 +105,8 @@ class Segment:
     length: float
     layers: tuple[Layer, ...]
     fillet_radius: float | None = None
+    keyseat: bool = False
+    cross_hole_diameter: float | None = None
 
     def __post_init__(self) -> None:
         require_positive("length", self.length)
@@ -107,6 +114,14 @@ class Segment:
             raise InputError("layers", "a segment needs at least one layer")
         if self.fillet_radius is not None:
             require_non_negative("fillet_radius", self.fillet_radius)
+        if self.cross_hole_diameter is not None:
+            require_positive("cross_hole_diameter", self.cross_hole_diameter)
+            if self.cross_hole_diameter >= 2.0 * self.layers[-1].section.outer_radius:
+                msg = (
+                    f"must be smaller than the segment's diameter "
+                    f"({quote(self.cross_hole_diameter, 'length')})"
+                )
+                raise InputError("cross_hole_diameter", msg)
         if len(self.layers) > 1:
             self._check_layers_nest()
 
@@ -128,7 +143,7 @@ class Segment:
                 )
             )
         spans.sort(key=lambda span: float(span[0][0]))
-        for (_, outer, inner_index), (inner, _, outer_index) in zip(spans, spans[1:], strict=False):
+        for (_, outer, inner_index), (inner, _, outer_index) in itertools.pairwise(spans):
             if np.any(inner < outer * (1.0 - 1e-9)):
                 msg = (
                     f"overlaps layer {inner_index}: its bore "
@@ -144,9 +159,11 @@ class Segment:
         material: Material,
         section: Section,
         fillet_radius: float | None = None,
+        keyseat: bool = False,
+        cross_hole_diameter: float | None = None,
     ) -> Segment:
         """Build an ordinary one-layer segment."""
-        return cls(length, (Layer(material, section),), fillet_radius)
+        return cls(length, (Layer(material, section),), fillet_radius, keyseat, cross_hole_diameter)
 
     @property
     def prismatic(self) -> bool:
@@ -199,7 +216,9 @@ class Segment:
 
     def quadrature_breaks(self) -> FloatArray:
         """Fractions where the segment's 1/(G·K) may need a new quadrature piece."""
-        return np.unique(np.concatenate([layer.section.quadrature_breaks() for layer in self.layers]))
+        return np.unique(
+            np.concatenate([layer.section.quadrature_breaks() for layer in self.layers])
+        )
 
 
 @dataclass(frozen=True)
@@ -230,7 +249,7 @@ class Shaft:
 
     @functools.cached_property
     def boundaries(self) -> FloatArray:
-        """x of every segment end, from 0 to the shaft's length (m)."""
+        """Position of every segment end, from 0 to the shaft's length (m)."""
         return np.concatenate([[0.0], np.cumsum([segment.length for segment in self.segments])])
 
     def contains(self, x: float) -> bool:
@@ -495,7 +514,9 @@ class Model:
     materials: tuple[Material, ...] = ()
     units: UnitSystem = SI
     design: object | None = None
-    _shaft_index: dict[str, int] = field(default_factory=dict, init=False, repr=False, compare=False)
+    _shaft_index: dict[str, int] = field(
+        default_factory=dict, init=False, repr=False, compare=False
+    )
 
     def __post_init__(self) -> None:
         if not self.shafts:
@@ -512,7 +533,9 @@ class Model:
             self._check_point(f"gears[{number}].a", gear.a.shaft, gear.a.x, "x")
             self._check_point(f"gears[{number}].b", gear.b.shaft, gear.b.x, "x")
             if gear.a.shaft == gear.b.shaft:
-                raise InputError(f"gears[{number}].b.shaft", "a gear cannot mesh with its own shaft")
+                raise InputError(
+                    f"gears[{number}].b.shaft", "a gear cannot mesh with its own shaft"
+                )
         if not self.load_cases:
             raise InputError("load_cases", "the model needs at least one load case")
         names: set[str] = set()
@@ -521,7 +544,9 @@ class Model:
                 raise InputError(f"load_cases[{number}].name", f"duplicate name {case.name!r}")
             names.add(case.name)
             for item, torque in enumerate(case.torques):
-                self._check_point(f"load_cases[{number}].torques[{item}]", torque.shaft, torque.x, "x")
+                self._check_point(
+                    f"load_cases[{number}].torques[{item}]", torque.shaft, torque.x, "x"
+                )
             for item, load in enumerate(case.distributed):
                 path = f"load_cases[{number}].distributed[{item}]"
                 self._check_point(path, load.shaft, load.start, "start")
@@ -536,6 +561,14 @@ class Model:
                 if case_name not in case_names:
                     msg = f"unknown load case {case_name!r}; known: {', '.join(sorted(case_names))}"
                     raise InputError(f"combinations[{number}].factors.{case_name}", msg)
+
+        validate = getattr(self.design, "validate_against", None)
+        if validate is not None:
+            validate(self)
+
+    def check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
+        """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
+        self._check_point(path, shaft_id, x, key)
 
     def _check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
         if shaft_id not in self._shaft_index:

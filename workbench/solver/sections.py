@@ -128,8 +128,10 @@ class Section:
         return np.full(np.shape(fraction), self.inner_radius)
 
     def quadrature_breaks(self) -> FloatArray:
-        """Fractions splitting the length into pieces on which 1/K is smooth enough for an
-        8-point Gauss–Legendre rule to be exact to rounding."""
+        """Fractions splitting the length into pieces on which 1/K is smooth.
+
+        On each piece an 8-point Gauss–Legendre rule is exact to rounding.
+        """
         return np.array([0.0, 1.0])
 
 
@@ -218,8 +220,7 @@ class Tube(Section):
 
 @dataclass(frozen=True)
 class TaperedCircle(Section):
-    """Solid circular section whose diameter varies linearly along the segment, with an optional
-    constant bore.
+    """Circular section whose diameter varies linearly along the segment; optional constant bore.
 
     Parameters
     ----------

@@ -61,7 +61,9 @@ def results_document(results: Results, units: UnitSystem | None = None) -> dict[
 
 def format_table(headers: list[str], rows: list[list[str]]) -> str:
     """Left-aligned first column, right-aligned numbers, a rule under the header."""
-    widths = [max(len(str(cell)) for cell in column) for column in zip(headers, *rows, strict=False)]
+    widths = [
+        max(len(str(cell)) for cell in column) for column in zip(headers, *rows, strict=False)
+    ]
     lines = []
     for line_number, row in enumerate([headers, *rows]):
         cells = [
@@ -91,15 +93,21 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
         kind = "combination" if result.is_combination else "load case"
         out.append(f"\n{kind} {result.name!r}")
         rows = [
-            [f"{support.shaft} x={_g(units.from_si(support.x, 'length'))}", support.kind,
-             _g(units.from_si(reaction, "torque"))]
+            [
+                f"{support.shaft} x={_g(units.from_si(support.x, 'length'))}",
+                support.kind,
+                _g(units.from_si(reaction, "torque")),
+            ]
             for support, reaction in zip(model.supports, result.reactions, strict=True)
         ]
         out.append(format_table(["support", "kind", f"reaction [{units.label('torque')}]"], rows))
         if model.gears:
             rows = [
-                [f"gears[{number}]", _g(units.from_si(torques[0], "torque")),
-                 _g(units.from_si(torques[1], "torque"))]
+                [
+                    f"gears[{number}]",
+                    _g(units.from_si(torques[0], "torque")),
+                    _g(units.from_si(torques[1], "torque")),
+                ]
                 for number, torques in enumerate(result.gear_torques)
             ]
             out.append(
@@ -109,22 +117,36 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
                 )
             )
         for number, (shaft_id, values) in enumerate(result.shafts.items()):
-            window = slice(int(mesh.shaft_station_start[number]),
-                           int(mesh.shaft_station_start[number + 1]))
+            window = slice(
+                int(mesh.shaft_station_start[number]), int(mesh.shaft_station_start[number + 1])
+            )
             local = mesh.station_u[window]
             is_end = mesh.station_is_end[window]
             keep = (local == 0.0) | is_end
             rows = [
-                [_g(units.from_si(x, "length")), _g(units.from_si(t, "torque")),
-                 _g(units.from_si(a, "angle")), _g(units.from_si(s, "stress"))]
-                for x, t, a, s in zip(values.x[keep], values.torque[keep], values.angle[keep],
-                                      values.shear_stress[keep], strict=True)
+                [
+                    _g(units.from_si(x, "length")),
+                    _g(units.from_si(t, "torque")),
+                    _g(units.from_si(a, "angle")),
+                    _g(units.from_si(s, "stress")),
+                ]
+                for x, t, a, s in zip(
+                    values.x[keep],
+                    values.torque[keep],
+                    values.angle[keep],
+                    values.shear_stress[keep],
+                    strict=True,
+                )
             ]
             out.append(f"\nshaft {shaft_id!r}")
             out.append(
                 format_table(
-                    [f"x [{units.label('length')}]", f"torque [{units.label('torque')}]",
-                     f"angle [{units.label('angle')}]", f"shear stress [{units.label('stress')}]"],
+                    [
+                        f"x [{units.label('length')}]",
+                        f"torque [{units.label('torque')}]",
+                        f"angle [{units.label('angle')}]",
+                        f"shear stress [{units.label('stress')}]",
+                    ],
                     rows,
                 )
             )

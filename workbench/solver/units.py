@@ -74,7 +74,7 @@ def registry() -> Any:
     """Return the application's single pint unit registry (created on first use)."""
     import pint  # noqa: PLC0415 - imported lazily: pint costs ~0.3 s and SI cases do not need it
 
-    ureg = pint.UnitRegistry()
+    ureg: Any = pint.UnitRegistry()
     ureg.formatter.default_format = "~"
     return ureg
 
@@ -89,8 +89,16 @@ def _si_factor(unit: str, quantity: str) -> float:
 
     try:
         parsed = ureg.Quantity(1.0, unit)
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, AssertionError, KeyError, SyntaxError) as exc:
+    except (
+        pint.errors.UndefinedUnitError,
+        pint.errors.DefinitionSyntaxError,
+        AttributeError,
+        TypeError,
+        ValueError,
+        AssertionError,
+        KeyError,
+        SyntaxError,
+    ) as exc:
         msg = f"unknown unit {unit!r}"
         raise InputError(f"units.{quantity}", msg) from exc
     expected = ureg.Quantity(1.0, SI_UNITS[quantity]).dimensionality
@@ -157,7 +165,7 @@ class UnitSystem:
         """Return the unit string to print beside a value of ``quantity``."""
         if quantity in SI_UNITS:
             return str(getattr(self, quantity))
-        numerator, denominator, power = DERIVED[quantity]
+        numerator, denominator, _ = DERIVED[quantity]
         top = getattr(self, numerator) if numerator else "1"
         if quantity == "area":
             return f"{self.length}^2"
@@ -172,15 +180,25 @@ class UnitSystem:
 
 SI = UnitSystem()
 #: The display system "SI (engineering)": mm, N·m, MPa, deg.
-SI_ENGINEERING = UnitSystem(length="mm", torque="N*m", stress="MPa", angle="deg", power="kW",
-                            speed="rpm")
+SI_ENGINEERING = UnitSystem(
+    length="mm", torque="N*m", stress="MPa", angle="deg", power="kW", speed="rpm"
+)
 
 
 @functools.lru_cache(maxsize=1)
 def us_customary() -> UnitSystem:
     """The display system "US customary": in, lbf·in, psi, deg (built on first use: needs pint)."""
-    return UnitSystem(length="in", torque="lbf*in", stress="psi", angle="deg", power="hp",
-                      speed="rpm", inertia="lb*in**2", density="lb/in**3")
+    return UnitSystem(
+        length="in",
+        torque="lbf*in",
+        stress="psi",
+        angle="deg",
+        power="hp",
+        speed="rpm",
+        inertia="lb*in**2",
+        density="lb/in**3",
+    )
+
 
 #: Units in which model-validation messages quote values; io sets the case file's own system.
 display_units: contextvars.ContextVar[UnitSystem] = contextvars.ContextVar(

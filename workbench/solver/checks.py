@@ -1,0 +1,673 @@
+"""Design checks: from results to a verdict, segment by segment, result by result.
+
+For every load case and combination, every shaft and every segment, the checks find the governing
+(largest) value of each quantity, compare it with its limit and report the utilisation
+(value/limit) and where it governs:
+
+* ``shear_stress`` — the largest shear stress over the segment's sections and layers against the
+  allowable shear stress of the layer's material (criterion and factor of safety of the case's
+  ``design``);
+* ``shoulder_stress`` — Kts·τ_nom at a shoulder fillet (segment ``fillet_radius``), the nominal
+  stress taken on the smaller diameter at the shoulder;
+* ``keyseat_stress`` — Kts·τ with the end-milled keyseat factor;
+* ``cross_hole_stress`` — the equivalent shear stress of the peak normal stress at a transverse
+  hole;
+* ``twist_rate`` — the largest |T|/(G·K) along the segment against ``max_twist_rate``;
+* ``rotation`` — |θ(end) − θ(start)| between two stations against a limit.
+
+Every report carries the caution that results must be verified against applicable codes and
+licensed professional practice.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from workbench.solver.allowables import SHEAR_CRITERIA, Allowable, allowable_shear_stress
+from workbench.solver.analysis import Results
+from workbench.solver.concentration import (
+    ConcentrationFactor,
+    keyseat_kts,
+    shoulder_fillet_kts,
+    transverse_hole_kts,
+)
+from workbench.solver.errors import InputError
+from workbench.solver.materials import Material
+from workbench.solver.model import Model, Segment, field_path
+from workbench.solver.sections import FloatArray, SolidCircle, Tube, require_positive
+from workbench.solver.units import UnitSystem, display_units
+
+CAUTION = (
+    "These results are an aid to design, not a design approval. Verify them against the "
+    "applicable codes and standards and licensed professional practice before use; a qualified "
+    "engineer is responsible for the design."
+)
+
+#: Check kinds and the quantity their value and limit are measured in.
+CHECK_QUANTITIES: dict[str, str] = {
+    "shear_stress": "stress",
+    "shoulder_stress": "stress",
+    "keyseat_stress": "stress",
+    "cross_hole_stress": "stress",
+    "twist_rate": "twist_rate",
+    "rotation": "angle",
+}
+
+
+@dataclass(frozen=True)
+class RotationLimit:
+    """A limit on the relative rotation between two stations of one shaft.
+
+    Parameters
+    ----------
+    shaft
+        Shaft id.
+    start, end
+        The two stations (m).
+    limit
+        Largest |θ(end) − θ(start)| (rad).
+    """
+
+    shaft: str
+    start: float
+    end: float
+    limit: float
+
+    def __post_init__(self) -> None:
+        require_positive("limit", self.limit, "angle")
+
+
+@dataclass(frozen=True)
+class DesignCriteria:
+    """What the design must satisfy.
+
+    Parameters
+    ----------
+    factor_of_safety
+        Divides the shear yield strength for the ``von_mises`` and ``tresca`` criteria (≥ 1).
+    shear_criterion
+        ``"von_mises"`` (Sy/√3), ``"tresca"`` (Sy/2), ``"shafting_code"`` (min(0.30 Sy, 0.18 Su),
+        −25 % with keyways) or ``"allowable"`` (``allowable_shear_stress`` as stated).
+    keyway
+        Whether the shafts have keyways (the shafting code's 25 % reduction).
+    allowable_shear_stress
+        Stated allowable shear stress (Pa) for ``"allowable"``.
+    max_twist_rate
+        Largest rate of twist (rad/m), or ``None`` for no twist-rate check.
+    rotation_limits
+        Limits on relative rotation between stations.
+    """
+
+    factor_of_safety: float = 2.0
+    shear_criterion: str = "von_mises"
+    keyway: bool = False
+    allowable_shear_stress: float | None = None
+    max_twist_rate: float | None = None
+    rotation_limits: tuple[RotationLimit, ...] = ()
+
+    def __post_init__(self) -> None:
+        if self.shear_criterion not in SHEAR_CRITERIA:
+            msg = f"unknown criterion {self.shear_criterion!r}; choose one of {', '.join(SHEAR_CRITERIA)}"
+            raise InputError("shear_criterion", msg)
+        if (
+            isinstance(self.factor_of_safety, bool)
+            or not isinstance(self.factor_of_safety, (int, float))
+            or not math.isfinite(self.factor_of_safety)
+            or self.factor_of_safety < 1.0
+        ):
+            raise InputError(
+                "factor_of_safety", f"must be at least 1, not {self.factor_of_safety:g}"
+            )
+        if self.shear_criterion == "allowable" and self.allowable_shear_stress is None:
+            msg = "is required when shear_criterion is 'allowable'"
+            raise InputError("allowable_shear_stress", msg)
+        if self.allowable_shear_stress is not None:
+            require_positive("allowable_shear_stress", self.allowable_shear_stress, "stress")
+        if self.max_twist_rate is not None:
+            require_positive("max_twist_rate", self.max_twist_rate, "twist_rate")
+
+    def key_points(self) -> list[tuple[str, float]]:
+        """Stations the analysis must make nodes of (rotation-limit ends)."""
+        return [(r.shaft, x) for r in self.rotation_limits for x in (r.start, r.end)]
+
+    def validate_against(self, model: Model) -> None:
+        """Raise :class:`InputError` when a rotation limit names a point off the model."""
+        for number, limit in enumerate(self.rotation_limits):
+            path = f"design.rotation_limits[{number}]"
+            model.check_point(path, limit.shaft, limit.start, "start")
+            model.check_point(path, limit.shaft, limit.end, "end")
+
+    def allowable(self, material: Material) -> Allowable:
+        """Allowable shear stress of a material under these criteria."""
+        return allowable_shear_stress(
+            material,
+            self.shear_criterion,
+            self.factor_of_safety,
+            keyway=self.keyway,
+            stated_allowable=self.allowable_shear_stress,
+        )
+
+
+_DESIGN_KEYS = {
+    "factor_of_safety",
+    "shear_criterion",
+    "keyway",
+    "allowable_shear_stress",
+    "max_twist_rate",
+    "rotation_limits",
+}
+
+
+def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
+    """Read a case file's ``design`` object (in the file's units).
+
+    ``max_twist_rate`` is in angle units per length unit; ``allowable_shear_stress`` in stress
+    units; each ``rotation_limits`` entry is ``{"shaft", "start", "end", "limit"}``.
+    """
+    from workbench.solver.io import _Object  # noqa: PLC0415 - io imports this module lazily
+
+    reader = _Object(data, "design", _DESIGN_KEYS, units)
+    limits = []
+    for path, item in reader.items("rotation_limits"):
+        entry = _Object(item, path, ["shaft", "start", "end", "limit"], units)
+        with field_path(path):
+            limits.append(
+                RotationLimit(
+                    entry.text("shaft"),
+                    entry.number("start", "length"),
+                    entry.number("end", "length"),
+                    entry.number("limit", "angle"),
+                )
+            )
+    with field_path("design"):
+        return DesignCriteria(
+            factor_of_safety=reader.number("factor_of_safety", None, 2.0),
+            shear_criterion=reader.text("shear_criterion", "von_mises"),
+            keyway=reader.flag("keyway", False),
+            allowable_shear_stress=reader.optional_number("allowable_shear_stress", "stress"),
+            max_twist_rate=reader.optional_number("max_twist_rate", "twist_rate"),
+            rotation_limits=tuple(limits),
+        )
+
+
+def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
+    """The case file's ``design`` object for these criteria, in ``units``."""
+    out: dict[str, Any] = {
+        "factor_of_safety": design.factor_of_safety,
+        "shear_criterion": design.shear_criterion,
+        "keyway": design.keyway,
+    }
+    if design.allowable_shear_stress is not None:
+        out["allowable_shear_stress"] = float(
+            f"{units.from_si(design.allowable_shear_stress, 'stress'):.12g}"
+        )
+    if design.max_twist_rate is not None:
+        out["max_twist_rate"] = float(f"{units.from_si(design.max_twist_rate, 'twist_rate'):.12g}")
+    if design.rotation_limits:
+        out["rotation_limits"] = [
+            {
+                "shaft": r.shaft,
+                "start": float(f"{units.from_si(r.start, 'length'):.12g}"),
+                "end": float(f"{units.from_si(r.end, 'length'):.12g}"),
+                "limit": float(f"{units.from_si(r.limit, 'angle'):.12g}"),
+            }
+            for r in design.rotation_limits
+        ]
+    return out
+
+
+@dataclass(frozen=True)
+class Check:
+    """One check: the governing value of one quantity of one segment in one result.
+
+    Attributes
+    ----------
+    result
+        Load case or combination name.
+    shaft
+        Shaft id.
+    segment
+        Segment index on the shaft (``None`` for a rotation limit between stations).
+    kind
+        One of :data:`CHECK_QUANTITIES`.
+    value
+        Governing value (SI: Pa, rad/m or rad).
+    limit
+        Its limit (same unit).
+    x
+        Where it governs (m).
+    note
+        How the value and limit were obtained (criterion, factors, ranges).
+    """
+
+    result: str
+    shaft: str
+    segment: int | None
+    kind: str
+    value: float
+    limit: float
+    x: float
+    note: str = ""
+
+    @property
+    def utilisation(self) -> float:
+        """value/limit."""
+        return self.value / self.limit
+
+    @property
+    def passes(self) -> bool:
+        """Whether the value is within its limit."""
+        return self.value <= self.limit
+
+
+@dataclass(frozen=True)
+class CheckReport:
+    """All checks of a solved model.
+
+    Attributes
+    ----------
+    results
+        The results checked.
+    design
+        The criteria used.
+    checks
+        Every check, by result, shaft, segment, kind.
+    notes
+        Remarks that apply to the whole report (ranges of fits, defaults used).
+    """
+
+    results: Results
+    design: DesignCriteria
+    checks: tuple[Check, ...]
+    notes: tuple[str, ...] = field(default=())
+
+    @property
+    def passes(self) -> bool:
+        """Whether every check passes."""
+        return all(check.passes for check in self.checks)
+
+    @property
+    def governing(self) -> Check | None:
+        """The check with the largest utilisation."""
+        return max(self.checks, key=lambda check: check.utilisation, default=None)
+
+    def to_frame(self, units: UnitSystem | None = None) -> Any:
+        """The checks as a pandas DataFrame, values in ``units`` (default: the case's)."""
+        import pandas as pd  # noqa: PLC0415
+
+        units = units or self.results.model.units
+        rows = [check_row(check, units) | {"note": check.note} for check in self.checks]
+        return pd.DataFrame(rows, columns=[*_ROW_KEYS, "note"])
+
+    def segment_utilisation(self) -> dict[tuple[str, int], Check]:
+        """The governing check of each (shaft, segment) over all results and kinds."""
+        governing: dict[tuple[str, int], Check] = {}
+        for check in self.checks:
+            if check.segment is None:
+                continue
+            key = (check.shaft, check.segment)
+            if key not in governing or check.utilisation > governing[key].utilisation:
+                governing[key] = check
+        return governing
+
+
+def _circular_diameter(segment: Segment, fraction: float) -> tuple[float, float] | None:
+    """(outer, bore) diameters of a one-layer circular segment at a fraction, else None."""
+    if len(segment.layers) != 1 or not segment.layers[0].section.circular:
+        return None
+    section = segment.layers[0].section
+    outer = 2.0 * float(section.outer_radius_at(np.array([fraction]))[0])
+    bore = 2.0 * float(section.inner_radius_at(np.array([fraction]))[0])
+    return outer, bore
+
+
+def _nominal_stress_factor(outer: float, bore: float) -> float:
+    """τ_nom per unit torque of a round section, T·(D/2)/J (1/m³)."""
+    if bore > 0.0:
+        return Tube(outer, bore).shear_stress_per_torque
+    return SolidCircle(outer).shear_stress_per_torque
+
+
+def _layer_stress_factors(segment: Segment, fractions: FloatArray) -> list[FloatArray]:
+    """Peak stress of each layer per unit segment torque (1/m³), at fractions."""
+    if len(segment.layers) == 1:
+        return [segment.layers[0].section.shear_stress_per_torque_at(fractions)]
+    rigidity = segment.torsional_rigidity_at(fractions)
+    return [
+        layer.material.shear_modulus
+        * layer.section.torsion_constant_at(fractions)
+        * layer.section.shear_stress_per_torque_at(fractions)
+        / rigidity
+        for layer in segment.layers
+    ]
+
+
+class _Checker:
+    """Computes the checks of one solved model (keeps per-material allowables)."""
+
+    def __init__(self, results: Results, design: DesignCriteria) -> None:
+        self.results = results
+        self.design = design
+        self.model = results.model
+        self.mesh = results.mesh
+        self.checks: list[Check] = []
+        self.notes: list[str] = []
+        self._allowables: dict[int, Allowable] = {}
+
+    def allowable(self, material: Material) -> Allowable:
+        key = id(material)
+        if key not in self._allowables:
+            self._allowables[key] = self.design.allowable(material)
+        return self._allowables[key]
+
+    def add(
+        self,
+        kind: str,
+        shaft: str,
+        segment: int | None,
+        values: FloatArray,
+        positions: FloatArray,
+        limit: float,
+        note: str,
+    ) -> None:
+        """One check per result from (n_results, n_points) values at positions."""
+        peaks = np.argmax(values, axis=1)
+        for row, name in enumerate(self.results.names):
+            peak = int(peaks[row])
+            self.checks.append(
+                Check(
+                    name,
+                    shaft,
+                    segment,
+                    kind,
+                    float(values[row, peak]),
+                    limit,
+                    float(positions[peak]),
+                    note,
+                )
+            )
+
+    def run(self) -> CheckReport:
+        mesh, results = self.mesh, self.results
+        station_shaft = mesh.element_shaft[mesh.station_element]
+        station_segment = mesh.element_segment[mesh.station_element]
+        for shaft_number, shaft in enumerate(self.model.shafts):
+            boundaries = shaft.boundaries
+            for segment_number, segment in enumerate(shaft.segments):
+                mask = (station_shaft == shaft_number) & (station_segment == segment_number)
+                stations = np.flatnonzero(mask)
+                x = mesh.station_x[stations]
+                torque = np.abs(results.torque[:, stations])
+                fractions = np.clip((x - boundaries[segment_number]) / segment.length, 0.0, 1.0)
+                self._stress(shaft.id, segment_number, segment, torque, x, fractions)
+                self._concentrations(shaft_number, segment_number, segment, torque, x)
+                if self.design.max_twist_rate is not None:
+                    rate = torque / mesh.station_rigidity[stations]
+                    self.add(
+                        "twist_rate",
+                        shaft.id,
+                        segment_number,
+                        rate,
+                        x,
+                        self.design.max_twist_rate,
+                        "|T|/(G·K), largest along the segment",
+                    )
+        self._rotations()
+        return CheckReport(
+            results, self.design, tuple(self.checks), tuple(dict.fromkeys(self.notes))
+        )
+
+    def _stress(
+        self,
+        shaft: str,
+        number: int,
+        segment: Segment,
+        torque: FloatArray,
+        x: FloatArray,
+        fractions: FloatArray,
+    ) -> None:
+        factors = _layer_stress_factors(segment, fractions)
+        best: tuple[float, FloatArray, float, str] | None = None
+        for layer_number, (layer, factor) in enumerate(zip(segment.layers, factors, strict=True)):
+            allowable = self.allowable(layer.material)
+            stress = torque * factor
+            utilisation = float(stress.max()) / allowable.value
+            label = f"layer {layer_number}: " if len(segment.layers) > 1 else ""
+            if best is None or utilisation > best[0]:
+                best = (utilisation, stress, allowable.value, label + allowable.basis)
+        assert best is not None
+        _, stress, limit, basis = best
+        self.add("shear_stress", shaft, number, stress, x, limit, basis)
+
+    def _concentrations(
+        self, shaft_number: int, number: int, segment: Segment, torque: FloatArray, x: FloatArray
+    ) -> None:
+        shaft = self.model.shafts[shaft_number]
+        material = segment.layers[0].material
+        allowable = self.allowable(material)
+        if segment.fillet_radius is not None and number > 0:
+            here = _circular_diameter(segment, 0.0)
+            before = _circular_diameter(shaft.segments[number - 1], 1.0)
+            if here is None or before is None:
+                self.notes.append(
+                    f"{shaft.id} segment {number}: the shoulder check needs one-layer round "
+                    "segments on both sides; not checked"
+                )
+            else:
+                small, big = sorted((here, before), key=lambda pair: pair[0])
+                factor = shoulder_fillet_kts(big[0], small[0], segment.fillet_radius)
+                start = x[:1]
+                nominal = torque[:, :1] * _nominal_stress_factor(*small)
+                self._concentrated(
+                    "shoulder_stress", shaft.id, number, factor, nominal, start, allowable
+                )
+        if segment.keyseat:
+            dims = _circular_diameter(segment, 0.5)
+            if dims is not None:
+                factors = np.array(
+                    [
+                        _nominal_stress_factor(*_circular_diameter(segment, f) or dims)
+                        for f in np.linspace(0.0, 1.0, 3)
+                    ]
+                )
+                nominal = torque * max(factors)
+                self._concentrated(
+                    "keyseat_stress", shaft.id, number, keyseat_kts(), nominal, x, allowable
+                )
+        if segment.cross_hole_diameter is not None:
+            dims = _circular_diameter(segment, 0.5)
+            if dims is None or dims[1] > 0.0:
+                self.notes.append(
+                    f"{shaft.id} segment {number}: the cross-hole factor is for solid round "
+                    "shafts; not checked"
+                )
+            else:
+                factor = transverse_hole_kts(segment.cross_hole_diameter, dims[0])
+                nominal = torque * _nominal_stress_factor(dims[0], 0.0)
+                # The hole's peak is a normal stress σ in a uniaxial state; its equivalent shear
+                # stress is σ/√3 (von Mises) or σ/2 (Tresca, used for the other criteria).
+                divisor = math.sqrt(3.0) if self.design.shear_criterion == "von_mises" else 2.0
+                equivalent = ConcentrationFactor(
+                    factor.value / divisor,
+                    factor.in_range,
+                    f"{factor.note}; equivalent shear = σ_max/{divisor:.4g}",
+                    factor.source,
+                )
+                self._concentrated(
+                    "cross_hole_stress", shaft.id, number, equivalent, nominal, x, allowable
+                )
+
+    def _concentrated(
+        self,
+        kind: str,
+        shaft: str,
+        number: int,
+        factor: ConcentrationFactor,
+        nominal: FloatArray,
+        x: FloatArray,
+        allowable: Allowable,
+    ) -> None:
+        note = f"K = {factor.value:.3g} ({factor.note}; {factor.source})"
+        if not factor.in_range:
+            note = "OUTSIDE THE DATA'S RANGE: " + note
+            self.notes.append(f"{shaft} segment {number}, {kind}: {note}")
+        self.add(kind, shaft, number, factor.value * nominal, x, allowable.value, note)
+
+    def _rotations(self) -> None:
+        for limit in self.design.rotation_limits:
+            shaft_number = self.model.shaft_number(limit.shaft)
+            start = self.mesh.node_of(shaft_number, limit.start)
+            end = self.mesh.node_of(shaft_number, limit.end)
+            relative = np.abs(self.results.node_angle[:, end] - self.results.node_angle[:, start])[
+                :, None
+            ]
+            self.add(
+                "rotation",
+                limit.shaft,
+                None,
+                relative,
+                np.array([limit.end]),
+                limit.limit,
+                "|θ(end) − θ(start)|",
+            )
+
+
+def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckReport:
+    """Check every segment of every shaft in every load case and combination.
+
+    Parameters
+    ----------
+    results
+        Solved results.
+    design
+        Criteria; default: the model's ``design``, else :class:`DesignCriteria` defaults (von
+        Mises, factor of safety 2, no twist limit), noted in the report.
+
+    Returns
+    -------
+    CheckReport
+        Every check, the verdict, and notes.
+
+    References
+    ----------
+    .. [1] Shigley's *Mechanical Engineering Design*, ch. 5 and 7 (static shaft design, Kts).
+    .. [2] Norton, *Machine Design*, App. C; Pilkey & Pilkey, *Peterson's Stress Concentration
+       Factors*, 3rd ed.
+    """
+    notes = []
+    if design is None:
+        candidate = results.model.design
+        if isinstance(candidate, DesignCriteria):
+            design = candidate
+        else:
+            design = DesignCriteria()
+            notes.append(
+                "no design criteria in the case: von Mises, factor of safety 2.0, no twist limit"
+            )
+    token = display_units.set(results.model.units)
+    try:
+        report = _Checker(results, design).run()
+    finally:
+        display_units.reset(token)
+    if notes:
+        report = CheckReport(report.results, report.design, report.checks, (*notes, *report.notes))
+    return report
+
+
+_ROW_KEYS = ("result", "shaft", "segment", "kind", "value", "limit", "utilisation", "passes", "x")
+
+
+def check_row(check: Check, units: UnitSystem) -> dict[str, Any]:
+    """One check as the ``workbench check --json`` row, in ``units``."""
+    quantity = CHECK_QUANTITIES[check.kind]
+    return {
+        "result": check.result,
+        "shaft": check.shaft,
+        "segment": check.segment,
+        "kind": check.kind,
+        "value": float(units.from_si(check.value, quantity)),
+        "limit": float(units.from_si(check.limit, quantity)),
+        "utilisation": float(check.utilisation),
+        "passes": bool(check.passes),
+        "x": float(units.from_si(check.x, "length")),
+    }
+
+
+def check_document(report: CheckReport, units: UnitSystem | None = None) -> dict[str, Any]:
+    """The ``workbench check --json`` document: ``{"passes", "checks", "caution", "notes"}``."""
+    units = units or report.results.model.units
+    return {
+        "passes": report.passes,
+        "checks": [check_row(check, units) for check in report.checks],
+        "caution": CAUTION,
+        "notes": list(report.notes),
+    }
+
+
+def check_text(report: CheckReport, units: UnitSystem | None = None) -> str:
+    """Readable check table: the governing check of each segment and kind over all results."""
+    from workbench.solver.tables import format_table  # noqa: PLC0415
+
+    units = units or report.results.model.units
+    governing: dict[tuple[str, int | None, str], Check] = {}
+    for check in report.checks:
+        key = (check.shaft, check.segment, check.kind)
+        if key not in governing or check.utilisation > governing[key].utilisation:
+            governing[key] = check
+    rows = []
+    for check in governing.values():
+        quantity = CHECK_QUANTITIES[check.kind]
+        rows.append(
+            [
+                check.shaft,
+                "-" if check.segment is None else str(check.segment),
+                check.kind,
+                check.result,
+                f"{units.from_si(check.value, quantity):.4g}",
+                f"{units.from_si(check.limit, quantity):.4g}",
+                f"{check.utilisation:.3f}",
+                "pass" if check.passes else "FAIL",
+                f"{units.from_si(check.x, 'length'):.4g}",
+            ]
+        )
+    lines = [
+        "Design checks (governing result of each segment and kind)",
+        format_table(
+            [
+                "shaft",
+                "seg",
+                "check",
+                "governing result",
+                "value",
+                "limit",
+                "utilisation",
+                "verdict",
+                f"x [{units.label('length')}]",
+            ],
+            rows,
+        ),
+        "",
+        "units: stress "
+        + units.label("stress")
+        + ", twist rate "
+        + units.label("twist_rate")
+        + ", rotation "
+        + units.label("angle"),
+    ]
+    allowables = sorted({check.note for check in report.checks if check.kind == "shear_stress"})
+    lines += ["allowable: " + note for note in allowables]
+    lines += ["note: " + note for note in report.notes]
+    governing_check = report.governing
+    verdict = "ALL CHECKS PASS" if report.passes else "SOME CHECKS FAIL"
+    if governing_check is not None:
+        lines.append(
+            f"\n{verdict} — governing: {governing_check.kind} on {governing_check.shaft} segment "
+            f"{governing_check.segment} in {governing_check.result!r}, utilisation "
+            f"{governing_check.utilisation:.3f}"
+        )
+    lines.append(f"\nCaution: {CAUTION}")
+    return "\n".join(lines) + "\n"

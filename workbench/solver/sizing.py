@@ -1,0 +1,450 @@
+"""Sizing: the smallest preferred diameters for which every check passes in every result.
+
+In a statically indeterminate system the torque split moves when a segment changes size (a
+stiffer segment attracts torque), so segments cannot be sized one by one from fixed torques. The
+search re-solves the whole system at every step:
+
+1. *Scaling*: each chosen segment's diameter is scaled by u^(1/3) for a governing stress check or
+   u^(1/4) for a twist check (τ ∝ T/d³, θ' ∝ T/d⁴), rounded up to the next preferred size, and the
+   system is re-solved, until the sizes repeat.
+2. *Repair*: while any check fails, each segment whose checks fail goes up one preferred size.
+3. *Descent*: each segment in turn tries the next smaller size, kept if every check still passes,
+   until no segment can go down.
+
+The answer passes every check, and for every sized segment the next smaller preferred size
+(others held) fails one: a local minimum on the grid of preferred sizes.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Sequence
+from dataclasses import dataclass
+from typing import Any
+
+from workbench.solver.analysis import solve
+from workbench.solver.checks import CAUTION, Check, CheckReport, run_checks
+from workbench.solver.errors import InputError
+from workbench.solver.model import Layer, Model, Segment
+from workbench.solver.preferred import RENARD_SERIES, next_smaller_preferred, round_up_preferred
+from workbench.solver.sections import Section, SolidCircle, TaperedCircle, Tube
+from workbench.solver.units import display_units
+
+_MAX_ROUNDS = 40
+
+
+@dataclass(frozen=True)
+class SizingRequest:
+    """What to size and how.
+
+    Parameters
+    ----------
+    segments
+        (shaft id, segment index) of each segment to size.
+    series
+        Renard series of preferred sizes (``"R5"`` … ``"R40"``), in the case's length unit,
+        unless ``sizes`` is given.
+    sizes
+        Allowed outer diameters (m), ascending; replaces the series when given.
+    keep
+        For tubes and bored tapers: ``"ratio"`` keeps bore/outer, ``"wall"`` keeps the wall
+        thickness.
+    """
+
+    segments: tuple[tuple[str, int], ...]
+    series: str = "R40"
+    sizes: tuple[float, ...] = ()
+    keep: str = "ratio"
+
+    def __post_init__(self) -> None:
+        if self.series not in RENARD_SERIES:
+            raise InputError("series", f"unknown series {self.series!r}; choose R5, R10, R20, R40")
+        if self.keep not in ("ratio", "wall"):
+            raise InputError("keep", f"must be 'ratio' or 'wall', not {self.keep!r}")
+        if not self.segments:
+            raise InputError("segments", "choose at least one segment to size")
+
+    @classmethod
+    def from_arguments(
+        cls,
+        model: Model,
+        segments: Sequence[str] | None,
+        series: str = "R40",
+        sizes: str | None = None,
+        keep: str = "ratio",
+    ) -> SizingRequest:
+        """Build from command-line words: ``["main:0", "main:2"]``, ``"40,45,50"`` (file units)."""
+        chosen: list[tuple[str, int]] = []
+        if segments:
+            for word in segments:
+                shaft_id, _, index = word.rpartition(":")
+                if not shaft_id or not index.isdigit():
+                    raise InputError("--segment", f"expected SHAFT:INDEX, not {word!r}")
+                chosen.append((shaft_id, int(index)))
+        else:
+            chosen = [
+                (shaft.id, number)
+                for shaft in model.shafts
+                for number, segment in enumerate(shaft.segments)
+                if _sizable(segment)
+            ]
+        allowed: tuple[float, ...] = ()
+        if sizes:
+            try:
+                values = [float(word) for word in sizes.split(",") if word.strip()]
+            except ValueError:
+                raise InputError(
+                    "--sizes", f"expected comma-separated numbers, not {sizes!r}"
+                ) from None
+            if not values or any(not value > 0 for value in values):
+                raise InputError("--sizes", "sizes must be positive numbers")
+            allowed = tuple(sorted(model.units.to_si(value, "length") for value in values))
+        return cls(tuple(chosen), series, allowed, keep)
+
+
+def _sizable(segment: Segment) -> bool:
+    return len(segment.layers) == 1 and isinstance(
+        segment.layers[0].section, (SolidCircle, Tube, TaperedCircle)
+    )
+
+
+def outer_diameter(section: Section) -> float:
+    """The diameter sizing works on: outer diameter, the larger end of a taper (m)."""
+    return 2.0 * section.outer_radius
+
+
+def resized(section: Section, diameter: float, keep: str) -> Section:
+    """The section with outer diameter ``diameter`` (m), keeping bore ratio or wall.
+
+    Raises
+    ------
+    InputError
+        When keeping the wall leaves no bore (the diameter is at most twice the wall).
+    """
+    if isinstance(section, SolidCircle):
+        return SolidCircle(diameter)
+    if isinstance(section, Tube):
+        if keep == "ratio":
+            return Tube(diameter, diameter * section.inner_diameter / section.outer_diameter)
+        wall = 0.5 * (section.outer_diameter - section.inner_diameter)
+        return Tube(diameter, diameter - 2.0 * wall)
+    if isinstance(section, TaperedCircle):
+        scale = diameter / outer_diameter(section)
+        bore = section.bore * scale if keep == "ratio" else section.bore
+        return TaperedCircle(section.diameter_start * scale, section.diameter_end * scale, bore)
+    raise InputError("section", f"shape {section.shape!r} cannot be sized by diameter")
+
+
+@dataclass(frozen=True)
+class SizedSegment:
+    """The outcome for one segment.
+
+    Attributes
+    ----------
+    shaft, segment
+        Which segment.
+    diameter_before, diameter_after
+        Outer diameter before and after sizing (m).
+    governing
+        Its governing check at the final sizes.
+    next_smaller
+        The next smaller allowed diameter (m), or ``None`` at the bottom of the list.
+    """
+
+    shaft: str
+    segment: int
+    diameter_before: float
+    diameter_after: float
+    governing: Check | None
+    next_smaller: float | None
+
+
+@dataclass(frozen=True)
+class SizingOutcome:
+    """The sized model, its checks and the path taken.
+
+    Attributes
+    ----------
+    model
+        The model at the final sizes.
+    report
+        Its checks.
+    segments
+        Per sized segment: before, after, governing check.
+    evaluations
+        Number of solve-and-check evaluations made.
+    """
+
+    model: Model
+    report: CheckReport
+    segments: tuple[SizedSegment, ...]
+    evaluations: int
+
+    @property
+    def passes(self) -> bool:
+        """Whether every check passes at the final sizes."""
+        return self.report.passes
+
+
+class _Search:
+    def __init__(self, model: Model, request: SizingRequest) -> None:
+        self.model, self.request = model, request
+        self.length_factor = model.units.factor("length")
+        self.evaluations = 0
+        self.cache: dict[tuple[float, ...], CheckReport | None] = {}
+        for shaft_id, number in request.segments:
+            path = f"segments[{shaft_id}:{number}]"
+            if shaft_id not in {shaft.id for shaft in model.shafts}:
+                raise InputError(path, f"unknown shaft {shaft_id!r}")
+            shaft = model.shaft(shaft_id)
+            if not 0 <= number < len(shaft.segments):
+                msg = f"shaft {shaft_id!r} has segments 0 to {len(shaft.segments) - 1}"
+                raise InputError(path, msg)
+            if not _sizable(shaft.segments[number]):
+                msg = "only one-layer solid, tube or tapered segments can be sized by diameter"
+                raise InputError(path, msg)
+
+    # sizes are handled in the case's length unit so the preferred numbers are the user's own
+    def up(self, diameter: float) -> float:
+        if self.request.sizes:
+            for size in self.request.sizes:
+                if size >= diameter * (1.0 - 1e-9):
+                    return size
+            return self.request.sizes[-1]
+        value = round_up_preferred(
+            diameter / self.length_factor * (1.0 - 1e-12), self.request.series
+        )
+        return value * self.length_factor
+
+    def down(self, diameter: float) -> float | None:
+        if self.request.sizes:
+            smaller = [size for size in self.request.sizes if size < diameter * (1.0 - 1e-9)]
+            return smaller[-1] if smaller else None
+        value = next_smaller_preferred(diameter / self.length_factor, self.request.series)
+        return value * self.length_factor
+
+    def step_up(self, diameter: float) -> float | None:
+        if self.request.sizes:
+            larger = [size for size in self.request.sizes if size > diameter * (1.0 + 1e-9)]
+            return larger[0] if larger else None
+        return self.up(diameter * (1.0 + 1e-6))
+
+    def build(self, sizes: tuple[float, ...]) -> Model:
+        shafts = list(self.model.shafts)
+        for (shaft_id, number), diameter in zip(self.request.segments, sizes, strict=True):
+            index = self.model.shaft_number(shaft_id)
+            segment = shafts[index].segments[number]
+            layer = segment.layers[0]
+            new_segment = dataclasses.replace(
+                segment,
+                layers=(
+                    Layer(layer.material, resized(layer.section, diameter, self.request.keep)),
+                ),
+            )
+            segments = list(shafts[index].segments)
+            segments[number] = new_segment
+            shafts[index] = dataclasses.replace(shafts[index], segments=tuple(segments))
+        return dataclasses.replace(self.model, shafts=tuple(shafts))
+
+    def evaluate(self, sizes: tuple[float, ...]) -> CheckReport | None:
+        """Checks at these sizes; ``None`` when the sizes make an impossible section."""
+        key = tuple(round(size, 12) for size in sizes)
+        if key not in self.cache:
+            self.evaluations += 1
+            try:
+                self.cache[key] = run_checks(solve(self.build(sizes)))
+            except InputError:
+                self.cache[key] = None
+        return self.cache[key]
+
+    def utilisation(self, report: CheckReport) -> list[tuple[float, float]]:
+        """(utilisation, exponent) governing each sized segment."""
+        governing = report.segment_utilisation()
+        out = []
+        for shaft_id, number in self.request.segments:
+            check = governing.get((shaft_id, number))
+            value, exponent = (check.utilisation, _exponent(check.kind)) if check else (0.0, 0.25)
+            boundaries = self.model.shaft(shaft_id).boundaries
+            for rotation in (
+                c for c in report.checks if c.kind == "rotation" and c.shaft == shaft_id
+            ):
+                limit = next(
+                    r
+                    for r in report.design.rotation_limits
+                    if r.shaft == shaft_id and abs(r.end - rotation.x) < 1e-12 + 1e-9 * abs(r.end)
+                )
+                low, high = sorted((limit.start, limit.end))
+                if (
+                    boundaries[number] < high
+                    and boundaries[number + 1] > low
+                    and rotation.utilisation > value
+                ):
+                    value, exponent = rotation.utilisation, 0.25
+            out.append((value, exponent))
+        return out
+
+
+def _exponent(kind: str) -> float:
+    return 0.25 if kind in ("twist_rate", "rotation") else 1.0 / 3.0
+
+
+def size_shafts(model: Model, request: SizingRequest) -> SizingOutcome:
+    """Find the smallest preferred diameters for which every check passes.
+
+    Parameters
+    ----------
+    model
+        The model (its ``design`` gives the criteria).
+    request
+        Which segments, which sizes.
+
+    Returns
+    -------
+    SizingOutcome
+        Final model and checks; ``passes`` is false when even the largest allowed size fails.
+
+    References
+    ----------
+    .. [1] ISO 3 / ISO 497, preferred numbers (Renard series) for rounding sizes up.
+    .. [2] Shigley's *Mechanical Engineering Design*, ch. 7 (shaft sizing for stress and
+       deflection: d ∝ (T/τ_allow)^(1/3), d ∝ (T/θ'_allow)^(1/4)).
+    """
+    token = display_units.set(model.units)
+    try:
+        return _size(model, request)
+    finally:
+        display_units.reset(token)
+
+
+def _size(model: Model, request: SizingRequest) -> SizingOutcome:
+    search = _Search(model, request)
+    before = tuple(
+        outer_diameter(model.shaft(shaft_id).segments[number].layers[0].section)
+        for shaft_id, number in request.segments
+    )
+    sizes = tuple(search.up(d) for d in before)
+    seen: set[tuple[float, ...]] = set()
+    for _ in range(_MAX_ROUNDS):  # scaling
+        report = search.evaluate(sizes)
+        if report is None or sizes in seen:
+            break
+        seen.add(sizes)
+        sizes = tuple(
+            search.up(max(size * max(value, 1e-6) ** exponent, 1e-9))
+            for size, (value, exponent) in zip(sizes, search.utilisation(report), strict=True)
+        )
+    report = search.evaluate(sizes)
+    for _ in range(_MAX_ROUNDS * 4):  # repair
+        if report is not None and report.passes:
+            break
+        if report is None:
+            failing = [True] * len(sizes)
+        else:
+            failing = [value > 1.0 for value, _ in search.utilisation(report)]
+            if not any(failing):
+                failing = [True] * len(sizes)
+        stepped = tuple(
+            (search.step_up(size) or size) if fails else size
+            for size, fails in zip(sizes, failing, strict=True)
+        )
+        if stepped == sizes:
+            break  # the largest sizes still fail
+        sizes = stepped
+        report = search.evaluate(sizes)
+    if report is not None and report.passes:
+        changed = True
+        while changed:  # descent
+            changed = False
+            for index in range(len(sizes)):
+                smaller = search.down(sizes[index])
+                if smaller is None:
+                    continue
+                trial = (*sizes[:index], smaller, *sizes[index + 1 :])
+                trial_report = search.evaluate(trial)
+                if trial_report is not None and trial_report.passes:
+                    sizes, report, changed = trial, trial_report, True
+    final_model = search.build(sizes)
+    final_report = search.evaluate(sizes)
+    if final_report is None:
+        msg = "no allowed size gives a valid section (check the wall thickness and the size list)"
+        raise InputError("sizes", msg)
+    governing = final_report.segment_utilisation()
+    rows = tuple(
+        SizedSegment(
+            shaft_id,
+            number,
+            before_size,
+            size,
+            governing.get((shaft_id, number)),
+            search.down(size),
+        )
+        for (shaft_id, number), before_size, size in zip(
+            request.segments, before, sizes, strict=True
+        )
+    )
+    return SizingOutcome(final_model, final_report, rows, search.evaluations)
+
+
+def sizing_document(outcome: SizingOutcome) -> dict[str, Any]:
+    """The ``workbench size --json`` document, in the case's units."""
+    units = outcome.model.units
+
+    def length(value: float | None) -> float | None:
+        return None if value is None else float(units.from_si(value, "length"))
+
+    return {
+        "passes": outcome.passes,
+        "segments": [
+            {
+                "shaft": row.shaft,
+                "segment": row.segment,
+                "diameter_before": length(row.diameter_before),
+                "diameter_after": length(row.diameter_after),
+                "next_smaller": length(row.next_smaller),
+                "governing_kind": row.governing.kind if row.governing else None,
+                "governing_result": row.governing.result if row.governing else None,
+                "utilisation": row.governing.utilisation if row.governing else None,
+            }
+            for row in outcome.segments
+        ],
+        "evaluations": outcome.evaluations,
+        "caution": CAUTION,
+    }
+
+
+def sizing_text(outcome: SizingOutcome) -> str:
+    """Readable sizing table."""
+    from workbench.solver.tables import format_table  # noqa: PLC0415
+
+    units = outcome.model.units
+    label = units.label("length")
+    rows = [
+        [
+            f"{row.shaft}:{row.segment}",
+            f"{units.from_si(row.diameter_before, 'length'):.4g}",
+            f"{units.from_si(row.diameter_after, 'length'):.4g}",
+            row.governing.kind if row.governing else "-",
+            row.governing.result if row.governing else "-",
+            f"{row.governing.utilisation:.3f}" if row.governing else "-",
+        ]
+        for row in outcome.segments
+    ]
+    verdict = (
+        "every check passes at these sizes; each next smaller size fails a check"
+        if outcome.passes
+        else "NO ALLOWED SIZE PASSES EVERY CHECK: the largest sizes tried still fail"
+    )
+    return (
+        format_table(
+            [
+                "segment",
+                f"before [{label}]",
+                f"after [{label}]",
+                "governing check",
+                "in result",
+                "utilisation",
+            ],
+            rows,
+        )
+        + f"\n\n{verdict} ({outcome.evaluations} evaluations)\n\nCaution: {CAUTION}\n"
+    )
