@@ -307,8 +307,52 @@ class ThinWalledClosed(Section):
         return math.sqrt(self.enclosed_area / math.pi) - thickest / 2.0
 
 
+class _UniformWallCell(Section):
+    """A single closed cell of uniform wall: Bredt–Batho from its centre line.
+
+    Subclasses give ``height`` and ``thickness`` (fields) and ``enclosed_area`` and
+    ``perimeter`` (properties).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.11 (thin-walled tubes):
+       K = 4·A_m²·t/P, τ = T/(2·A_m·t).
+    """
+
+    height: float
+    thickness: float
+
+    @property
+    def enclosed_area(self) -> float:
+        raise NotImplementedError
+
+    @property
+    def perimeter(self) -> float:
+        raise NotImplementedError
+
+    @property
+    def torsion_constant(self) -> float:
+        """Torsion constant K = 4·A_m²·t/P (m⁴)."""
+        return 4.0 * self.enclosed_area**2 * self.thickness / self.perimeter
+
+    @property
+    def shear_stress_per_torque(self) -> float:
+        """Wall-mean shear stress per unit torque, 1/(2·A_m·t) (1/m³)."""
+        return 1.0 / (2.0 * self.enclosed_area * self.thickness)
+
+    @property
+    def outer_radius(self) -> float:
+        """Half the outer height (m)."""
+        return self.height / 2.0
+
+    @property
+    def inner_radius(self) -> float:
+        """Half the inner height (m)."""
+        return self.height / 2.0 - self.thickness
+
+
 @dataclass(frozen=True)
-class Box(Section):
+class Box(_UniformWallCell):
     """Rectangular hollow section of uniform wall thickness, sharp corners (Bredt–Batho).
 
     Parameters
@@ -361,29 +405,9 @@ class Box(Section):
         """Centre-line perimeter P (m)."""
         return 2.0 * (self.width - self.thickness) + 2.0 * (self.height - self.thickness)
 
-    @property
-    def torsion_constant(self) -> float:
-        """Torsion constant K = 4·A_m²·t/P (m⁴)."""
-        return 4.0 * self.enclosed_area**2 * self.thickness / self.perimeter
-
-    @property
-    def shear_stress_per_torque(self) -> float:
-        """Wall-mean shear stress per unit torque, 1/(2·A_m·t) (1/m³)."""
-        return 1.0 / (2.0 * self.enclosed_area * self.thickness)
-
-    @property
-    def outer_radius(self) -> float:
-        """Half the outer height (m)."""
-        return self.height / 2.0
-
-    @property
-    def inner_radius(self) -> float:
-        """Half the inner height (m)."""
-        return self.height / 2.0 - self.thickness
-
 
 @dataclass(frozen=True)
-class EllipticalTube(Section):
+class EllipticalTube(_UniformWallCell):
     """Elliptical tube of uniform wall thickness (Bredt–Batho on the centre-line ellipse).
 
     Parameters
@@ -458,26 +482,6 @@ class EllipticalTube(Section):
         """Perimeter P = 4·a·E(1 − b²/a²) of the centre-line ellipse (m)."""
         major, minor = self._semi_axes
         return 4.0 * major * float(ellipe(1.0 - (minor / major) ** 2))
-
-    @property
-    def torsion_constant(self) -> float:
-        """Torsion constant K = 4·A_m²·t/P (m⁴)."""
-        return 4.0 * self.enclosed_area**2 * self.thickness / self.perimeter
-
-    @property
-    def shear_stress_per_torque(self) -> float:
-        """Wall-mean shear stress per unit torque, 1/(2·A_m·t) (1/m³)."""
-        return 1.0 / (2.0 * self.enclosed_area * self.thickness)
-
-    @property
-    def outer_radius(self) -> float:
-        """Half the outer height (m)."""
-        return self.height / 2.0
-
-    @property
-    def inner_radius(self) -> float:
-        """Half the inner height (m)."""
-        return self.height / 2.0 - self.thickness
 
 
 @dataclass(frozen=True)
