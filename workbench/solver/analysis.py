@@ -28,6 +28,7 @@ References
 
 from __future__ import annotations
 
+import itertools
 import warnings
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
@@ -242,6 +243,8 @@ def build_mesh(model: Model) -> Mesh:
         flexibility[element] = moments[-1]
     station_x = node_x[start_nodes[station_element]] + u
     station_is_end = local == counts[station_element] - 1
+    # An element's end station is its end node, exactly (x listed twice at a jump must match).
+    station_x[station_is_end] = node_x[start_nodes[station_element[station_is_end]] + 1]
     element_end = np.cumsum(counts)
     shaft_station_start = np.concatenate(
         [[0], element_end[np.searchsorted(shafts, np.arange(len(model.shafts)), side="right") - 1]]
@@ -682,8 +685,13 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     length = mesh.element_length
     slope = (intensity_end - intensity_start) / (2.0 * length)
     load_moment = intensity_start * mesh.flexibility[:, 1] + slope * mesh.flexibility[:, 2]
-    start_torque = (node_angle[:, node_b] - node_angle[:, node_a] + load_moment) * stiffness
-    end_torque = start_torque - 0.5 * (intensity_start + intensity_end) * length
+    stiffness_torque = (node_angle[:, node_b] - node_angle[:, node_a] + load_moment) * stiffness
+    resultant = 0.5 * (intensity_start + intensity_end) * length
+    external, reactions = _known_external_torques(
+        model, support_nodes, node_angle, loads.point, gear_torques, gear_nodes
+    )
+    start_torque = _equilibrium_start_torques(mesh, ~is_free, external, resultant, stiffness_torque)
+    end_torque = start_torque - resultant
 
     element = mesh.station_element
     u = mesh.station_u
@@ -701,17 +709,7 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     ends = mesh.station_is_end
     station_angle[:, ends] = node_angle[:, node_b[element[ends]]]
 
-    reactions = _reactions(
-        model,
-        mesh,
-        support_nodes,
-        node_angle,
-        start_torque,
-        end_torque,
-        loads.point,
-        gear_torques,
-        gear_nodes,
-    )
+    _fixed_reactions(model, mesh, support_nodes, start_torque, end_torque, external, reactions)
     return _with_combinations(
         model, mesh, reactions, gear_torques, station_torque, station_angle, node_angle
     )
@@ -742,42 +740,91 @@ def _factor_and_solve(matrix: sp.csc_matrix, rhs: FloatArray, has_constraints: b
     return np.asarray(solution)
 
 
-def _reactions(
+def _known_external_torques(
     model: Model,
-    mesh: Mesh,
     support_nodes: IntArray,
     node_angle: FloatArray,
-    start_torque: FloatArray,
-    end_torque: FloatArray,
     point: FloatArray,
     gear_torques: FloatArray,
     gear_nodes: list[tuple[int, int]],
-) -> FloatArray:
-    """Support torques from the jump of internal torque at each node."""
-    n_cases, n_nodes = node_angle.shape
-    torque_left = np.zeros((n_cases, n_nodes))
-    torque_right = np.zeros((n_cases, n_nodes))
-    torque_right[:, mesh.element_start_node] = start_torque
-    torque_left[:, mesh.element_start_node + 1] = end_torque
+) -> tuple[FloatArray, FloatArray]:
+    """Concentrated torques at nodes known after the solve (applied, gear, spring), and the
+    reactions array with the springs' entries filled in.
+    """
     external = point.copy()
     for number, (node_a, node_b) in enumerate(gear_nodes):
         external[:, node_a] += gear_torques[:, number, 0]
         external[:, node_b] += gear_torques[:, number, 1]
-    reactions = np.zeros((n_cases, len(model.supports)))
+    reactions = np.zeros((point.shape[0], len(model.supports)))
     for number, support in enumerate(model.supports):
-        node = support_nodes[number]
         if support.kind == "spring":
             assert support.stiffness is not None
+            node = support_nodes[number]
             reaction = -support.stiffness * (node_angle[:, node] - support.rotation)
             reactions[:, number] = reaction
             external[:, node] += reaction
+    return external, reactions
+
+
+def _equilibrium_start_torques(
+    mesh: Mesh,
+    fixed_node: np.ndarray[Any, np.dtype[np.bool_]],
+    external: FloatArray,
+    resultant: FloatArray,
+    stiffness_torque: FloatArray,
+) -> FloatArray:
+    """Internal torque just right of each element start, from equilibrium.
+
+    Each shaft is swept node by node, T(x⁺) = T(x⁻) − (concentrated torques at x): from its start
+    up to the first fixed support, from its end back to the last one, and between two fixed
+    supports from the element torque the stiffness gives just right of a fixed support (whose
+    reaction is not known beforehand). Torques far from any fixed support then do not suffer the
+    cancellation of two large, nearly equal rotations (a stiff shaft on a soft spring).
+    """
+    start = np.empty_like(stiffness_torque)
+    for shaft in range(len(mesh.shaft_node_start) - 1):
+        first_node, end_node = mesh.shaft_node_start[shaft], mesh.shaft_node_start[shaft + 1]
+        first, last = first_node - shaft, end_node - 1 - shaft  # its elements: [first, last)
+        ext = external[:, first_node:end_node]
+        loads = resultant[:, first:last]
+        cumulative_ext = np.cumsum(ext, axis=1)
+        cumulative_load = np.cumsum(loads, axis=1)
+        # Sweep from the shaft's start: T_k(0⁺) = −Σ_{j≤k} ext_j − Σ_{j<k} W_j.
+        from_start = -cumulative_ext[:, :-1] - (cumulative_load - loads)
+        fixed = np.flatnonzero(fixed_node[first_node:end_node])
+        local = start[:, first:last]
+        local[:] = from_start
+        if len(fixed) == 0:
+            continue
+        for piece_start, piece_end in itertools.pairwise(fixed):
+            offset = stiffness_torque[:, first + piece_start] - from_start[:, piece_start]
+            local[:, piece_start:piece_end] += offset[:, None]
+        # Beyond the last fixed support the sweep runs back from the shaft's free end.
+        local[:, fixed[-1] :] += (cumulative_ext[:, -1] + cumulative_load[:, -1])[:, None]
+    return start
+
+
+def _fixed_reactions(
+    model: Model,
+    mesh: Mesh,
+    support_nodes: IntArray,
+    start_torque: FloatArray,
+    end_torque: FloatArray,
+    external: FloatArray,
+    reactions: FloatArray,
+) -> None:
+    """Fill in fixed-support torques from the jump of internal torque at their nodes."""
+    n_cases, n_nodes = external.shape
+    torque_left = np.zeros((n_cases, n_nodes))
+    torque_right = np.zeros((n_cases, n_nodes))
+    torque_right[:, mesh.element_start_node] = start_torque
+    torque_left[:, mesh.element_start_node + 1] = end_torque
     for number, support in enumerate(model.supports):
         if support.kind == "fixed":
             node = support_nodes[number]
             # T(x⁻) − T(x⁺) equals the sum of the concentrated external torques at x.
             jump = torque_left[:, node] - torque_right[:, node]
             reactions[:, number] = jump - external[:, node]
-    return reactions
 
 
 def _with_combinations(
