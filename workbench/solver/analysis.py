@@ -748,8 +748,9 @@ def _known_external_torques(
     gear_torques: FloatArray,
     gear_nodes: list[tuple[int, int]],
 ) -> tuple[FloatArray, FloatArray]:
-    """Concentrated torques at nodes known after the solve (applied, gear, spring), and the
-    reactions array with the springs' entries filled in.
+    """Concentrated torques at nodes known after the solve (applied, gear, spring).
+
+    Also returns the reactions array with the springs' entries filled in.
     """
     external = point.copy()
     for number, (node_a, node_b) in enumerate(gear_nodes):
