@@ -1,0 +1,1 @@
+"""The calculation record: nbconvert exporter, signing and verification (no widgets)."""

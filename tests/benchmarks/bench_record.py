@@ -1,0 +1,79 @@
+"""Benchmarks of the calculation record: export against plain nbconvert, verify, size.
+
+Both exports go through the Python API on the same already executed notebook (the bundled
+demo case, displayed as the panel does), warm (imports and caches loaded). The record's export
+includes the solve, the checks, the hand check, the drawings and the signature.
+"""
+
+from __future__ import annotations
+
+import json
+import time
+
+from tests.benchmarks.common import Row, time_calls
+
+#: Targets (from the issue).
+EXPORT_RATIO_TARGET = 1.5
+VERIFY_TARGET_S = 1.0
+SIZE_TARGET_MB = 3.0
+
+
+def run() -> list[Row]:
+    """Time export (record vs plain HTML), verify, and measure the record's size."""
+    from nbconvert.exporters import HTMLExporter
+
+    from workbench.cli import DEMO_CASE
+    from workbench.record.demo import demo_notebook
+    from workbench.record.exporter import RecordExporter
+    from workbench.record.signing import generate_key
+    from workbench.record.verify import verify_text
+
+    case = json.loads(DEMO_CASE.read_text("utf-8"))
+    nb = demo_notebook(case, executed=True)
+    key = generate_key()
+    exporter = RecordExporter(execute=False)
+    plain = HTMLExporter()
+
+    def record_export() -> str:
+        from workbench.record.document import compute, render_record
+        from workbench.record.notebook import find_case, title_block_from
+        from workbench.record.sanitize import sanitize_notebook_html
+
+        found, source = find_case(nb, None)
+        cells, resources = HTMLExporter.from_notebook_node(exporter, nb)
+        return render_record(
+            compute(found),
+            title_block_from(nb),
+            sanitize_notebook_html(cells),
+            private_key=key,
+            case_source=source,
+            extra_css=exporter._lab_css() + "\n".join(resources["inlining"]["css"]),
+        )
+
+    record_time = time_calls(record_export, repeats=7, warmup=2)
+    plain_time = time_calls(lambda: plain.from_notebook_node(nb), repeats=7, warmup=2)
+    text = record_export()
+    data = text.encode("utf-8")
+    verify_time = time_calls(lambda: verify_text(data, None), repeats=7, warmup=1)
+    start = time.perf_counter()
+    ok = verify_text(data, None).ok
+    elapsed = time.perf_counter() - start
+    ratio = record_time.median / plain_time.median
+    return [
+        Row(
+            "record export (signed, demo case), median",
+            record_time.median * 1e3,
+            "ms",
+            notes=("record: solve + checks + hand check + SVG drawings + sanitize + sign",),
+        ),
+        Row("plain nbconvert HTML export, median", plain_time.median * 1e3, "ms"),
+        Row("record export / plain HTML export", ratio, "×", EXPORT_RATIO_TARGET),
+        Row(
+            "verify (signature, digests, re-solve)",
+            verify_time.median,
+            "s",
+            VERIFY_TARGET_S,
+            notes=(f"verified: {ok}, one cold-ish run {elapsed:.3f} s",),
+        ),
+        Row("record size", len(data) / 1e6, "MB", SIZE_TARGET_MB),
+    ]

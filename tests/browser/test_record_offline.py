@@ -1,0 +1,96 @@
+"""The record opened in headless Chromium with every outside request refused.
+
+Checks: the page makes no request but for itself, the equations and charts (inline SVG images)
+render with a size, and no script from a title or a markdown cell runs (no dialog opens).
+Needs /usr/bin/chromium and playwright (never ``playwright install``).
+"""
+
+from __future__ import annotations
+
+import copy
+from pathlib import Path
+
+import nbformat
+import pytest
+
+from workbench.record.demo import DEMO_TITLE_BLOCK, demo_notebook
+from workbench.record.exporter import export_file
+from workbench.record.signing import write_key_pair
+
+pytestmark = pytest.mark.browser
+
+ALERT = "<script>alert(1)</script>"
+ARTIFACTS = Path(__file__).resolve().parents[2] / "test-artifacts"
+FLAGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-quic",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+]
+
+
+def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
+    from playwright.sync_api import sync_playwright
+
+    block = copy.deepcopy(DEMO_TITLE_BLOCK)
+    block["subject"] += f" {ALERT}"
+    block["project"] += f" {ALERT}"
+    notebook = tmp_path / "line.ipynb"
+    nb = demo_notebook(
+        title_block=block, note=f"Note {ALERT} <img src=x onerror=alert(2)>", executed=True
+    )
+    nbformat.write(nb, str(notebook))
+    private, _ = write_key_pair(tmp_path / "keys")
+    text, _ = export_file(notebook, key_file=private)
+    record = tmp_path / "record.html"
+    record.write_text(text, encoding="utf-8", newline="")
+
+    refused: list[str] = []
+    dialogs: list[str] = []
+    with sync_playwright() as p:
+        context = p.chromium.launch_persistent_context(
+            str(tmp_path / "profile"),
+            executable_path="/usr/bin/chromium",
+            headless=True,
+            args=FLAGS,
+        )
+        try:
+
+            def route(request_route) -> None:  # type: ignore[no-untyped-def]
+                url = request_route.request.url
+                if url.startswith(("file:", "data:")):
+                    request_route.continue_()
+                else:
+                    refused.append(url)
+                    request_route.abort()
+
+            context.route("**/*", route)
+            page = context.new_page()
+            page.on("dialog", lambda dialog: (dialogs.append(dialog.message), dialog.dismiss()))
+            page.goto(record.as_uri())
+            page.wait_for_load_state("load")
+            sizes = page.eval_on_selector_all(
+                "img.equation, img.figure",
+                "els => els.map(e => [e.className, e.complete, e.naturalWidth, e.naturalHeight,"
+                " e.getBoundingClientRect().width])",
+            )
+            title = page.title()
+            heading = page.inner_text("h1")
+            ARTIFACTS.mkdir(exist_ok=True)
+            page.screenshot(path=str(ARTIFACTS / "record.png"), full_page=True)
+            page.emulate_media(media="print")
+            page.screenshot(path=str(ARTIFACTS / "record-print.png"))
+        finally:
+            context.close()
+    assert refused == []
+    assert dialogs == []
+    equations = [s for s in sizes if "equation" in s[0]]
+    charts = [s for s in sizes if "diagram" in s[0]]
+    assert len(equations) >= 6 and len(charts) == 3
+    for _, complete, natural_width, natural_height, shown_width in sizes:
+        assert complete and natural_width > 0 and natural_height > 0 and shown_width > 0
+    assert ALERT in title and ALERT in heading  # shown as text, not run
