@@ -1,0 +1,177 @@
+"""The case document the panel edits: a case file's JSON in the panel's units, and its paths.
+
+The panel never holds mechanics of its own. It edits this document (plain JSON values, exactly
+as a case file would hold them) and hands it to :func:`workbench.solver.io.parse_case`, which
+validates it and builds the SI model. A field is addressed by a *path*, a tuple of keys and list
+indices, written the way the solver names fields in its errors
+(``shafts[0].segments[1].section.inner_diameter``).
+"""
+
+from __future__ import annotations
+
+import copy
+from collections.abc import Iterator
+from typing import Any
+
+from workbench.solver.units import SI_ENGINEERING, UnitSystem, us_customary
+
+Path = tuple[str | int, ...]
+
+#: The unit systems the panel offers, by key.
+UNIT_CHOICES: dict[str, str] = {
+    "si": "SI: mm, N·m, MPa, deg",
+    "us": "US: in, lbf·in, psi, deg",
+}
+
+_BASE = ("length", "torque", "stress", "angle")
+
+
+def unit_system(key: str) -> UnitSystem:
+    """The unit system of a :data:`UNIT_CHOICES` key."""
+    return us_customary() if key == "us" else SI_ENGINEERING
+
+
+def unit_key(units: UnitSystem) -> str | None:
+    """The :data:`UNIT_CHOICES` key whose shown units match ``units``, else ``None``."""
+    for key in UNIT_CHOICES:
+        system = unit_system(key)
+        if all(getattr(system, name) == getattr(units, name) for name in _BASE):
+            return key
+    return None
+
+
+def pretty_unit(label: str) -> str:
+    """A unit string as people write it: ``N*m`` → ``N·m``, ``**2`` → ``²``."""
+    return label.replace("**2", "²").replace("^2", "²").replace("*", "·")
+
+
+def unit_label(units: UnitSystem, quantity: str) -> str:
+    """The pretty unit of a quantity in a unit system."""
+    return pretty_unit(units.label(quantity))
+
+
+def path_text(path: Path) -> str:
+    """``("shafts", 0, "segments", 1, "length")`` → ``shafts[0].segments[1].length``."""
+    text = ""
+    for key in path:
+        if isinstance(key, int):
+            text += f"[{key}]"
+        else:
+            text = f"{text}.{key}" if text else key
+    return text
+
+
+def get_at(document: Any, path: Path) -> Any:
+    """The value at ``path`` (``None`` when a key is absent)."""
+    node = document
+    for key in path:
+        if isinstance(key, int):
+            if not isinstance(node, list) or key >= len(node):
+                return None
+            node = node[key]
+        else:
+            if not isinstance(node, dict):
+                return None
+            node = node.get(key)
+    return node
+
+
+def set_at(document: Any, path: Path, value: Any) -> None:
+    """Set (or, with ``value`` None, remove) the value at ``path``, making objects on the way."""
+    node = document
+    for key in path[:-1]:
+        if isinstance(key, str) and key not in node:
+            node[key] = {}
+        node = node[key]
+    last = path[-1]
+    if value is None and isinstance(last, str):
+        node.pop(last, None)
+    else:
+        node[last] = value
+
+
+def clone(document: Any) -> Any:
+    """A deep copy (the solver gets its own, so later edits never reach a solved model)."""
+    return copy.deepcopy(document)
+
+
+#: The quantity of each numeric key the panel shows, for its unit label.
+KEY_QUANTITY: dict[str, str | None] = {
+    "length": "length",
+    "diameter": "length",
+    "outer_diameter": "length",
+    "inner_diameter": "length",
+    "diameter_start": "length",
+    "diameter_end": "length",
+    "bore": "length",
+    "fillet_radius": "length",
+    "cross_hole_diameter": "length",
+    "x": "length",
+    "start": "length",
+    "end": "length",
+    "radius": "length",
+    "torque": "torque",
+    "stiffness": "stiffness",
+    "rotation": "angle",
+    "intensity_start": "distributed_torque",
+    "intensity_end": "distributed_torque",
+    "factor_of_safety": None,
+    "allowable_shear_stress": "stress",
+    "max_twist_rate": "twist_rate",
+    "limit": "angle",
+    "width": "length",
+    "height": "length",
+    "thickness": "length",
+}
+
+
+def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:
+    """Every numeric input of a case document a sweep may vary, as (path, readable label)."""
+    units = document.get("units")
+    system = UnitSystem(**units) if units else UnitSystem()
+
+    def label(key: str) -> str:
+        quantity = KEY_QUANTITY.get(key)
+        unit = f" [{unit_label(system, quantity)}]" if quantity else ""
+        return key.replace("_", " ") + unit
+
+    for s, shaft in enumerate(document.get("shafts", [])):
+        for k, segment in enumerate(shaft.get("segments", [])):
+            where = f"{shaft.get('id')} segment {k}"
+            base: Path = ("shafts", s, "segments", k)
+            for key in ("length", "fillet_radius"):
+                if isinstance(segment.get(key), (int, float)):
+                    yield (*base, key), f"{where} · {label(key)}"
+            section = segment.get("section")
+            if isinstance(section, dict):
+                for key, value in section.items():
+                    if isinstance(value, (int, float)) and not isinstance(value, bool):
+                        yield (*base, "section", key), f"{where} · {label(key)}"
+    for n, support in enumerate(document.get("supports", [])):
+        for key in ("x", "stiffness", "rotation"):
+            if isinstance(support.get(key), (int, float)):
+                yield ("supports", n, key), f"support {n} · {label(key)}"
+    for n, gear in enumerate(document.get("gears", [])):
+        for end in ("a", "b"):
+            for key in ("x", "radius"):
+                if isinstance(gear.get(end, {}).get(key), (int, float)):
+                    yield ("gears", n, end, key), f"gear {n}{end} · {label(key)}"
+    for c, case in enumerate(document.get("load_cases", [])):
+        for n, torque in enumerate(case.get("torques", [])):
+            for key in ("torque", "x"):
+                if isinstance(torque.get(key), (int, float)):
+                    yield (
+                        ("load_cases", c, "torques", n, key),
+                        f"{case.get('name')} torque {n} · {label(key)}",
+                    )
+        for n, load in enumerate(case.get("distributed", [])):
+            for key in ("intensity_start", "intensity_end", "start", "end"):
+                if isinstance(load.get(key), (int, float)):
+                    yield (
+                        ("load_cases", c, "distributed", n, key),
+                        f"{case.get('name')} distributed {n} · {label(key)}",
+                    )
+    design = document.get("design") or {}
+    for key in ("factor_of_safety", "allowable_shear_stress", "max_twist_rate"):
+        if isinstance(design.get(key), (int, float)):
+            yield ("design", key), f"design · {label(key)}"
