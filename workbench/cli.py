@@ -167,8 +167,20 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-#: Further sub-commands (the panel's and the record's) register themselves here.
-_EXTRA_COMMANDS: list[Callable[[Any], None]] = []
+def _register_panel(commands: Any) -> None:
+    from workbench.panel.cli_commands import register  # noqa: PLC0415 - light module
+
+    register(commands)
+
+
+def _register_record(commands: Any) -> None:
+    from workbench.record.cli_commands import register  # noqa: PLC0415 - light module
+
+    register(commands)
+
+
+#: Sub-commands of the panel (lab) and of the record (keygen, export, verify, package).
+_EXTRA_COMMANDS: list[Callable[[Any], None]] = [_register_panel, _register_record]
 
 
 def main(argv: Sequence[str] | None = None) -> int:
