@@ -296,7 +296,8 @@ def parse_case(data: Any) -> Model:
 def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[str]) -> Model:
     top = _Object(data, "", top_keys, units)
     materials: dict[str, Material] = {}
-    raw_materials = data.get("materials") or {}
+    raw_materials = data.get("materials")
+    raw_materials = {} if raw_materials is None else raw_materials
     if not isinstance(raw_materials, dict):
         raise InputError("materials", f"must be an object, not {_kind(raw_materials)}")
     for name, item in raw_materials.items():
@@ -306,7 +307,8 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
         if name in materials:
             return materials[name]
         try:
-            return library_material(name)
+            # Keep the library key as the name, so the case saves and reloads by it.
+            return dataclasses.replace(library_material(name), name=name)
         except InputError as error:
             own = ", ".join(sorted(materials)) or "none"
             msg = f"unknown material {name!r}: not defined in materials (defined: {own}); {error.message}"

@@ -45,6 +45,9 @@ def field_path(prefix: str) -> Iterator[None]:
     try:
         yield
     except InputError as error:
+        # Readers inside the block already name the full path; prefix only bare field names.
+        if error.field == prefix or error.field.startswith((f"{prefix}.", f"{prefix}[")):
+            raise
         raise type(error)(join_path(prefix, error.field), error.message) from None
 
 
