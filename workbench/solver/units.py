@@ -100,7 +100,7 @@ def _si_factor(unit: str, quantity: str) -> float:
     ureg = registry()
     try:
         parsed = ureg.Quantity(1.0, unit)
-    except Exception as exc:  # noqa: BLE001 - pint's parser raises many kinds on bad text
+    except Exception as exc:
         msg = f"unknown unit {unit!r}"
         raise InputError(f"units.{quantity}", msg) from exc
     expected = ureg.Quantity(1.0, SI_UNITS[quantity]).dimensionality
