@@ -72,6 +72,7 @@ def _command_size(arguments: argparse.Namespace) -> int:
         series=arguments.series,
         sizes=arguments.sizes,
         keep=arguments.keep,
+        minimum_fraction=arguments.min_fraction,
     )
     outcome = size_shafts(model, request)
     if arguments.json:
@@ -151,6 +152,12 @@ def build_parser() -> argparse.ArgumentParser:
         default="ratio",
         choices=["ratio", "wall"],
         help="for tubes: keep the bore ratio (default) or the wall thickness",
+    )
+    size_parser.add_argument(
+        "--min-fraction",
+        type=float,
+        default=0.25,
+        help="floor for each diameter, as a fraction of its starting size (default 0.25)",
     )
     size_parser.add_argument("-o", "--output", help="write the sized case file here")
     size_parser.add_argument("--json", action="store_true", help="print the JSON document")

@@ -404,7 +404,14 @@ class _Checker:
                 torque = np.abs(results.torque[:, stations])
                 fractions = np.clip((x - boundaries[segment_number]) / segment.length, 0.0, 1.0)
                 self._stress(shaft.id, segment_number, segment, torque, x, fractions)
-                self._concentrations(shaft_number, segment_number, segment, torque, x)
+                # The previous segment's last station sits just left of this one's first
+                # (stations run in order): the shoulder check needs the torque on both sides.
+                before = stations[0] - 1 if segment_number > 0 else stations[0]
+                torque_before = np.abs(results.torque[:, before])
+                with field_path(f"shafts[{shaft_number}].segments[{segment_number}]"):
+                    self._concentrations(
+                        shaft_number, segment_number, segment, torque, x, torque_before
+                    )
                 if self.design.max_twist_rate is not None:
                     rate = torque / mesh.station_rigidity[stations]
                     self.add(
@@ -444,7 +451,13 @@ class _Checker:
         self.add("shear_stress", shaft, number, stress, x, limit, basis)
 
     def _concentrations(
-        self, shaft_number: int, number: int, segment: Segment, torque: FloatArray, x: FloatArray
+        self,
+        shaft_number: int,
+        number: int,
+        segment: Segment,
+        torque: FloatArray,
+        x: FloatArray,
+        torque_before: FloatArray,
     ) -> None:
         shaft = self.model.shafts[shaft_number]
         material = segment.layers[0].material
@@ -461,13 +474,20 @@ class _Checker:
                 small, big = sorted((here, before), key=lambda pair: pair[0])
                 factor = shoulder_fillet_kts(big[0], small[0], segment.fillet_radius)
                 start = x[:1]
-                nominal = torque[:, :1] * _nominal_stress_factor(*small)
+                # The nominal stress is that of the smaller diameter under its own torque.
+                small_torque = torque[:, 0] if here[0] <= before[0] else torque_before
+                nominal = small_torque[:, None] * _nominal_stress_factor(*small)
                 self._concentrated(
                     "shoulder_stress", shaft.id, number, factor, nominal, start, allowable
                 )
         if segment.keyseat:
             dims = _circular_diameter(segment, 0.5)
-            if dims is not None:
+            if dims is None:
+                self.notes.append(
+                    f"{shaft.id} segment {number}: the keyseat factor is for one-layer round "
+                    "segments; not checked"
+                )
+            else:
                 factors = np.array(
                     [
                         _nominal_stress_factor(*_circular_diameter(segment, f) or dims)
@@ -494,7 +514,7 @@ class _Checker:
                 equivalent = ConcentrationFactor(
                     factor.value / divisor,
                     factor.in_range,
-                    f"{factor.note}; equivalent shear = σ_max/{divisor:.4g}",
+                    f"Ktg = {factor.value:.3g}, equivalent shear σ_max/{divisor:.4g}; {factor.note}",
                     factor.source,
                 )
                 self._concentrated(

@@ -116,7 +116,8 @@ class Segment:
         if not self.layers:
             raise InputError("layers", "a segment needs at least one layer")
         if self.fillet_radius is not None:
-            require_non_negative("fillet_radius", self.fillet_radius)
+            # A sharp corner (r = 0) has no finite stress-concentration factor.
+            require_positive("fillet_radius", self.fillet_radius)
         if self.cross_hole_diameter is not None:
             require_positive("cross_hole_diameter", self.cross_hole_diameter)
             if self.cross_hole_diameter >= 2.0 * self.layers[-1].section.outer_radius:

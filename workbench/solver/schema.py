@@ -67,7 +67,7 @@ def case_schema() -> dict[str, Any]:
     layer = _object({"material": _NAME, "section": section}, ["material", "section"])
     segment_common = {
         "length": _POSITIVE,
-        "fillet_radius": dict(_NUMBER, minimum=0),
+        "fillet_radius": _POSITIVE,
         "keyseat": {"type": "boolean"},
         "cross_hole_diameter": _POSITIVE,
     }

@@ -49,12 +49,18 @@ class SizingRequest:
     keep
         For tubes and bored tapers: ``"ratio"`` keeps bore/outer, ``"wall"`` keeps the wall
         thickness.
+    minimum_fraction
+        No segment goes below this fraction of its starting diameter. In an indeterminate shaft
+        a segment can shed torque as it shrinks (its stress then falls with its size), so the
+        checks alone may never stop it; such a segment ends at this floor and is reported as
+        governed by no check. Default 0.25 (our choice; a practical floor, no source).
     """
 
     segments: tuple[tuple[str, int], ...]
     series: str = "R40"
     sizes: tuple[float, ...] = ()
     keep: str = "ratio"
+    minimum_fraction: float = 0.25
 
     def __post_init__(self) -> None:
         if self.series not in RENARD_SERIES:
@@ -63,6 +69,8 @@ class SizingRequest:
             raise InputError("keep", f"must be 'ratio' or 'wall', not {self.keep!r}")
         if not self.segments:
             raise InputError("segments", "choose at least one segment to size")
+        if not 0.0 < self.minimum_fraction <= 1.0:
+            raise InputError("minimum_fraction", "must lie in (0, 1]")
 
     @classmethod
     def from_arguments(
@@ -72,6 +80,7 @@ class SizingRequest:
         series: str = "R40",
         sizes: str | None = None,
         keep: str = "ratio",
+        minimum_fraction: float = 0.25,
     ) -> SizingRequest:
         """Build from command-line words: ``["main:0", "main:2"]``, ``"40,45,50"`` (file units)."""
         chosen: list[tuple[str, int]] = []
@@ -99,7 +108,7 @@ class SizingRequest:
             if not values or any(not value > 0 for value in values):
                 raise InputError("--sizes", "sizes must be positive numbers")
             allowed = tuple(sorted(model.units.to_si(value, "length") for value in values))
-        return cls(tuple(chosen), series, allowed, keep)
+        return cls(tuple(chosen), series, allowed, keep, minimum_fraction)
 
 
 def _sizable(segment: Segment) -> bool:
@@ -149,6 +158,8 @@ class SizedSegment:
         Its governing check at the final sizes.
     next_smaller
         The next smaller allowed diameter (m), or ``None`` at the bottom of the list.
+    at_floor
+        Whether the segment stopped at the floor (``minimum_fraction``) rather than at a check.
     """
 
     shaft: str
@@ -157,6 +168,7 @@ class SizedSegment:
     diameter_after: float
     governing: Check | None
     next_smaller: float | None
+    at_floor: bool = False
 
 
 @dataclass(frozen=True)
@@ -179,6 +191,7 @@ class SizingOutcome:
     report: CheckReport
     segments: tuple[SizedSegment, ...]
     evaluations: int
+    request_floor: float = 0.25
 
     @property
     def passes(self) -> bool:
@@ -248,7 +261,7 @@ class _Search:
 
     def evaluate(self, sizes: tuple[float, ...]) -> CheckReport | None:
         """Checks at these sizes; ``None`` when the sizes make an impossible section."""
-        key = tuple(round(size, 12) for size in sizes)
+        key = tuple(float(f"{size:.10g}") for size in sizes)
         if key not in self.cache:
             self.evaluations += 1
             try:
@@ -322,6 +335,7 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
         outer_diameter(model.shaft(shaft_id).segments[number].layers[0].section)
         for shaft_id, number in request.segments
     )
+    floors = tuple(search.up(d * request.minimum_fraction) for d in before)
     sizes = tuple(search.up(d) for d in before)
     seen: set[tuple[float, ...]] = set()
     for _ in range(_MAX_ROUNDS):  # scaling
@@ -330,8 +344,10 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
             break
         seen.add(sizes)
         sizes = tuple(
-            search.up(max(size * max(value, 1e-6) ** exponent, 1e-9))
-            for size, (value, exponent) in zip(sizes, search.utilisation(report), strict=True)
+            max(search.up(size * max(value, 1e-6) ** exponent), floor)
+            for size, floor, (value, exponent) in zip(
+                sizes, floors, search.utilisation(report), strict=True
+            )
         )
     report = search.evaluate(sizes)
     for _ in range(_MAX_ROUNDS * 4):  # repair
@@ -357,7 +373,7 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
             changed = False
             for index in range(len(sizes)):
                 smaller = search.down(sizes[index])
-                if smaller is None:
+                if smaller is None or smaller < floors[index] * (1.0 - 1e-9):
                     continue
                 trial = (*sizes[:index], smaller, *sizes[index + 1 :])
                 trial_report = search.evaluate(trial)
@@ -377,12 +393,15 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
             size,
             governing.get((shaft_id, number)),
             search.down(size),
+            at_floor=abs(size - floor) <= 1e-9 * floor,
         )
-        for (shaft_id, number), before_size, size in zip(
-            request.segments, before, sizes, strict=True
+        for (shaft_id, number), before_size, size, floor in zip(
+            request.segments, before, sizes, floors, strict=True
         )
     )
-    return SizingOutcome(final_model, final_report, rows, search.evaluations)
+    return SizingOutcome(
+        final_model, final_report, rows, search.evaluations, request.minimum_fraction
+    )
 
 
 def sizing_document(outcome: SizingOutcome) -> dict[str, Any]:
@@ -404,6 +423,7 @@ def sizing_document(outcome: SizingOutcome) -> dict[str, Any]:
                 "governing_kind": row.governing.kind if row.governing else None,
                 "governing_result": row.governing.result if row.governing else None,
                 "utilisation": row.governing.utilisation if row.governing else None,
+                "at_floor": row.at_floor,
             }
             for row in outcome.segments
         ],
@@ -429,8 +449,17 @@ def sizing_text(outcome: SizingOutcome) -> str:
         ]
         for row in outcome.segments
     ]
+    floor_rows = [f"{row.shaft}:{row.segment}" for row in outcome.segments if row.at_floor]
+    floor_note = (
+        f"\n{', '.join(floor_rows)}: stopped at the floor "
+        f"({outcome.request_floor:.0%} of the starting diameter); no check governs there — the "
+        "segment sheds torque as it shrinks. Choose its size on other grounds."
+        if floor_rows
+        else ""
+    )
     verdict = (
         "every check passes at these sizes; each next smaller size fails a check"
+        + (" (but for the segments at the floor)" if floor_rows else "")
         if outcome.passes
         else "NO ALLOWED SIZE PASSES EVERY CHECK: the largest sizes tried still fail"
     )
@@ -446,5 +475,5 @@ def sizing_text(outcome: SizingOutcome) -> str:
             ],
             rows,
         )
-        + f"\n\n{verdict} ({outcome.evaluations} evaluations)\n\nCaution: {CAUTION}\n"
+        + f"\n\n{verdict} ({outcome.evaluations} evaluations){floor_note}\n\nCaution: {CAUTION}\n"
     )

@@ -12,6 +12,7 @@ from __future__ import annotations
 import contextvars
 import functools
 import math
+import re
 from dataclasses import dataclass, field, fields
 from typing import Any
 
@@ -82,6 +83,32 @@ _SIMPLE_QUANTITY: dict[str, str] = {
 }
 
 
+_NEEDS_ANGLE = ("angle", "speed")
+_ANGLE_WORDS = (
+    "rad",
+    "radian",
+    "deg",
+    "degree",
+    "°",
+    "arcmin",
+    "arcminute",
+    "arcsec",
+    "arcsecond",
+    "turn",
+    "rev",
+    "revolution",
+    "rpm",
+    "grad",
+    "gon",
+    "mrad",
+)
+
+
+def _names_an_angle(unit: str) -> bool:
+    words = re.findall(r"[^\W\d_]+|°", unit)
+    return any(word in _ANGLE_WORDS or word.rstrip("s") in _ANGLE_WORDS for word in words)
+
+
 @functools.lru_cache(maxsize=1)
 def registry() -> Any:
     """Return the application's single pint unit registry (created on first use)."""
@@ -103,6 +130,11 @@ def _si_factor(unit: str, quantity: str) -> float:
     except Exception as exc:
         msg = f"unknown unit {unit!r}"
         raise InputError(f"units.{quantity}", msg) from exc
+    if quantity in _NEEDS_ANGLE and not _names_an_angle(unit):
+        # pint counts the radian as dimensionless, so "percent" would pass as an angle and
+        # "Hz" as a speed; a rotation must be named as one.
+        msg = f"{unit!r} is not a unit of {quantity} (name an angle: rad, deg, rev, rpm, ...)"
+        raise InputError(f"units.{quantity}", msg)
     expected = ureg.Quantity(1.0, SI_UNITS[quantity]).dimensionality
     if parsed.dimensionality != expected:
         msg = (
