@@ -29,6 +29,7 @@ References
 from __future__ import annotations
 
 import itertools
+import math
 import warnings
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
@@ -78,7 +79,13 @@ class Mesh:
         """Index of the node at position x (m) of a shaft."""
         start, stop = self.shaft_node_start[shaft_number], self.shaft_node_start[shaft_number + 1]
         positions = self.node_x[start:stop]
-        return int(start + np.argmin(np.abs(positions - x)))
+        # Nodes are sorted: the nearest is one of the two around x.
+        right = int(np.searchsorted(positions, x))
+        if right >= len(positions) or (
+            right > 0 and x - positions[right - 1] < positions[right] - x
+        ):
+            right -= 1
+        return int(start + right)
 
 
 def _merge_points(points: FloatArray, length: float) -> FloatArray:
@@ -113,13 +120,17 @@ def _key_points(model: Model) -> list[list[float]]:
 
 
 def _segment_constants(segment: Segment) -> tuple[float, float]:
-    """(G·K, peak stress per torque) of a prismatic segment, fast for the single-layer case."""
+    """(G·K, peak stress per torque) of a prismatic segment, NaNs for a varying one."""
     if len(segment.layers) == 1:
         layer = segment.layers[0]
+        if not layer.section.prismatic:
+            return math.nan, math.nan
         return (
             layer.material.shear_modulus * layer.section.torsion_constant,
             layer.section.shear_stress_per_torque,
         )
+    if not segment.prismatic:
+        return math.nan, math.nan
     return segment.torsional_rigidity, segment.shear_stress_per_torque
 
 
@@ -179,16 +190,12 @@ def build_mesh(model: Model) -> Mesh:
         starts, ends = nodes[:-1], nodes[1:]
         middles = 0.5 * (starts + ends)
         segment_of = np.clip(np.searchsorted(boundaries, middles) - 1, 0, len(shaft.segments) - 1)
-        constants = np.array(
-            [
-                _segment_constants(segment) if segment.prismatic else (np.nan, np.nan)
-                for segment in shaft.segments
-            ]
-        )
+        # One pass over the segments: (G·K, stress per torque), NaN marking a varying segment.
+        constants = np.array([_segment_constants(segment) for segment in shaft.segments])
         loaded = np.zeros(n_elements, dtype=bool)
         for span_start, span_end in loaded_spans[number]:
             loaded |= (middles > span_start) & (middles < span_end)
-        varying = np.array([not segment.prismatic for segment in shaft.segments])[segment_of]
+        varying = np.isnan(constants[segment_of, 0])
         element_parts.append(
             (
                 np.full(n_elements, number),
@@ -842,13 +849,14 @@ def _with_combinations(
     for row, combination in enumerate(model.combinations):
         for case_name, factor in combination.factors:
             factors[row, case_row[case_name]] += factor
-    superpose = np.vstack([np.eye(len(model.load_cases)), factors])
 
     def combine(values: FloatArray) -> FloatArray:
         if not model.combinations:
             return values
         flat = values.reshape(values.shape[0], -1)
-        combined: FloatArray = (superpose @ flat).reshape((superpose.shape[0], *values.shape[1:]))
+        combined: FloatArray = np.concatenate([flat, factors @ flat]).reshape(
+            (flat.shape[0] + factors.shape[0], *values.shape[1:])
+        )
         return combined
 
     all_torque = combine(torque)
