@@ -23,7 +23,7 @@ import numpy as np
 
 from workbench.solver.errors import InputError
 from workbench.solver.materials import Material
-from workbench.solver.sections import FloatArray, Section, require_non_negative, require_positive
+from workbench.solver.sections import FloatArray, Section, require_positive
 from workbench.solver.units import SI, UnitSystem, quote
 
 #: Two positions on one shaft closer than this fraction of its length are the same point.
