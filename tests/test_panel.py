@@ -9,19 +9,25 @@ simple enough: a solid round shaft fixed at one end with an end torque T has
 
 from __future__ import annotations
 
+import asyncio
+import html
 import json
 import math
 import shutil
 from pathlib import Path
 
+import ipywidgets as w
 import numpy as np
 import pytest
 
 from workbench.panel import CASE_MIME_TYPE, Workbench
+from workbench.panel.document import get_at, normal_field, parse_path, plain_words
 from workbench.panel.sweep import SweepRequest, run_sweep
+from workbench.panel.workbench import _clean
 from workbench.solver.analysis import solve
-from workbench.solver.checks import CAUTION
+from workbench.solver.checks import CAUTION, run_checks
 from workbench.solver.io import load_case, parse_case
+from workbench.solver.sections import SolidCircle
 
 ROOT = Path(__file__).resolve().parents[1]
 CASE = ROOT / "notebooks" / "press_drive.json"
@@ -109,22 +115,117 @@ def test_slider_and_text_stay_in_step(panel: Workbench) -> None:
     assert panel.document["shafts"][0]["segments"][0]["section"]["diameter"] == 52
 
 
-def test_bad_input_message_beside_field_and_stale(panel: Workbench) -> None:
-    good = np.array(panel.charts.stress.now.y)
-    inner = field(panel, "shafts[0].segments[1].section.inner_diameter")
-    inner.value = 80.0
+def box_of(root: w.Widget, widget: w.Widget) -> w.Box | None:
+    """The box whose children hold ``widget`` (depth-first through boxes and tabs)."""
+    children = getattr(root, "children", ())
+    if widget in children:
+        return root
+    for child in children:
+        found = box_of(child, widget)
+        if found is not None:
+            return found
+    return None
+
+
+def message_beside(panel: Workbench, path: str) -> w.HTML:
+    """The one message line in the same box as the field at ``path``, after the field."""
+    entry = field(panel, path)
+    box = box_of(panel.root, entry)
+    assert box is not None, f"{path} is not shown in the panel"
+    after = list(box.children)[list(box.children).index(entry) + 1 :]
+    lines = [c for c in after if isinstance(c, w.HTML) and "wb-msg" in c._dom_classes]
+    assert len(lines) == 1
+    return lines[0]
+
+
+def shown_messages(panel: Workbench) -> list[str]:
+    return [line.value for lines in panel._messages.values() for line in lines if line.value]
+
+
+def chart_data(panel: Workbench) -> dict[str, np.ndarray]:
+    return {
+        "torque": np.array(panel.charts.torque.now.y),
+        "angle": np.array(panel.charts.angle.now.y),
+        "stress": np.array(panel.charts.stress.now.y),
+        "bars": np.array(panel.charts.bars.y),
+        "outline": np.array(panel.charts.segments.y),
+    }
+
+
+def same_data(panel: Workbench, data: dict[str, np.ndarray]) -> bool:
+    return all(np.array_equal(now, data[key]) for key, now in chart_data(panel).items())
+
+
+# (field, bad value, words the message must hold). The rules are the solver's own (positive
+# sizes, bore inside the tube, stations on the shaft, factor of safety at least 1); the message is
+# shown in plain words: no snake_case names, units as written (N·m).
+BAD_FIELDS = [
+    (
+        "shafts[0].segments[1].section.inner_diameter",
+        80.0,
+        ["must be smaller than outer diameter", "80 mm", "70 mm"],
+    ),
+    ("shafts[0].segments[0].length", -5.0, ["greater than zero", "-5 mm"]),
+    ("shafts[0].segments[2].section.diameter_end", 0.0, ["greater than zero", "0 mm"]),
+    ("supports[1].stiffness", -3.0, ["greater than zero", "-3 N·m/deg"]),
+    ("supports[0].x", 5000.0, ["5000 mm is off shaft 'auger'", "0 to 900 mm"]),
+    ("gears[0].a.radius", 0.0, ["greater than zero", "0 mm"]),
+    ("design.factor_of_safety", 0.5, ["at least 1", "0.5"]),
+    ("design.rotation_limits[0].end", 5000.0, ["5000 mm is off shaft 'auger'"]),
+    ("design.rotation_limits[0].limit", -1.0, ["greater than zero", "-1 deg"]),
+]
+
+
+@pytest.mark.parametrize(("path", "bad", "words"), BAD_FIELDS, ids=[b[0] for b in BAD_FIELDS])
+def test_bad_value_message_beside_its_field(
+    panel: Workbench, path: str, bad: float, words: list[str]
+) -> None:
+    good_data = chart_data(panel)
+    entry = field(panel, path)
+    good = entry.value
+    entry.value = bad
     assert panel.stale
-    message = panel._messages["shafts[0].segments[1]"].value
-    assert "inner_diameter" in message and "80" in message and "mm" in message
+    shown = message_beside(panel, path).value
+    message = html.unescape(shown)
+    for word in words:
+        assert word in message, (word, message)
+    assert "_" not in message
+    assert shown_messages(panel) == [shown]  # beside that field and nowhere else
+    assert "wb-bad" in entry._dom_classes
     assert "wb-stale" in panel.charts_box._dom_classes
-    assert "wb-bad" in inner._dom_classes
-    assert np.allclose(panel.charts.stress.now.y, good)  # the last good results stay
-    assert panel.document["shafts"][0]["segments"][1]["section"]["inner_diameter"] == 80
-    assert inner.value == 80.0  # nothing typed is thrown away
-    inner.value = 25.0
+    assert "Not solved" in panel.status.value
+    assert same_data(panel, good_data)  # the last good results stay up
+    assert get_at(panel.document, parse_path(path)) == _clean(bad)  # nothing typed is lost
+    assert entry.value == bad
+    entry.value = good
     assert not panel.stale
-    assert panel._messages["shafts[0].segments[1]"].value == ""
-    assert "wb-bad" not in inner._dom_classes
+    assert message_beside(panel, path).value == ""
+    assert shown_messages(panel) == []
+    assert "wb-bad" not in entry._dom_classes
+    assert "wb-stale" not in panel.charts_box._dom_classes
+
+
+def test_bad_value_on_slider_and_entry_of_one_field(panel: Workbench) -> None:
+    path = "shafts[0].segments[0].section.diameter"
+    panel.dimension.value = parse_path(path)
+    good_data = chart_data(panel)
+    field(panel, path).value = -2.0
+    assert "greater than zero (-2 mm)" in message_beside(panel, path).value
+    drag = panel._messages[path][-1]
+    assert drag in panel.dimension_box.children  # the drag slider's own message line
+    assert drag.value == message_beside(panel, path).value
+    assert panel.diameter_slider.min <= -2.0 and panel.diameter_slider.value == -2.0
+    assert same_data(panel, good_data)
+
+
+def test_message_lands_on_the_row_when_no_field_shows_the_value(panel: Workbench) -> None:
+    # Segment 3 is a two-layer section, edited in the case file: its row carries the message.
+    layers = panel.document["shafts"][0]["segments"][3]["layers"]
+    layers[1]["section"]["diameter"] = 0
+    assert not panel.refresh()
+    row = panel._messages["shafts[0].segments[3]"][0]
+    assert "layer 1" in row.value and "greater than zero" in row.value
+    assert shown_messages(panel) == [row.value]
 
 
 def test_torque_drag_moves_the_jump(panel: Workbench) -> None:
@@ -217,11 +318,9 @@ def test_sweep_matches_point_solves(panel: Workbench) -> None:
     for value, result in zip((1000.0, 2000.0), swept, strict=True):
         document = json.loads(json.dumps(panel.document))
         document["load_cases"][1]["torques"][0]["torque"] = value
-        from workbench.solver.checks import run_checks
-
-        assert result == pytest.approx(
-            run_checks(solve(parse_case(document))).governing.utilisation
-        )
+        governing = run_checks(solve(parse_case(document))).governing
+        assert governing is not None
+        assert result == pytest.approx(governing.utilisation)
 
 
 def test_sweep_widget_progress_and_cancel(panel: Workbench) -> None:
@@ -247,7 +346,8 @@ def test_save_and_reopen(panel: Workbench, tmp_path: Path) -> None:
     field(panel, "shafts[0].segments[0].section.diameter").value = -1.0
     panel._on_save(None)
     assert "errors" in panel.save_message.value
-    assert load_case(panel.path).shafts[0].segments[0].layers[0].section.diameter == 0.048
+    section = load_case(panel.path).shafts[0].segments[0].layers[0].section
+    assert isinstance(section, SolidCircle) and section.diameter == 0.048
 
 
 def test_case_output_for_the_record(panel: Workbench) -> None:
@@ -265,4 +365,131 @@ def test_caution_and_mechanism_message(panel: Workbench) -> None:
     for _ in range(len(panel.document["supports"])):
         panel._remove(("supports",), 0)
     assert panel.stale
-    assert "free to spin" in panel._messages["supports"].value
+    assert "free to spin" in panel._messages["supports"][0].value
+
+
+def test_burst_in_a_kernel_loop_solves_once_in_the_last_state(panel: Workbench) -> None:
+    # In a kernel an event loop runs: each edit is checked at once, the solve waits for the loop.
+    entry = field(panel, "shafts[0].segments[0].section.diameter")
+    count = panel.solve_count
+
+    async def burst() -> int:
+        for value in np.linspace(41.0, 59.0, 60):
+            entry.value = float(value)
+        during = panel.solve_count
+        await asyncio.sleep(0)
+        return during
+
+    assert asyncio.run(burst()) == count  # no solve inside the burst
+    assert panel.solve_count == count + 1
+    assert np.max(panel.charts.segments.y[0]) == pytest.approx(59.0 / 2)
+    expected = solve(parse_case(panel.document))
+    row = expected.index(panel.result.value)
+    assert np.allclose(
+        panel.charts.stress.now.y, expected.shear_stress[row, expected._window(0)] / 1e6
+    )
+    assert not panel.stale and shown_messages(panel) == []
+
+
+def test_burst_ending_on_a_bad_edit(panel: Workbench) -> None:
+    path = "shafts[0].segments[0].section.diameter"
+    entry = field(panel, path)
+    count = panel.solve_count
+
+    async def burst() -> str:
+        for value in (45.0, 50.0, -1.0):
+            entry.value = value
+        at_once = message_beside(panel, path).value  # flagged as typed, before any solve
+        await asyncio.sleep(0)
+        return at_once
+
+    assert "-1 mm" in asyncio.run(burst())
+    assert panel.solve_count == count + 1  # the last valid edit (50) was solved, once
+    assert panel.stale and "wb-stale" in panel.charts_box._dom_classes
+    assert "greater than zero (-1 mm)" in message_beside(panel, path).value
+    assert np.max(panel.charts.segments.y[0]) == pytest.approx(25.0)
+    document = json.loads(json.dumps(panel.document))
+    assert document["shafts"][0]["segments"][0]["section"]["diameter"] == -1
+    document["shafts"][0]["segments"][0]["section"]["diameter"] = 50
+    expected = solve(parse_case(document))
+    row = expected.index(panel.result.value)
+    assert np.allclose(
+        panel.charts.stress.now.y, expected.shear_stress[row, expected._window(0)] / 1e6
+    )
+
+
+def test_burst_recovering_from_a_bad_edit(panel: Workbench) -> None:
+    path = "shafts[0].segments[0].section.diameter"
+    entry = field(panel, path)
+
+    async def burst() -> None:
+        entry.value = -1.0
+        entry.value = 47.0
+        await asyncio.sleep(0)
+
+    asyncio.run(burst())
+    assert not panel.stale and shown_messages(panel) == []
+    assert "wb-stale" not in panel.charts_box._dom_classes
+    assert np.max(panel.charts.segments.y[0]) == pytest.approx(23.5)
+
+
+def test_reading_results_finishes_a_pending_edit(panel: Workbench) -> None:
+    entry = field(panel, "shafts[0].segments[0].section.diameter")
+    count = panel.solve_count
+
+    async def edit_and_read() -> float:
+        entry.value = 52.0
+        results = panel.results  # settles: the last edit's results, in the same cell
+        assert panel.solve_count == count + 1
+        await asyncio.sleep(0)
+        return float(results.shear_stress.max())
+
+    largest = asyncio.run(edit_and_read())
+    assert panel.solve_count == count + 1  # the loop's flush found nothing left to do
+    assert largest == pytest.approx(solve(parse_case(panel.document)).shear_stress.max())
+
+
+def test_rotation_limit_editor_closed_form() -> None:
+    # θ(x) = T·x/(G·J) along a uniform shaft fixed at x = 0 (Gere & Goodno, 8th ed., eq. 3-17).
+    panel = Workbench(simple_case())
+    add = next(
+        child
+        for box in panel.design_box.children
+        for child in getattr(box, "children", ())
+        if isinstance(child, w.Button) and child.description == "add rotation limit"
+    )
+    add.click()
+    assert panel.document["design"]["rotation_limits"] == [
+        {"shaft": "s", "start": 0, "end": 1000, "limit": 1}
+    ]
+    T, G, J = 500.0, 80e9, math.pi * 0.040**4 / 32
+
+    def rotation_check():
+        (check,) = [c for c in panel.report.checks if c.kind == "rotation" and c.result == "drive"]
+        return check
+
+    assert rotation_check().value == pytest.approx(T * 1.0 / (G * J), rel=1e-9)
+    assert rotation_check().limit == pytest.approx(math.radians(1.0), rel=1e-12)
+    field(panel, "design.rotation_limits[0].limit").value = 2.0
+    assert rotation_check().limit == pytest.approx(math.radians(2.0), rel=1e-12)
+    field(panel, "design.rotation_limits[0].start").value = 400.0
+    assert rotation_check().value == pytest.approx(T * 0.6 / (G * J), rel=1e-9)
+    assert "rotation" in panel.check_table.value
+    panel._remove_rotation_limit(0)
+    assert "rotation_limits" not in panel.document["design"]
+    assert not [c for c in panel.report.checks if c.kind == "rotation"]
+
+
+def test_plain_words_and_field_paths() -> None:
+    # Wording rules of the panel's own (common practice, no source): names in words, quoted
+    # ids and options untouched, units as written; a doubled list step folded.
+    assert (
+        plain_words("is required when shear_criterion is 'allowable'")
+        == "is required when shear criterion is 'allowable'"
+    )
+    assert plain_words("unknown shaft 'my_shaft' (-3 N*m/deg)") == (
+        "unknown shaft 'my_shaft' (-3 N·m/deg)"
+    )
+    assert normal_field("gears[0].gears[0].a.radius") == "gears[0].a.radius"
+    assert normal_field("shafts[0].segments[1].length") == "shafts[0].segments[1].length"
+    assert parse_path("design.rotation_limits[0].end") == ("design", "rotation_limits", 0, "end")

@@ -8,6 +8,8 @@ blue, loads in amber, supports in charcoal, the baseline dashed in grey, limits 
 from __future__ import annotations
 
 import warnings
+from collections.abc import Iterator
+from contextlib import ExitStack, contextmanager
 from typing import Any
 
 import numpy as np
@@ -39,8 +41,37 @@ _PLOT_RATIO = (_ELEVATION_HEIGHT - 56) / (_ELEVATION_WIDTH - 80)
 _SAMPLES = 17
 
 
-def _tooltip(labels: list[str]) -> bq.Tooltip:
-    return bq.Tooltip(fields=["x", "y"], labels=labels, formats=[".4g", ".4g"])
+@contextmanager
+def _held(figure: bq.Figure) -> Iterator[None]:
+    """Hold the sync of a figure, its marks, their scales and its axes for one block.
+
+    A mark whose x and y were sent one at a time would be drawn in between with the new x and
+    the old y; held, each widget sends one message with all its changes when the block ends.
+    """
+    widgets: dict[int, Any] = {id(figure): figure}
+    for item in [*figure.marks, *figure.axes]:
+        widgets[id(item)] = item
+        scales = item.scales.values() if hasattr(item, "scales") else [item.scale]
+        for scale in scales:
+            widgets[id(scale)] = scale
+    with ExitStack() as stack:
+        for widget in widgets.values():
+            stack.enter_context(widget.hold_sync())
+        yield
+
+
+def _set_tooltip(
+    mark: Any, labels: list[str], fields: tuple[str, ...] = ("x", "y"), fmt: str = ".4g"
+) -> None:
+    """Give ``mark`` a tooltip with these labels, keeping the one it has when they match.
+
+    A tooltip is a widget of its own: making a new one on every redraw costs about a millisecond
+    and a front-end widget each time, so it is only replaced when its text changes.
+    """
+    tooltip = mark.tooltip
+    if tooltip is not None and list(tooltip.labels) == labels and tuple(tooltip.fields) == fields:
+        return
+    mark.tooltip = bq.Tooltip(fields=list(fields), labels=labels, formats=[fmt] * len(fields))
 
 
 def _figure(
@@ -112,9 +143,9 @@ class ResultChart:
     def set_labels(self, x_label: str, y_label: str) -> None:
         self.figure.axes[0].label = x_label
         self.figure.axes[1].label = y_label
-        self.now.tooltip = _tooltip([x_label, y_label])
-        self.baseline.tooltip = _tooltip([x_label, "baseline " + y_label])
-        self.limit.tooltip = _tooltip([x_label, "allowable " + y_label])
+        _set_tooltip(self.now, [x_label, y_label])
+        _set_tooltip(self.baseline, [x_label, "baseline " + y_label])
+        _set_tooltip(self.limit, [x_label, "allowable " + y_label])
 
 
 class Charts:
@@ -257,11 +288,11 @@ class Charts:
         shaft_number: int,
         baseline: tuple[Results, CheckReport] | None,
     ) -> None:
-        """Redraw every chart; each figure's marks change in one synced message."""
+        """Redraw every chart; each widget of a figure sends its changes in one message."""
         units = model.units
         shaft = model.shafts[shaft_number]
         length_unit = unit_label(units, "length")
-        with self.elevation.hold_sync():
+        with _held(self.elevation):
             self._draw_elevation(model, shaft_number, result)
         row = results.index(result)
         window = results._window(shaft_number)
@@ -281,7 +312,7 @@ class Charts:
             base = (base_results, base_window, base_row)
         for chart in (self.torque, self.angle, self.stress):
             values, quantity, y_label = series[chart.key]
-            with chart.figure.hold_sync():
+            with _held(chart.figure):
                 chart.set_labels(x_label, y_label)
                 chart.now.x, chart.now.y = x, units.from_si(values[row, window], quantity)
                 if base is not None:
@@ -298,7 +329,7 @@ class Charts:
                 chart.baseline.visible = base is not None
                 if chart.key == "stress":
                     self._draw_allowable(report, shaft, result)
-        with self.utilisation.hold_sync():
+        with _held(self.utilisation):
             labels, now = segment_utilisation(report, shaft.id, len(shaft.segments), result)
             self.bars.x, self.bars.y = labels, now
             self.bar_limit.x, self.bar_limit.y = labels, np.ones(len(labels))
@@ -365,9 +396,7 @@ class Charts:
         ):
             mark.x = np.array(kinds[kind])
             mark.y = np.full(len(kinds[kind]), marker_y)
-            mark.tooltip = bq.Tooltip(
-                fields=["x"], labels=[f"{kind} support at x [{length_unit}]"], formats=[".4g"]
-            )
+            _set_tooltip(mark, [f"{kind} support at x [{length_unit}]"], ("x",))
         gear_x, gear_y = [], []
         for gear in model.gears:
             for point in (gear.a, gear.b):
@@ -379,7 +408,7 @@ class Charts:
         self.gears.visible = bool(gear_x)
         if gear_x:
             self.gears.x, self.gears.y = np.array(gear_x), np.array(gear_y)
-            self.gears.tooltip = _tooltip([f"gear at x [{length_unit}]", "pitch radius"])
+            _set_tooltip(self.gears, [f"gear at x [{length_unit}]", "pitch radius"])
         torques_x, torques_t, spans_x = [], [], []
         for case, factor in _cases_of(model, result):
             for torque in case.torques:
@@ -393,16 +422,14 @@ class Charts:
         self.torques.x = np.array(torques_x)
         self.torques.y = np.full(len(torques_x), load_y)
         self.torques.default_size = 90
-        self.torques.tooltip = bq.Tooltip(
-            fields=["x"], labels=[f"point torque at x [{length_unit}]"], formats=[".4g"]
-        )
+        _set_tooltip(self.torques, [f"point torque at x [{length_unit}]"], ("x",))
         self.torques.names = [f"{t:.4g} {unit_label(units, 'torque')}" for t in torques_t]
         self.torques.display_names = bool(torques_x)
         self.distributed.visible = bool(spans_x)
         if spans_x:
             self.distributed.x = np.array(spans_x)
             self.distributed.y = np.full((len(spans_x), 2), load_y)
-            self.distributed.tooltip = _tooltip([f"distributed torque x [{length_unit}]", "r"])
+            _set_tooltip(self.distributed, [f"distributed torque x [{length_unit}]", "r"])
 
 
 def _cases_of(model: Model, result: str) -> list[tuple[Any, float]]:

@@ -10,6 +10,7 @@ indices, written the way the solver names fields in its errors
 from __future__ import annotations
 
 import copy
+import re
 from collections.abc import Iterator
 from typing import Any
 
@@ -59,6 +60,104 @@ def path_text(path: Path) -> str:
         else:
             text = f"{text}.{key}" if text else key
     return text
+
+
+_PATH_PART = re.compile(r"\[(\d+)\]|([^.\[\]]+)")
+
+
+def parse_path(text: str) -> Path:
+    """``shafts[0].segments[1].length`` → ``("shafts", 0, "segments", 1, "length")``."""
+    return tuple(
+        int(index) if index else key for index, key in _PATH_PART.findall(text) if index or key
+    )
+
+
+def css_name(path: Path) -> str:
+    """A CSS class fragment for a path: ``shafts-0-segments-1-length``."""
+    return re.sub(r"[^A-Za-z0-9_]+", "-", "-".join(str(key) for key in path)).strip("-")
+
+
+_DOUBLED = re.compile(r"(\b[a-z_]+\[\d+\])\.\1(?=[.\[]|$)")
+
+
+def normal_field(field: str) -> str:
+    """An error's field path with a repeated step folded (``gears[0].gears[0].a`` → ``gears[0].a``).
+
+    Older solver builds named the list item of some errors twice (gear ends, combination
+    factors); the panel needs the path of the field itself to put the message beside it.
+    """
+    return _DOUBLED.sub(r"\1", field)
+
+
+#: How a list item is named in plain words, by the key of its list.
+_ITEM_WORDS = {
+    "shafts": "shaft",
+    "segments": "segment",
+    "layers": "layer",
+    "supports": "support",
+    "gears": "gear mesh",
+    "load_cases": "load case",
+    "torques": "torque",
+    "distributed": "distributed torque",
+    "combinations": "combination",
+    "rotation_limits": "rotation limit",
+}
+_QUIET_KEYS = {"section"}
+_NAMED_BY = {"shafts": "id", "load_cases": "name", "combinations": "name"}
+
+
+def field_words(path: Path, document: Any = None) -> str:
+    """A field path in plain words: ``shaft auger · segment 1 · inner diameter``.
+
+    Items of a list are named by their id or name when ``document`` holds them (the path must
+    then start at the document's top), else by their number.
+    """
+    words: list[str] = []
+    node = document
+    for number, key in enumerate(path):
+        if isinstance(key, int):
+            continue
+        following = path[number + 1] if number + 1 < len(path) else None
+        if isinstance(following, int):
+            item = get_at(node, (key, following)) if node is not None else None
+            name = item.get(_NAMED_BY[key]) if key in _NAMED_BY and isinstance(item, dict) else None
+            label = _ITEM_WORDS.get(key, key.replace("_", " "))
+            words.append(f"{label} '{name}'" if name else f"{label} {following}")
+            node = item
+            continue
+        if key == "factors":
+            node = node.get(key) if isinstance(node, dict) else None
+            continue
+        if isinstance(node, dict) and isinstance(node.get(key), (dict, list)):
+            node = node.get(key)
+        else:
+            node = None
+        if key not in _QUIET_KEYS or number == len(path) - 1:
+            if path[number - 1 : number] == ("factors",):
+                words.append(f"factor on '{key}'")
+            elif key in ("a", "b") and "gears" in path:
+                words.append(f"end {key}")
+            else:
+                words.append(key.replace("_", " "))
+    return " · ".join(words)
+
+
+_QUOTED = re.compile(r"('[^']*'|\"[^\"]*\")")
+_SNAKE = re.compile(r"\b[a-z]+(?:_[a-z0-9]+)+\b")
+
+
+def plain_words(message: str) -> str:
+    """A solver message as people read it: field names in words, units written out.
+
+    ``must be smaller than outer_diameter (80 mm ≥ 70 mm)`` →
+    ``must be smaller than outer diameter (80 mm ≥ 70 mm)``. Quoted names (ids, options) stay as
+    they are.
+    """
+    parts = _QUOTED.split(message)
+    for number in range(0, len(parts), 2):
+        text = _SNAKE.sub(lambda match: match.group(0).replace("_", " "), parts[number])
+        parts[number] = pretty_unit(text)
+    return "".join(parts)
 
 
 def get_at(document: Any, path: Path) -> Any:

@@ -4,8 +4,16 @@ The panel edits a case document (the case file's JSON in the panel's units, see
 :mod:`workbench.panel.document`). After every edit it hands a copy to the solver
 (:func:`~workbench.solver.io.parse_case`, :func:`~workbench.solver.analysis.solve`,
 :func:`~workbench.solver.checks.run_checks`) and redraws from what comes back. Bad input raises
-:class:`~workbench.solver.errors.InputError`; its message is shown beside the field it names, the
-last good charts stay up marked stale, and the value typed stays where it was typed.
+:class:`~workbench.solver.errors.InputError`; its message is shown, in plain words, beside the
+field its path names, the last good charts stay up marked stale, and the value typed stays where
+it was typed.
+
+In a kernel (an event loop running), every edit is checked at once (``parse_case``), so a bad
+value is flagged the moment it is typed, but the solve and the redraw wait until the burst of
+edits ends (the loop runs queued callbacks after the current message or cell) and then run once,
+on the newest valid document. Reading :attr:`Workbench.results` (or ``model``, ``report``,
+``stale``, ``error``) or calling :meth:`Workbench.settle` finishes that work at once. Without a
+loop (plain scripts, tests) every edit solves and redraws before the assignment returns.
 """
 
 from __future__ import annotations
@@ -27,9 +35,14 @@ from workbench.panel.document import (
     UNIT_CHOICES,
     Path,
     clone,
+    css_name,
+    field_words,
     get_at,
+    normal_field,
     numeric_inputs,
+    parse_path,
     path_text,
+    plain_words,
     set_at,
     unit_key,
     unit_label,
@@ -83,24 +96,68 @@ class Workbench:
         self.document: dict[str, Any] = (
             clone(document) if key is not None else case_to_dict(model, unit_system("si"))
         )
-        self.model: Model | None = None
-        self.results: Results | None = None
-        self.report: CheckReport | None = None
+        self._model: Model | None = None
+        self._results: Results | None = None
+        self._report: CheckReport | None = None
         self.baseline: tuple[Results, CheckReport] | None = None
-        self.stale = False
-        self.error: InputError | None = None
+        self._stale = False
+        self._error: InputError | None = None
         self.solve_count = 0
         self.case_bundle: dict[str, Any] | None = None
         self._handle: Any = None
+        # Coalescing: the newest valid model not yet solved, and the error of the last edit when
+        # it came after that model; a flush is scheduled while _pending.
+        self._queued: Model | None = None
+        self._queued_error: InputError | None = None
         self._pending = False
         self._muted = False
         self._fields: dict[str, list[w.Widget]] = {}
-        self._messages: dict[str, w.HTML] = {}
+        self._messages: dict[str, list[w.HTML]] = {}
+        self._shown: list[w.HTML] = []
+        self._bad: list[w.Widget] = []
+        self._drag: tuple[str, w.Widget, w.HTML] | None = None
         self._sweep_cancelled = False
         self.sweep_values: np.ndarray | None = None
         self.charts = Charts()
         self._build()
         self.refresh()
+
+    # --- state (pending work finished first) --------------------------------------------------
+
+    @property
+    def model(self) -> Model | None:
+        """The last valid model (solved), or ``None`` before the first valid case."""
+        self.settle()
+        return self._model
+
+    @property
+    def results(self) -> Results | None:
+        """Results of :attr:`model`."""
+        self.settle()
+        return self._results
+
+    @property
+    def report(self) -> CheckReport | None:
+        """Checks of :attr:`results`."""
+        self.settle()
+        return self._report
+
+    @property
+    def stale(self) -> bool:
+        """Whether the document has an error, so the charts show the last valid case."""
+        self.settle()
+        return self._stale
+
+    @property
+    def error(self) -> InputError | None:
+        """The error of the document, when :attr:`stale`."""
+        self.settle()
+        return self._error
+
+    def settle(self) -> None:
+        """Solve and redraw a pending edit now instead of when the burst of edits ends."""
+        if self._queued is not None:
+            self._flush()
 
     # --- opening, showing, saving -------------------------------------------------------------
 
@@ -221,6 +278,7 @@ class Workbench:
         """Rebuild every editor from the document (after a structural change)."""
         self._fields.clear()
         self._messages = {k: v for k, v in self._messages.items() if k.startswith("whatif")}
+        self._shown, self._bad, self._drag = [], [], None
         self._muted = True
         try:
             doc = self.document
@@ -256,13 +314,20 @@ class Workbench:
 
     def _register(self, path: Path, widget: w.Widget) -> None:
         self._fields.setdefault(path_text(path), []).append(widget)
+        widget.add_class(f"wb-at-{css_name(path)}")  # lets a page find the field by its path
 
     def _message(self, prefix: Path | str) -> w.HTML:
+        """An (empty) message line for errors of a field, or of a row or list named by a prefix."""
         key = prefix if isinstance(prefix, str) else path_text(prefix)
         label = w.HTML(layout=w.Layout(min_width="0"))
         label.add_class("wb-msg")
-        self._messages[key] = label
+        label.add_class(f"wb-msg-{css_name(parse_path(key))}")
+        self._messages.setdefault(key, []).append(label)
         return label
+
+    def _beside(self, widget: w.Widget, path: Path, *extra: w.Widget) -> w.HBox:
+        """``widget`` (and its unit) with the message line of ``path`` right after it."""
+        return w.HBox([widget, *extra, self._message(path)], layout=w.Layout(align_items="center"))
 
     def number(
         self,
@@ -289,9 +354,7 @@ class Workbench:
 
         field.observe(changed, "value")
         unit = self._unit(quantity)
-        if not unit:
-            return field
-        return w.HBox([field, w.Label(unit)], layout=w.Layout(align_items="center"))
+        return self._beside(field, path, *([w.Label(unit)] if unit else []))
 
     def slider(
         self,
@@ -327,7 +390,8 @@ class Workbench:
         options: list[Any],
         on_change: Callable[..., Any] | None = None,
         width: str = "180px",
-    ) -> w.Dropdown:
+    ) -> w.HBox:
+        """A drop-down bound to ``path`` (or to ``on_change``), with its message line."""
         value = get_at(self.document, path)
         field = w.Dropdown(
             options=options,
@@ -345,7 +409,7 @@ class Workbench:
                 self._write(path, change["new"], field)
 
         field.observe(changed, "value")
-        return field
+        return self._beside(field, path)
 
     def _write(self, path: Path, value: Any, source: w.Widget | None = None) -> None:
         """Store an edit in the document, mirror it in other widgets of the field, re-solve."""
@@ -441,13 +505,22 @@ class Workbench:
         ]
 
     def _dimension_slider(self) -> None:
+        if self._drag is not None:  # the slider it replaces leaves the field's widgets
+            key, old, label = self._drag
+            self._fields[key] = [x for x in self._fields.get(key, []) if x is not old]
+            self._messages[key] = [x for x in self._messages.get(key, []) if x is not label]
+            self._drag = None
         path = self.dimension.value
         if path is None:
             self.dimension_box.children = []
             return
         value = float(get_at(self.document, path) or 1.0)
         self.diameter_slider = self.slider(path, "size", "length", 0.5 * value, 1.5 * value)
-        self.dimension_box.children = [self.diameter_slider]
+        label = self._message(path)
+        self._drag = (path_text(path), self.diameter_slider, label)
+        self.dimension_box.children = [self.diameter_slider, label]
+        if self._stale and self._error is not None:
+            self._show_error(self._error)
 
     def _set_shape(self, base: Path, shape: str) -> None:
         segment = get_at(self.document, base)
@@ -625,8 +698,16 @@ class Workbench:
                     [
                         w.Label(f"torque {n}"),
                         self.choice((*base, "shaft"), "", self._shaft_ids(), width="110px"),
-                        self.slider((*base, "x"), "x", "length", 0.0, length, width="300px"),
-                        self.slider((*base, "torque"), "T", "torque", -size, size, width="320px"),
+                        self._beside(
+                            self.slider((*base, "x"), "x", "length", 0.0, length, width="300px"),
+                            (*base, "x"),
+                        ),
+                        self._beside(
+                            self.slider(
+                                (*base, "torque"), "T", "torque", -size, size, width="320px"
+                            ),
+                            (*base, "torque"),
+                        ),
                         self._button(
                             "✕", lambda n=n: self._remove(("load_cases", c, "torques"), n)
                         ),
@@ -786,8 +867,51 @@ class Workbench:
                 optional=True,
                 width="300px",
             ),
+            w.HTML("<b>Rotation limits</b>: largest |θ(end) − θ(start)| between two stations"),
+            *self._rotation_limit_rows(),
+            w.HBox(
+                [
+                    self._button("add rotation limit", self._add_rotation_limit, width="150px"),
+                    self._message(("design", "rotation_limits")),
+                ]
+            ),
             self._message("design"),
         ]
+
+    def _rotation_limit_rows(self) -> list[w.Widget]:
+        rows: list[w.Widget] = []
+        limits = get_at(self.document, ("design", "rotation_limits")) or []
+        for n, _limit in enumerate(limits):
+            base: Path = ("design", "rotation_limits", n)
+            parts = [
+                w.Label(f"{n}", layout=_short("", "24px")),
+                self.choice((*base, "shaft"), "shaft", self._shaft_ids(), width="160px"),
+                self.number((*base, "start"), "from x", "length", width="150px"),
+                self.number((*base, "end"), "to x", "length", width="150px"),
+                self.number((*base, "limit"), "limit", "angle", width="150px"),
+                self._button("✕", lambda n=n: self._remove_rotation_limit(n)),
+                self._message(base),
+            ]
+            rows.append(w.HBox(parts, layout=w.Layout(align_items="center", flex_flow="row wrap")))
+        return rows
+
+    def _add_rotation_limit(self) -> None:
+        """A new limit over the whole shaft shown, 1 angle unit (to be set by the engineer)."""
+        shaft = self.document["shafts"][self.shaft.value or 0]
+        end = sum(float(seg.get("length", 0)) for seg in shaft["segments"])
+        entry = {"shaft": shaft["id"], "start": 0, "end": _clean(end), "limit": 1}
+        design = self.document.setdefault("design", {})
+        self._structural(lambda: design.setdefault("rotation_limits", []).append(entry))
+
+    def _remove_rotation_limit(self, n: int) -> None:
+        design = self.document["design"]
+
+        def change() -> None:
+            design["rotation_limits"].pop(n)
+            if not design["rotation_limits"]:
+                design.pop("rotation_limits")
+
+        self._structural(change)
 
     # --- what-if: baseline and sweep ---------------------------------------------------------
 
@@ -955,29 +1079,55 @@ class Workbench:
     # --- solving and drawing ------------------------------------------------------------------
 
     def _edited(self, source: w.Widget | None = None) -> None:
-        """An edit happened: re-solve now, or, for a burst from the browser, once it settles."""
-        if source is not None and getattr(source, "_property_lock", None):
-            try:
-                loop = asyncio.get_running_loop()
-            except RuntimeError:
-                loop = None
-            if loop is not None:
-                # Edits from the browser arrive one message at a time; solve once after the
-                # queued ones, always from the newest document (stale redraws never queue).
-                if not self._pending:
-                    self._pending = True
-                    loop.call_soon(self._flush)
-                return
-        self.refresh()
+        """An edit happened: check it now; solve and redraw now, or once the burst ends."""
+        try:
+            loop = asyncio.get_running_loop()
+        except RuntimeError:
+            loop = None
+        if loop is None:
+            self.refresh()
+            return
+        # A kernel: edits (from the browser, one message each, or from a cell's loop) arrive
+        # faster than a redraw is worth. Each is validated at once, so its message shows as it is
+        # typed; the solve and redraw run once, after the queued edits, on the newest valid model.
+        model = self._parse()
+        if model is not None:
+            self._queued, self._queued_error = model, None
+        elif self._queued is not None:
+            self._queued_error = self._error  # the burst ends on a bad edit: show it after
+        if self._queued is not None and not self._pending:
+            self._pending = True
+            loop.call_soon(self._flush)
 
     def _flush(self) -> None:
         self._pending = False
-        self.refresh()
+        model, error = self._queued, self._queued_error
+        self._queued, self._queued_error = None, None
+        if model is None:
+            return
+        self._solve(model)
+        if error is not None:  # the last edit was bad: its message, over the last good charts
+            self._show_error(error)
 
     def refresh(self) -> bool:
         """Solve the document and redraw; on bad input keep the last results, marked stale."""
+        self._queued, self._queued_error = None, None
+        model = self._parse()
+        return model is not None and self._solve(model)
+
+    def _parse(self) -> Model | None:
+        """The document's model, or ``None`` (and its error shown) when the input is bad."""
         try:
-            model = parse_case(clone(self.document))
+            return parse_case(clone(self.document))
+        except InputError as error:
+            self._show_error(error)
+        except Exception as error:
+            self._show_error(InputError("", f"unexpected error ({type(error).__name__}): {error}"))
+        return None
+
+    def _solve(self, model: Model) -> bool:
+        """Solve and check a valid model, then redraw everything from it."""
+        try:
             results = solve(model)
             report = run_checks(results)
         except InputError as error:
@@ -986,54 +1136,58 @@ class Workbench:
         except Exception as error:
             self._show_error(InputError("", f"unexpected error ({type(error).__name__}): {error}"))
             return False
-        self.model, self.results, self.report = model, results, report
+        self._model, self._results, self._report = model, results, report
         self.solve_count += 1
-        self.stale, self.error = False, None
+        self._stale, self._error = False, None
         self._clear_errors()
         self._redraw()
         self._publish()
         return True
 
     def _show_error(self, error: InputError) -> None:
-        self.stale, self.error = True, error
+        """Put the message beside the field the error names (else its row or list); dim charts."""
+        self._stale, self._error = True, error
         self._clear_errors()
-        field = error.field
-        best = ""
-        for key in self._messages:
-            if (field == key or field.startswith((key + ".", key + "["))) and len(key) > len(best):
-                best = key
-        where = field[len(best) :].lstrip(".") if best else field
-        text = html.escape(f"{where}: {error.message}" if where else error.message)
-        if best:
-            self._messages[best].value = text
+        field = normal_field(error.field)
+        path = parse_path(field)
+        message = plain_words(error.message)
+        # The nearest enclosing thing shown: the field itself, else its row, else its list.
+        for size in range(len(path), 0, -1):
+            labels = self._messages.get(path_text(path[:size]))
+            if labels:
+                rest = field_words(path[size:])
+                text = html.escape(f"{rest}: {message}" if rest else message)
+                for label in labels:
+                    label.value = text
+                self._shown += labels
+                break
         for widget in self._fields.get(field, []):
             widget.add_class("wb-bad")
+            self._bad.append(widget)
+        where = field_words(path, self.document)
         self.status.value = (
-            f"<span class='wb-msg'><b>Not solved:</b> {html.escape(str(error))}</span> "
+            "<span class='wb-msg'><b>Not solved:</b> "
+            f"{html.escape(f'{where}: {message}' if where else message)}</span> "
             "<i>(charts show the last valid case, dimmed)</i>"
         )
         self.charts_box.add_class("wb-stale")
 
     def _clear_errors(self) -> None:
-        for key, label in self._messages.items():
-            if not key.startswith("whatif"):
-                label.value = ""
-        for widgets in self._fields.values():
-            for widget in widgets:
-                if "wb-bad" in widget._dom_classes:
-                    widget.remove_class("wb-bad")
-        if not self.stale:
+        for label in self._shown:
+            label.value = ""
+        for widget in self._bad:
+            widget.remove_class("wb-bad")
+        self._shown, self._bad = [], []
+        if not self._stale:
             self.status.value = "<span style='color:#3d5a80'>Solved.</span>"
             self.charts_box.remove_class("wb-stale")
 
     def _on_shaft(self, _change: Any) -> None:
         if self._muted:
             return
-        self._muted = True
-        try:
-            self._build_segments()
-        finally:
-            self._muted = False
+        self._rebuild()  # the segment editors and the loads' defaults follow the shaft shown
+        if self._stale and self._error is not None:
+            self._show_error(self._error)
         self._redraw()
 
     def _on_units(self, change: dict[str, Any]) -> None:
