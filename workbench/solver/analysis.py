@@ -744,6 +744,10 @@ def _factor_and_solve(matrix: sp.csc_matrix, rhs: FloatArray, has_constraints: b
     if not np.all(np.isfinite(solution)):
         msg = "the system is singular: check for redundant gear loops"
         raise InputError("gears", msg)
+    if has_constraints:
+        # The saddle-point system pivots off its diagonal: one step of iterative refinement
+        # brings the gear constraints back to rounding (soft springs on stiff shafts left ~1e-8).
+        solution = solution + factor.solve(rhs - matrix @ solution)
     return np.asarray(solution)
 
 
