@@ -9,6 +9,7 @@ unknown names and impossible values are :class:`InputError` naming the field by 
 from __future__ import annotations
 
 import dataclasses
+import functools
 import json
 import math
 import os
@@ -23,12 +24,14 @@ from workbench.solver.errors import InputError
 from workbench.solver.materials import Material, library_material
 from workbench.solver.model import (
     Combination,
+    Disc,
     DistributedTorque,
     GearMesh,
     GearPosition,
     Layer,
     LoadCase,
     Model,
+    OperatingSpeed,
     PointTorque,
     Segment,
     Shaft,
@@ -140,9 +143,15 @@ def _section_field_quantity(field: dataclasses.Field[Any]) -> str:
     return str(field.metadata.get("quantity", "length"))
 
 
+@functools.cache
+def _type_hints(cls: type) -> dict[str, Any]:
+    # Resolving the string annotations is most of the cost of reading a section; do it once.
+    return typing.get_type_hints(cls)
+
+
 def _build_dataclass(cls: type, data: Any, path: str, units: UnitSystem, skip: set[str]) -> Any:
     """Build a section (or a part of one) from JSON by its dataclass fields."""
-    hints = typing.get_type_hints(cls)
+    hints = _type_hints(cls)
     own = [f for f in dataclasses.fields(cls) if f.init and f.name not in skip]
     reader = _Object(data, path, [f.name for f in own] + sorted(skip), units)
     values: dict[str, Any] = {}
@@ -282,6 +291,8 @@ def parse_case(data: Any) -> Model:
         "load_cases",
         "combinations",
         "design",
+        "discs",
+        "operating_speeds",
     ]
     if not isinstance(data, dict):
         raise InputError("", f"a case file must be a JSON object, not {_kind(data)}")
@@ -390,6 +401,8 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
                 )
             )
 
+    discs, operating_speeds = _parse_vibration(top, units)
+
     design = None
     if data.get("design") is not None:
         from workbench.solver.checks import parse_design  # noqa: PLC0415 - avoids an import cycle
@@ -406,7 +419,30 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
         materials=tuple(materials.values()),
         units=units,
         design=design,
+        discs=discs,
+        operating_speeds=operating_speeds,
     )
+
+
+def _parse_vibration(
+    top: _Object, units: UnitSystem
+) -> tuple[tuple[Disc, ...], tuple[OperatingSpeed, ...]]:
+    """The ``discs`` and ``operating_speeds`` of a case (torsional vibration)."""
+    discs = []
+    for path, item in top.items("discs"):
+        disc = _Object(item, path, ["shaft", "x", "inertia"], units)
+        # Read outside field_path: the reader's errors already carry the full path.
+        values = (disc.text("shaft"), disc.number("x", "length"), disc.number("inertia", "inertia"))
+        with field_path(path):
+            discs.append(Disc(*values))
+    speeds = []
+    for path, item in top.items("operating_speeds"):
+        speed = _Object(item, path, ["name", "min", "max"], units)
+        name = speed.text("name")
+        low, high = speed.number("min", "speed"), speed.number("max", "speed")
+        with field_path(path):
+            speeds.append(OperatingSpeed(name, low, high))
+    return tuple(discs), tuple(speeds)
 
 
 def decode_case_text(text: str, source: str = "case") -> Any:
@@ -553,6 +589,24 @@ def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any
         from workbench.solver.checks import design_to_dict  # noqa: PLC0415
 
         out["design"] = design_to_dict(model.design, units)  # type: ignore[arg-type]
+    if model.discs:
+        out["discs"] = [
+            {
+                "shaft": disc.shaft,
+                "x": length(disc.x),
+                "inertia": _number(units.from_si(disc.inertia, "inertia")),
+            }
+            for disc in model.discs
+        ]
+    if model.operating_speeds:
+        out["operating_speeds"] = [
+            {
+                "name": speed.name,
+                "min": _number(units.from_si(speed.minimum, "speed")),
+                "max": _number(units.from_si(speed.maximum, "speed")),
+            }
+            for speed in model.operating_speeds
+        ]
     return out
 
 

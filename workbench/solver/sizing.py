@@ -195,8 +195,8 @@ class SizingOutcome:
 
     @property
     def passes(self) -> bool:
-        """Whether every check passes at the final sizes."""
-        return self.report.passes
+        """Whether every strength and stiffness check passes at the final sizes."""
+        return sizing_passes(self.report)
 
 
 class _Search:
@@ -297,6 +297,16 @@ class _Search:
         return out
 
 
+#: Checks a diameter search does not aim at: a natural frequency moves with every size, up or
+#: down, and is better separated from running speeds by design (discs, supports) than by sizing.
+NOT_SIZED_FOR = ("frequency_separation",)
+
+
+def sizing_passes(report: CheckReport) -> bool:
+    """Whether every check sizing aims at passes (all but :data:`NOT_SIZED_FOR`)."""
+    return all(check.passes for check in report.checks if check.kind not in NOT_SIZED_FOR)
+
+
 def _exponent(kind: str) -> float:
     return 0.25 if kind in ("twist_rate", "rotation") else 1.0 / 3.0
 
@@ -351,7 +361,7 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
         )
     report = search.evaluate(sizes)
     for _ in range(_MAX_ROUNDS * 4):  # repair
-        if report is not None and report.passes:
+        if report is not None and sizing_passes(report):
             break
         if report is None:
             failing = [True] * len(sizes)
@@ -367,7 +377,7 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
             break  # the largest sizes still fail
         sizes = stepped
         report = search.evaluate(sizes)
-    if report is not None and report.passes:
+    if report is not None and sizing_passes(report):
         changed = True
         while changed:  # descent
             changed = False
@@ -377,7 +387,7 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
                     continue
                 trial = (*sizes[:index], smaller, *sizes[index + 1 :])
                 trial_report = search.evaluate(trial)
-                if trial_report is not None and trial_report.passes:
+                if trial_report is not None and sizing_passes(trial_report):
                     sizes, report, changed = trial, trial_report, True
     final_model = search.build(sizes)
     final_report = search.evaluate(sizes)
@@ -457,6 +467,12 @@ def sizing_text(outcome: SizingOutcome) -> str:
         if floor_rows
         else ""
     )
+    unsized = [c for c in outcome.report.checks if c.kind in NOT_SIZED_FOR and not c.passes]
+    if unsized:
+        floor_note += (
+            f"\n{len(unsized)} frequency-separation check(s) fail at these sizes: sizing does not "
+            "aim at them (see `workbench check`)."
+        )
     verdict = (
         "every check passes at these sizes; each next smaller size fails a check"
         + (" (but for the segments at the floor)" if floor_rows else "")
