@@ -180,14 +180,21 @@ def _register_panel(commands: Any) -> None:
     register(commands)
 
 
+def _register_modes(commands: Any) -> None:
+    from workbench.modes_cli import register  # noqa: PLC0415 - light module
+
+    register(commands)
+
+
 def _register_record(commands: Any) -> None:
     from workbench.record.cli_commands import register  # noqa: PLC0415 - light module
 
     register(commands)
 
 
-#: Sub-commands of the panel (lab) and of the record (keygen, export, verify, package).
-_EXTRA_COMMANDS: list[Callable[[Any], None]] = [_register_panel, _register_record]
+#: Sub-commands of vibration (modes), the panel (lab) and the record (keygen, export, verify,
+#: package).
+_EXTRA_COMMANDS: list[Callable[[Any], None]] = [_register_modes, _register_panel, _register_record]
 
 
 def main(argv: Sequence[str] | None = None) -> int:

@@ -33,6 +33,7 @@ from workbench.solver.model import (
     Shaft,
     Support,
 )
+from workbench.solver.modes import Modes, natural_modes
 from workbench.solver.sizing import SizingRequest, size_shafts
 from workbench.solver.units import SI, SI_ENGINEERING, UnitSystem, us_customary
 
@@ -57,6 +58,7 @@ __all__ = [
     "MechanismError",
     "Mesh",
     "Model",
+    "Modes",
     "PointTorque",
     "Results",
     "Segment",
@@ -70,6 +72,7 @@ __all__ = [
     "case_to_dict",
     "library_material",
     "load_case",
+    "natural_modes",
     "parse_case",
     "run_checks",
     "save_case",

@@ -13,7 +13,10 @@ For every load case and combination, every shaft and every segment, the checks f
 * ``cross_hole_stress`` — the equivalent shear stress of the peak normal stress at a transverse
   hole;
 * ``twist_rate`` — the largest |T|/(G·K) along the segment against ``max_twist_rate``;
-* ``rotation`` — |θ(end) − θ(start)| between two stations against a limit.
+* ``rotation`` — |θ(end) − θ(start)| between two stations against a limit;
+* ``frequency_separation`` — each natural frequency of torsional vibration near a running-speed
+  band (``operating_speeds``) against the band widened by ``frequency_margin``
+  (:mod:`workbench.solver.modes`; ``segment`` is ``None``).
 
 Every report carries the caution that results must be verified against applicable codes and
 licensed professional practice.
@@ -55,6 +58,7 @@ CHECK_QUANTITIES: dict[str, str] = {
     "cross_hole_stress": "stress",
     "twist_rate": "twist_rate",
     "rotation": "angle",
+    "frequency_separation": "speed",
 }
 
 
@@ -100,6 +104,13 @@ class DesignCriteria:
         Largest rate of twist (rad/m), or ``None`` for no twist-rate check.
     rotation_limits
         Limits on relative rotation between stations.
+    frequency_margin
+        Relative widening of each running-speed band for the frequency check, 0 ≤ m < 1
+        (default 0.2, ±20 %: common practice, no source).
+    modal_elements_per_segment
+        Elements each segment with distributed inertia is cut into for the vibration analysis.
+    modal_max_element_length
+        Longest such element (m), or ``None``.
     """
 
     factor_of_safety: float = 2.0
@@ -108,6 +119,9 @@ class DesignCriteria:
     allowable_shear_stress: float | None = None
     max_twist_rate: float | None = None
     rotation_limits: tuple[RotationLimit, ...] = ()
+    frequency_margin: float = 0.2
+    modal_elements_per_segment: int = 8
+    modal_max_element_length: float | None = None
 
     def __post_init__(self) -> None:
         if self.shear_criterion not in SHEAR_CRITERIA:
@@ -129,6 +143,24 @@ class DesignCriteria:
             require_positive("allowable_shear_stress", self.allowable_shear_stress, "stress")
         if self.max_twist_rate is not None:
             require_positive("max_twist_rate", self.max_twist_rate, "twist_rate")
+        self._check_vibration_settings()
+
+    def _check_vibration_settings(self) -> None:
+        margin = self.frequency_margin
+        if (
+            isinstance(margin, bool)
+            or not isinstance(margin, (int, float))
+            or not math.isfinite(margin)
+            or not 0.0 <= margin < 1.0
+        ):
+            msg = f"must be a fraction from 0 up to (not including) 1, not {margin!r}"
+            raise InputError("frequency_margin", msg)
+        pieces = self.modal_elements_per_segment
+        if isinstance(pieces, bool) or not isinstance(pieces, int) or pieces < 1:
+            msg = f"must be a whole number of at least 1, not {pieces!r}"
+            raise InputError("modal_elements_per_segment", msg)
+        if self.modal_max_element_length is not None:
+            require_positive("modal_max_element_length", self.modal_max_element_length)
 
     def key_points(self) -> list[tuple[str, float]]:
         """Stations the analysis must make nodes of (rotation-limit ends)."""
@@ -159,6 +191,9 @@ _DESIGN_KEYS = {
     "allowable_shear_stress",
     "max_twist_rate",
     "rotation_limits",
+    "frequency_margin",
+    "modal_elements_per_segment",
+    "modal_max_element_length",
 }
 
 
@@ -166,7 +201,8 @@ def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
     """Read a case file's ``design`` object (in the file's units).
 
     ``max_twist_rate`` is in angle units per length unit; ``allowable_shear_stress`` in stress
-    units; each ``rotation_limits`` entry is ``{"shaft", "start", "end", "limit"}``.
+    units; each ``rotation_limits`` entry is ``{"shaft", "start", "end", "limit"}``;
+    ``frequency_margin`` is a fraction, ``modal_max_element_length`` in length units.
     """
     from workbench.solver.io import _Object  # noqa: PLC0415 - io imports this module lazily
 
@@ -183,6 +219,13 @@ def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
                     entry.number("limit", "angle"),
                 )
             )
+    # Read outside field_path: the reader's errors already carry the full path.
+    margin = reader.number("frequency_margin", None, 0.2)
+    pieces = reader.number("modal_elements_per_segment", None, 8.0)
+    if not pieces.is_integer():
+        msg = f"must be a whole number of at least 1, not {pieces:g}"
+        raise InputError(reader.at("modal_elements_per_segment"), msg)
+    longest = reader.optional_number("modal_max_element_length", "length")
     with field_path("design"):
         return DesignCriteria(
             factor_of_safety=reader.number("factor_of_safety", None, 2.0),
@@ -191,6 +234,9 @@ def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
             allowable_shear_stress=reader.optional_number("allowable_shear_stress", "stress"),
             max_twist_rate=reader.optional_number("max_twist_rate", "twist_rate"),
             rotation_limits=tuple(limits),
+            frequency_margin=margin,
+            modal_elements_per_segment=int(pieces),
+            modal_max_element_length=longest,
         )
 
 
@@ -217,6 +263,16 @@ def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
             }
             for r in design.rotation_limits
         ]
+    # Vibration settings are written only when they differ from the defaults.
+    defaults = DesignCriteria()
+    if design.frequency_margin != defaults.frequency_margin:
+        out["frequency_margin"] = design.frequency_margin
+    if design.modal_elements_per_segment != defaults.modal_elements_per_segment:
+        out["modal_elements_per_segment"] = design.modal_elements_per_segment
+    if design.modal_max_element_length is not None:
+        out["modal_max_element_length"] = float(
+            f"{units.from_si(design.modal_max_element_length, 'length'):.12g}"
+        )
     return out
 
 
@@ -424,6 +480,7 @@ class _Checker:
                         "|T|/(G·K), largest along the segment",
                     )
         self._rotations()
+        self._frequencies()
         return CheckReport(
             results, self.design, tuple(self.checks), tuple(dict.fromkeys(self.notes))
         )
@@ -555,6 +612,49 @@ class _Checker:
                 "|θ(end) − θ(start)|",
             )
 
+    def _frequencies(self) -> None:
+        speeds = self.model.operating_speeds
+        if not speeds:
+            return
+        from workbench.solver.modes import (  # noqa: PLC0415 - only cases with running speeds
+            DEFAULT_FREQUENCY_MARGIN,
+            frequency_separations,
+            natural_modes,
+            separation_note,
+        )
+
+        margin = self.design.frequency_margin
+        modes = natural_modes(
+            self.model,
+            count=1,
+            up_to=max(speed.maximum for speed in speeds) * (1.0 + margin),
+            elements_per_segment=self.design.modal_elements_per_segment,
+            max_element_length=self.design.modal_max_element_length,
+        )
+        for separation in frequency_separations(modes, speeds, margin):
+            self.checks.append(
+                Check(
+                    separation.speed.name,
+                    separation.shaft,
+                    None,
+                    "frequency_separation",
+                    separation.value,
+                    separation.limit,
+                    separation.x,
+                    separation_note(separation, margin),
+                )
+            )
+        source = (
+            "the default, common practice, no source"
+            if margin == DEFAULT_FREQUENCY_MARGIN
+            else "the case's frequency_margin"
+        )
+        self.notes.append(
+            f"frequency separation: running-speed bands widened by ±{margin:.0%} ({source}), "
+            "excitation once per revolution; shaft and x name where the mode's angle is largest"
+        )
+        self.notes.extend(modes.notes)
+
 
 def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckReport:
     """Check every segment of every shaft in every load case and combination.
@@ -676,7 +776,12 @@ def check_text(report: CheckReport, units: UnitSystem | None = None) -> str:
         + ", twist rate "
         + units.label("twist_rate")
         + ", rotation "
-        + units.label("angle"),
+        + units.label("angle")
+        + (
+            ", speed " + units.label("speed")
+            if any(check.kind == "frequency_separation" for check in report.checks)
+            else ""
+        ),
     ]
     allowables = sorted({check.note for check in report.checks if check.kind == "shear_stress"})
     lines += ["allowable: " + note for note in allowables]

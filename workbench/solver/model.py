@@ -23,7 +23,7 @@ import numpy as np
 
 from workbench.solver.errors import InputError
 from workbench.solver.materials import Material
-from workbench.solver.sections import FloatArray, Section, require_positive
+from workbench.solver.sections import FloatArray, Section, require_non_negative, require_positive
 from workbench.solver.units import SI, UnitSystem, quote
 
 #: Two positions on one shaft closer than this fraction of its length are the same point.
@@ -484,6 +484,64 @@ class Combination:
 
 
 @dataclass(frozen=True)
+class Disc:
+    """A rigid disc (rotor, flywheel, gear blank, coupling hub) on a shaft, for vibration.
+
+    Parameters
+    ----------
+    shaft
+        Id of the shaft.
+    x
+        Position along the shaft (m).
+    inertia
+        Mass moment of inertia about the shaft's axis (kg·m²), greater than zero.
+
+    References
+    ----------
+    .. [1] S. S. Rao, *Mechanical Vibrations*, torsional systems of discs on shafts (rotors of
+       inertia J on shafts of stiffness k); chapter and section from memory.
+    """
+
+    shaft: str
+    x: float
+    inertia: float
+
+    def __post_init__(self) -> None:
+        require_finite("x", self.x)
+        require_positive("inertia", self.inertia, "inertia")
+
+
+@dataclass(frozen=True)
+class OperatingSpeed:
+    """A band of running speeds the natural frequencies must keep clear of.
+
+    Parameters
+    ----------
+    name
+        Unique name (not shared with any load case or combination).
+    minimum, maximum
+        Lowest and highest running speed (rad/s), 0 ≤ minimum ≤ maximum; the case file's
+        ``min`` and ``max``.
+    """
+
+    name: str
+    minimum: float
+    maximum: float
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.name, str) or not self.name.strip():
+            raise InputError("name", f"must be a non-empty name, not {self.name!r}")
+        require_non_negative("min", self.minimum, "speed")
+        require_positive("max", self.maximum, "speed")
+        if self.maximum < self.minimum:
+            msg = (
+                f"must not be less than min ({quote(self.maximum, 'speed')} < "
+                f"{quote(self.minimum, 'speed')})"
+            )
+            raise InputError("max", msg)
+
+
+@dataclass(frozen=True)
 class Model:
     """A whole torsion system, validated, in SI units.
 
@@ -507,6 +565,10 @@ class Model:
         The units the case was written in, used to report it back.
     design
         Design criteria for the checks (``workbench.solver.checks.DesignCriteria``), or ``None``.
+    discs
+        Rigid discs for the vibration analysis (:mod:`workbench.solver.modes`).
+    operating_speeds
+        Running-speed bands the natural frequencies are checked against.
     """
 
     shafts: tuple[Shaft, ...]
@@ -518,6 +580,8 @@ class Model:
     materials: tuple[Material, ...] = ()
     units: UnitSystem = SI
     design: object | None = None
+    discs: tuple[Disc, ...] = ()
+    operating_speeds: tuple[OperatingSpeed, ...] = ()
     _shaft_index: dict[str, int] = field(
         default_factory=dict, init=False, repr=False, compare=False
     )
@@ -565,10 +629,38 @@ class Model:
                 if case_name not in case_names:
                     msg = f"unknown load case {case_name!r}; known: {', '.join(sorted(case_names))}"
                     raise InputError(f"combinations[{number}].factors.{case_name}", msg)
+        self._check_vibration(names)
 
         validate = getattr(self.design, "validate_against", None)
         if validate is not None:
             validate(self)
+
+    def _check_vibration(self, result_names: set[str]) -> None:
+        for number, disc in enumerate(self.discs):
+            self._check_point(f"discs[{number}]", disc.shaft, disc.x, "x")
+        speed_names: set[str] = set()
+        for number, speed in enumerate(self.operating_speeds):
+            if speed.name in result_names or speed.name in speed_names:
+                msg = (
+                    f"duplicate name {speed.name!r} (names are shared with load cases and "
+                    "combinations)"
+                )
+                raise InputError(f"operating_speeds[{number}].name", msg)
+            speed_names.add(speed.name)
+        if self.operating_speeds and not self.discs and not self._has_density():
+            msg = (
+                "a frequency check needs inertia: give discs, or a density for the shafts' "
+                "materials"
+            )
+            raise InputError("operating_speeds", msg)
+
+    def _has_density(self) -> bool:
+        return any(
+            layer.material.density is not None
+            for shaft in self.shafts
+            for segment in shaft.segments
+            for layer in segment.layers
+        )
 
     def check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
         """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""

@@ -130,6 +130,9 @@ def case_schema() -> dict[str, Any]:
             "keyway": {"type": "boolean"},
             "allowable_shear_stress": {"type": ["number", "null"], "exclusiveMinimum": 0},
             "max_twist_rate": {"type": ["number", "null"], "exclusiveMinimum": 0},
+            "frequency_margin": {"type": "number", "minimum": 0, "exclusiveMaximum": 1},
+            "modal_elements_per_segment": {"type": "integer", "minimum": 1},
+            "modal_max_element_length": {"type": ["number", "null"], "exclusiveMinimum": 0},
             "rotation_limits": {
                 "type": "array",
                 "items": _object(
@@ -198,5 +201,21 @@ def case_schema() -> dict[str, Any]:
                 ),
             },
             "design": design,
+            "discs": {
+                "type": "array",
+                "items": _object(
+                    {**point, "inertia": _POSITIVE},
+                    ["shaft", "x", "inertia"],
+                    "rigid disc; inertia in inertia units (mass moment of inertia)",
+                ),
+            },
+            "operating_speeds": {
+                "type": "array",
+                "items": _object(
+                    {"name": _NAME, "min": dict(_NUMBER, minimum=0), "max": _POSITIVE},
+                    ["name", "min", "max"],
+                    "running-speed band in speed units, min ≤ max",
+                ),
+            },
         },
     }

@@ -110,6 +110,17 @@ class Section:
         """Radius of a central bore (m), 0 when there is none."""
         return 0.0
 
+    @property
+    def polar_moment(self) -> float:
+        """Polar second moment of area about the shaft's axis, J = ∫r² dA (m⁴).
+
+        It gives the rotary inertia ρ·J per unit length for vibration; for a circle it is the
+        torsion constant. Non-circular shapes give their own (exact or a stated approximation).
+        """
+        if self.circular:
+            return self.torsion_constant
+        raise NotImplementedError
+
     # --- the interface the analysis uses -----------------------------------------------------
     def torsion_constant_at(self, fraction: ArrayLike) -> FloatArray:
         """Torsion constant K (m⁴) at fractions ``s`` ∈ [0, 1] of the segment length."""
@@ -122,6 +133,12 @@ class Section:
     def outer_radius_at(self, fraction: ArrayLike) -> FloatArray:
         """Half the overall depth (m) at fractions of the segment length."""
         return np.full(np.shape(fraction), self.outer_radius)
+
+    def polar_moment_at(self, fraction: ArrayLike) -> FloatArray:
+        """Polar second moment of area (m⁴) at fractions of the segment length."""
+        if self.circular:
+            return self.torsion_constant_at(fraction)
+        return np.full(np.shape(fraction), self.polar_moment)
 
     def inner_radius_at(self, fraction: ArrayLike) -> FloatArray:
         """Bore radius (m) at fractions of the segment length."""

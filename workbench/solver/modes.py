@@ -1,0 +1,922 @@
+"""Torsional vibration: natural frequencies, mode shapes and separation from running speeds.
+
+The system is the static solver's own: the same elements with their exact stiffness
+1/∫dx/(G·K), the same spring supports (:func:`~workbench.solver.analysis.torsion_stiffness_matrix`),
+fixed supports and gear meshes. Inertia comes from the discs (lumped on their nodes) and from each
+segment's own distributed rotary inertia ρ·J per length (J the polar moment of area, not the
+torsion constant K), as a consistent mass matrix. Segments with mass are cut into several
+elements (``elements_per_segment``, ``max_element_length``) because a modal result, unlike the
+static one, depends on the mesh; massless segments stay one exact element each.
+
+The undamped free vibration K·θ = ω²·M·θ is solved on the constrained coordinates θ = T·q:
+fixed supports remove their rotation, and each gear mesh c_a·θ_a + c_b·θ_b = 0 removes one
+rotation by expressing it through the other (θ_b = −(r_a/r_b)·θ_a for an external mesh), so that
+TᵀKT and TᵀMT are the referred stiffness and inertia of the geared system. Small systems are
+solved densely (massless rotations condensed out statically, then ``scipy.linalg.eigh``); large
+ones by ``scipy.sparse.linalg.eigsh`` in shift-invert mode about a shift at or below zero.
+
+A group of shafts that no support restrains has a rigid-body mode at zero frequency. The static
+solver rejects such a system as a mechanism; here it is accepted and its rigid-body modes are
+found exactly (a rotation constant along each shaft, in the gear ratios) and reported as such.
+
+References
+----------
+.. [1] S. S. Rao, *Mechanical Vibrations*, Pearson: torsional vibration of discs on shafts,
+   free-free two- and three-rotor systems, Holzer's method, torsional vibration of a uniform
+   shaft (ωₙ = (2n − 1)·π/(2L)·√(G/ρ) fixed-free); chapters from memory.
+.. [2] R. D. Cook, D. S. Malkus, M. E. Plesha and R. J. Witt, *Concepts and Applications of
+   Finite Element Analysis*, 4th ed., Wiley, 2002, ch. 11 (consistent mass of a two-node element,
+   ρAL/6·[[2, 1], [1, 2]] for the bar, the same for torsion with ρJ; static condensation of
+   massless degrees of freedom; from memory).
+.. [3] K.-J. Bathe, *Finite Element Procedures*, 1996, §11 (shift-invert Lanczos; rigid-body
+   modes through a negative shift; from memory).
+.. [4] W. McGuire, R. H. Gallagher and R. D. Ziemian, *Matrix Structural Analysis*, 2nd ed.,
+   ch. 12 (constraints by transformation of coordinates).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+import scipy.linalg
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from workbench.solver.analysis import Mesh, build_mesh, torsion_stiffness_matrix
+from workbench.solver.errors import InputError
+from workbench.solver.model import POSITION_TOLERANCE, LoadCase, Model, OperatingSpeed, Segment
+from workbench.solver.sections import FloatArray
+from workbench.solver.units import UnitSystem, display_units, quote
+
+BoolArray = np.ndarray[Any, np.dtype[np.bool_]]
+
+#: Elements each segment with distributed inertia is cut into, by default.
+DEFAULT_ELEMENTS_PER_SEGMENT = 8
+#: Separation asked of a natural frequency from a running-speed band, ±20 % by default (common
+#: practice, no source).
+DEFAULT_FREQUENCY_MARGIN = 0.2
+#: Number of lowest modes reported by default.
+DEFAULT_MODE_COUNT = 10
+#: Systems with at most this many unknowns are solved densely (every mode at once).
+DENSE_LIMIT = 400
+
+_GAUSS_POINTS, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(8)
+#: Gauss–Legendre points and weights on [0, 1]; 8 points integrate the consistent mass of a
+#: tapered element (a polynomial of degree 6 in the element coordinate) exactly.
+_UNIT_POINTS = 0.5 * (_GAUSS_POINTS + 1.0)
+_UNIT_WEIGHTS = 0.5 * _GAUSS_WEIGHTS
+
+
+@dataclass(frozen=True)
+class Modes:
+    """Natural frequencies and mode shapes of a model, lowest first.
+
+    Attributes
+    ----------
+    model
+        The model analysed.
+    mesh
+        The modal mesh (the static mesh's nodes plus discs and subdivisions of massive segments).
+    angular_frequency
+        (n_modes,) natural circular frequencies ω (rad/s); exactly 0 for rigid-body modes.
+    rigid_body
+        (n_modes,) whether each mode is a rigid-body mode of a group of shafts free to spin.
+    shapes
+        (n_modes, n_nodes) rotation at every mesh node, scaled so that the largest |angle| is 1
+        and positive.
+    complete
+        Whether every mode of the discretised system is listed.
+    elements_per_segment
+        Elements each segment with distributed inertia was cut into (at least).
+    notes
+        Remarks on what the model includes (massless shafts, approximate polar moments).
+    """
+
+    model: Model
+    mesh: Mesh
+    angular_frequency: FloatArray
+    rigid_body: BoolArray
+    shapes: FloatArray
+    complete: bool
+    elements_per_segment: int
+    notes: tuple[str, ...] = ()
+
+    @property
+    def frequency(self) -> FloatArray:
+        """Natural frequencies f = ω/(2π) (Hz)."""
+        return self.angular_frequency / (2.0 * math.pi)
+
+    def __len__(self) -> int:
+        return len(self.angular_frequency)
+
+    def shape(self, mode: int, shaft_id: str) -> tuple[FloatArray, FloatArray]:
+        """(x (m), normalised angle) of one mode along one shaft, at the mesh nodes."""
+        number = self.model.shaft_number(shaft_id)
+        window = slice(
+            int(self.mesh.shaft_node_start[number]), int(self.mesh.shaft_node_start[number + 1])
+        )
+        return self.mesh.node_x[window], self.shapes[mode, window]
+
+    def antinode(self, mode: int) -> tuple[str, float]:
+        """(shaft id, x (m)) of the node where a mode's |angle| is largest."""
+        node = int(np.argmax(np.abs(self.shapes[mode])))
+        number = int(np.searchsorted(self.mesh.shaft_node_start, node, side="right") - 1)
+        return self.model.shafts[number].id, float(self.mesh.node_x[node])
+
+
+# --- the modal mesh ------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class _ModalNodes:
+    """Points the modal mesh must have nodes at.
+
+    :func:`~workbench.solver.analysis.build_mesh` makes a node of every point the model's
+    ``design`` names through ``key_points()``; the modal model names its discs and subdivision
+    points that way, so the elements, their exact stiffness and the springs are the static
+    solver's own. :func:`_modal_mesh` verifies that every point became a node.
+    """
+
+    points: tuple[tuple[str, float], ...]
+
+    def key_points(self) -> list[tuple[str, float]]:
+        return list(self.points)
+
+    def validate_against(self, model: Model) -> None:
+        """Nothing to validate: the points are the model's own discs and subdivisions."""
+
+
+def _rotary_inertia(segment: Segment, fraction: FloatArray) -> FloatArray:
+    """Σ ρᵢ·Jᵢ (kg·m) of a segment's layers at fractions of its length; no density: no mass."""
+    total = np.zeros(np.shape(fraction))
+    for layer in segment.layers:
+        if layer.material.density is not None:
+            total = total + layer.material.density * layer.section.polar_moment_at(fraction)
+    return total
+
+
+def _has_mass(segment: Segment) -> bool:
+    return any(layer.material.density is not None for layer in segment.layers)
+
+
+def _subdivisions(
+    model: Model, elements_per_segment: int, max_element_length: float | None
+) -> list[FloatArray]:
+    """Inner cut points of every segment with inertia, one array per shaft (m)."""
+    out = []
+    for shaft in model.shafts:
+        parts = []
+        for number, segment in enumerate(shaft.segments):
+            if not _has_mass(segment):
+                continue  # a massless segment is one exact spring: inner nodes add nothing
+            pieces = elements_per_segment
+            if max_element_length is not None:
+                pieces = max(pieces, math.ceil(segment.length / max_element_length - 1e-9))
+            start = float(shaft.boundaries[number])
+            parts.append(start + segment.length * np.arange(1, pieces) / pieces)
+        out.append(np.concatenate(parts) if parts else np.zeros(0))
+    return out
+
+
+def _modal_mesh(
+    model: Model, elements_per_segment: int, max_element_length: float | None
+) -> tuple[Model, Mesh]:
+    per_shaft = _subdivisions(model, elements_per_segment, max_element_length)
+    discs: list[list[float]] = [[] for _ in model.shafts]
+    for disc in model.discs:
+        discs[model.shaft_number(disc.shaft)].append(disc.x)
+    wanted = [
+        np.concatenate([np.asarray(own, dtype=float), inner])
+        for own, inner in zip(discs, per_shaft, strict=True)
+    ]
+    points = tuple(
+        (shaft.id, x) for shaft, xs in zip(model.shafts, wanted, strict=True) for x in xs.tolist()
+    )
+    # The loads play no part in free vibration: one empty case keeps the model valid.
+    modal_model = dataclasses.replace(
+        model,
+        load_cases=(LoadCase(model.load_cases[0].name),),
+        combinations=(),
+        design=_ModalNodes(points),
+    )
+    mesh = build_mesh(modal_model)
+    for number, (shaft, xs) in enumerate(zip(model.shafts, wanted, strict=True)):
+        nodes = mesh.node_x[mesh.shaft_node_start[number] : mesh.shaft_node_start[number + 1]]
+        right = np.clip(np.searchsorted(nodes, xs), 1, len(nodes) - 1)
+        gap = np.minimum(np.abs(nodes[right] - xs), np.abs(nodes[right - 1] - xs))
+        if np.any(gap > 2.0 * POSITION_TOLERANCE * shaft.length):  # pragma: no cover
+            msg = f"the modal mesh lacks a node on shaft {shaft.id!r}: a broken invariant"
+            raise AssertionError(msg)
+    return modal_model, mesh
+
+
+def torsion_mass_matrix(model: Model, mesh: Mesh) -> sp.csr_matrix:
+    """The assembled, unconstrained mass matrix (kg·m²) over all mesh nodes.
+
+    Parameters
+    ----------
+    model
+        The model: its discs and its segments' materials and sections.
+    mesh
+        A mesh of the model (:func:`~workbench.solver.analysis.build_mesh`) with a node at every
+        disc.
+
+    Returns
+    -------
+    scipy.sparse.csr_matrix
+        Consistent element mass with linear shape functions, M_ij = ∫ μ(x)·N_i·N_j dx with
+        μ = Σ ρ·J (kg·m); for a prismatic element μL/6·[[2, 1], [1, 2]]. Tapered elements are
+        integrated by 8-point Gauss–Legendre, exact for their polynomial integrand. Discs add
+        their inertia on the diagonal.
+
+    References
+    ----------
+    .. [1] Cook, Malkus, Plesha & Witt, *Concepts and Applications of Finite Element Analysis*,
+       4th ed., ch. 11, consistent mass matrix of a two-node bar element (from memory).
+    .. [2] Rao, *Mechanical Vibrations*, torsional vibration, rotary inertia of a shaft element
+       ρ·J·dx (from memory).
+    """
+    n_elements = len(mesh.element_length)
+    length = mesh.element_length
+    # μ at the Gauss points of each element: constant on prismatic segments.
+    mu = np.zeros((n_elements, len(_UNIT_POINTS)))
+    for number, shaft in enumerate(model.shafts):
+        # A shaft's elements are contiguous and in order of x, so of segment.
+        first = int(mesh.shaft_node_start[number]) - number
+        last = int(mesh.shaft_node_start[number + 1]) - number - 1
+        segments = mesh.element_segment[first:last]
+        constant = np.array(
+            [
+                float(_rotary_inertia(segment, np.zeros(1))[0]) if segment.prismatic else 0.0
+                for segment in shaft.segments
+            ]
+        )
+        mu[first:last] = constant[segments][:, None]
+        for segment_number, segment in enumerate(shaft.segments):
+            if segment.prismatic or not _has_mass(segment):
+                continue
+            low, high = np.searchsorted(segments, [segment_number, segment_number + 1])
+            elements = np.arange(first + low, first + high)
+            start = mesh.node_x[mesh.element_start_node[elements]]
+            origin = shaft.boundaries[segment_number]
+            fraction = (
+                start[:, None] + length[elements, None] * _UNIT_POINTS[None, :] - origin
+            ) / segment.length
+            mu[elements] = _rotary_inertia(segment, np.clip(fraction, 0.0, 1.0))
+    shape_a, shape_b = 1.0 - _UNIT_POINTS, _UNIT_POINTS
+    weighted = mu * _UNIT_WEIGHTS * length[:, None]
+    m_aa = weighted @ (shape_a * shape_a)
+    m_ab = weighted @ (shape_a * shape_b)
+    m_bb = weighted @ (shape_b * shape_b)
+    node_a = mesh.element_start_node
+    node_b = node_a + 1
+    rows = np.concatenate([node_a, node_b, node_a, node_b])
+    cols = np.concatenate([node_a, node_b, node_b, node_a])
+    values = np.concatenate([m_aa, m_bb, m_ab, m_ab])
+    size = len(mesh.node_x)
+    matrix = sp.csr_matrix((values, (rows, cols)), shape=(size, size))
+    if model.discs:
+        nodes = [mesh.node_of(model.shaft_number(disc.shaft), disc.x) for disc in model.discs]
+        inertia = [disc.inertia for disc in model.discs]
+        matrix = matrix + sp.csr_matrix((inertia, (nodes, nodes)), shape=(size, size))
+    return matrix
+
+
+# --- constraints ------------------------------------------------------------------------------
+
+
+def constraint_transformation(
+    n_nodes: int,
+    fixed: Iterable[int],
+    constraints: Sequence[tuple[int, float, int, float]],
+) -> sp.csr_matrix:
+    """The basis T (θ = T·q) of rotations that honour fixed nodes and linear two-node constraints.
+
+    Parameters
+    ----------
+    n_nodes
+        Number of nodal rotations.
+    fixed
+        Nodes held at zero rotation.
+    constraints
+        (node_a, c_a, node_b, c_b) for each constraint c_a·θ_a + c_b·θ_b = 0 (a gear mesh: c in m).
+
+    Returns
+    -------
+    scipy.sparse.csr_matrix
+        (n_nodes, n_free) with one column per remaining unknown; TᵀKT and TᵀMT are the
+        constrained stiffness and inertia (for a gear, referred through the ratio).
+
+    Notes
+    -----
+    Gaussian elimination of the constraints one by one: each, written in the unknowns left so
+    far, eliminates the unknown with the largest coefficient. A constraint already implied by the
+    others (a consistent loop, a gear at two fixed supports) eliminates nothing; one that
+    contradicts them locks the unknowns it joins. For gear trains without loops every rotation is
+    a ratio times one unknown, so T stays as sparse as the identity.
+
+    References
+    ----------
+    .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 12
+       (constraints by transformation).
+    """
+    expressions: dict[int, dict[int, float]] = {int(node): {} for node in fixed}
+    users: dict[int, set[int]] = {}
+
+    def row(node: int) -> dict[int, float]:
+        return expressions.get(node, {node: 1.0})
+
+    for node_a, coefficient_a, node_b, coefficient_b in constraints:
+        combination: dict[int, float] = {}
+        for node, coefficient in ((node_a, coefficient_a), (node_b, coefficient_b)):
+            for unknown, value in row(int(node)).items():
+                combination[unknown] = combination.get(unknown, 0.0) + coefficient * value
+        scale = max((abs(value) for value in combination.values()), default=0.0)
+        combination = {u: v for u, v in combination.items() if abs(v) > 1e-12 * scale}
+        if not combination:
+            continue
+        pivot = max(combination, key=lambda unknown: (abs(combination[unknown]), -unknown))
+        divisor = combination.pop(pivot)
+        replacement = {unknown: -value / divisor for unknown, value in combination.items()}
+        affected = users.pop(pivot, set())
+        if pivot not in expressions:
+            affected.add(pivot)
+        for node in affected:
+            current = dict(row(node))
+            weight = current.pop(pivot)
+            for unknown, value in replacement.items():
+                current[unknown] = current.get(unknown, 0.0) + weight * value
+                users.setdefault(unknown, set()).add(node)
+            expressions[node] = current
+    free = np.array(sorted(set(range(n_nodes)) - set(expressions)), dtype=np.intp)
+    column = np.full(n_nodes, -1, dtype=np.intp)
+    column[free] = np.arange(len(free))
+    rows, cols, values = [free], [column[free]], [np.ones(len(free))]
+    for node, expression in expressions.items():
+        if expression:
+            rows.append(np.full(len(expression), node, dtype=np.intp))
+            cols.append(column[np.fromiter(expression, dtype=np.intp, count=len(expression))])
+            values.append(np.fromiter(expression.values(), dtype=float, count=len(expression)))
+    return sp.csr_matrix(
+        (np.concatenate(values), (np.concatenate(rows), np.concatenate(cols))),
+        shape=(n_nodes, len(free)),
+    )
+
+
+def _rigid_body_shapes(model: Model, mesh: Mesh, mass: sp.csr_matrix) -> list[FloatArray]:
+    """Rigid-body modes: one per group of shafts (joined by gears) that nothing restrains.
+
+    Zero strain energy means a constant rotation c_s along each shaft s (the elements have
+    positive stiffness), c_s = 0 on a shaft with a fixed or spring support, and
+    c_a·r_a ± c_b·r_b = 0 across each mesh: the null space of that small system, group by group.
+    """
+    count = len(model.shafts)
+    parent = list(range(count))
+
+    def root(number: int) -> int:
+        while parent[number] != number:
+            parent[number] = parent[parent[number]]
+            number = parent[number]
+        return number
+
+    for gear in model.gears:
+        parent[root(model.shaft_number(gear.a.shaft))] = root(model.shaft_number(gear.b.shaft))
+    equations = []
+    for support in model.supports:
+        equation = np.zeros(count)
+        equation[model.shaft_number(support.shaft)] = 1.0
+        equations.append(equation)
+    for gear in model.gears:
+        equation = np.zeros(count)
+        coefficient_a, coefficient_b = gear.coefficients
+        equation[model.shaft_number(gear.a.shaft)] += coefficient_a
+        equation[model.shaft_number(gear.b.shaft)] += coefficient_b
+        equations.append(equation)
+    system = np.array(equations).reshape(-1, count)
+    shapes = []
+    for group in sorted({root(number) for number in range(count)}):
+        members = [number for number in range(count) if root(number) == group]
+        rows = system[:, members]
+        rows = rows[np.any(rows != 0.0, axis=1)]
+        basis = scipy.linalg.null_space(rows) if len(rows) else np.ones((len(members), 1))
+        if basis.shape[1] == 0:
+            continue
+        shape = np.zeros(len(mesh.node_x))
+        for member, value in zip(members, basis[:, 0], strict=True):
+            window = slice(
+                int(mesh.shaft_node_start[member]), int(mesh.shaft_node_start[member + 1])
+            )
+            shape[window] = value
+        if float(shape @ (mass @ shape)) <= 0.0:
+            names = [model.shafts[number].id for number in members]
+            if len(names) == 1:
+                what = f"shaft {names[0]!r} is"
+            else:
+                joined = ", ".join(repr(name) for name in names)
+                what = f"shafts {joined} (joined by gears) are"
+            msg = (
+                f"{what} free to spin and carry no inertia, so its motion is undefined: give it "
+                "a disc or a material density, or a support"
+            )
+            raise InputError("discs", msg)
+        shapes.append(shape)
+    return shapes
+
+
+# --- the eigenproblem ---------------------------------------------------------------------------
+
+
+def _dense_modes(stiffness: sp.spmatrix, mass: sp.spmatrix) -> tuple[FloatArray, FloatArray]:
+    """Every eigenpair of K·q = λ·M·q, massless unknowns condensed out statically.
+
+    Returns λ ascending and q (n, n_massive).
+
+    References
+    ----------
+    .. [1] Cook, Malkus, Plesha & Witt, *Concepts and Applications of FEA*, 4th ed., ch. 11
+       (static condensation of massless degrees of freedom: exact for them; from memory).
+    """
+    k = stiffness.toarray()
+    m = mass.toarray()
+    massive = np.diag(m) > 0.0
+    if massive.all():
+        values, vectors = scipy.linalg.eigh(k, m)
+        return values, vectors
+    keep, drop = np.flatnonzero(massive), np.flatnonzero(~massive)
+    coupling = scipy.linalg.solve(k[np.ix_(drop, drop)], k[np.ix_(drop, keep)], assume_a="sym")
+    condensed = k[np.ix_(keep, keep)] - k[np.ix_(keep, drop)] @ coupling
+    condensed = 0.5 * (condensed + condensed.T)
+    values, reduced = scipy.linalg.eigh(condensed, m[np.ix_(keep, keep)])
+    vectors = np.zeros((len(k), len(values)))
+    vectors[keep] = reduced
+    vectors[drop] = -coupling @ reduced
+    return values, vectors
+
+
+def _sparse_modes(
+    stiffness: sp.spmatrix, mass: sp.spmatrix, count: int, shift: float
+) -> tuple[FloatArray, FloatArray]:
+    """The ``count`` eigenpairs of K·q = λ·M·q nearest above ``shift`` (≤ 0), shift-invert."""
+    values, vectors = spla.eigsh(
+        stiffness.tocsc(), k=count, M=mass.tocsc(), sigma=shift, which="LM"
+    )
+    order = np.argsort(values)
+    return values[order], vectors[:, order]
+
+
+def natural_modes(
+    model: Model,
+    *,
+    count: int = DEFAULT_MODE_COUNT,
+    up_to: float | None = None,
+    elements_per_segment: int | None = None,
+    max_element_length: float | None = None,
+    method: str = "auto",
+) -> Modes:
+    """Natural frequencies and mode shapes of free torsional vibration.
+
+    Parameters
+    ----------
+    model
+        The validated model (SI). Any arrangement the static solver accepts, and also systems
+        free to spin (their rigid-body modes are reported at 0 Hz).
+    count
+        How many of the lowest modes to return (rigid-body modes included), at least 1.
+    up_to
+        Also return every mode up to this circular frequency (rad/s) and the first one above it,
+        when the discretised system has them.
+    elements_per_segment
+        Elements each segment with distributed inertia is cut into (default
+        :data:`DEFAULT_ELEMENTS_PER_SEGMENT`, or the design's ``modal_elements_per_segment``).
+    max_element_length
+        Longest element on a segment with distributed inertia (m), or ``None`` (default: the
+        design's ``modal_max_element_length``).
+    method
+        ``"auto"`` (dense up to :data:`DENSE_LIMIT` unknowns, sparse shift-invert above),
+        ``"dense"`` or ``"sparse"``.
+
+    Returns
+    -------
+    Modes
+        Frequencies lowest first, rigid-body flags, normalised shapes.
+
+    Raises
+    ------
+    InputError
+        When the system has no inertia, a group free to spin carries none, or an option is out
+        of range.
+
+    References
+    ----------
+    .. [1] Rao, *Mechanical Vibrations*, torsional vibration (from memory).
+    .. [2] Cook, Malkus, Plesha & Witt, *Concepts and Applications of FEA*, 4th ed., ch. 11.
+    """
+    elements, longest = _options(model, count, elements_per_segment, max_element_length, method)
+    modal_model, mesh = _modal_mesh(model, elements, longest)
+    stiffness = torsion_stiffness_matrix(modal_model, mesh)
+    mass = torsion_mass_matrix(modal_model, mesh)
+    if mass.nnz == 0 or not np.any(mass.diagonal() > 0.0):
+        msg = "the system has no inertia: give discs, or a density for the shafts' materials"
+        raise InputError("discs", msg)
+    rigid = _rigid_body_shapes(modal_model, mesh, mass)
+    fixed = [
+        mesh.node_of(model.shaft_number(support.shaft), support.x)
+        for support in model.supports
+        if support.kind == "fixed"
+    ]
+    constraints = []
+    for gear in model.gears:
+        coefficient_a, coefficient_b = gear.coefficients
+        node_a = mesh.node_of(model.shaft_number(gear.a.shaft), gear.a.x)
+        node_b = mesh.node_of(model.shaft_number(gear.b.shaft), gear.b.x)
+        constraints.append((node_a, coefficient_a, node_b, coefficient_b))
+    transformation = constraint_transformation(len(mesh.node_x), fixed, constraints)
+    transposed = transformation.T.tocsr()
+    reduced_stiffness = (transposed @ stiffness @ transformation).tocsr()
+    reduced_mass = (transposed @ mass @ transformation).tocsr()
+    massive = int(np.count_nonzero(reduced_mass.diagonal() > 0.0))
+    if massive == 0:
+        msg = "no inertia is free to move: every disc and massive segment is held fixed"
+        raise InputError("discs", msg)
+
+    size = reduced_stiffness.shape[0]
+    use_dense = method == "dense" or (method == "auto" and size <= DENSE_LIMIT)
+    notes = list(_inertia_notes(model))
+    if use_dense:
+        values, vectors = _dense_modes(reduced_stiffness, reduced_mass)
+        complete = True
+    else:
+        values, vectors, complete = _sparse_search(
+            model, reduced_stiffness, reduced_mass, massive, len(rigid), count, up_to, notes
+        )
+    # The lowest len(rigid) eigenvalues are the rigid-body modes (zero up to rounding): they are
+    # replaced by the exact rigid rotations.
+    flexible_values = np.maximum(values[len(rigid) :], 0.0)
+    flexible_shapes = (transformation @ vectors[:, len(rigid) :]).T
+    wanted = max(count, len(rigid))
+    if up_to is not None:
+        wanted = max(wanted, len(rigid) + int(np.searchsorted(np.sqrt(flexible_values), up_to)) + 1)
+    flexible_count = max(0, min(wanted - len(rigid), len(flexible_values)))
+    if flexible_count < len(flexible_values):
+        complete = False
+    angular = np.concatenate([np.zeros(len(rigid)), np.sqrt(flexible_values[:flexible_count])])
+    shapes = np.vstack(
+        [np.array(rigid).reshape(-1, len(mesh.node_x)), flexible_shapes[:flexible_count]]
+    )
+    shapes = _normalised(shapes)
+    rigid_flags = np.arange(len(angular)) < len(rigid)
+    for array in (angular, rigid_flags, shapes):
+        array.setflags(write=False)
+    return Modes(
+        model=model,
+        mesh=mesh,
+        angular_frequency=angular,
+        rigid_body=rigid_flags,
+        shapes=shapes,
+        complete=complete,
+        elements_per_segment=elements,
+        notes=tuple(notes),
+    )
+
+
+def _options(
+    model: Model,
+    count: int,
+    elements_per_segment: int | None,
+    max_element_length: float | None,
+    method: str,
+) -> tuple[int, float | None]:
+    if isinstance(count, bool) or not isinstance(count, int) or count < 1:
+        msg = f"must be a whole number of at least 1, not {count!r}"
+        raise InputError("count", msg)
+    if method not in ("auto", "dense", "sparse"):
+        msg = f"must be 'auto', 'dense' or 'sparse', not {method!r}"
+        raise InputError("method", msg)
+    design = model.design
+    if elements_per_segment is None:
+        elements_per_segment = getattr(
+            design, "modal_elements_per_segment", DEFAULT_ELEMENTS_PER_SEGMENT
+        )
+    if max_element_length is None:
+        max_element_length = getattr(design, "modal_max_element_length", None)
+    if (
+        isinstance(elements_per_segment, bool)
+        or not isinstance(elements_per_segment, int)
+        or elements_per_segment < 1
+    ):
+        msg = f"must be a whole number of at least 1, not {elements_per_segment!r}"
+        raise InputError("modal_elements_per_segment", msg)
+    if max_element_length is not None and (
+        not math.isfinite(max_element_length) or max_element_length <= 0.0
+    ):
+        msg = f"must be greater than zero ({quote(max_element_length, 'length')})"
+        raise InputError("modal_max_element_length", msg)
+    return elements_per_segment, max_element_length
+
+
+def _sparse_search(
+    model: Model,
+    stiffness: sp.csr_matrix,
+    mass: sp.csr_matrix,
+    massive: int,
+    rigid: int,
+    count: int,
+    up_to: float | None,
+    notes: list[str],
+) -> tuple[FloatArray, FloatArray, bool]:
+    """Shift-invert Lanczos for the lowest modes, widening until ``up_to`` is passed."""
+    if rigid:
+        # A negative shift keeps K − σM regular when rigid-body modes make K singular; a small
+        # one, relative to the elements' own frequencies, keeps the lowest modes well apart.
+        diagonal_k, diagonal_m = stiffness.diagonal(), mass.diagonal()
+        ratios = diagonal_k[diagonal_m > 0.0] / diagonal_m[diagonal_m > 0.0]
+        shift = -1e-8 * float(np.median(ratios))
+    else:
+        shift = 0.0
+    limit = max(1, min(massive - 1, stiffness.shape[0] // 4))
+    wanted = min(max(count, 6) + rigid, limit)
+    while True:
+        values, vectors = _sparse_modes(stiffness, mass, wanted, shift)
+        top = math.sqrt(max(float(values[-1]), 0.0))
+        if up_to is None or top > up_to or wanted >= limit:
+            break
+        wanted = min(2 * wanted, limit)
+    if up_to is not None and top <= up_to:
+        notes.append(
+            f"only the lowest {len(values)} modes were computed (up to {top / (2 * math.pi):.4g} "
+            "Hz); the operating speeds reach above them"
+        )
+    return values, vectors, wanted >= stiffness.shape[0]
+
+
+def _normalised(shapes: FloatArray) -> FloatArray:
+    """Scale each row so that its largest |angle| is 1 and that entry is positive."""
+    if not len(shapes):
+        return shapes
+    peak = np.argmax(np.abs(shapes), axis=1)
+    scale = shapes[np.arange(len(shapes)), peak]
+    scale = np.where(scale == 0.0, 1.0, scale)
+    normalised: FloatArray = shapes / scale[:, None] + 0.0  # + 0.0: no −0.0 at fixed nodes
+    return normalised
+
+
+def _inertia_notes(model: Model) -> Iterable[str]:
+    segments = [segment for shaft in model.shafts for segment in shaft.segments]
+    massless = sum(not _has_mass(segment) for segment in segments)
+    if massless == len(segments):
+        yield "no material density given: the shafts are massless springs, discs carry all inertia"
+    elif massless:
+        yield (
+            f"{massless} of {len(segments)} segments have no material density: their own "
+            "inertia is left out"
+        )
+    if any(
+        _has_mass(segment) and not layer.section.circular
+        for segment in segments
+        for layer in segment.layers
+    ):
+        yield (
+            "rotary inertia of non-circular sections uses their polar moment of area, "
+            "approximate for thin_closed and thin_open shapes (see the README)"
+        )
+
+
+# --- separation from running speeds ------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Separation:
+    """How far one natural frequency lies from one running-speed band.
+
+    Attributes
+    ----------
+    speed
+        The band.
+    mode
+        Index of the mode in its :class:`Modes` (0 = lowest).
+    angular_frequency
+        The mode's natural circular frequency ω (rad/s).
+    low, high
+        The band widened by the margin: minimum·(1 − margin), maximum·(1 + margin) (rad/s).
+    position
+        ``"below"``, ``"above"`` or ``"inside"`` the widened band.
+    value, limit
+        Below the band: ω and the widened lower edge; above it: the widened upper edge and ω;
+        inside: the pair of the nearer edge. The mode is clear when value ≤ limit, and
+        value/limit is the utilisation (rad/s both).
+    shaft, x
+        Where the mode's |angle| is largest (shaft id, m).
+    """
+
+    speed: OperatingSpeed
+    mode: int
+    angular_frequency: float
+    low: float
+    high: float
+    position: str
+    value: float
+    limit: float
+    shaft: str
+    x: float
+
+    @property
+    def utilisation(self) -> float:
+        """value/limit: at most 1 when the frequency is clear of the widened band."""
+        return self.value / self.limit
+
+    @property
+    def passes(self) -> bool:
+        """Whether the natural frequency lies outside the widened band."""
+        return self.value <= self.limit
+
+
+def frequency_separations(
+    modes: Modes, speeds: Sequence[OperatingSpeed], margin: float
+) -> tuple[Separation, ...]:
+    """Each running-speed band against its neighbouring natural frequencies.
+
+    Parameters
+    ----------
+    modes
+        Natural modes (:func:`natural_modes`), computed at least up to the widest band's top.
+    speeds
+        Running-speed bands (rad/s). A band excites at once per revolution: the natural
+        circular frequency ω is compared with the speed in rad/s itself.
+    margin
+        Relative widening of each band, 0 ≤ margin < 1: [min·(1 − m), max·(1 + m)].
+
+    Returns
+    -------
+    tuple of Separation
+        For each band: the nearest mode below the widened band, every mode inside it and the
+        nearest mode above it; rigid-body modes are not resonances and are left out.
+
+    References
+    ----------
+    .. [1] Separation of natural frequencies from running speeds by a margin, ±20 % by default:
+       common practice, no source.
+    """
+    out = []
+    flexible = np.flatnonzero(~modes.rigid_body)
+    omega = modes.angular_frequency[flexible]
+    for speed in speeds:
+        low = speed.minimum * (1.0 - margin)
+        high = speed.maximum * (1.0 + margin)
+        below = flexible[omega <= low] if low > 0.0 else flexible[:0]
+        above = flexible[omega >= high]
+        inside = [mode for mode in flexible if mode not in below and mode not in above]
+        chosen = [*below[-1:], *inside, *above[:1]]
+        for mode in chosen:
+            natural = float(modes.angular_frequency[mode])
+            if mode in below:
+                position, value, limit = "below", natural, low
+            elif mode in above:
+                position, value, limit = "above", high, natural
+            else:
+                position = "inside"
+                from_below = natural / low if low > 0.0 else math.inf
+                from_above = high / natural
+                value, limit = (natural, low) if from_below < from_above else (high, natural)
+            shaft, x = modes.antinode(int(mode))
+            out.append(
+                Separation(speed, int(mode), natural, low, high, position, value, limit, shaft, x)
+            )
+    return tuple(out)
+
+
+def separation_note(separation: Separation, margin: float) -> str:
+    """One line on a separation, in the current display units (speeds) and Hz."""
+    speed = separation.speed
+    hertz = separation.angular_frequency / (2.0 * math.pi)
+    return (
+        f"mode {separation.mode + 1}: {hertz:.4g} Hz = {quote(separation.angular_frequency, 'speed')}"
+        f", {separation.position} {speed.name!r} {quote(speed.minimum, 'speed')} to "
+        f"{quote(speed.maximum, 'speed')} widened by ±{margin:.0%} to "
+        f"{quote(separation.low, 'speed')} to {quote(separation.high, 'speed')}; once per "
+        "revolution"
+    )
+
+
+# --- documents -----------------------------------------------------------------------------------
+
+
+def modes_document(modes: Modes, units: UnitSystem | None = None) -> dict[str, Any]:
+    """The ``workbench modes --json`` document.
+
+    ``{"modes": [{"frequency": Hz, "rigid_body": bool, "shafts": {id: {"x": [...],
+    "angle": [...]}}}]}``, lowest first; x in ``units`` (default: the case's) length units, the
+    angles normalised to a largest |angle| of 1 over all shafts (no unit).
+    """
+    units = units or modes.model.units
+    entries = []
+    for mode in range(len(modes)):
+        shafts = {}
+        for shaft in modes.model.shafts:
+            x, angle = modes.shape(mode, shaft.id)
+            shafts[shaft.id] = {
+                "x": [float(value) for value in units.from_si(x, "length")],
+                "angle": [float(value) for value in angle],
+            }
+        entries.append(
+            {
+                "frequency": float(modes.frequency[mode]),
+                "rigid_body": bool(modes.rigid_body[mode]),
+                "shafts": shafts,
+            }
+        )
+    return {"modes": entries}
+
+
+def modes_text(modes: Modes, margin: float | None = None, units: UnitSystem | None = None) -> str:
+    """Readable tables: the modes, then each running-speed band against its neighbours."""
+    from workbench.solver.tables import format_table  # noqa: PLC0415
+
+    units = units or modes.model.units
+    speed_unit = units.label("speed")
+    length_unit = units.label("length")
+    rows = []
+    for mode in range(len(modes)):
+        shaft, x = modes.antinode(mode)
+        rows.append(
+            [
+                str(mode + 1),
+                f"{modes.frequency[mode]:.5g}",
+                f"{units.from_si(modes.angular_frequency[mode], 'speed'):.5g}",
+                "rigid body" if modes.rigid_body[mode] else "flexible",
+                f"{shaft} @ {units.from_si(x, 'length'):.4g}",
+            ]
+        )
+    lines = [
+        "Natural frequencies of torsional vibration (lowest first)",
+        format_table(
+            [
+                "mode",
+                "frequency [Hz]",
+                f"as a speed [{speed_unit}]",
+                "kind",
+                f"largest |angle| [shaft @ x {length_unit}]",
+            ],
+            rows,
+        ),
+        f"mesh: segments with inertia cut into at least {modes.elements_per_segment} elements; "
+        "refine (--elements-per-segment) to confirm the frequencies you rely on",
+    ]
+    if modes.model.operating_speeds:
+        margin = DEFAULT_FREQUENCY_MARGIN if margin is None else margin
+        token = display_units.set(units)
+        try:
+            separations = frequency_separations(modes, modes.model.operating_speeds, margin)
+            rows = [
+                [
+                    item.speed.name,
+                    str(item.mode + 1),
+                    f"{units.from_si(item.angular_frequency, 'speed'):.5g}",
+                    f"{units.from_si(item.low, 'speed'):.5g} to "
+                    f"{units.from_si(item.high, 'speed'):.5g}",
+                    item.position,
+                    f"{item.utilisation:.3f}",
+                    "clear" if item.passes else "TOO CLOSE",
+                ]
+                for item in separations
+            ]
+        finally:
+            display_units.reset(token)
+        lines += [
+            "",
+            f"Separation from running speeds (bands widened by ±{margin:.0%}; once per revolution)",
+            format_table(
+                [
+                    "band",
+                    "mode",
+                    f"natural [{speed_unit}]",
+                    f"widened band [{speed_unit}]",
+                    "where",
+                    "utilisation",
+                    "verdict",
+                ],
+                rows,
+            ),
+        ]
+    lines += [f"note: {note}" for note in modes.notes]
+    return "\n".join(lines) + "\n"
+
+
+__all__ = [
+    "DEFAULT_ELEMENTS_PER_SEGMENT",
+    "DEFAULT_FREQUENCY_MARGIN",
+    "DEFAULT_MODE_COUNT",
+    "Modes",
+    "Separation",
+    "constraint_transformation",
+    "frequency_separations",
+    "modes_document",
+    "modes_text",
+    "natural_modes",
+    "separation_note",
+    "torsion_mass_matrix",
+]
