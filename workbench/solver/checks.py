@@ -24,6 +24,7 @@ licensed professional practice.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass, field
 from typing import Any
@@ -39,6 +40,13 @@ from workbench.solver.concentration import (
     transverse_hole_kts,
 )
 from workbench.solver.errors import InputError
+from workbench.solver.fatigue_check import (
+    FatigueCriteria,
+    FatiguePoint,
+    fatigue_checks,
+    fatigue_to_dict,
+    parse_fatigue,
+)
 from workbench.solver.materials import Material
 from workbench.solver.model import Model, Segment, field_path
 from workbench.solver.sections import FloatArray, SolidCircle, Tube, require_positive
@@ -59,6 +67,9 @@ CHECK_QUANTITIES: dict[str, str] = {
     "twist_rate": "twist_rate",
     "rotation": "angle",
     "frequency_separation": "speed",
+    # Fatigue rows are dimensionless: value 1/n, limit 1/n_required.
+    "fatigue": "ratio",
+    "first_cycle_yield": "ratio",
 }
 
 
@@ -122,6 +133,7 @@ class DesignCriteria:
     frequency_margin: float = 0.2
     modal_elements_per_segment: int = 8
     modal_max_element_length: float | None = None
+    fatigue: FatigueCriteria | None = None
 
     def __post_init__(self) -> None:
         if self.shear_criterion not in SHEAR_CRITERIA:
@@ -172,6 +184,8 @@ class DesignCriteria:
             path = f"design.rotation_limits[{number}]"
             model.check_point(path, limit.shaft, limit.start, "start")
             model.check_point(path, limit.shaft, limit.end, "end")
+        if self.fatigue is not None:
+            self.fatigue.validate_against(model)
 
     def allowable(self, material: Material) -> Allowable:
         """Allowable shear stress of a material under these criteria."""
@@ -194,6 +208,7 @@ _DESIGN_KEYS = {
     "frequency_margin",
     "modal_elements_per_segment",
     "modal_max_element_length",
+    "fatigue",
 }
 
 
@@ -226,6 +241,7 @@ def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
         msg = f"must be a whole number of at least 1, not {pieces:g}"
         raise InputError(reader.at("modal_elements_per_segment"), msg)
     longest = reader.optional_number("modal_max_element_length", "length")
+    fatigue = parse_fatigue(data["fatigue"], units) if data.get("fatigue") is not None else None
     with field_path("design"):
         return DesignCriteria(
             factor_of_safety=reader.number("factor_of_safety", None, 2.0),
@@ -237,6 +253,7 @@ def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
             frequency_margin=margin,
             modal_elements_per_segment=int(pieces),
             modal_max_element_length=longest,
+            fatigue=fatigue,
         )
 
 
@@ -273,6 +290,8 @@ def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
         out["modal_max_element_length"] = float(
             f"{units.from_si(design.modal_max_element_length, 'length'):.12g}"
         )
+    if design.fatigue is not None:
+        out["fatigue"] = fatigue_to_dict(design.fatigue, units)
     return out
 
 
@@ -334,12 +353,15 @@ class CheckReport:
         Every check, by result, shaft, segment, kind.
     notes
         Remarks that apply to the whole report (ranges of fits, defaults used).
+    fatigue_points
+        The governing stress cycle of each segment, when the design asks for a fatigue check.
     """
 
     results: Results
     design: DesignCriteria
     checks: tuple[Check, ...]
     notes: tuple[str, ...] = field(default=())
+    fatigue_points: tuple[FatiguePoint, ...] = field(default=())
 
     @property
     def passes(self) -> bool:
@@ -412,6 +434,7 @@ class _Checker:
         self.mesh = results.mesh
         self.checks: list[Check] = []
         self.notes: list[str] = []
+        self.fatigue_points: list[FatiguePoint] = []
         self._allowables: dict[int, Allowable] = {}
 
     def allowable(self, material: Material) -> Allowable:
@@ -481,8 +504,17 @@ class _Checker:
                     )
         self._rotations()
         self._frequencies()
+        if self.design.fatigue is not None:
+            rows, self.fatigue_points = fatigue_checks(
+                self.results, self.design.fatigue, self.notes
+            )
+            self.checks.extend(Check(*row) for row in rows)
         return CheckReport(
-            results, self.design, tuple(self.checks), tuple(dict.fromkeys(self.notes))
+            results,
+            self.design,
+            tuple(self.checks),
+            tuple(dict.fromkeys(self.notes)),
+            tuple(self.fatigue_points),
         )
 
     def _stress(
@@ -694,7 +726,7 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     finally:
         display_units.reset(token)
     if notes:
-        report = CheckReport(report.results, report.design, report.checks, (*notes, *report.notes))
+        report = dataclasses.replace(report, notes=(*notes, *report.notes))
     return report
 
 

@@ -12,6 +12,7 @@ import typing
 from typing import Any
 
 from workbench.solver.allowables import SHEAR_CRITERIA
+from workbench.solver.fatigue import FATIGUE_CRITERIA, RELIABILITY_FACTORS, SURFACE_FINISHES
 from workbench.solver.io import SHAPES
 from workbench.solver.units import UnitSystem
 
@@ -123,6 +124,14 @@ def case_schema() -> dict[str, Any]:
     gear_end = _object(
         {"shaft": _NAME, "x": _NUMBER, "radius": _POSITIVE}, ["shaft", "x", "radius"]
     )
+    fatigue_common = {
+        "finish": {"enum": list(SURFACE_FINISHES)},
+        "reliability": {"enum": sorted(RELIABILITY_FACTORS)},
+        "temperature": {"type": ["number", "null"], "exclusiveMinimum": 0},
+        "criterion": {"enum": list(FATIGUE_CRITERIA)},
+        "factor_of_safety": {"type": "number", "minimum": 1},
+        "endurance_limit": {"type": ["number", "null"], "exclusiveMinimum": 0},
+    }
     design = _object(
         {
             "factor_of_safety": {"type": "number", "minimum": 1},
@@ -133,6 +142,26 @@ def case_schema() -> dict[str, Any]:
             "frequency_margin": {"type": "number", "minimum": 0, "exclusiveMaximum": 1},
             "modal_elements_per_segment": {"type": "integer", "minimum": 1},
             "modal_max_element_length": {"type": ["number", "null"], "exclusiveMinimum": 0},
+            "fatigue": {
+                "oneOf": [
+                    _object(
+                        {
+                            **fatigue_common,
+                            "extremes": {
+                                "type": "array",
+                                "minItems": 2,
+                                "maxItems": 2,
+                                "items": _NAME,
+                            },
+                        },
+                        ["extremes"],
+                    ),
+                    _object(
+                        {**fatigue_common, "mean": _NAME, "alternating": _NAME},
+                        ["mean", "alternating"],
+                    ),
+                ]
+            },
             "rotation_limits": {
                 "type": "array",
                 "items": _object(

@@ -181,6 +181,7 @@ class UnitSystem:
                 value /= factors[denominator] ** power
             factors[name] = value
         factors["area"] = factors["length"] ** 2
+        factors["ratio"] = 1.0  # dimensionless: the same in every system
         object.__setattr__(self, "_factors", factors)
 
     def factor(self, quantity: str) -> float:
@@ -199,6 +200,8 @@ class UnitSystem:
         """Return the unit string to print beside a value of ``quantity``."""
         if quantity in SI_UNITS:
             return str(getattr(self, quantity))
+        if quantity == "ratio":
+            return "1"
         numerator, denominator, _ = DERIVED[quantity]
         top = getattr(self, numerator) if numerator else "1"
         if quantity == "area":

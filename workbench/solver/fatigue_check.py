@@ -1,0 +1,361 @@
+"""The fatigue check: from two solved torque states to a fatigue factor of safety per segment.
+
+A shaft that starts, runs and stops cycles between torque states. The case names them as two
+results (load cases or combinations): either the two extremes of the cycle, or one result whose
+torques are the mean and another whose torques are the alternating amplitude. For every one-layer
+round segment and every station the check forms the mean and alternating shear stress (the
+fatigue stress-concentration factor applied to both, Shigley's conservative practice), the
+corrected endurance limit of the segment (Marin factors for its finish, size, torsion,
+temperature and reliability), and the factor of safety by the chosen criterion (modified
+Goodman, Gerber, ASME-elliptic or Soderberg) and against first-cycle yield (Langer).
+
+Check rows are dimensionless: ``value`` = 1/n (the fraction of the fatigue strength used) and
+``limit`` = 1/n_required, so that utilisation = n_required/n like every other check.
+
+References
+----------
+.. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th/10th ed.,
+   McGraw-Hill, ch. 6 (Marin factors, notch sensitivity, fluctuating stresses) and ch. 7 (shafts).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from workbench.solver.concentration import keyseat_kts, shoulder_fillet_kts
+from workbench.solver.errors import InputError
+from workbench.solver.fatigue import (
+    FATIGUE_CRITERIA,
+    RELIABILITY_FACTORS,
+    SURFACE_FINISHES,
+    FatigueResult,
+    endurance_limit,
+    fatigue_concentration,
+    fatigue_factors,
+    notch_sensitivity_torsion,
+    stresses_from_extremes,
+    stresses_from_mean_alternating,
+    ultimate_shear_strength,
+    yield_shear_strength,
+)
+from workbench.solver.model import Model, Segment, field_path
+
+if TYPE_CHECKING:
+    from workbench.solver.analysis import Results
+    from workbench.solver.units import UnitSystem
+
+
+@dataclass(frozen=True)
+class FatigueCriteria:
+    """How to check fatigue under fluctuating torque.
+
+    Parameters
+    ----------
+    extremes
+        Names of the two results (load cases or combinations) the torque cycles between.
+    mean, alternating
+        Instead of ``extremes``: the result whose torques are the mean torque, and the one whose
+        torques are the alternating amplitude.
+    finish
+        Surface finish for the Marin surface factor: ``ground``, ``machined``, ``cold-drawn``,
+        ``hot-rolled``, ``as-forged`` (or ``polished``).
+    reliability
+        Reliability of the endurance limit (0.5 … 0.999999, Shigley Table 6-5 values).
+    temperature
+        Operating temperature (K), or ``None`` for room temperature.
+    criterion
+        ``goodman``, ``gerber``, ``asme_elliptic`` or ``soderberg``.
+    factor_of_safety
+        Required fatigue factor of safety (≥ 1), also used against first-cycle yield.
+    endurance_limit
+        A tested rotating-beam endurance limit Se' (Pa) to use instead of the 0.5·Sut estimate.
+    """
+
+    extremes: tuple[str, str] | None = None
+    mean: str | None = None
+    alternating: str | None = None
+    finish: str = "machined"
+    reliability: float = 0.5
+    temperature: float | None = None
+    criterion: str = "goodman"
+    factor_of_safety: float = 1.5
+    endurance_limit: float | None = None
+
+    def __post_init__(self) -> None:
+        given_pair = self.mean is not None or self.alternating is not None
+        if (self.extremes is None) == (not given_pair):
+            msg = "give either extremes (two results) or mean and alternating, not both"
+            raise InputError("extremes", msg)
+        if given_pair and (self.mean is None or self.alternating is None):
+            raise InputError("alternating" if self.mean else "mean", "is required with the other")
+        if self.extremes is not None and len(self.extremes) != 2:
+            raise InputError("extremes", "must name exactly two results")
+        if self.finish not in SURFACE_FINISHES:
+            msg = f"unknown finish {self.finish!r}; choose one of {', '.join(SURFACE_FINISHES)}"
+            raise InputError("finish", msg)
+        if self.reliability not in RELIABILITY_FACTORS:
+            known = ", ".join(f"{r:g}" for r in RELIABILITY_FACTORS)
+            raise InputError("reliability", f"must be one of {known}, not {self.reliability!r}")
+        if self.criterion not in FATIGUE_CRITERIA:
+            msg = (
+                f"unknown criterion {self.criterion!r}; choose one of {', '.join(FATIGUE_CRITERIA)}"
+            )
+            raise InputError("criterion", msg)
+        if not (math.isfinite(self.factor_of_safety) and self.factor_of_safety >= 1.0):
+            raise InputError(
+                "factor_of_safety", f"must be at least 1, not {self.factor_of_safety:g}"
+            )
+
+    @property
+    def result_names(self) -> tuple[str, str]:
+        """The two results the check reads."""
+        if self.extremes is not None:
+            return self.extremes
+        assert self.mean is not None and self.alternating is not None
+        return self.mean, self.alternating
+
+    @property
+    def label(self) -> str:
+        """What the check rows carry in their ``result`` column."""
+        first, second = self.result_names
+        if self.extremes is not None:
+            return f"fatigue: {first} ↔ {second}"
+        return f"fatigue: mean {first}, alternating {second}"
+
+    def validate_against(self, model: Model) -> None:
+        """Raise :class:`InputError` when a named result is not in the model."""
+        known = model.result_names
+        keys = ("extremes", "extremes") if self.extremes is not None else ("mean", "alternating")
+        for key, name in zip(keys, self.result_names, strict=True):
+            if name not in known:
+                msg = f"unknown load case or combination {name!r}; known: {', '.join(known)}"
+                raise InputError(f"design.fatigue.{key}", msg)
+
+
+_FATIGUE_KEYS = (
+    "extremes",
+    "mean",
+    "alternating",
+    "finish",
+    "reliability",
+    "temperature",
+    "criterion",
+    "factor_of_safety",
+    "endurance_limit",
+)
+
+
+def parse_fatigue(data: Any, units: UnitSystem) -> FatigueCriteria:
+    """Read the case file's ``design.fatigue`` object.
+
+    ``endurance_limit`` is in stress units, ``temperature`` in kelvin.
+    """
+    from workbench.solver.io import _Object  # noqa: PLC0415 - io imports the checks lazily
+
+    reader = _Object(data, "design.fatigue", _FATIGUE_KEYS, units)
+    extremes = data.get("extremes")
+    if extremes is not None and (
+        not isinstance(extremes, list) or not all(isinstance(name, str) for name in extremes)
+    ):
+        raise InputError("design.fatigue.extremes", "must be a list of two result names")
+    with field_path("design.fatigue"):
+        return FatigueCriteria(
+            extremes=tuple(extremes) if extremes is not None else None,
+            mean=reader.text("mean") if reader.has("mean") else None,
+            alternating=reader.text("alternating") if reader.has("alternating") else None,
+            finish=reader.text("finish", "machined"),
+            reliability=reader.number("reliability", None, 0.5),
+            temperature=reader.optional_number("temperature", None),
+            criterion=reader.text("criterion", "goodman"),
+            factor_of_safety=reader.number("factor_of_safety", None, 1.5),
+            endurance_limit=reader.optional_number("endurance_limit", "stress"),
+        )
+
+
+def fatigue_to_dict(criteria: FatigueCriteria, units: UnitSystem) -> dict[str, Any]:
+    """The case file's ``design.fatigue`` object."""
+    out: dict[str, Any] = {}
+    if criteria.extremes is not None:
+        out["extremes"] = list(criteria.extremes)
+    else:
+        out["mean"], out["alternating"] = criteria.mean, criteria.alternating
+    out |= {
+        "finish": criteria.finish,
+        "reliability": criteria.reliability,
+        "criterion": criteria.criterion,
+        "factor_of_safety": criteria.factor_of_safety,
+    }
+    if criteria.temperature is not None:
+        out["temperature"] = criteria.temperature
+    if criteria.endurance_limit is not None:
+        out["endurance_limit"] = float(f"{units.from_si(criteria.endurance_limit, 'stress'):.12g}")
+    return out
+
+
+@dataclass(frozen=True)
+class FatiguePoint:
+    """The governing stress cycle of one segment, for the fatigue diagram.
+
+    Attributes
+    ----------
+    shaft, segment
+        Which segment.
+    x
+        Where the cycle governs (m).
+    factors
+        Factors of safety by every criterion, with the stresses and strengths used (Pa).
+    concentration
+        Kfs applied there.
+    basis
+        How the endurance limit was found.
+    """
+
+    shaft: str
+    segment: int
+    x: float
+    factors: FatigueResult
+    concentration: float
+    basis: str
+
+
+def _round_outer_diameter(segment: Segment) -> float | None:
+    if len(segment.layers) != 1 or not segment.layers[0].section.circular:
+        return None
+    return 2.0 * segment.layers[0].section.outer_radius
+
+
+def fatigue_checks(
+    results: Results, criteria: FatigueCriteria, notes: list[str]
+) -> tuple[list[tuple[str, str, int, str, float, float, float, str]], list[FatiguePoint]]:
+    """Rows ``(result, shaft, segment, kind, value, limit, x, note)`` and the governing cycles.
+
+    Parameters
+    ----------
+    results
+        Solved results holding both named results.
+    criteria
+        The fatigue criteria.
+    notes
+        Remarks are appended here (segments not checked, factors outside their data).
+    """
+    model, mesh = results.model, results.mesh
+    first, second = (results.index(name) for name in criteria.result_names)
+    rows: list[tuple[str, str, int, str, float, float, float, str]] = []
+    points: list[FatiguePoint] = []
+    station_shaft = mesh.element_shaft[mesh.station_element]
+    station_segment = mesh.element_segment[mesh.station_element]
+    required = criteria.factor_of_safety
+    for shaft_number, shaft in enumerate(model.shafts):
+        for number, segment in enumerate(shaft.segments):
+            diameter = _round_outer_diameter(segment)
+            material = segment.layers[0].material
+            if (
+                diameter is None
+                or material.ultimate_strength is None
+                or material.yield_strength is None
+            ):
+                notes.append(
+                    f"{shaft.id} segment {number}: fatigue is checked for one-layer round "
+                    "segments of a material with yield and ultimate strengths; not checked"
+                )
+                continue
+            stations = np.flatnonzero((station_shaft == shaft_number) & (station_segment == number))
+            with field_path(f"shafts[{shaft_number}].segments[{number}]"):
+                limit = endurance_limit(
+                    material.ultimate_strength,
+                    diameter,
+                    criteria.finish,
+                    "torsion",
+                    criteria.reliability,
+                    criteria.temperature,
+                    rotating_beam_limit=criteria.endurance_limit,
+                )
+                body_factor, body_note = 1.0, "no notch"
+                if segment.keyseat:
+                    # No notch radius is known for a keyseat: q = 1 (full sensitivity).
+                    body = fatigue_concentration(keyseat_kts(), 1.0)
+                    body_factor, body_note = body.value, "keyseat, q = 1"
+                # (station, Kfs, how): every station with the body's factor, plus the shoulder
+                # at the segment's start on its smaller side (the previous segment's last station
+                # when that one is the smaller).
+                places = [(int(station), body_factor, body_note) for station in stations]
+                shoulder = _shoulder_factor(shaft.segments, number, material.ultimate_strength)
+                if shoulder is not None:
+                    kfs, how, this_side = shoulder
+                    places.append(
+                        (int(stations[0]) if this_side else int(stations[0]) - 1, kfs, how)
+                    )
+            ultimate = ultimate_shear_strength(material.ultimate_strength)
+            shear_yield = yield_shear_strength(material.yield_strength)
+            best: tuple[float, int, FatigueResult] | None = None
+            for place, (station, kfs, _) in enumerate(places):
+                factor = float(mesh.station_stress_per_torque[station])
+                torque_a = float(results.torque[first, station])
+                torque_b = float(results.torque[second, station])
+                if criteria.extremes is not None:
+                    stresses = stresses_from_extremes(torque_a, torque_b, factor, kfs)
+                else:
+                    stresses = stresses_from_mean_alternating(torque_a, abs(torque_b), factor, kfs)
+                outcome = fatigue_factors(
+                    stresses.mean_shear,
+                    stresses.alternating_shear,
+                    limit.value,
+                    ultimate,
+                    shear_yield,
+                )
+                worst = min(outcome.factor_of_safety(criteria.criterion), outcome.first_cycle_yield)
+                if best is None or worst < best[0]:
+                    best = (worst, place, outcome)
+            assert best is not None
+            _, place, outcome = best
+            station, kfs, how = places[place]
+            x = float(mesh.station_x[station])
+            basis = f"Kfs = {kfs:.3g} ({how}); {limit.basis}"
+            if not limit.in_range:
+                notes.append(
+                    f"{shaft.id} segment {number}, fatigue: a Marin factor is outside its data; {limit.basis}"
+                )
+            points.append(FatiguePoint(shaft.id, number, x, outcome, kfs, basis))
+            for kind, factor_of_safety in (
+                ("fatigue", outcome.factor_of_safety(criteria.criterion)),
+                ("first_cycle_yield", outcome.first_cycle_yield),
+            ):
+                rows.append(
+                    (
+                        criteria.label,
+                        shaft.id,
+                        number,
+                        kind,
+                        1.0 / factor_of_safety,
+                        1.0 / required,
+                        x,
+                        f"{criteria.criterion if kind == 'fatigue' else 'Langer'}: "
+                        f"n = {factor_of_safety:.3g} (required {required:g}); {basis}",
+                    )
+                )
+    return rows, points
+
+
+def _shoulder_factor(
+    segments: tuple[Segment, ...], number: int, ultimate_strength: float
+) -> tuple[float, str, bool] | None:
+    """Kfs at a fillet shoulder at a segment's start between round segments.
+
+    Also says whether the smaller side is this segment.
+    """
+    segment = segments[number]
+    if number == 0 or segment.fillet_radius is None:
+        return None
+    here, before = _round_outer_diameter(segment), _round_outer_diameter(segments[number - 1])
+    if here is None or before is None:
+        return None
+    small, big = sorted((here, before))
+    theoretical = shoulder_fillet_kts(big, small, segment.fillet_radius)
+    sensitivity = notch_sensitivity_torsion(segment.fillet_radius, ultimate_strength)
+    factor = fatigue_concentration(theoretical, sensitivity)
+    how = f"shoulder, Kts = {theoretical.value:.3g}, q = {sensitivity.value:.2f}"
+    return factor.value, how, here <= before
