@@ -2,7 +2,9 @@
 
 Independent references: jwcrypto (a JOSE library of its own) checks every JWS; the force-method
 hand check is compared with the closed form for a bar fixed at both ends; hashlib checks the
-package manifest.
+package manifest; the drawings are read back with the standard library's XML parsers
+(xml.etree, xml.dom.minidom) and measured against the case's own dimensions; the shipped
+equation pictures are redrawn with matplotlib.
 """
 
 from __future__ import annotations
@@ -11,25 +13,31 @@ import argparse
 import base64
 import copy
 import hashlib
+import itertools
 import json
 import re
 import subprocess
 import sys
+import warnings
 import zipfile
 from pathlib import Path
+from xml.dom import minidom
+from xml.etree import ElementTree
 
 import nbformat
 import pytest
 from jwcrypto import jwk as jwcrypto_jwk
 from jwcrypto import jws as jwcrypto_jws
 
-from workbench.record import cli_commands
+from workbench.record import cli_commands, equations
 from workbench.record.demo import DEMO_TITLE_BLOCK, LINE_SHAFT_CASE, demo_notebook
 from workbench.record.document import BLOCK_END, BLOCK_START, CSP
 from workbench.record.exporter import RecordExporter, export_file
+from workbench.record.figures import elevation_svg
 from workbench.record.handcheck import force_method_check
+from workbench.record.package import build_package
 from workbench.record.signing import write_key_pair
-from workbench.record.verify import verify_record, verify_text
+from workbench.record.verify import verify_package, verify_record, verify_text
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 
@@ -355,6 +363,8 @@ def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.Capture
     assert _cli(["verify", str(out)]) == 1
     assert "NOT VERIFIED" in capsys.readouterr().out
     assert _cli(["verify", str(tmp_path / "missing.html")]) == 2
+    assert _cli(["verify", str(tmp_path / "missing.zip")]) == 2
+    assert "cannot read the package" in capsys.readouterr().err
     assert _cli(["keygen", "--out", str(tmp_path / "k")]) == 2  # never overwrites a key
 
     package = tmp_path / "pkg.zip"
@@ -414,3 +424,385 @@ def test_nbconvert_finds_the_exporter(tmp_path: Path) -> None:
     text = (tmp_path / "executed.html").read_text("utf-8")
     assert "UNSIGNED" in text
     assert verify_text(text.encode(), None).facts
+
+
+# --- drawings ------------------------------------------------------------------------------
+
+SVG = "{http://www.w3.org/2000/svg}"
+PRESS_DRIVE = Path(__file__).resolve().parents[1] / "workbench" / "cases" / "press_drive.json"
+
+
+def _boxes(root: ElementTree.Element) -> list[tuple[float, float, float, float]]:
+    """(left, right, top, bottom) of every segment outline, in drawing order."""
+    boxes = []
+    for polygon in root.iter(f"{SVG}polygon"):
+        points = [tuple(map(float, pair.split(","))) for pair in polygon.get("points").split()]
+        xs, ys = [p[0] for p in points], [p[1] for p in points]
+        boxes.append((min(xs), max(xs), min(ys), max(ys)))
+    return boxes
+
+
+def test_elevation_is_to_scale() -> None:
+    # The press-drive demo: two shafts (900 mm and 400 mm), solid, tube, taper, layered.
+    case = json.loads(PRESS_DRIVE.read_text("utf-8"))
+    root = ElementTree.fromstring(elevation_svg(parse_case(case)))
+    boxes = _boxes(root)
+    lengths = [250, 300, 200, 150, 400]  # mm, segment by segment, from the case
+    diameters = [60, 70, 70, 75, 40]  # largest outer diameter of each segment (mm)
+    scale = (boxes[0][1] - boxes[0][0]) / lengths[0]  # px per mm
+    tolerance = 0.15  # px: coordinates are written to 0.1 px
+    for (left, right, top, bottom), length, diameter in zip(boxes, lengths, diameters, strict=True):
+        assert right - left == pytest.approx(length * scale, abs=tolerance)
+        assert bottom - top == pytest.approx(diameter * scale, abs=tolerance)  # same scale
+    # Segments follow one another along the shaft; both shafts start at the same x.
+    for first, second in itertools.pairwise(boxes[:4]):
+        assert second[0] == pytest.approx(first[1], abs=tolerance)
+    assert boxes[4][0] == pytest.approx(boxes[0][0], abs=tolerance)
+    # The taper runs Ø70 → Ø50: its right end is 50/70 the height of its left end.
+    taper = next(p for i, p in enumerate(root.iter(f"{SVG}polygon")) if i == 2)
+    points = [tuple(map(float, pair.split(","))) for pair in taper.get("points").split()]
+    left_x, right_x = min(p[0] for p in points), max(p[0] for p in points)
+
+    def height_at(x: float) -> float:
+        ys = [p[1] for p in points if abs(p[0] - x) < 1e-6]
+        return max(ys) - min(ys)
+
+    assert height_at(right_x) == pytest.approx(50 * scale, abs=tolerance)
+    assert height_at(left_x) == pytest.approx(70 * scale, abs=tolerance)
+    # Gears: bars as tall as their pitch diameters (2 × 60 mm on the auger, 2 × 90 on the feeder).
+    gears = sorted(
+        float(rect.get("height"))
+        for rect in root.iter(f"{SVG}rect")
+        if rect.get("fill") == "#7a4a12"  # the gear bars' colour
+    )
+    assert gears == pytest.approx([120 * scale, 180 * scale], abs=tolerance)
+
+
+def test_elevation_labels_supports_gears_and_loads() -> None:
+    case = json.loads(PRESS_DRIVE.read_text("utf-8"))
+    svg = elevation_svg(parse_case(case))
+    root = ElementTree.fromstring(svg)
+    texts = {text.text for text in root.iter(f"{SVG}text")}
+    for expected in (
+        "shaft auger",
+        "shaft feeder",
+        "S0 fixed",
+        "S1 spring 500 N*m/deg",
+        "900 N*m (pressing)",
+        "1400 N*m (jam)",
+        "\u2212250 N*m (jam)",
+        "\u22120.6 → \u22121.2 N*m/mm (pressing)",
+        "gear 0, r 60 (meshes feeder at x 0)",
+        "gear 0, r 90 (meshes auger at x 550)",
+        "Ø60",
+        "Ø70/40",
+        "Ø70→50",
+        "Ø75/50 + Ø50",
+        "Ø40",
+        "250",
+        "300",
+        "200",
+        "150",
+        "900",
+        "400",
+    ):
+        assert expected in texts, expected
+    # Three point torques, each a moment vector with two arrowheads; a fixed support's triangle.
+    fills = [path.get("fill") for path in root.iter(f"{SVG}path")]
+    assert fills.count("#a00000") == 6
+    assert svg == elevation_svg(parse_case(case))  # deterministic: the same bytes
+
+
+def test_elevation_escapes_every_user_string() -> None:
+    case = copy.deepcopy(LINE_SHAFT_CASE)
+    name = "m<a>&\"'x"
+    case["shafts"][0]["id"] = name
+    for support in case["supports"]:
+        support["shaft"] = name
+    for load_case in case["load_cases"]:
+        for load in (*load_case.get("torques", []), *load_case.get("distributed", [])):
+            load["shaft"] = name
+    case["load_cases"][1]["name"] = ALERT
+    case["combinations"][0]["factors"] = {"service": 1.5, ALERT: 1.2}
+    svg = elevation_svg(parse_case(case))
+    root = ElementTree.fromstring(svg)  # well-formed: nothing broke out of its text node
+    texts = [text.text for text in root.iter(f"{SVG}text")]
+    assert f"shaft {name}" in texts
+    assert f"900 N*m ({ALERT})" in texts
+    assert not [e for e in root.iter() if e.tag.rsplit("}", 1)[-1] != "svg" and "script" in e.tag]
+    assert ALERT not in svg
+
+
+def test_shipped_equations_match_their_source() -> None:
+    folder = equations.equations_dir()
+    index = json.loads((folder / "index.json").read_text("utf-8"))
+    pictures = equations.load_equations()
+    assert [p[0] for p in pictures] == list(equations.EQUATIONS)
+    _, version, *_ = index["generator"].split()
+    import matplotlib
+
+    for equation, svg, width, height in pictures:
+        entry = index["equations"][equation.name]
+        assert entry["tex"] == equation.tex
+        assert hashlib.sha256(svg.encode()).hexdigest() == entry["sha256"]
+        root = ElementTree.fromstring(svg)
+        assert root.get("width") == f"{width:g}pt" and root.get("height") == f"{height:g}pt"
+        fresh = equations.render_equation(equation.tex)
+        if matplotlib.__version__ == version:
+            assert fresh == svg  # reproducible: the same matplotlib redraws the same bytes
+        else:  # another matplotlib may lay glyphs out a hair differently, never another size
+            redrawn = ElementTree.fromstring(fresh)
+            assert float(redrawn.get("width")[:-2]) == pytest.approx(width, rel=0.03)
+            assert float(redrawn.get("height")[:-2]) == pytest.approx(height, rel=0.03)
+
+
+def test_equation_pictures_from_another_source_are_refused(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from workbench.solver.errors import InputError
+
+    equations.write_equations(tmp_path)
+    monkeypatch.setattr(equations, "equations_dir", lambda: tmp_path)
+    assert len(equations.load_equations.__wrapped__()) == len(equations.EQUATIONS)
+    index = json.loads((tmp_path / "index.json").read_text("utf-8"))
+    index["equations"]["shear-stress"]["tex"] = r"\tau = T/J"
+    (tmp_path / "index.json").write_text(json.dumps(index), "utf-8")
+    with pytest.raises(InputError, match="another source"):
+        equations.load_equations.__wrapped__()
+    equations.write_equations(tmp_path)
+    (tmp_path / "layers.svg").write_text("<svg/>", "utf-8")
+    with pytest.raises(InputError, match="differs from its index"):
+        equations.load_equations.__wrapped__()
+
+
+def test_export_needs_no_plotting_library(tmp_path: Path) -> None:
+    notebook = _executed(tmp_path)
+    code = (
+        "import sys\n"
+        "from workbench.record.exporter import export_file\n"
+        f"text, _ = export_file({str(notebook)!r}, execute=False)\n"
+        "assert 'class=\"equation\"' in text and 'figure elevation' in text\n"
+        "print(sorted(m for m in sys.modules if m.split('.')[0] == 'matplotlib'))\n"
+    )
+    completed = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=300, check=False
+    )
+    assert completed.returncode == 0, completed.stderr
+    assert completed.stdout.strip() == "[]"
+
+
+# --- SVG outputs of notebook cells -----------------------------------------------------------
+
+HOSTILE_SVG = (
+    '<svg xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" '
+    'width="120" height="60" onload="alert(3)">'
+    "<script>alert(4)</script>"
+    "<style>@import url(http://example.invalid/a.css); rect { fill: blue }</style>"
+    "<style>rect { stroke: url(#edge) } circle { fill: url(http://example.invalid/p#x) }</style>"
+    '<rect id="kept" width="100" height="40" fill="#2a6f2a"/>'
+    '<foreignObject width="10" height="10"><div xmlns="http://www.w3.org/1999/xhtml">x</div>'
+    "</foreignObject>"
+    '<image xlink:href="http://example.invalid/x.png" width="5" height="5"/>'
+    '<a href="javascript:alert(5)"><circle r="3" cx="5" cy="5" onclick="alert(6)"/></a>'
+    '<set attributeName="href" to="javascript:alert(7)"/>'
+    "</svg>"
+)
+
+
+def _svg_notebook() -> object:
+    nb = demo_notebook(executed=True)
+    cell = nbformat.v4.new_code_cell("draw()")
+    cell.outputs = [
+        nbformat.v4.new_output(
+            "display_data", data={"image/svg+xml": HOSTILE_SVG, "text/plain": "drawing"}
+        ),
+        nbformat.v4.new_output(
+            "display_data",
+            data={"text/html": f"<div>inline {HOSTILE_SVG}</div>", "text/plain": "drawing"},
+        ),
+    ]
+    nb.cells.append(cell)
+    nb.cells.append(nbformat.v4.new_markdown_cell(f"A sketch:\n\n{HOSTILE_SVG}\n"))
+    return nb
+
+
+@pytest.mark.parametrize("skip_svg_encoding", [False, True])
+def test_svg_outputs_are_kept_as_clean_images(skip_svg_encoding: bool) -> None:
+    exporter = RecordExporter(execute=False, skip_svg_encoding=skip_svg_encoding)
+    text, _ = exporter.from_notebook_node(_svg_notebook())
+    cells = text.split('<section class="record-section" id="notebook">')[1]
+    uris = re.findall(r'<img [^>]*src="data:image/svg\+xml;base64,([A-Za-z0-9+/=]+)"', cells)
+    assert len(uris) == 3  # the image/svg+xml output, the inline HTML one, the markdown one
+    for uri in uris:
+        drawing = base64.b64decode(uri).decode("utf-8")
+        document = minidom.parseString(drawing)  # another parser than the cleaner's
+        names = {node.localName for node in document.getElementsByTagName("*")}
+        assert "rect" in names and "circle" in names  # the drawing is there
+        assert not names & {"script", "foreignObject", "set"}
+        for node in document.getElementsByTagName("*"):
+            attributes = [node.attributes.item(i) for i in range(node.attributes.length)]
+            assert not [a for a in attributes if a.localName.lower().startswith("on")]
+        assert "javascript:" not in drawing and "example.invalid" not in drawing
+        assert "@import" not in drawing and "fill: blue" not in drawing  # that sheet is gone
+        assert "url(#edge)" in drawing  # a reference inside the drawing stays
+    assert "alert(" not in text
+    assert "img-src data:" in CSP
+
+
+def test_svg_that_declares_entities_is_left_out() -> None:
+    from workbench.record.sanitize import clean_svg, sanitize_notebook_html
+
+    laughs = (
+        '<!DOCTYPE svg [<!ENTITY a "aaaaaaaaaa"><!ENTITY b "&a;&a;&a;&a;&a;">]>'
+        '<svg xmlns="http://www.w3.org/2000/svg"><text>&b;</text></svg>'
+    )
+    assert clean_svg(laughs) is None
+    assert clean_svg("<svg><rect") is None  # not well-formed
+    assert clean_svg('<html xmlns="http://www.w3.org/1999/xhtml"/>') is None  # not an SVG
+    html = sanitize_notebook_html(f"<p>before</p>{laughs.split(']>')[1]}<p>after</p>")
+    assert "<p>before</p>" in html and "<p>after</p>" in html
+    uri = "data:image/svg+xml;base64," + base64.b64encode(laughs.encode()).decode()
+    cleaned = sanitize_notebook_html(f'<img alt="x" src="{uri}">')
+    assert "data:" not in cleaned and "ENTITY" not in cleaned
+
+
+# --- calculation package -------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def package(tmp_path_factory: pytest.TempPathFactory, keys: dict) -> Path:
+    folder = tmp_path_factory.mktemp("pkg")
+    notebook = folder / "line.ipynb"
+    nbformat.write(demo_notebook(executed=True), str(notebook))
+    out = folder / "line.zip"
+    build_package(notebook, out, key_file=keys["first"][0])
+    return out
+
+
+def _rewritten(
+    source: Path,
+    target: Path,
+    change: dict[str, bytes] | None = None,
+    add: list[tuple[str, bytes]] | None = None,
+) -> Path:
+    """A copy of a zip with some members' bytes replaced and some entries appended."""
+    with zipfile.ZipFile(source) as old, zipfile.ZipFile(target, "w") as new:
+        for info in old.infolist():
+            new.writestr(info, (change or {}).get(info.filename, old.read(info)))
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", UserWarning)  # zipfile warns of a duplicate name
+            for name, data in add or []:
+                new.writestr(name, data)
+    return target
+
+
+def _member(package: Path, name: str) -> bytes:
+    with zipfile.ZipFile(package) as archive:
+        return archive.read(name)
+
+
+def test_package_verifies(package: Path, keys: dict, capsys: pytest.CaptureFixture) -> None:
+    with_key = verify_package(package, keys["first"][1])
+    assert with_key.ok, with_key.lines()
+    listed = len(json.loads(_member(package, "manifest.json"))["files"])
+    assert (
+        f"Files: {listed} of {listed} listed files match the manifest (SHA-256)" in with_key.facts
+    )
+    assert any(line.startswith("Record: Results: re-solved") for line in with_key.facts)
+    alone = verify_package(package)
+    assert alone.ok, alone.lines()
+    fingerprint = jwcrypto_jwk.JWK.from_pem(keys["first"][1].read_bytes()).thumbprint()
+    assert f"Manifest: valid EdDSA (Ed25519) signature by key {fingerprint}" in alone.facts
+    assert _cli(["verify", str(package), "--public-key", str(keys["first"][1])]) == 0
+    assert capsys.readouterr().out.rstrip().endswith("\nVERIFIED")
+
+
+def test_tampered_file_in_package_fails(
+    package: Path, keys: dict, tmp_path: Path, capsys: pytest.CaptureFixture
+) -> None:
+    table = _member(package, "results.csv")
+    digit = re.search(rb"\n[^,\n]*,[^,\n]*,(\d)", table)
+    assert digit is not None
+    flipped = str((int(digit.group(1)) + 1) % 10).encode()
+    tampered = table[: digit.start(1)] + flipped + table[digit.end(1) :]
+    zipped = _rewritten(package, tmp_path / "tampered.zip", {"results.csv": tampered})
+    outcome = verify_package(zipped, keys["first"][1])
+    assert not outcome.ok
+    assert outcome.problems == [
+        "results.csv was changed after packaging: its SHA-256 differs from the manifest's"
+    ]
+    assert _cli(["verify", str(zipped)]) == 1
+    printed = capsys.readouterr().out
+    assert "FAILED: results.csv was changed" in printed and printed.endswith("NOT VERIFIED\n")
+    # A changed size is caught before anything is read; so is a changed record.
+    longer = _rewritten(
+        package, tmp_path / "longer.zip", {"case.json": _member(package, "case.json") + b" "}
+    )
+    assert any("case.json is" in p and "bytes" in p for p in verify_package(longer).problems)
+    record = _member(package, "record.html").replace(b"Ingenieur", b"Ingenieux", 1)
+    edited = _rewritten(package, tmp_path / "record.zip", {"record.html": record})
+    problems = verify_package(edited).problems
+    assert (
+        "record.html was changed after packaging: its SHA-256 differs from the manifest's"
+        in problems
+    )
+    assert any(p.startswith("record.html: the record's content was altered") for p in problems)
+
+
+def test_manifest_edited_to_match_fails(package: Path, tmp_path: Path) -> None:
+    table = _member(package, "results.csv").replace(b",", b";", 1)
+    manifest = json.loads(_member(package, "manifest.json"))
+    for entry in manifest["files"]:
+        if entry["name"] == "results.csv":
+            entry["sha256"] = hashlib.sha256(table).hexdigest()
+    from workbench.record.canonical import canonicalize
+
+    zipped = _rewritten(
+        package,
+        tmp_path / "forged.zip",
+        {"results.csv": table, "manifest.json": canonicalize(manifest)},
+    )
+    outcome = verify_package(zipped)
+    assert not outcome.ok
+    assert outcome.problems == ["manifest.json differs from the manifest that was signed"]
+
+
+def test_added_or_doubled_files_fail(package: Path, tmp_path: Path) -> None:
+    added = _rewritten(package, tmp_path / "added.zip", add=[("notes.txt", b"trust me")])
+    assert verify_package(added).problems == [
+        "notes.txt is not listed in the manifest: it was added after packaging"
+    ]
+    doubled = _rewritten(package, tmp_path / "doubled.zip", add=[("case.json", b"{}")])
+    problems = verify_package(doubled).problems
+    assert "the zip holds 2 entries named case.json: one was added after packaging" in problems
+
+
+def test_package_resigned_with_another_key_fails(package: Path, keys: dict, tmp_path: Path) -> None:
+    notebook = tmp_path / "line.ipynb"
+    notebook.write_bytes(_member(package, "notebook.ipynb"))
+    other = build_package(notebook, tmp_path / "other.zip", key_file=keys["second"][0])
+    assert (
+        other["results_digest"] == json.loads(_member(package, "manifest.json"))["results_digest"]
+    )
+    against_first = verify_package(tmp_path / "other.zip", keys["first"][1])
+    assert not against_first.ok
+    assert any("re-signed" in line for line in against_first.problems)
+    # A manifest signed by one key beside a record signed by another is caught too.
+    mixed = _rewritten(
+        package,
+        tmp_path / "mixed.zip",
+        {"manifest.jws": _member(tmp_path / "other.zip", "manifest.jws")},
+    )
+    assert any("not with the record's key" in p for p in verify_package(mixed).problems)
+
+
+def test_unsigned_or_broken_package_does_not_verify(tmp_path: Path) -> None:
+    notebook = tmp_path / "line.ipynb"
+    nbformat.write(demo_notebook(executed=True), str(notebook))
+    build_package(notebook, tmp_path / "unsigned.zip")
+    outcome = verify_package(tmp_path / "unsigned.zip")
+    assert not outcome.ok
+    assert "the package is UNSIGNED: it has no manifest.jws" in outcome.problems
+    cut = tmp_path / "cut.zip"
+    cut.write_bytes((tmp_path / "unsigned.zip").read_bytes()[:-40])
+    assert not verify_package(cut).ok

@@ -1,7 +1,8 @@
 """The record opened in headless Chromium with every outside request refused.
 
-Checks: the page makes no request but for itself, the equations and charts (inline SVG images)
-render with a size, and no script from a title or a markdown cell runs (no dialog opens).
+Checks: the page makes no request but for itself, the equations and drawings (inline SVG images)
+render at a readable size, an SVG cell output carrying a script is shown as a picture and its
+script never runs, and no script from a title or a markdown cell runs (no dialog opens).
 Needs /usr/bin/chromium and playwright (never ``playwright install``).
 """
 
@@ -43,6 +44,21 @@ def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
     nb = demo_notebook(
         title_block=block, note=f"Note {ALERT} <img src=x onerror=alert(2)>", executed=True
     )
+    drawing = nbformat.v4.new_code_cell("draw()")
+    drawing.outputs = [
+        nbformat.v4.new_output(
+            "display_data",
+            data={
+                "image/svg+xml": (
+                    '<svg xmlns="http://www.w3.org/2000/svg" width="160" height="80" '
+                    'onload="alert(3)"><script>alert(4)</script>'
+                    '<rect width="160" height="80" fill="#2a6f2a"/></svg>'
+                ),
+                "text/plain": "drawing",
+            },
+        )
+    ]
+    nb.cells.append(drawing)
     nbformat.write(nb, str(notebook))
     private, _ = write_key_pair(tmp_path / "keys")
     text, _ = export_file(notebook, key_file=private)
@@ -73,6 +89,12 @@ def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
             page.on("dialog", lambda dialog: (dialogs.append(dialog.message), dialog.dismiss()))
             page.goto(record.as_uri())
             page.wait_for_load_state("load")
+            output = page.eval_on_selector_all(
+                ".jp-RenderedSVG img",
+                "els => els.map(e => [e.complete, e.naturalWidth, e.naturalHeight,"
+                " e.src.startsWith('data:image/svg+xml;base64,')])",
+            )
+            column = page.eval_on_selector("main#record-body", "e => e.clientWidth")
             sizes = page.eval_on_selector_all(
                 "img.equation, img.figure",
                 "els => els.map(e => [e.className, e.complete, e.naturalWidth, e.naturalHeight,"
@@ -93,4 +115,11 @@ def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
     assert len(equations) >= 6 and len(charts) == 3
     for _, complete, natural_width, natural_height, shown_width in sizes:
         assert complete and natural_width > 0 and natural_height > 0 and shown_width > 0
+    # Readable: drawings span the text column; equations show at their natural size.
+    for klass, _, natural_width, _, shown_width in sizes:
+        if "figure" in klass:
+            assert shown_width >= 0.95 * min(column, natural_width)
+        else:
+            assert shown_width >= natural_width - 1  # the width attribute is rounded to a pixel
+    assert output == [[True, 160, 80, True]]  # the SVG output is shown; its script did not run
     assert ALERT in title and ALERT in heading  # shown as text, not run

@@ -114,6 +114,11 @@ def format_number(number: float, field: str = "") -> str:
         raise CanonicalizationError(field, msg)
     if number == 0.0:
         return "0"  # both zeros (ECMA-262 Number::toString step 2)
+    text = repr(number)
+    if "e" not in text:
+        # 1e-4 ≤ |x| < 1e16: repr writes the same shortest digits without an exponent, as
+        # ECMAScript does there; only its ".0" on whole numbers differs.
+        return text[:-2] if text.endswith(".0") else text
     sign = "-" if number < 0.0 else ""
     digits, exponent = _shortest_digits(abs(number))
     # ECMA-262 names: k digits, the decimal point after the n-th digit (value = 0.digits × 10^n).
@@ -172,7 +177,10 @@ def _serialize(value: Any, field: str, parts: list[str]) -> None:
         for index, item in enumerate(value):
             if index:
                 parts.append(",")
-            _serialize(item, f"{field}[{index}]", parts)
+            if type(item) is float and math.isfinite(item):  # common: no path to build
+                parts.append(format_number(item))
+            else:
+                _serialize(item, f"{field}[{index}]", parts)
         parts.append("]")
     else:
         msg = (

@@ -2,8 +2,9 @@
 
 Exit status: 0 on success; 2 for bad input (raised as :class:`InputError`/
 :class:`WorkbenchError`, printed by the main command as one line); ``verify`` exits 1 when the
-record does not verify (altered, unsigned, re-signed with another key, truncated), after
-printing what it found and what failed, one line each.
+record or package does not verify (altered, unsigned, re-signed with another key, truncated, a
+file of the package changed, added or missing), after printing what it found and what failed,
+one line each.
 """
 
 from __future__ import annotations
@@ -85,9 +86,15 @@ def _command_export(arguments: argparse.Namespace) -> int:
 
 
 def _command_verify(arguments: argparse.Namespace) -> int:
-    from workbench.record.verify import verify_record  # noqa: PLC0415
+    import zipfile  # noqa: PLC0415
 
-    outcome = verify_record(arguments.record, arguments.public_key)
+    from workbench.record.verify import verify_package, verify_record  # noqa: PLC0415
+
+    # A package is a zip (named so, or starting with a zip header); a record is HTML text.
+    path = Path(arguments.record)
+    is_package = path.suffix.lower() == ".zip" or zipfile.is_zipfile(path)
+    check = verify_package if is_package else verify_record
+    outcome = check(arguments.record, arguments.public_key)
     for line in outcome.lines():
         sys.stdout.write(line + "\n")
     return EXIT_OK if outcome.ok else EXIT_NOT_VERIFIED
@@ -133,9 +140,14 @@ def register(commands: Any) -> None:
 
     verify = commands.add_parser(
         "verify",
-        help="check a record's signature, content and results; exit 0 verified, 1 not, 2 bad input",
+        help="check a record's or a package's signature, content and results; exit 0 verified, "
+        "1 not, 2 bad input",
     )
-    verify.add_argument("record", help="the record (.html)")
+    verify.add_argument(
+        "record",
+        help="the record (.html) or calculation package (.zip: manifest signature, every "
+        "file's SHA-256, and the record inside)",
+    )
     verify.add_argument(
         "--public-key", metavar="PEM", help="the signer's public key (PEM or JWK JSON)"
     )

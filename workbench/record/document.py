@@ -185,42 +185,12 @@ def _img(svg: str, alt: str, css: str = "figure") -> str:
 
 # --- sections ------------------------------------------------------------------------------
 
-#: Equations of the method, in mathtext, each with a plain-text reading for the alt text.
-EQUATIONS: tuple[tuple[str, str, str], ...] = (
-    (
-        r"\frac{d\theta}{dx} = \frac{T(x)}{G\,J(x)}",
-        "dθ/dx = T(x)/(G·J(x))",
-        "rate of twist (Saint-Venant torsion, circular section)",
-    ),
-    (r"\tau_{max} = \frac{T\,r_o}{J}", "τ_max = T·r_o/J", "largest shear stress on the section"),
-    (
-        r"J_{solid} = \frac{\pi D^4}{32},\quad J_{tube} = \frac{\pi (D^4 - d^4)}{32}",
-        "J = πD⁴/32 (solid), π(D⁴ − d⁴)/32 (tube)",
-        "polar moment of area",
-    ),
-    (
-        r"k_e = \left( \int_0^{L_e} \frac{dx}{G\,J(x)} \right)^{-1}",
-        "k_e = (∫ dx/(G·J(x)))⁻¹",
-        "exact element stiffness from the exact flexibility",
-    ),
-    (r"\begin{bmatrix}k_e & -k_e\\ -k_e & k_e\end{bmatrix}", "element matrix", ""),
-    (r"G\,J = \sum_i G_i\,J_i", "G·J = Σ Gᵢ·Jᵢ", "bonded coaxial layers share the twist"),
-    (
-        r"T(x) = -\sum_{x_i < x} T_i - \int_0^x t(s)\,ds",
-        "T(x) = −Σ T_i (x_i < x) − ∫₀ˣ t(s) ds",
-        "internal torque from equilibrium",
-    ),
-    (
-        r"\theta_{B0} + R_B\,f_{BB} = r_B - \frac{R_B}{k_B}",
-        "θ_B0 + R_B·f_BB = r_B − R_B/k_B",
-        "compatibility at the released support (hand check)",
-    ),
-)
-
 
 @lru_cache(maxsize=1)
 def _method_html() -> str:
-    from workbench.record.figures import equation_svg  # noqa: PLC0415
+    """The method section; the same for every record, so built once per process."""
+    from workbench.record.equations import load_equations  # noqa: PLC0415
+    from workbench.record.figures import data_uri  # noqa: PLC0415
 
     assumptions = [
         "Linear elastic, isotropic, homogeneous material in each layer.",
@@ -238,16 +208,19 @@ def _method_html() -> str:
     ]
     items = "".join(f"<li>{escape(text)}</li>" for text in assumptions)
     rows = []
-    for tex, reading, meaning in EQUATIONS:
-        if tex.startswith(r"\begin"):
-            continue  # mathtext has no matrices; the stiffness matrix is described in words
-        picture = _img(equation_svg(tex), reading, "equation")
+    for number, (equation, svg, width_pt, height_pt) in enumerate(load_equations(), start=1):
+        # Shown at the size drawn (pt → CSS px at 96 px per inch), so every equation's text
+        # has the same size; the width and height attributes keep the layout from jumping.
+        width, height = round(width_pt * 4 / 3), round(height_pt * 4 / 3)
         rows.append(
-            f'<div class="equation-row">{picture}'
-            f'<span class="equation-note">{escape(meaning)}</span></div>'
+            f'<tr><td class="equation-picture"><img class="equation" width="{width}" '
+            f'height="{height}" alt="{escape(equation.reading)}" src="{data_uri(svg)}"></td>'
+            f'<td class="equation-note">{escape(equation.meaning)}</td>'
+            f'<td class="equation-number">({number})</td></tr>'
         )
     return (
-        f'<ul>{items}</ul>\n<h3>Equations</h3>\n<div class="equations">{"".join(rows)}</div>'
+        f'<ul>{items}</ul>\n<h3>Equations</h3>\n<table class="equations"><tbody>{"".join(rows)}'
+        "</tbody></table>"
         "\n<p>References: J. M. Gere and B. J. Goodno, <em>Mechanics of Materials</em>, 8th ed., "
         "ch. 3; W. D. Pilkey, <em>Formulas for Stress, Strain, and Structural Matrices</em>, "
         "2nd ed., ch. 14 (torsion, transfer and stiffness matrices).</p>"
@@ -284,8 +257,12 @@ def _inputs_html(computation: Computation) -> str:
     parts = [
         "<h3>Geometry</h3>",
         _img(elevation_svg(model), "to-scale elevation of the shafts", "figure elevation"),
-        f'<p class="caption">Elevation to scale (lengths and diameters in {escape(length)}): '
-        "▲ fixed support, ◆ spring support, ▼ point torque, brown bar: gear.</p>",
+        f'<p class="caption">Elevation, drawn to scale (dimensions in {escape(length)}). '
+        "Below each shaft: supports (filled triangle fixed, zigzag spring) and the chain of "
+        "segment lengths. Above: point torques as moment vectors (double arrowhead, right-hand "
+        "rule about the shaft's +x axis) with value and load case, distributed torques as bands "
+        "over their span, gears as hatched bars of their pitch diameter. Dashed lines: bores; "
+        "thin lines: bonded layer interfaces.</p>",
     ]
     rows = []
     for shaft in model.shafts:
@@ -839,12 +816,8 @@ def record_css() -> str:
     return (templates_dir() / "workbench_record" / "static" / "record.css").read_text("utf-8")
 
 
-def render_page(title: str, body: str, extra_css: str = "") -> tuple[str, str]:
-    """The record page around ``body``: ``(before block, after block)`` text.
-
-    ``extra_css`` (the notebook cells' stylesheets) comes from templates, never from the
-    notebook.
-    """
+@lru_cache(maxsize=1)
+def _page_template() -> Any:
     from jinja2 import Environment, FileSystemLoader  # noqa: PLC0415
 
     environment = Environment(
@@ -852,8 +825,17 @@ def render_page(title: str, body: str, extra_css: str = "") -> tuple[str, str]:
         autoescape=True,
         keep_trailing_newline=True,
     )
+    return environment.get_template("record.html.j2")
+
+
+def render_page(title: str, body: str, extra_css: str = "") -> tuple[str, str]:
+    """The record page around ``body``: ``(before block, after block)`` text.
+
+    ``extra_css`` (the notebook cells' stylesheets) comes from templates, never from the
+    notebook.
+    """
     css = (extra_css + "\n" + record_css()) if extra_css else record_css()
-    page = environment.get_template("record.html.j2").render(
+    page = _page_template().render(
         title=title,
         csp=Markup(CSP),
         css=Markup(css),

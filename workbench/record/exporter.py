@@ -9,6 +9,7 @@ follow the record, sanitized: nothing from them can run or fetch.
 from __future__ import annotations
 
 import copy
+import functools
 from pathlib import Path
 from typing import Any
 
@@ -37,6 +38,12 @@ def execute_notebook(nb: Any, folder: Path | None) -> Any:
     )
     client.execute()
     return nb
+
+
+@functools.lru_cache(maxsize=4)
+def _read_css(path: str) -> str:
+    """A template stylesheet, read once per process (it is part of the installed nbconvert)."""
+    return Path(path).read_text("utf-8")
 
 
 class RecordExporter(HTMLExporter):
@@ -70,7 +77,7 @@ class RecordExporter(HTMLExporter):
         for folder in self.template_paths:
             candidate = Path(folder) / "static" / "index.css"
             if Path(folder).name == "lab" and candidate.is_file():
-                return candidate.read_text("utf-8")
+                return _read_css(str(candidate))
         return ""
 
     def from_notebook_node(  # type: ignore[override]
@@ -79,12 +86,13 @@ class RecordExporter(HTMLExporter):
         """Build the record of ``nb``; returns ``(record text, resources)``."""
         from workbench.record.signing import load_private_key  # noqa: PLC0415
 
-        nb = copy.deepcopy(nb)
         resources = self._init_resources(resources)
         path = (resources.get("metadata") or {}).get("path") or ""
         folder = Path(path) if path else None
         if self.execute and not has_case_output(nb):
-            nb = execute_notebook(nb, folder)
+            # Executing fills the outputs in place: run a copy, never the caller's notebook.
+            # (Otherwise nbconvert copies the notebook itself before its preprocessors run.)
+            nb = execute_notebook(copy.deepcopy(nb), folder)
         case, source = find_case(nb, folder)
         computation = compute(case)
         title_block = title_block_from(nb, dict(self.title_block))

@@ -14,12 +14,22 @@ script, no template). It
 5. re-runs the solver and the checks from the signed case and compares the results digest,
    and compares the results and checks sections written in the record with those rebuilt
    from the recomputation.
+
+A calculation package (zip, see :mod:`workbench.record.package`) is checked by
+:func:`verify_package`: the manifest's signature, every file's size and SHA-256 against the
+manifest, no file added or given twice, the record inside as above, and the case file and
+results digest against what the record signs.
 """
 
 from __future__ import annotations
 
+import hashlib
+import io
 import json
 import re
+import zipfile
+import zlib
+from collections import Counter
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -38,7 +48,26 @@ from workbench.record.document import (
 )
 from workbench.solver.errors import InputError, WorkbenchError
 
-__all__ = ["Verification", "verify_record", "verify_text"]
+__all__ = [
+    "PACKAGE_FORMAT",
+    "Verification",
+    "verify_package",
+    "verify_package_bytes",
+    "verify_record",
+    "verify_text",
+]
+
+#: ``format`` of a package manifest.
+PACKAGE_FORMAT = FORMAT + "-package"
+#: Names of package members: the manifest and its signature (not listed in it), record, case.
+MANIFEST, MANIFEST_SIGNATURE, RECORD, CASE = (
+    "manifest.json",
+    "manifest.jws",
+    "record.html",
+    "case.json",
+)
+#: Largest member read from a package (bytes): a guard against a zip that inflates without end.
+MAX_MEMBER_BYTES = 256 * 1024 * 1024
 
 _TOKEN = re.compile(
     r'<script type="application/jose" id="record-signature">([A-Za-z0-9_.-]*)</script>'
@@ -61,11 +90,14 @@ class Verification:
         What the record says and what was confirmed (signer, time, fingerprint…).
     problems
         What failed, one clear line each.
+    payload
+        The record's payload as read (signed or not), ``None`` when it could not be read.
     """
 
     ok: bool = False
     facts: list[str] = field(default_factory=list)
     problems: list[str] = field(default_factory=list)
+    payload: dict[str, Any] | None = None
 
     def lines(self) -> list[str]:
         """Readable report lines, the verdict last."""
@@ -201,6 +233,7 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
     if not isinstance(payload, dict) or payload.get("format") != FORMAT:
         problems.append("the payload is not a workbench calculation record")
         return outcome
+    outcome.payload = payload
     outcome.facts += [
         f"Signed by: {payload.get('signer') or 'not named'}",
         f"Signed at: {payload.get('signed_at', '?')} (UTC)",
@@ -251,3 +284,223 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
             )
     outcome.ok = signed and not problems
     return outcome
+
+
+# --- calculation package -------------------------------------------------------------------
+
+
+def verify_package(path: str | Path, public_key_path: str | Path | None = None) -> Verification:
+    """Check a calculation package (zip); see :func:`verify_package_bytes`.
+
+    Raises
+    ------
+    InputError
+        When the file (or the key file) cannot be read.
+    """
+    file = Path(path)
+    try:
+        data = file.read_bytes()
+    except OSError as error:
+        msg = f"cannot read the package: {error.strerror or error}"
+        raise InputError(str(file), msg) from None
+    public_key = None
+    if public_key_path is not None:
+        from workbench.record.signing import load_public_key  # noqa: PLC0415
+
+        public_key = load_public_key(public_key_path)
+    return verify_package_bytes(data, public_key)
+
+
+def _read_members(
+    archive: zipfile.ZipFile, sizes: dict[str, int], problems: list[str]
+) -> dict[str, bytes]:
+    """Read the entries named in ``sizes`` (name → expected size), refusing any other size."""
+    members = {}
+    for info in archive.infolist():
+        expected = sizes.get(info.filename)
+        if expected is None or info.filename in members:
+            continue
+        if info.file_size > MAX_MEMBER_BYTES:
+            problems.append(
+                f"{info.filename} claims {info.file_size:,} bytes, more than a package member "
+                f"may hold ({MAX_MEMBER_BYTES:,}): not read"
+            )
+            continue
+        if info.file_size != expected:
+            problems.append(
+                f"{info.filename} is {info.file_size} bytes, the manifest says {expected}: it "
+                "was changed after packaging"
+            )
+            continue
+        try:
+            members[info.filename] = archive.read(info)
+        except (zipfile.BadZipFile, zlib.error, EOFError, OSError, NotImplementedError) as error:
+            problems.append(f"{info.filename} cannot be read from the zip ({error}): damaged")
+    return members
+
+
+def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
+    """Check the bytes of a calculation package.
+
+    1. ``manifest.jws`` must be a valid EdDSA signature over exactly the bytes of
+       ``manifest.json``, by the key given or else by the key the record inside carries (the
+       fingerprint reported is then what a reader compares with the published one);
+    2. every file the manifest lists must be present once, with its size and SHA-256, and no
+       other file may be in the zip;
+    3. ``record.html`` must verify (:func:`verify_text`, with the same key), and ``case.json``
+       and the manifest's results digest must match what the record signs.
+
+    Parameters
+    ----------
+    data
+        The zip file's bytes.
+    public_key
+        The signer's Ed25519 public key, or ``None`` to use the key embedded in the record.
+
+    Returns
+    -------
+    Verification
+        Facts and problems; ``ok`` only when all holds.
+    """
+    from workbench.record.signing import (  # noqa: PLC0415
+        SigningError,
+        decode_unverified,
+        jwk_thumbprint,
+        public_key_from_jwk,
+        verify_compact,
+    )
+
+    outcome = Verification()
+    facts, problems = outcome.facts, outcome.problems
+    try:
+        archive = zipfile.ZipFile(io.BytesIO(data))
+    except zipfile.BadZipFile as error:
+        problems.append(f"not a zip archive ({error}): not a calculation package, or damaged")
+        return outcome
+    with archive:
+        names = archive.namelist()
+        for name, count in sorted(Counter(names).items()):
+            if count > 1:
+                problems.append(
+                    f"the zip holds {count} entries named {name}: one was added after packaging"
+                )
+        present = {info.filename: info.file_size for info in archive.infolist()}
+        head = _read_members(
+            archive,
+            {name: present[name] for name in (MANIFEST, MANIFEST_SIGNATURE) if name in present},
+            problems,
+        )
+        manifest_bytes = head.get(MANIFEST)
+        if manifest_bytes is None:
+            problems.append(f"the package has no {MANIFEST}: not a calculation package")
+            return outcome
+        try:
+            manifest = json.loads(manifest_bytes)
+        except ValueError:
+            manifest = None
+        if not isinstance(manifest, dict) or manifest.get("format") != PACKAGE_FORMAT:
+            problems.append(f"{MANIFEST} is not the manifest of a workbench calculation package")
+            return outcome
+        entries = [e for e in manifest.get("files") or [] if isinstance(e, dict)]
+        listed = {str(e.get("name")): e for e in entries}
+        sizes = {
+            name: int(e.get("size", -1))
+            for name, e in listed.items()
+            if isinstance(e.get("size"), int)
+        }
+        members = _read_members(archive, sizes, problems)
+    record = members.get(RECORD)
+    embedded = _record_key(record) if record is not None else None
+    token_bytes = head.get(MANIFEST_SIGNATURE)
+    signed = token_bytes is not None
+    key = public_key
+    if token_bytes is None:
+        problems.append(f"the package is UNSIGNED: it has no {MANIFEST_SIGNATURE}")
+    else:
+        token = token_bytes.decode("ascii", "replace").strip()
+        try:
+            kid = decode_unverified(token)[0].get("kid")
+        except SigningError as error:
+            problems.append(f"{MANIFEST_SIGNATURE} is not a readable signature: {error}")
+            return outcome
+        if key is None and embedded is not None:
+            try:
+                key = public_key_from_jwk(embedded)
+            except SigningError as error:
+                problems.append(f"the record's embedded public key is unreadable: {error}")
+                return outcome
+        if key is None:
+            problems.append(
+                "no key to check the manifest with: give --public-key (the record inside "
+                "carries none)"
+            )
+            return outcome
+        fingerprint = jwk_thumbprint(key)
+        if kid != fingerprint:
+            whose = "the expected key" if public_key is not None else "the record's key"
+            problems.append(
+                f"the manifest was signed with key {kid}, not with {whose} {fingerprint}: it "
+                "was re-signed by someone else, or the wrong key was given"
+            )
+            return outcome
+        try:
+            _, signed_manifest = verify_compact(token, key)
+        except SigningError as error:
+            problems.append(f"the manifest's signature does not hold: {error}")
+            return outcome
+        if signed_manifest != manifest_bytes:
+            problems.append(f"{MANIFEST} differs from the manifest that was signed")
+            return outcome
+        facts.append(f"Manifest: valid EdDSA (Ed25519) signature by key {fingerprint}")
+        facts.append(
+            "Key: matches the public key given"
+            if public_key is not None
+            else "Key: taken from the record inside the package; compare the fingerprint with "
+            "the one the signer published (or pass --public-key)"
+        )
+    unchanged = 0
+    for name, entry in listed.items():
+        if name not in members:
+            if name not in names:
+                problems.append(f"{name} is listed in the manifest but missing from the zip")
+            continue
+        if hashlib.sha256(members[name]).hexdigest() != entry.get("sha256"):
+            problems.append(
+                f"{name} was changed after packaging: its SHA-256 differs from the manifest's"
+            )
+        else:
+            unchanged += 1
+    for name in sorted(set(names) - set(listed) - {MANIFEST, MANIFEST_SIGNATURE}):
+        problems.append(f"{name} is not listed in the manifest: it was added after packaging")
+    facts.append(f"Files: {unchanged} of {len(listed)} listed files match the manifest (SHA-256)")
+    if record is None:
+        problems.append(f"the package holds no readable {RECORD}")
+    else:
+        inner = verify_text(record, public_key)
+        facts += [f"Record: {line}" for line in inner.facts]
+        problems += [f"{RECORD}: {line}" for line in inner.problems]
+        payload = inner.payload or {}
+        case_bytes = members.get(CASE)
+        if case_bytes is not None:
+            try:
+                case = json.loads(case_bytes)
+            except ValueError:
+                case = None
+            if case != payload.get("case"):
+                problems.append(f"{CASE} is not the case the record signs")
+        if manifest.get("results_digest") != payload.get("results_digest"):
+            problems.append("the manifest's results digest is not the one the record signs")
+    outcome.ok = signed and not problems
+    return outcome
+
+
+def _record_key(record: bytes) -> dict[str, Any] | None:
+    """The public key (JWK) a record carries, or ``None``."""
+    match = _JWK.search(record.decode("utf-8", "replace"))
+    if match is None:
+        return None
+    try:
+        jwk = json.loads(match.group(1))
+    except ValueError:
+        return None
+    return jwk if isinstance(jwk, dict) else None

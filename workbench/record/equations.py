@@ -1,0 +1,269 @@
+"""The fixed equations of the record's method section, pre-rendered as SVG files.
+
+The equations never change from one record to the next, so they are drawn once, when the
+package is built, and shipped with the record template in
+``templates/workbench_record/static/equations/``: one SVG file per equation and
+``index.json`` naming, for each, the source it was drawn from, its size and its SHA-256. An
+export only reads these files (once per process), so making a record needs no plotting
+library.
+
+To redraw them after changing :data:`EQUATIONS` (needs matplotlib, a build-time tool only)::
+
+    python -m workbench.record.equations
+
+matplotlib's mathtext draws each equation with its SVG backend (no pyplot, no global figure
+state), text as paths (a reader needs no font), under a fixed ``svg.hashsalt`` and without a
+``Date``: the same matplotlib gives the same bytes.
+
+References
+----------
+.. [1] J. M. Gere and B. J. Goodno, *Mechanics of Materials*, 8th ed., Cengage, 2013, ch. 3
+   (rate of twist, shear stress, polar moment, internal torque; §3.8 compatibility).
+.. [2] W. D. Pilkey, *Formulas for Stress, Strain, and Structural Matrices*, 2nd ed., Wiley,
+   2005, ch. 14 (element stiffness of a bar in torsion from its flexibility).
+"""
+
+from __future__ import annotations
+
+import functools
+import hashlib
+import io
+import json
+import sys
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from workbench.solver.errors import InputError
+
+__all__ = ["EQUATIONS", "Equation", "equation_file", "equations_dir", "load_equations", "main"]
+
+#: Font size the equations are drawn at (pt); shown at their natural size.
+EQUATION_SIZE = 12.0
+
+#: Fixed salt for the ids matplotlib writes into SVG (clip paths, glyphs): stable bytes.
+SVG_HASH_SALT = "workbench-record"
+
+_RC: Any = {
+    "svg.hashsalt": SVG_HASH_SALT,
+    "svg.fonttype": "path",
+    "font.family": "DejaVu Sans",
+    "mathtext.fontset": "dejavusans",
+}
+
+
+@dataclass(frozen=True)
+class Equation:
+    """One equation of the method.
+
+    Attributes
+    ----------
+    name
+        File stem of its picture.
+    tex
+        The equation in matplotlib mathtext (a TeX subset), without the surrounding ``$``.
+    reading
+        A plain-text reading of it (the picture's alternative text).
+    meaning
+        What it states, shown beside it.
+    """
+
+    name: str
+    tex: str
+    reading: str
+    meaning: str
+
+
+#: Equations of the method, in the order the record numbers them.
+EQUATIONS: tuple[Equation, ...] = (
+    Equation(
+        "twist-rate",
+        r"\dfrac{d\theta}{dx} = \dfrac{T(x)}{G\,J(x)}",
+        "dθ/dx = T(x)/(G·J(x))",
+        "rate of twist (Saint-Venant torsion, circular section)",
+    ),
+    Equation(
+        "shear-stress",
+        r"\tau_{max} = \dfrac{T\,r_o}{J}",
+        "τ_max = T·r_o/J",
+        "largest shear stress on the section",
+    ),
+    Equation(
+        "polar-moment",
+        r"J_{solid} = \dfrac{\pi D^4}{32},\qquad J_{tube} = \dfrac{\pi (D^4 - d^4)}{32}",
+        "J = πD⁴/32 (solid), π(D⁴ − d⁴)/32 (tube)",
+        "polar moment of area",
+    ),
+    Equation(
+        "element-stiffness",
+        r"k_e = \left( \int_0^{L_e} \dfrac{dx}{G\,J(x)} \right)^{-1}",
+        "k_e = (∫ dx/(G·J(x)))⁻¹",
+        "exact element stiffness from the exact flexibility",
+    ),
+    Equation(
+        "element-matrix",
+        r"K_e = k_e \left[ \genfrac{}{}{0}{0}{\ \ 1}{-1} \quad \genfrac{}{}{0}{0}{-1}{\ \ 1} \right]",
+        "K_e = k_e·[[1, −1], [−1, 1]]",
+        "element stiffness matrix on the two end rotations",
+    ),
+    Equation(
+        "layers",
+        r"G\,J = \sum_i G_i\,J_i",
+        "G·J = Σ Gᵢ·Jᵢ",
+        "bonded coaxial layers share the twist",
+    ),
+    Equation(
+        "internal-torque",
+        r"T(x) = -\sum_{x_i < x} T_i - \int_0^x t(s)\,ds",
+        "T(x) = −Σ T_i (x_i < x) − ∫₀ˣ t(s) ds",
+        "internal torque from equilibrium",
+    ),
+    Equation(
+        "compatibility",
+        r"\theta_{B0} + R_B\,f_{BB} = r_B - \dfrac{R_B}{k_B}",
+        "θ_B0 + R_B·f_BB = r_B − R_B/k_B",
+        "compatibility at the released support (hand check)",
+    ),
+)
+
+
+def equations_dir() -> Path:
+    """The folder of the shipped equation pictures (beside the record template)."""
+    from workbench.record.document import templates_dir  # noqa: PLC0415
+
+    return templates_dir() / "workbench_record" / "static" / "equations"
+
+
+def equation_file(equation: Equation) -> str:
+    """File name of an equation's picture."""
+    return f"{equation.name}.svg"
+
+
+def render_equation(tex: str, size: float = EQUATION_SIZE) -> str:
+    """Draw an equation with matplotlib mathtext as an SVG document (build time only).
+
+    Parameters
+    ----------
+    tex
+        The equation in mathtext, without the surrounding ``$``.
+    size
+        Font size (pt).
+
+    Returns
+    -------
+    str
+        The SVG document; identical bytes for the same input and matplotlib.
+    """
+    import matplotlib  # noqa: PLC0415
+    from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: PLC0415
+    from matplotlib.figure import Figure  # noqa: PLC0415
+
+    with matplotlib.rc_context(_RC):
+        figure = Figure(figsize=(0.01, 0.01))
+        FigureCanvasSVG(figure)
+        figure.text(0.0, 0.0, f"${tex}$", fontsize=size)
+        buffer = io.StringIO()
+        figure.savefig(
+            buffer, format="svg", metadata={"Date": None}, bbox_inches="tight", pad_inches=0.03
+        )
+        return buffer.getvalue()
+
+
+def _size_pt(svg: str) -> tuple[float, float]:
+    head = svg[svg.index("<svg") : svg.index(">", svg.index("<svg"))]
+
+    def attribute(name: str) -> float:
+        start = head.index(f' {name}="') + len(name) + 3
+        return float(head[start : head.index('"', start)].removesuffix("pt"))
+
+    return attribute("width"), attribute("height")
+
+
+def build_index(pictures: dict[str, str]) -> dict[str, Any]:
+    """The ``index.json`` document of rendered pictures (``name -> SVG text``)."""
+    import matplotlib  # noqa: PLC0415
+
+    entries = {}
+    for equation in EQUATIONS:
+        svg = pictures[equation.name]
+        width, height = _size_pt(svg)
+        entries[equation.name] = {
+            "file": equation_file(equation),
+            "tex": equation.tex,
+            "width_pt": width,
+            "height_pt": height,
+            "sha256": hashlib.sha256(svg.encode("utf-8")).hexdigest(),
+        }
+    return {
+        "generator": f"matplotlib {matplotlib.__version__} mathtext, svg backend",
+        "size_pt": EQUATION_SIZE,
+        "equations": entries,
+    }
+
+
+def write_equations(folder: Path | None = None) -> list[Path]:
+    """Draw every equation into ``folder`` (default :func:`equations_dir`); return the files."""
+    folder = folder or equations_dir()
+    folder.mkdir(parents=True, exist_ok=True)
+    pictures = {equation.name: render_equation(equation.tex) for equation in EQUATIONS}
+    written = []
+    for equation in EQUATIONS:
+        path = folder / equation_file(equation)
+        path.write_text(pictures[equation.name], encoding="utf-8", newline="")
+        written.append(path)
+    index = folder / "index.json"
+    index.write_text(
+        json.dumps(build_index(pictures), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"
+    )
+    written.append(index)
+    return written
+
+
+@functools.lru_cache(maxsize=1)
+def load_equations() -> tuple[tuple[Equation, str, float, float], ...]:
+    """Every equation with its shipped picture: ``(equation, SVG text, width pt, height pt)``.
+
+    Read once per process.
+
+    Raises
+    ------
+    InputError
+        When a picture is missing, or was drawn from another source than :data:`EQUATIONS`
+        (run ``python -m workbench.record.equations``), or its bytes differ from the index.
+    """
+    folder = equations_dir()
+    try:
+        index = json.loads((folder / "index.json").read_text("utf-8"))["equations"]
+    except (OSError, ValueError, KeyError) as error:
+        msg = f"the equation pictures' index is missing or unreadable ({error}); run python -m workbench.record.equations"
+        raise InputError(str(folder), msg) from None
+    loaded = []
+    for equation in EQUATIONS:
+        entry = index.get(equation.name) or {}
+        if entry.get("tex") != equation.tex:
+            msg = f"the picture of equation {equation.name!r} was drawn from another source; run python -m workbench.record.equations"
+            raise InputError(str(folder), msg)
+        path = folder / equation_file(equation)
+        try:
+            svg = path.read_text("utf-8")
+        except OSError as error:
+            msg = f"cannot read the equation picture {path.name}: {error.strerror or error}"
+            raise InputError(str(path), msg) from None
+        if hashlib.sha256(svg.encode("utf-8")).hexdigest() != entry.get("sha256"):
+            msg = f"the equation picture {path.name} differs from its index entry"
+            raise InputError(str(path), msg)
+        loaded.append((equation, svg, float(entry["width_pt"]), float(entry["height_pt"])))
+    return tuple(loaded)
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Redraw the shipped equation pictures; print the files written."""
+    folder = Path(argv[0]) if argv else None
+    for path in write_equations(folder):
+        sys.stdout.write(f"wrote {path}\n")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main(sys.argv[1:]))
