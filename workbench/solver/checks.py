@@ -31,7 +31,13 @@ from typing import Any
 
 import numpy as np
 
-from workbench.solver.allowables import SHEAR_CRITERIA, Allowable, allowable_shear_stress
+from workbench.solver.allowables import (
+    SHEAR_CRITERIA,
+    TWIST_RATE_PRESETS,
+    Allowable,
+    allowable_shear_stress,
+    twist_rate_one_degree_in_twenty_diameters,
+)
 from workbench.solver.analysis import Results
 from workbench.solver.concentration import (
     ConcentrationFactor,
@@ -49,6 +55,7 @@ from workbench.solver.fatigue_check import (
 )
 from workbench.solver.materials import Material
 from workbench.solver.model import Model, Segment, field_path
+from workbench.solver.plastic import plastic_reserve
 from workbench.solver.sections import FloatArray, SolidCircle, Tube, require_positive
 from workbench.solver.units import UnitSystem, display_units
 
@@ -71,6 +78,28 @@ CHECK_QUANTITIES: dict[str, str] = {
     "fatigue": "ratio",
     "first_cycle_yield": "ratio",
 }
+
+
+#: Named twist-rate limits a case may give instead of a number: rules of thumb (common practice).
+TWIST_RATE_RULES: tuple[str, ...] = (*TWIST_RATE_PRESETS, "twenty-diameters")
+
+
+def twist_rate_limit(design: DesignCriteria, diameter: float | None) -> tuple[float, str] | None:
+    """The twist-rate limit (rad/m) of a segment of outer ``diameter`` (m), with its basis.
+
+    ``None`` when the design sets no limit, or the rule needs a diameter the segment lacks.
+    """
+    if design.twist_rate_preset == "twenty-diameters":
+        if diameter is None:
+            return None
+        rule = twist_rate_one_degree_in_twenty_diameters(diameter)
+        return rule.value, f"{rule.label}: {rule.source}"
+    if design.twist_rate_preset is not None:
+        preset = TWIST_RATE_PRESETS[design.twist_rate_preset]
+        return preset.value, f"{preset.label}: {preset.source}"
+    if design.max_twist_rate is not None:
+        return design.max_twist_rate, "stated limit"
+    return None
 
 
 @dataclass(frozen=True)
@@ -134,8 +163,15 @@ class DesignCriteria:
     modal_elements_per_segment: int = 8
     modal_max_element_length: float | None = None
     fatigue: FatigueCriteria | None = None
+    twist_rate_preset: str | None = None
 
     def __post_init__(self) -> None:
+        if self.twist_rate_preset is not None and self.twist_rate_preset not in TWIST_RATE_RULES:
+            msg = (
+                f"unknown preset {self.twist_rate_preset!r}; give a number or one of "
+                f"{', '.join(TWIST_RATE_RULES)}"
+            )
+            raise InputError("max_twist_rate", msg)
         if self.shear_criterion not in SHEAR_CRITERIA:
             msg = f"unknown criterion {self.shear_criterion!r}; choose one of {', '.join(SHEAR_CRITERIA)}"
             raise InputError("shear_criterion", msg)
@@ -248,7 +284,12 @@ def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
             shear_criterion=reader.text("shear_criterion", "von_mises"),
             keyway=reader.flag("keyway", False),
             allowable_shear_stress=reader.optional_number("allowable_shear_stress", "stress"),
-            max_twist_rate=reader.optional_number("max_twist_rate", "twist_rate"),
+            max_twist_rate=None
+            if isinstance(data.get("max_twist_rate"), str)
+            else reader.optional_number("max_twist_rate", "twist_rate"),
+            twist_rate_preset=data["max_twist_rate"]
+            if isinstance(data.get("max_twist_rate"), str)
+            else None,
             rotation_limits=tuple(limits),
             frequency_margin=margin,
             modal_elements_per_segment=int(pieces),
@@ -268,6 +309,8 @@ def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
         out["allowable_shear_stress"] = float(
             f"{units.from_si(design.allowable_shear_stress, 'stress'):.12g}"
         )
+    if design.twist_rate_preset is not None:
+        out["max_twist_rate"] = design.twist_rate_preset
     if design.max_twist_rate is not None:
         out["max_twist_rate"] = float(f"{units.from_si(design.max_twist_rate, 'twist_rate'):.12g}")
     if design.rotation_limits:
@@ -491,7 +534,13 @@ class _Checker:
                     self._concentrations(
                         shaft_number, segment_number, segment, torque, x, torque_before
                     )
-                if self.design.max_twist_rate is not None:
+                round_diameter = (
+                    2.0 * max(layer.section.outer_radius for layer in segment.layers)
+                    if all(layer.section.circular for layer in segment.layers)
+                    else None
+                )
+                twist_limit = twist_rate_limit(self.design, round_diameter)
+                if twist_limit is not None:
                     rate = torque / mesh.station_rigidity[stations]
                     self.add(
                         "twist_rate",
@@ -499,8 +548,13 @@ class _Checker:
                         segment_number,
                         rate,
                         x,
-                        self.design.max_twist_rate,
-                        "|T|/(G·K), largest along the segment",
+                        twist_limit[0],
+                        f"|T|/(G·K), largest along the segment; limit: {twist_limit[1]}",
+                    )
+                elif self.design.twist_rate_preset is not None:
+                    self.notes.append(
+                        f"{shaft.id} segment {segment_number}: the twist-rate rule needs a round "
+                        "segment; not checked"
                     )
         self._rotations()
         self._frequencies()
@@ -730,6 +784,75 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     return report
 
 
+@dataclass(frozen=True)
+class PlasticReserveRow:
+    """Yield and fully plastic torque of a round segment against its largest torque.
+
+    Attributes
+    ----------
+    shaft, segment
+        Which segment.
+    shear_yield
+        Shear yield strength used (Pa): Sy/2 for Tresca, Sy/√3 otherwise.
+    yield_torque, plastic_torque
+        T_y = τ_y·J/c and T_p (N·m), elastic–perfectly plastic material.
+    largest_torque
+        Largest |T| in the segment over every result (N·m).
+    """
+
+    shaft: str
+    segment: int
+    shear_yield: float
+    yield_torque: float
+    plastic_torque: float
+    largest_torque: float
+
+    @property
+    def reserve(self) -> float:
+        """T_p / largest |T|: how far the largest torque is from full plastic collapse."""
+        return self.plastic_torque / self.largest_torque if self.largest_torque else math.inf
+
+
+def plastic_reserves(report: CheckReport) -> list[PlasticReserveRow]:
+    """Plastic reserve of every one-layer prismatic round segment with a yield strength.
+
+    References
+    ----------
+    .. [1] Beer, Johnston, DeWolf & Mazurek, *Mechanics of Materials*, plastic deformations in
+       circular shafts: T_y = τ_y·J/c, T_p = (2π/3)·τ_y·(c³ − cᵢ³).
+    """
+    results, rows = report.results, []
+    station_shaft = results.mesh.element_shaft[results.mesh.station_element]
+    station_segment = results.mesh.element_segment[results.mesh.station_element]
+    for shaft_number, shaft in enumerate(results.model.shafts):
+        for number, segment in enumerate(shaft.segments):
+            section = segment.layers[0].section
+            material = segment.layers[0].material
+            if (
+                len(segment.layers) != 1
+                or not isinstance(section, (SolidCircle, Tube))
+                or material.yield_strength is None
+            ):
+                continue
+            divisor = 2.0 if report.design.shear_criterion == "tresca" else math.sqrt(3.0)
+            shear_yield = material.yield_strength / divisor
+            bore = section.inner_diameter if isinstance(section, Tube) else 0.0
+            reserve = plastic_reserve(shear_yield, 2.0 * section.outer_radius, bore)
+            mask = (station_shaft == shaft_number) & (station_segment == number)
+            largest = float(np.abs(results.torque[:, mask]).max())
+            rows.append(
+                PlasticReserveRow(
+                    shaft.id,
+                    number,
+                    shear_yield,
+                    reserve.yield_torque,
+                    reserve.plastic_torque,
+                    largest,
+                )
+            )
+    return rows
+
+
 _ROW_KEYS = ("result", "shaft", "segment", "kind", "value", "limit", "utilisation", "passes", "x")
 
 
@@ -818,6 +941,34 @@ def check_text(report: CheckReport, units: UnitSystem | None = None) -> str:
     allowables = sorted({check.note for check in report.checks if check.kind == "shear_stress"})
     lines += ["allowable: " + note for note in allowables]
     lines += ["note: " + note for note in report.notes]
+    reserves = plastic_reserves(report)
+    if reserves:
+        torque = units.label("torque")
+        lines += [
+            "",
+            "Plastic reserve (elastic–perfectly plastic, round one-layer segments; information)",
+            format_table(
+                [
+                    "shaft",
+                    "seg",
+                    f"yield torque [{torque}]",
+                    f"plastic torque [{torque}]",
+                    f"largest |T| [{torque}]",
+                    "T_p/|T|",
+                ],
+                [
+                    [
+                        row.shaft,
+                        str(row.segment),
+                        f"{units.from_si(row.yield_torque, 'torque'):.4g}",
+                        f"{units.from_si(row.plastic_torque, 'torque'):.4g}",
+                        f"{units.from_si(row.largest_torque, 'torque'):.4g}",
+                        f"{row.reserve:.3g}",
+                    ]
+                    for row in reserves
+                ],
+            ),
+        ]
     governing_check = report.governing
     verdict = "ALL CHECKS PASS" if report.passes else "SOME CHECKS FAIL"
     if governing_check is not None:

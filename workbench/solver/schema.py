@@ -138,7 +138,12 @@ def case_schema() -> dict[str, Any]:
             "shear_criterion": {"enum": list(SHEAR_CRITERIA)},
             "keyway": {"type": "boolean"},
             "allowable_shear_stress": {"type": ["number", "null"], "exclusiveMinimum": 0},
-            "max_twist_rate": {"type": ["number", "null"], "exclusiveMinimum": 0},
+            "max_twist_rate": {
+                "oneOf": [
+                    {"type": ["number", "null"], "exclusiveMinimum": 0},
+                    {"enum": ["machine-shaft", "line-shaft", "twenty-diameters"]},
+                ]
+            },
             "frequency_margin": {"type": "number", "minimum": 0, "exclusiveMaximum": 1},
             "modal_elements_per_segment": {"type": "integer", "minimum": 1},
             "modal_max_element_length": {"type": ["number", "null"], "exclusiveMinimum": 0},
