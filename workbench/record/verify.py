@@ -105,6 +105,24 @@ class Verification:
         return [*self.facts, *(f"FAILED: {p}" for p in self.problems), verdict]
 
 
+def _read_with_key(
+    path: str | Path, what: str, public_key_path: str | Path | None
+) -> tuple[bytes, Any]:
+    """The file's bytes and the public key to check it with (``None``: the embedded one)."""
+    file = Path(path)
+    try:
+        data = file.read_bytes()
+    except OSError as error:
+        msg = f"cannot read the {what}: {error.strerror or error}"
+        raise InputError(str(file), msg) from None
+    public_key = None
+    if public_key_path is not None:
+        from workbench.record.signing import load_public_key  # noqa: PLC0415
+
+        public_key = load_public_key(public_key_path)
+    return data, public_key
+
+
 def verify_record(path: str | Path, public_key_path: str | Path | None = None) -> Verification:
     """Check a record file; see :func:`verify_text`.
 
@@ -113,18 +131,7 @@ def verify_record(path: str | Path, public_key_path: str | Path | None = None) -
     InputError
         When the file (or the key file) cannot be read.
     """
-    file = Path(path)
-    try:
-        data = file.read_bytes()
-    except OSError as error:
-        msg = f"cannot read the record: {error.strerror or error}"
-        raise InputError(str(file), msg) from None
-    public_key = None
-    if public_key_path is not None:
-        from workbench.record.signing import load_public_key  # noqa: PLC0415
-
-        public_key = load_public_key(public_key_path)
-    return verify_text(data, public_key)
+    return verify_text(*_read_with_key(path, "record", public_key_path))
 
 
 def verify_text(data: bytes, public_key: Any = None) -> Verification:
@@ -297,18 +304,7 @@ def verify_package(path: str | Path, public_key_path: str | Path | None = None) 
     InputError
         When the file (or the key file) cannot be read.
     """
-    file = Path(path)
-    try:
-        data = file.read_bytes()
-    except OSError as error:
-        msg = f"cannot read the package: {error.strerror or error}"
-        raise InputError(str(file), msg) from None
-    public_key = None
-    if public_key_path is not None:
-        from workbench.record.signing import load_public_key  # noqa: PLC0415
-
-        public_key = load_public_key(public_key_path)
-    return verify_package_bytes(data, public_key)
+    return verify_package_bytes(*_read_with_key(path, "package", public_key_path))
 
 
 def _read_members(

@@ -58,6 +58,7 @@ from workbench.solver.model import Model, Segment, field_path
 from workbench.solver.plastic import plastic_reserve
 from workbench.solver.sections import FloatArray, SolidCircle, Tube, require_positive
 from workbench.solver.units import UnitSystem, display_units
+from workbench.solver.verdict import WithinLimit
 
 CAUTION = (
     "These results are an aid to design, not a design approval. Verify them against the "
@@ -339,7 +340,7 @@ def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
 
 
 @dataclass(frozen=True)
-class Check:
+class Check(WithinLimit):
     """One check: the governing value of one quantity of one segment in one result.
 
     Attributes
@@ -370,16 +371,6 @@ class Check:
     limit: float
     x: float
     note: str = ""
-
-    @property
-    def utilisation(self) -> float:
-        """value/limit."""
-        return self.value / self.limit
-
-    @property
-    def passes(self) -> bool:
-        """Whether the value is within its limit."""
-        return self.value <= self.limit
 
 
 @dataclass(frozen=True)

@@ -52,6 +52,7 @@ from workbench.solver.errors import InputError
 from workbench.solver.model import POSITION_TOLERANCE, LoadCase, Model, OperatingSpeed, Segment
 from workbench.solver.sections import FloatArray
 from workbench.solver.units import UnitSystem, display_units, quote
+from workbench.solver.verdict import WithinLimit
 
 BoolArray = np.ndarray[Any, np.dtype[np.bool_]]
 
@@ -690,7 +691,7 @@ def _inertia_notes(model: Model) -> Iterable[str]:
 
 
 @dataclass(frozen=True)
-class Separation:
+class Separation(WithinLimit):
     """How far one natural frequency lies from one running-speed band.
 
     Attributes
@@ -723,16 +724,6 @@ class Separation:
     limit: float
     shaft: str
     x: float
-
-    @property
-    def utilisation(self) -> float:
-        """value/limit: at most 1 when the frequency is clear of the widened band."""
-        return self.value / self.limit
-
-    @property
-    def passes(self) -> bool:
-        """Whether the natural frequency lies outside the widened band."""
-        return self.value <= self.limit
 
 
 def frequency_separations(

@@ -343,8 +343,23 @@ class _UniformWallCell(Section):
        K = 4·A_m²·t/P, τ = T/(2·A_m·t).
     """
 
+    width: float
     height: float
     thickness: float
+
+    def _require_hollow(self, word: str) -> None:
+        """Check the outer sizes and that the wall leaves a hollow (``word``: side or axis)."""
+        require_positive("width", self.width)
+        require_positive("height", self.height)
+        require_positive("thickness", self.thickness)
+        smaller = min(self.width, self.height)
+        if 2.0 * self.thickness >= smaller:
+            msg = (
+                f"leaves no hollow: twice {quote(self.thickness, 'length')} is not less than the "
+                f"smaller outer {word} {quote(smaller, 'length')}"
+            )
+            field_name = "thickness"
+            raise InputError(field_name, msg)
 
     @property
     def enclosed_area(self) -> float:
@@ -406,17 +421,7 @@ class Box(_UniformWallCell):
     shape: ClassVar[str] = "box"
 
     def __post_init__(self) -> None:
-        require_positive("width", self.width)
-        require_positive("height", self.height)
-        require_positive("thickness", self.thickness)
-        smaller = min(self.width, self.height)
-        if 2.0 * self.thickness >= smaller:
-            msg = (
-                f"leaves no hollow: twice {quote(self.thickness, 'length')} is not less than the "
-                f"smaller outer side {quote(smaller, 'length')}"
-            )
-            field_name = "thickness"
-            raise InputError(field_name, msg)
+        self._require_hollow("side")
         _require_thin("thickness", self.thickness, self.enclosed_area, self.perimeter)
 
     @property
@@ -481,17 +486,7 @@ class EllipticalTube(_UniformWallCell):
     shape: ClassVar[str] = "elliptical_tube"
 
     def __post_init__(self) -> None:
-        require_positive("width", self.width)
-        require_positive("height", self.height)
-        require_positive("thickness", self.thickness)
-        smaller = min(self.width, self.height)
-        if 2.0 * self.thickness >= smaller:
-            msg = (
-                f"leaves no hollow: twice {quote(self.thickness, 'length')} is not less than the "
-                f"smaller outer axis {quote(smaller, 'length')}"
-            )
-            field_name = "thickness"
-            raise InputError(field_name, msg)
+        self._require_hollow("axis")
         major, minor = self._semi_axes
         sharpest = minor**2 / major
         if self.thickness / 2.0 >= sharpest:
