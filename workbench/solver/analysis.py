@@ -628,8 +628,8 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
             assert support.stiffness is not None
             diagonal[support_nodes[number]] += support.stiffness
             spring_rhs[support_nodes[number]] += support.stiffness * support.rotation
-    np.add.at(diagonal, node_a, stiffness)
-    np.add.at(diagonal, node_b, stiffness)
+    # bincount sums repeated indices like np.add.at, an order of magnitude faster.
+    diagonal += np.bincount(node_a, stiffness, n_nodes) + np.bincount(node_b, stiffness, n_nodes)
 
     known = np.where(is_free, 0.0, prescribed)
     rhs_full = nodal + spring_rhs
@@ -638,8 +638,9 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     coupling_a = ~is_free[node_b] & is_free[node_a]
     coupling_b = ~is_free[node_a] & is_free[node_b]
     correction = np.zeros(n_nodes)
-    np.add.at(correction, node_a[coupling_a], stiffness[coupling_a] * known[node_b[coupling_a]])
-    np.add.at(correction, node_b[coupling_b], stiffness[coupling_b] * known[node_a[coupling_b]])
+    correction += np.bincount(
+        node_a[coupling_a], stiffness[coupling_a] * known[node_b[coupling_a]], n_nodes
+    ) + np.bincount(node_b[coupling_b], stiffness[coupling_b] * known[node_a[coupling_b]], n_nodes)
     rhs_full = rhs_full + correction
 
     rows = [free_number[is_free], free_number[node_a[both_free]], free_number[node_b[both_free]]]
