@@ -32,6 +32,7 @@ from workbench.solver.fatigue import (
     FATIGUE_CRITERIA,
     RELIABILITY_FACTORS,
     SURFACE_FINISHES,
+    EnduranceLimit,
     FatigueResult,
     endurance_limit,
     fatigue_concentration,
@@ -43,6 +44,7 @@ from workbench.solver.fatigue import (
     yield_shear_strength,
 )
 from workbench.solver.model import Model, Segment, field_path
+from workbench.solver.sections import require_positive
 
 if TYPE_CHECKING:
     from workbench.solver.analysis import Results
@@ -88,7 +90,8 @@ class FatigueCriteria:
     def __post_init__(self) -> None:
         given_pair = self.mean is not None or self.alternating is not None
         if (self.extremes is None) == (not given_pair):
-            msg = "give either extremes (two results) or mean and alternating, not both"
+            what = "not both" if given_pair else "one of them is required"
+            msg = f"give either extremes (two results) or mean and alternating, {what}"
             raise InputError("extremes", msg)
         if given_pair and (self.mean is None or self.alternating is None):
             raise InputError("alternating" if self.mean else "mean", "is required with the other")
@@ -105,6 +108,14 @@ class FatigueCriteria:
                 f"unknown criterion {self.criterion!r}; choose one of {', '.join(FATIGUE_CRITERIA)}"
             )
             raise InputError("criterion", msg)
+        if self.endurance_limit is not None:
+            require_positive("endurance_limit", self.endurance_limit, "stress")
+        if self.temperature is not None and not (
+            math.isfinite(self.temperature) and self.temperature > 0.0
+        ):
+            raise InputError(
+                "temperature", f"must be a temperature above 0 K, not {self.temperature:g}"
+            )
         if not (math.isfinite(self.factor_of_safety) and self.factor_of_safety >= 1.0):
             raise InputError(
                 "factor_of_safety", f"must be at least 1, not {self.factor_of_safety:g}"
@@ -265,15 +276,8 @@ def fatigue_checks(
                 continue
             stations = np.flatnonzero((station_shaft == shaft_number) & (station_segment == number))
             with field_path(f"shafts[{shaft_number}].segments[{number}]"):
-                limit = endurance_limit(
-                    material.ultimate_strength,
-                    diameter,
-                    criteria.finish,
-                    "torsion",
-                    criteria.reliability,
-                    criteria.temperature,
-                    rotating_beam_limit=criteria.endurance_limit,
-                )
+                own = _strengths(segment, criteria)
+                assert own is not None
                 body_factor, body_note = 1.0, "no notch"
                 if segment.keyseat:
                     # No notch radius is known for a keyseat: q = 1 (full sensitivity).
@@ -282,17 +286,18 @@ def fatigue_checks(
                 # (station, Kfs, how): every station with the body's factor, plus the shoulder
                 # at the segment's start on its smaller side (the previous segment's last station
                 # when that one is the smaller).
-                places = [(int(station), body_factor, body_note) for station in stations]
-                shoulder = _shoulder_factor(shaft.segments, number, material.ultimate_strength)
+                # The shoulder's smaller side may be the previous segment: its stress, size
+                # factor and material then govern there.
+                places = [(int(station), body_factor, body_note, own) for station in stations]
+                shoulder = _shoulder_factor(shaft.segments, number)
                 if shoulder is not None:
                     kfs, how, this_side = shoulder
-                    places.append(
-                        (int(stations[0]) if this_side else int(stations[0]) - 1, kfs, how)
-                    )
-            ultimate = ultimate_shear_strength(material.ultimate_strength)
-            shear_yield = yield_shear_strength(material.yield_strength)
+                    side = own if this_side else _strengths(shaft.segments[number - 1], criteria)
+                    if side is not None:
+                        station = int(stations[0]) if this_side else int(stations[0]) - 1
+                        places.append((station, kfs, how, side))
             best: tuple[float, int, FatigueResult] | None = None
-            for place, (station, kfs, _) in enumerate(places):
+            for place, (station, kfs, _, (limit, ultimate, shear_yield)) in enumerate(places):
                 factor = float(mesh.station_stress_per_torque[station])
                 torque_a = float(results.torque[first, station])
                 torque_b = float(results.torque[second, station])
@@ -312,7 +317,7 @@ def fatigue_checks(
                     best = (worst, place, outcome)
             assert best is not None
             _, place, outcome = best
-            station, kfs, how = places[place]
+            station, kfs, how, (limit, _, _) = places[place]
             x = float(mesh.station_x[station])
             basis = f"Kfs = {kfs:.3g} ({how}); {limit.basis}"
             if not limit.in_range:
@@ -340,9 +345,31 @@ def fatigue_checks(
     return rows, points
 
 
-def _shoulder_factor(
-    segments: tuple[Segment, ...], number: int, ultimate_strength: float
-) -> tuple[float, str, bool] | None:
+def _strengths(
+    segment: Segment, criteria: FatigueCriteria
+) -> tuple[EnduranceLimit, float, float] | None:
+    """(Sse, Ssu, Ssy) of a one-layer round segment with yield and ultimate strengths (Pa)."""
+    diameter = _round_outer_diameter(segment)
+    material = segment.layers[0].material
+    if diameter is None or material.ultimate_strength is None or material.yield_strength is None:
+        return None
+    limit = endurance_limit(
+        material.ultimate_strength,
+        diameter,
+        criteria.finish,
+        "torsion",
+        criteria.reliability,
+        criteria.temperature,
+        rotating_beam_limit=criteria.endurance_limit,
+    )
+    return (
+        limit,
+        ultimate_shear_strength(material.ultimate_strength),
+        yield_shear_strength(material.yield_strength),
+    )
+
+
+def _shoulder_factor(segments: tuple[Segment, ...], number: int) -> tuple[float, str, bool] | None:
     """Kfs at a fillet shoulder at a segment's start between round segments.
 
     Also says whether the smaller side is this segment.
@@ -354,6 +381,10 @@ def _shoulder_factor(
     if here is None or before is None:
         return None
     small, big = sorted((here, before))
+    smaller_side = segment if here <= before else segments[number - 1]
+    ultimate_strength = smaller_side.layers[0].material.ultimate_strength
+    if ultimate_strength is None:
+        return None
     theoretical = shoulder_fillet_kts(big, small, segment.fillet_radius)
     sensitivity = notch_sensitivity_torsion(segment.fillet_radius, ultimate_strength)
     factor = fatigue_concentration(theoretical, sensitivity)
