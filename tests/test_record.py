@@ -15,6 +15,7 @@ import copy
 import hashlib
 import itertools
 import json
+import math
 import re
 import subprocess
 import sys
@@ -30,8 +31,8 @@ from jwcrypto import jwk as jwcrypto_jwk
 from jwcrypto import jws as jwcrypto_jws
 
 from workbench.record import cli_commands, equations
-from workbench.record.demo import DEMO_TITLE_BLOCK, LINE_SHAFT_CASE, demo_notebook
-from workbench.record.document import BLOCK_END, BLOCK_START, CSP
+from workbench.record.demo import DEMO_TITLE_BLOCK, FEED_DRIVE_CASE, LINE_SHAFT_CASE, demo_notebook
+from workbench.record.document import BLOCK_END, BLOCK_START, CSP, compute, render_body
 from workbench.record.exporter import RecordExporter, export_file
 from workbench.record.figures import elevation_svg
 from workbench.record.handcheck import force_method_check
@@ -39,7 +40,9 @@ from workbench.record.package import build_package
 from workbench.record.signing import write_key_pair
 from workbench.record.verify import verify_package, verify_record, verify_text
 from workbench.solver.analysis import solve
+from workbench.solver.checks import run_checks
 from workbench.solver.io import parse_case
+from workbench.solver.modes import natural_modes
 
 ALERT = "<script>alert(1)</script>"
 SIGNED_AT = "2025-03-01T12:00:00Z"
@@ -806,3 +809,243 @@ def test_unsigned_or_broken_package_does_not_verify(tmp_path: Path) -> None:
     cut = tmp_path / "cut.zip"
     cut.write_bytes((tmp_path / "unsigned.zip").read_bytes()[:-40])
     assert not verify_package(cut).ok
+
+
+# --- torsional vibration and fatigue sections --------------------------------------------------
+
+
+def _section_of(text: str, ident: str) -> str:
+    return text.split(f'<section class="record-section" id="{ident}">')[1].split(
+        "</section>", maxsplit=1
+    )[0]
+
+
+def _table_rows(section: str, css: str) -> list[list[str]]:
+    table = section.split(f'<table class="{css}">')[1].split("</table>", maxsplit=1)[0]
+    body = table.split("<tbody>")[1]
+    return [re.findall(r"<td>(.*?)</td>", row) for row in body.split("</tr>") if "<td>" in row]
+
+
+def _body(case: dict) -> str:
+    """The record body of a case, unsigned, without notebook cells."""
+    return render_body(
+        compute(case),
+        DEMO_TITLE_BLOCK,
+        "",
+        signer="",
+        signed_at=SIGNED_AT,
+        fingerprint=None,
+        case_source="test",
+    )
+
+
+@pytest.fixture(scope="module")
+def feed_record(keys: dict, tmp_path_factory: pytest.TempPathFactory) -> Path:
+    folder = tmp_path_factory.mktemp("feed")
+    notebook = folder / "feed.ipynb"
+    nbformat.write(demo_notebook(FEED_DRIVE_CASE, executed=True), str(notebook))
+    text, _ = export_file(notebook, key_file=keys["first"][0], signed_at=SIGNED_AT, execute=False)
+    path = folder / "feed.html"
+    path.write_text(text, encoding="utf-8", newline="")
+    return path
+
+
+def test_record_with_discs_and_fatigue_holds_both_sections(feed_record: Path, keys: dict) -> None:
+    outcome = verify_record(feed_record, keys["first"][1])
+    assert outcome.ok, outcome.lines()
+    text = feed_record.read_text("utf-8")
+    model = parse_case(FEED_DRIVE_CASE)
+    report = run_checks(solve(model))
+    # The modes the record shows: the same call as the frequency check, ten modes at least.
+    modes = natural_modes(model, up_to=1450 * 2 * math.pi / 60 * 1.2)
+    vibration = _section_of(text, "vibration")
+    rows = _table_rows(vibration, "frequencies")
+    assert len(rows) == len(modes)
+    for row, hertz, rigid in zip(rows, modes.frequency, modes.rigid_body, strict=True):
+        assert row[1] == f"{hertz:.6g}"
+        assert row[2] == f"{hertz * 60:.6g}".replace("-", "\u2212")
+        assert row[3] == ("rigid body" if rigid else "flexible")
+    (separation,) = _table_rows(vibration, "separations")
+    assert separation[:3] == ["run", "1", f"{modes.frequency[0]:.6g}"]
+    assert separation[-1] == "clear"
+    assert "common practice, no source" in vibration
+    assert vibration.count('class="figure mode-shape"') == 4
+    assert vibration.count('class="equation"') == 3
+    fatigue = _section_of(text, "fatigue")
+    rows = _table_rows(fatigue, "fatigue")
+    assert len(rows) == len(report.fatigue_points) == 3
+    for row, point in zip(rows, report.fatigue_points, strict=True):
+        factors = point.factors
+        assert row[:2] == [point.shaft, str(point.segment)]
+        assert row[3] == f"{factors.mean_shear / 1e6:.5g}"  # MPa
+        assert row[4] == f"{factors.alternating_shear / 1e6:.5g}"
+        assert row[7:12] == [
+            f"{getattr(factors, name):.3g}"
+            for name in ("goodman", "gerber", "asme_elliptic", "soderberg", "first_cycle_yield")
+        ]
+    assert fatigue.count('class="figure fatigue-diagram"') == 3
+    assert fatigue.count('class="equation"') == 5
+    for needle in ("ka: machined", "kb: torsion", "kc: torsion", "ke: reliability 99 %"):
+        assert needle in fatigue
+    assert "start-up" in fatigue and "running" in fatigue
+
+
+def test_record_frequency_matches_the_closed_form() -> None:
+    # One massless shaft fixed at one end with a disc at the other: ω = √(k/J_disc),
+    # k = G·(πd⁴/32)/L (Rao, Mechanical Vibrations, single-rotor torsional system; from memory).
+    case = copy.deepcopy(FEED_DRIVE_CASE)
+    del case["materials"]["steel"]["density"]
+    case["shafts"][0]["segments"] = [
+        {"length": 700, "material": "steel", "section": {"shape": "solid", "diameter": 45}}
+    ]
+    case["discs"] = [{"shaft": "feed", "x": 700, "inertia": 0.35}]
+    case["design"] = {"factor_of_safety": 2.0}
+    html = _body(case)
+    stiffness = 79.3e9 * math.pi * 0.045**4 / 32 / 0.7
+    hertz = math.sqrt(stiffness / 0.35) / (2 * math.pi)
+    (row,) = _table_rows(_section_of(html, "vibration"), "frequencies")
+    assert row[:4] == ["1", f"{hertz:.6g}", f"{hertz * 60:.6g}", "flexible"]
+    assert "massless springs" in html  # the mode note: no density, the disc carries all inertia
+    assert 'id="fatigue"' not in html
+
+
+def test_record_fatigue_factor_matches_a_hand_calculation() -> None:
+    # Segment 0 of the demo: Ø45 mm, no notch, torque cycling 120 ↔ 310 N·m. Shigley's Mechanical
+    # Engineering Design, 9th ed.: τ = 16T/(πd³); τm, τa = (T₁ ± T₂)/2 (eq. 6-36); ka = 4.51·Sut^−0.265
+    # (Table 6-2, machined), kb = 1.24·d^−0.107 (eq. 6-20, mm), kc = 0.59 (torsion), ke = 0.814
+    # (Table 6-5, 99 %), Se′ = 0.5·Sut (eq. 6-8), Ssu = 0.67·Sut; Goodman 1/n = τa/Sse + τm/Ssu.
+    per_torque = 16 / (math.pi * 0.045**3) / 1e6  # MPa per N·m
+    mean, alternating = (310 + 120) / 2 * per_torque, (310 - 120) / 2 * per_torque
+    endurance = 4.51 * 620**-0.265 * 1.24 * 45**-0.107 * 0.59 * 0.814 * 0.5 * 620
+    goodman = 1 / (alternating / endurance + mean / (0.67 * 620))
+    langer = 420 / math.sqrt(3) / (alternating + mean)
+    html = _body(FEED_DRIVE_CASE)
+    row = _table_rows(_section_of(html, "fatigue"), "fatigue")[0]
+    assert float(row[3]) == pytest.approx(mean, rel=1e-4)
+    assert float(row[4]) == pytest.approx(alternating, rel=1e-4)
+    assert float(row[6]) == pytest.approx(endurance, rel=3e-3)  # 1.24 vs (1/7.62)^−0.107
+    assert float(row[7]) == pytest.approx(goodman, rel=6e-3)  # written to 3 digits
+    assert float(row[11]) == pytest.approx(langer, rel=6e-3)
+    assert row[-1] == "pass"
+
+
+def test_fatigue_diagram_is_drawn_to_its_numbers() -> None:
+    from workbench.record.figures import fatigue_diagram_svg
+
+    svg = fatigue_diagram_svg("seg", 100.0, 400.0, 240.0, (60.0, 30.0), "MPa")
+    root = ElementTree.fromstring(svg)
+    lines = [
+        [tuple(map(float, p.split(","))) for p in line.get("points", "").split()]
+        for line in root.iter(f"{SVG}polyline")
+    ]
+    goodman, gerber, elliptic, soderberg, langer = lines
+    (point,) = [(float(c.get("cx", "")), float(c.get("cy", ""))) for c in root.iter(f"{SVG}circle")]
+    origin = (goodman[0][0], goodman[-1][1])  # Goodman runs from (0, Sse) to (Ssu, 0)
+    x_per, y_per = (goodman[-1][0] - origin[0]) / 400.0, (origin[1] - goodman[0][1]) / 100.0
+    # Every curve starts at τa = Sse (Langer at Ssy) and ends on the τm axis at its strength.
+    assert soderberg[-1][0] - origin[0] == pytest.approx(240 * x_per, abs=0.02)
+    assert elliptic[-1][0] - origin[0] == pytest.approx(240 * x_per, abs=0.02)
+    assert gerber[-1][0] == pytest.approx(goodman[-1][0]) and gerber[0] == goodman[0]
+    assert origin[1] - langer[0][1] == pytest.approx(240 * y_per, abs=0.02)
+    assert point[0] - origin[0] == pytest.approx(60 * x_per, abs=0.02)
+    assert origin[1] - point[1] == pytest.approx(30 * y_per, abs=0.02)
+    # Gerber at τm = Ssu/2 lies at τa = Sse·(1 − 1/4).
+    assert origin[1] - gerber[20][1] == pytest.approx(75 * y_per, abs=0.02)
+
+
+def _resigned(text: str, private_key_path: Path) -> str:
+    """The record with its body as edited, signed again by the same key (a signer who edits)."""
+    from workbench.record.canonical import canonicalize
+    from workbench.record.document import content_digest, signature_block
+    from workbench.record.signing import (
+        jwk_thumbprint,
+        load_private_key,
+        public_jwk,
+        sign_compact,
+    )
+
+    start, end = text.index(BLOCK_START), text.index(BLOCK_END) + len(BLOCK_END) + 1
+    found = re.search(r'id="record-signature">([^<]+)<', text)
+    assert found is not None
+    token = found.group(1)
+    payload_part = token.split(".")[1]
+    payload = json.loads(base64.urlsafe_b64decode(payload_part + "=" * (-len(payload_part) % 4)))
+    payload["content_digest"] = content_digest(text[:start] + text[end:])
+    key = load_private_key(private_key_path)
+    jwk = public_jwk(key.public_key())
+    token = sign_compact(canonicalize(payload), key, {"typ": "JOSE"})
+    block = signature_block(payload, token, jwk, jwk_thumbprint(jwk))
+    return text[:start] + block + text[end:]
+
+
+def test_changed_frequency_digit_fails_verify(feed_record: Path, keys: dict) -> None:
+    text = feed_record.read_text("utf-8")
+    start = text.index('<table class="frequencies">')
+    match = re.compile(r"<td>1</td><td>(\d)").search(text, start)
+    assert match is not None
+    flipped = str((int(match.group(1)) + 1) % 10)
+    tampered = text[: match.start(1)] + flipped + text[match.end(1) :]
+    outcome = verify_text(tampered.encode("utf-8"), None)
+    assert not outcome.ok
+    assert any("content was altered" in line for line in outcome.problems)
+    # Signed again after the edit: signature and content hold, the recomputation does not.
+    again = verify_text(_resigned(tampered, keys["first"][0]).encode("utf-8"), None)
+    assert not again.ok
+    assert again.problems == [
+        "the torsional vibration section written in the record differ from those recomputed "
+        "from the embedded case"
+    ]
+    assert verify_text(_resigned(text, keys["first"][0]).encode("utf-8"), None).ok
+
+
+def test_changed_fatigue_factor_fails_verify(feed_record: Path, keys: dict) -> None:
+    text = feed_record.read_text("utf-8")
+    start = text.index('<table class="fatigue">')
+    match = re.compile(r"<td>(pass|FAIL)</td>").search(text, start)
+    assert match is not None
+    other = "FAIL" if match.group(1) == "pass" else "pass"
+    tampered = text[: match.start(1)] + other + text[match.end(1) :]
+    again = verify_text(_resigned(tampered, keys["first"][0]).encode("utf-8"), None)
+    assert again.problems == [
+        "the fatigue section written in the record differ from those recomputed from the "
+        "embedded case"
+    ]
+
+
+def test_results_digest_covers_modes_and_fatigue_and_keeps_old_cases() -> None:
+    from workbench.record.canonical import canonicalize
+    from workbench.record.document import _rounded, results_digest
+    from workbench.solver.checks import check_document
+    from workbench.solver.tables import results_document
+
+    plain = compute(LINE_SHAFT_CASE)
+    assert plain.modes is None
+    document = {
+        "results": results_document(plain.results),
+        "checks": check_document(plain.report),
+    }
+    expected = "sha256:" + hashlib.sha256(canonicalize(_rounded(document))).hexdigest()
+    assert plain.results_digest == expected  # a static case signs what it always signed
+    feed = compute(FEED_DRIVE_CASE)
+    assert feed.modes is not None and feed.report.fatigue_points
+    assert feed.results_digest != results_digest(feed.results, feed.report)
+    changed = copy.deepcopy(FEED_DRIVE_CASE)
+    changed["discs"][1]["inertia"] = 0.36  # statics unchanged, the modes move
+    assert compute(changed).results_digest != feed.results_digest
+    assert "also torsional vibration" in _body(FEED_DRIVE_CASE)
+
+
+def test_mode_shape_drawing_follows_the_shape() -> None:
+    from workbench.record.figures import mode_shape_svg
+
+    modes = natural_modes(parse_case(FEED_DRIVE_CASE))
+    x, angle = modes.shape(0, "feed")
+    svg = mode_shape_svg("mode 1", [("feed", (x * 1000).tolist(), angle.tolist())], [], "x [mm]")
+    root = ElementTree.fromstring(svg)
+    (line,) = root.iter(f"{SVG}polyline")
+    points = [tuple(map(float, p.split(","))) for p in line.get("points", "").split()]
+    assert len(points) == len(x)
+    frame = next(r for r in root.iter(f"{SVG}rect") if r.get("fill") == "none")
+    top, height = float(frame.get("y", "")), float(frame.get("height", ""))
+    for (_, y), value in zip(points, angle, strict=True):
+        assert y == pytest.approx(top + (1 - value) / 2 * height, abs=0.006)

@@ -14,7 +14,7 @@ from pathlib import Path
 import nbformat
 import pytest
 
-from workbench.record.demo import DEMO_TITLE_BLOCK, demo_notebook
+from workbench.record.demo import DEMO_TITLE_BLOCK, FEED_DRIVE_CASE, demo_notebook
 from workbench.record.exporter import export_file
 from workbench.record.signing import write_key_pair
 
@@ -123,3 +123,57 @@ def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
             assert shown_width >= natural_width - 1  # the width attribute is rounded to a pixel
     assert output == [[True, 160, 80, True]]  # the SVG output is shown; its script did not run
     assert ALERT in title and ALERT in heading  # shown as text, not run
+
+
+def test_vibration_and_fatigue_drawings_render_offline(tmp_path: Path) -> None:
+    from playwright.sync_api import sync_playwright
+
+    notebook = tmp_path / "feed.ipynb"
+    nbformat.write(demo_notebook(FEED_DRIVE_CASE, executed=True), str(notebook))
+    private, _ = write_key_pair(tmp_path / "keys")
+    text, _ = export_file(notebook, key_file=private, execute=False)
+    record = tmp_path / "feed.html"
+    record.write_text(text, encoding="utf-8", newline="")
+    refused: list[str] = []
+    with sync_playwright() as p:
+        context = p.chromium.launch_persistent_context(
+            str(tmp_path / "profile"),
+            executable_path="/usr/bin/chromium",
+            headless=True,
+            args=FLAGS,
+        )
+        try:
+
+            def route(request_route) -> None:
+                url = request_route.request.url
+                if url.startswith(("file:", "data:")):
+                    request_route.continue_()
+                else:
+                    refused.append(url)
+                    request_route.abort()
+
+            context.route("**/*", route)
+            page = context.new_page()
+            page.goto(record.as_uri())
+            page.wait_for_load_state("load")
+            column = page.eval_on_selector("main#record-body", "e => e.clientWidth")
+            sizes = page.eval_on_selector_all(
+                "#vibration img, #fatigue img",
+                "els => els.map(e => [e.className, e.complete, e.naturalWidth, e.naturalHeight,"
+                " e.getBoundingClientRect().width])",
+            )
+            ARTIFACTS.mkdir(exist_ok=True)
+            page.locator("#vibration").screenshot(path=str(ARTIFACTS / "record-vibration.png"))
+            page.locator("#fatigue").screenshot(path=str(ARTIFACTS / "record-fatigue.png"))
+        finally:
+            context.close()
+    assert refused == []
+    kinds = [s[0] for s in sizes]
+    assert kinds.count("figure mode-shape") == 4 and kinds.count("figure fatigue-diagram") == 3
+    assert kinds.count("equation") == 3 + 5
+    for klass, complete, natural_width, natural_height, shown_width in sizes:
+        assert complete and natural_width > 0 and natural_height > 0
+        if "figure" in klass:
+            assert shown_width >= 0.95 * min(column, natural_width)
+        else:
+            assert shown_width >= natural_width - 1

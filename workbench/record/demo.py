@@ -72,6 +72,72 @@ LINE_SHAFT_CASE: dict[str, Any] = {
     "design": {"factor_of_safety": 2.0, "shear_criterion": "von_mises"},
 }
 
+#: One shaft fixed at the drive end with two discs, a density, a running-speed band and a
+#: fatigue check between start-up and running torque: the record's vibration and fatigue sections.
+FEED_DRIVE_CASE: dict[str, Any] = {
+    "title": "Cider press feed drive (demo)",
+    "units": {
+        "length": "mm",
+        "torque": "N*m",
+        "stress": "MPa",
+        "angle": "deg",
+        "speed": "rpm",
+        "inertia": "kg*m**2",
+        "density": "kg/m**3",
+    },
+    "materials": {
+        "steel": {
+            "shear_modulus": 79300,
+            "yield_strength": 420,
+            "ultimate_strength": 620,
+            "density": 7850,
+            "source": "demo values for a quenched and tempered steel",
+        }
+    },
+    "shafts": [
+        {
+            "id": "feed",
+            "segments": [
+                {"length": 200, "material": "steel", "section": {"shape": "solid", "diameter": 45}},
+                {
+                    "length": 350,
+                    "material": "steel",
+                    "section": {"shape": "solid", "diameter": 38},
+                    "fillet_radius": 2,
+                    "keyseat": True,
+                },
+                {
+                    "length": 150,
+                    "material": "steel",
+                    "section": {"shape": "solid", "diameter": 32},
+                    "fillet_radius": 1.5,
+                },
+            ],
+        }
+    ],
+    "supports": [{"shaft": "feed", "x": 0, "kind": "fixed"}],
+    "discs": [
+        {"shaft": "feed", "x": 400, "inertia": 0.08},
+        {"shaft": "feed", "x": 700, "inertia": 0.35},
+    ],
+    "operating_speeds": [{"name": "run", "min": 900, "max": 1450}],
+    "load_cases": [
+        {"name": "start-up", "torques": [{"shaft": "feed", "x": 700, "torque": 310}]},
+        {"name": "running", "torques": [{"shaft": "feed", "x": 700, "torque": 120}]},
+    ],
+    "design": {
+        "factor_of_safety": 2.0,
+        "shear_criterion": "von_mises",
+        "fatigue": {
+            "extremes": ["start-up", "running"],
+            "finish": "machined",
+            "reliability": 0.99,
+            "criterion": "goodman",
+            "factor_of_safety": 1.5,
+        },
+    },
+}
+
 DEMO_TITLE_BLOCK: dict[str, Any] = {
     "project": "Orchard line",
     "calculation_number": "WB-0042",

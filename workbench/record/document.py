@@ -21,6 +21,11 @@ changed either.
 *Results digest*: the SHA-256 of the RFC 8785 canonical JSON of ``{"results": results
 document, "checks": check document}``, every number rounded to 10 significant digits first, so
 that a re-run on another machine (another BLAS, last-bit differences) gives the same digest.
+A case with inertia adds ``"modes"`` (frequencies, rigid-body flags and mode shapes, the shapes'
+normalised angles rounded to 9 decimals so that round-off about a node of the shape cannot
+change the digest); a case with ``design.fatigue`` adds ``"fatigue"`` (the governing cycle of
+every segment with its stresses, strengths and factors of safety). Cases without them keep the
+digest they always had.
 
 The JWS payload (RFC 8785 canonical JSON) holds the case, the title block, both digests, the
 signer, the time of signing and the software version.
@@ -55,6 +60,7 @@ from workbench.solver.checks import (
 from workbench.solver.errors import InputError
 from workbench.solver.io import parse_case
 from workbench.solver.model import Model
+from workbench.solver.modes import Modes
 from workbench.solver.tables import results_document
 
 __all__ = [
@@ -105,6 +111,8 @@ class Computation:
     results: Results
     report: CheckReport
     results_digest: str
+    modes: Modes | None = None
+    modes_error: str | None = None
 
 
 def _rounded(value: Any) -> Any:
@@ -119,14 +127,98 @@ def _rounded(value: Any) -> Any:
     return value
 
 
-def results_digest(results: Results, report: CheckReport) -> str:
-    """``sha256:<hex>`` of the canonical, rounded results and check documents."""
-    document = {"results": results_document(results), "checks": check_document(report)}
+def _has_inertia(model: Model) -> bool:
+    """Whether the case gives discs or a density: then the record has a vibration section."""
+    return bool(model.discs) or any(
+        layer.material.density is not None
+        for shaft in model.shafts
+        for segment in shaft.segments
+        for layer in segment.layers
+    )
+
+
+def record_modes(model: Model, report: CheckReport) -> Modes:
+    """The natural modes the record shows: the lowest ten, and all up to the widened bands.
+
+    Raises
+    ------
+    InputError
+        When the system has no inertia free to move, or a group of shafts is free to spin
+        without inertia.
+    """
+    from workbench.solver.modes import natural_modes  # noqa: PLC0415
+
+    speeds = model.operating_speeds
+    up_to = None
+    if speeds:
+        up_to = max(speed.maximum for speed in speeds) * (1.0 + report.design.frequency_margin)
+    return natural_modes(
+        model,
+        up_to=up_to,
+        elements_per_segment=report.design.modal_elements_per_segment,
+        max_element_length=report.design.modal_max_element_length,
+    )
+
+
+def modes_digest_document(modes: Modes) -> list[dict[str, Any]]:
+    """Frequencies (Hz), rigid-body flags and shapes (x in m, angles to 9 decimals)."""
+    entries = []
+    for mode in range(len(modes)):
+        shafts = {}
+        for shaft in modes.model.shafts:
+            x, angle = modes.shape(mode, shaft.id)
+            shafts[shaft.id] = {
+                "x": [float(value) for value in x],
+                "angle": [round(float(value), 9) + 0.0 for value in angle],
+            }
+        entries.append(
+            {
+                "frequency": float(modes.frequency[mode]),
+                "rigid_body": bool(modes.rigid_body[mode]),
+                "shafts": shafts,
+            }
+        )
+    return entries
+
+
+def fatigue_digest_document(report: CheckReport) -> list[dict[str, Any]]:
+    """The governing cycle of every segment checked for fatigue (SI)."""
+    return [
+        {
+            "shaft": point.shaft,
+            "segment": point.segment,
+            "x": point.x,
+            "kfs": point.concentration,
+            "mean_shear": point.factors.mean_shear,
+            "alternating_shear": point.factors.alternating_shear,
+            "endurance_shear": point.factors.endurance_shear,
+            "ultimate_shear": point.factors.ultimate_shear,
+            "yield_shear": point.factors.yield_shear,
+            "goodman": point.factors.goodman,
+            "gerber": point.factors.gerber,
+            "asme_elliptic": point.factors.asme_elliptic,
+            "soderberg": point.factors.soderberg,
+            "first_cycle_yield": point.factors.first_cycle_yield,
+        }
+        for point in report.fatigue_points
+    ]
+
+
+def results_digest(results: Results, report: CheckReport, modes: Modes | None = None) -> str:
+    """``sha256:<hex>`` of the canonical, rounded results, checks, modes and fatigue cycles."""
+    document: dict[str, Any] = {
+        "results": results_document(results),
+        "checks": check_document(report),
+    }
+    if modes is not None:
+        document["modes"] = modes_digest_document(modes)
+    if report.fatigue_points:
+        document["fatigue"] = fatigue_digest_document(report)
     return "sha256:" + hashlib.sha256(canonicalize(_rounded(document))).hexdigest()
 
 
 def compute(case: Mapping[str, Any]) -> Computation:
-    """Parse, solve and check a case, and digest the results.
+    """Parse, solve and check a case, find its natural modes, and digest the results.
 
     Raises
     ------
@@ -137,7 +229,21 @@ def compute(case: Mapping[str, Any]) -> Computation:
     model = parse_case(case_dict)
     results = solve(model)
     report = run_checks(results)
-    return Computation(case_dict, model, results, report, results_digest(results, report))
+    modes, modes_error = None, None
+    if _has_inertia(model):
+        try:
+            modes = record_modes(model, report)
+        except InputError as error:
+            modes_error = str(error)
+    return Computation(
+        case_dict,
+        model,
+        results,
+        report,
+        results_digest(results, report, modes),
+        modes,
+        modes_error,
+    )
 
 
 def content_digest(text_without_block: str) -> str:
@@ -189,9 +295,6 @@ def _img(svg: str, alt: str, css: str = "figure") -> str:
 @lru_cache(maxsize=1)
 def _method_html() -> str:
     """The method section; the same for every record, so built once per process."""
-    from workbench.record.equations import load_equations  # noqa: PLC0415
-    from workbench.record.figures import data_uri  # noqa: PLC0415
-
     assumptions = [
         "Linear elastic, isotropic, homogeneous material in each layer.",
         "Saint-Venant torsion: plane circular sections stay plane; warping of non-circular "
@@ -207,8 +310,24 @@ def _method_html() -> str:
         "Sign convention: right-hand rule about each shaft's +x axis.",
     ]
     items = "".join(f"<li>{escape(text)}</li>" for text in assumptions)
+    return (
+        f"<ul>{items}</ul>\n<h3>Equations</h3>\n{_equations_table('statics')}"
+        "\n<p>References: J. M. Gere and B. J. Goodno, <em>Mechanics of Materials</em>, 8th ed., "
+        "ch. 3; W. D. Pilkey, <em>Formulas for Stress, Strain, and Structural Matrices</em>, "
+        "2nd ed., ch. 14 (torsion, transfer and stiffness matrices).</p>"
+    )
+
+
+@lru_cache(maxsize=4)
+def _equations_table(group: str) -> str:
+    """The shipped pictures of one group's equations, numbered through the whole record."""
+    from workbench.record.equations import load_equations  # noqa: PLC0415
+    from workbench.record.figures import data_uri  # noqa: PLC0415
+
     rows = []
     for number, (equation, svg, width_pt, height_pt) in enumerate(load_equations(), start=1):
+        if equation.group != group:
+            continue
         # Shown at the size drawn (pt → CSS px at 96 px per inch), so every equation's text
         # has the same size; the width and height attributes keep the layout from jumping.
         width, height = round(width_pt * 4 / 3), round(height_pt * 4 / 3)
@@ -218,13 +337,7 @@ def _method_html() -> str:
             f'<td class="equation-note">{escape(equation.meaning)}</td>'
             f'<td class="equation-number">({number})</td></tr>'
         )
-    return (
-        f'<ul>{items}</ul>\n<h3>Equations</h3>\n<table class="equations"><tbody>{"".join(rows)}'
-        "</tbody></table>"
-        "\n<p>References: J. M. Gere and B. J. Goodno, <em>Mechanics of Materials</em>, 8th ed., "
-        "ch. 3; W. D. Pilkey, <em>Formulas for Stress, Strain, and Structural Matrices</em>, "
-        "2nd ed., ch. 14 (torsion, transfer and stiffness matrices).</p>"
-    )
+    return f'<table class="equations"><tbody>{"".join(rows)}</tbody></table>'
 
 
 def _section_text(section: Any, units: Any) -> str:
@@ -580,6 +693,413 @@ def _checks_html(computation: Computation) -> str:
     )
 
 
+# --- torsional vibration and fatigue ------------------------------------------------------------
+
+#: Flexible modes drawn in the record; every mode is in the table.
+DRAWN_MODES = 4
+
+
+def _rpm(angular: float) -> float:
+    return angular * 60.0 / (2.0 * math.pi)
+
+
+def _vibration_html(computation: Computation) -> str:
+    """Inertia, method, natural frequencies, mode shapes and separation from running speeds."""
+    from workbench.record.figures import mode_shape_svg  # noqa: PLC0415
+    from workbench.solver.modes import (  # noqa: PLC0415
+        DEFAULT_FREQUENCY_MARGIN,
+        frequency_separations,
+    )
+
+    model, modes = computation.model, computation.modes
+    units = model.units
+    length, inertia, density = (units.label(q) for q in ("length", "inertia", "density"))
+    parts = ["<h3>Inertia</h3>"]
+    if model.discs:
+        parts.append(
+            _table(
+                ["disc", "shaft", f"x [{length}]", f"inertia [{inertia}]"],
+                [
+                    [
+                        n,
+                        d.shaft,
+                        _num(units.from_si(d.x, "length")),
+                        _num(units.from_si(d.inertia, "inertia"), 6),
+                    ]
+                    for n, d in enumerate(model.discs)
+                ],
+            )
+        )
+    else:
+        parts.append("<p>No discs: the shafts' own inertia only.</p>")
+    densities: dict[str, float | None] = {}
+    for shaft in model.shafts:
+        for segment in shaft.segments:
+            for layer in segment.layers:
+                densities.setdefault(layer.material.name, layer.material.density)
+    parts.append(
+        _table(
+            ["material", f"density [{density}]"],
+            [
+                [
+                    name,
+                    "— (massless spring)"
+                    if value is None
+                    else _num(units.from_si(value, "density")),
+                ]
+                for name, value in densities.items()
+            ],
+        )
+    )
+    assumptions = [
+        "Undamped free vibration about the shaft axes; the shafts' stiffness is the static "
+        "solver's own (exact element stiffness, spring supports, fixed supports, gear meshes).",
+        "Inertia: each disc's mass moment of inertia on its node; each segment with a density "
+        "adds ρ·J per length (J the polar moment of area) as a consistent mass matrix.",
+        "Fixed supports and gear meshes are imposed by a transformation of coordinates θ = T·q, "
+        "so that TᵀKT and TᵀMT are the stiffness and inertia referred through the gear ratios.",
+        "A group of shafts that no support restrains has a rigid-body mode at 0 Hz, marked as "
+        "such.",
+        "Running speeds excite once per revolution: each band is compared with the natural "
+        "frequencies as speeds.",
+    ]
+    parts += [
+        "<h3>Method</h3>",
+        "<ul>" + "".join(f"<li>{escape(text)}</li>" for text in assumptions) + "</ul>",
+        _equations_table("vibration"),
+        "<p>References: S. S. Rao, <em>Mechanical Vibrations</em> (torsional systems of discs on "
+        "shafts; from memory); R. D. Cook, D. S. Malkus, M. E. Plesha and R. J. Witt, "
+        "<em>Concepts and Applications of Finite Element Analysis</em>, 4th ed., ch. 11 "
+        "(consistent mass); W. McGuire, R. H. Gallagher and R. D. Ziemian, <em>Matrix Structural "
+        "Analysis</em>, 2nd ed., ch. 12 (constraints by transformation).</p>",
+    ]
+    if modes is None:
+        parts.append(
+            f'<p class="verdict fail">The natural modes could not be found: '
+            f"{escape(computation.modes_error or 'no inertia')}.</p>"
+        )
+        return "\n".join(parts)
+    parts.append(
+        f"<p>Mesh: every segment with inertia cut into at least {modes.elements_per_segment} "
+        "elements (frequencies converge from above as the square of the element length; refine "
+        "to confirm the frequencies relied on).</p>"
+    )
+    rows = []
+    for mode in range(len(modes)):
+        where, at = modes.antinode(mode)
+        omega = float(modes.angular_frequency[mode])
+        rows.append(
+            [
+                mode + 1,
+                _num(omega / (2.0 * math.pi), 6),
+                _num(_rpm(omega), 6),
+                "rigid body" if modes.rigid_body[mode] else "flexible",
+                f"{where} @ {_num(units.from_si(at, 'length'))}",
+            ]
+        )
+    parts += [
+        "<h3>Natural frequencies</h3>",
+        _table(
+            [
+                "mode",
+                "frequency [Hz]",
+                "as a speed [rpm]",
+                "kind",
+                f"largest |angle| [shaft @ x {length}]",
+            ],
+            rows,
+            "frequencies",
+        ),
+    ]
+    if not modes.complete:
+        parts.append("<p>The lowest modes only; <code>workbench modes</code> lists more.</p>")
+    discs = [(d.shaft, float(units.from_si(d.x, "length"))) for d in model.discs]
+    drawn = [mode for mode in range(len(modes)) if not modes.rigid_body[mode]][:DRAWN_MODES]
+    for mode in drawn:
+        shafts = []
+        for member in model.shafts:
+            stations, angle = modes.shape(mode, member.id)
+            shafts.append((member.id, units.from_si(stations, "length").tolist(), angle.tolist()))
+        hertz = float(modes.frequency[mode])
+        svg = mode_shape_svg(
+            f"mode {mode + 1}: {_num(hertz, 6)} Hz = {_num(_rpm(hertz * 2.0 * math.pi), 6)} rpm",
+            shafts,
+            discs,
+            f"x along the shaft [{length}]",
+        )
+        parts.append(_img(svg, f"shape of mode {mode + 1}", "figure mode-shape"))
+    if drawn:
+        parts.append(
+            '<p class="caption">Mode shapes: rotation along each shaft, scaled to a largest '
+            "|angle| of 1 over all shafts (one scale for every panel); red bars mark discs. "
+            "Rigid-body modes (a constant rotation) are not drawn.</p>"
+        )
+    speeds = model.operating_speeds
+    if speeds:
+        margin = computation.report.design.frequency_margin
+        source = (
+            "the default, common practice, no source"
+            if margin == DEFAULT_FREQUENCY_MARGIN
+            else "the case's frequency_margin"
+        )
+        parts += [
+            "<h3>Running speeds and frequency separation</h3>",
+            f"<p>Each band [min, max] is widened to [min·(1 − m), max·(1 + m)] with margin "
+            f"m = {margin:.0%} ({escape(source)}) and compared with the nearest natural "
+            "frequency below it, every one inside it and the nearest above it (excitation once "
+            "per revolution). A frequency is clear when it lies outside the widened band; "
+            "utilisation = value/limit (below: ω over the lower edge; above: the upper edge "
+            "over ω).</p>",
+            _table(
+                ["band", "min [rpm]", "max [rpm]", "widened [rpm]"],
+                [
+                    [
+                        s.name,
+                        _num(_rpm(s.minimum), 6),
+                        _num(_rpm(s.maximum), 6),
+                        f"{_num(_rpm(s.minimum * (1 - margin)), 6)} to "
+                        f"{_num(_rpm(s.maximum * (1 + margin)), 6)}",
+                    ]
+                    for s in speeds
+                ],
+            ),
+            _table(
+                [
+                    "band",
+                    "mode",
+                    "frequency [Hz]",
+                    "as a speed [rpm]",
+                    "where",
+                    "utilisation",
+                    "verdict",
+                ],
+                [
+                    [
+                        item.speed.name,
+                        item.mode + 1,
+                        _num(item.angular_frequency / (2.0 * math.pi), 6),
+                        _num(_rpm(item.angular_frequency), 6),
+                        f"{item.position} the widened band",
+                        f"{item.utilisation:.3f}",
+                        "clear" if item.passes else "TOO CLOSE",
+                    ]
+                    for item in frequency_separations(modes, speeds, margin)
+                ],
+                "separations",
+            ),
+        ]
+    if modes.notes:
+        parts.append("<ul>" + "".join(f"<li>{escape(n)}</li>" for n in modes.notes) + "</ul>")
+    return "\n".join(parts)
+
+
+def _factor(value: float) -> str:
+    return "∞" if math.isinf(value) else f"{value:.3g}"
+
+
+def _fatigue_html(computation: Computation) -> str:
+    """Torque states, method with Marin factors, per-segment factors of safety, diagrams."""
+    from workbench.record.figures import fatigue_diagram_svg  # noqa: PLC0415
+    from workbench.solver.fatigue import endurance_limit  # noqa: PLC0415
+    from workbench.solver.units import display_units  # noqa: PLC0415
+
+    model, report = computation.model, computation.report
+    criteria = report.design.fatigue
+    assert criteria is not None
+    units = model.units
+    length, stress = units.label("length"), units.label("stress")
+    first, second = criteria.result_names
+    if criteria.extremes is not None:
+        states = (
+            f"<p>The torque cycles between the results <strong>{escape(first)}</strong> and "
+            f"<strong>{escape(second)}</strong>: at every station T₁ and T₂ are their internal "
+            "torques.</p>"
+        )
+    else:
+        states = (
+            f"<p>Mean torque from the result <strong>{escape(first)}</strong>, alternating "
+            f"amplitude from <strong>{escape(second)}</strong> (its magnitude): "
+            "τm = Kfs·Tm·r_o/J, τa = Kfs·|Ta|·r_o/J.</p>"
+        )
+    settings = [
+        ["criterion", criteria.criterion.replace("_", "-")],
+        [
+            "required factor of safety (fatigue and first-cycle yield)",
+            f"{criteria.factor_of_safety:g}",
+        ],
+        ["surface finish", criteria.finish],
+        ["reliability", f"{criteria.reliability:g}"],
+        [
+            "temperature",
+            "room temperature" if criteria.temperature is None else f"{criteria.temperature:g} K",
+        ],
+        [
+            "rotating-beam endurance limit Se′",
+            "estimated from Sut"
+            if criteria.endurance_limit is None
+            else f"tested, {_num(units.from_si(criteria.endurance_limit, 'stress'))} {stress}",
+        ],
+    ]
+    method = [
+        "For every one-layer round segment of a material with yield and ultimate strengths, at "
+        "every station: the cycle's mean and alternating shear stress with the fatigue "
+        "stress-concentration factor Kfs on both (conservative practice for shafts).",
+        "Kfs = 1 + q·(Kts − 1): at a shoulder fillet Kts from fits to the shoulder charts and q "
+        "from the torsional Neuber relation; at a keyseat Kts = 3.0 with q = 1; no notch: 1.",
+        "Sse = ka·kb·kc·kd·ke·Se′ (Marin factors: finish, size, torsion kc = 0.59, "
+        "temperature, reliability); Se′ = 0.5·Sut up to 1400 MPa, else 700 MPa, unless tested.",
+        "The factor of safety along a radial load line by the chosen criterion, and against "
+        "first-cycle yield (Langer); the station where the smaller governs is reported.",
+    ]
+    parts = [
+        "<h3>Torque states</h3>",
+        states,
+        _table(["setting", "value"], settings),
+        "<h3>Method</h3>",
+        "<ul>" + "".join(f"<li>{escape(text)}</li>" for text in method) + "</ul>",
+        _equations_table("fatigue"),
+        "<p>References: R. G. Budynas and J. K. Nisbett, <em>Shigley's Mechanical Engineering "
+        "Design</em>, 9th/10th ed., ch. 6 (Marin factors, notch sensitivity, fluctuating "
+        "stresses, torsion) and ch. 7 (shafts); ASME B106.1M-1985 (the elliptic criterion).</p>",
+    ]
+    marin_rows: list[list[Any]] = []
+    bases: dict[str, None] = {}
+    token = display_units.set(units)
+    try:
+        for point in report.fatigue_points:
+            segment = model.shafts[model.shaft_number(point.shaft)].segments[point.segment]
+            material = segment.layers[0].material
+            assert material.ultimate_strength is not None
+            diameter = 2.0 * segment.layers[0].section.outer_radius
+            limit = endurance_limit(
+                material.ultimate_strength,
+                diameter,
+                criteria.finish,
+                "torsion",
+                criteria.reliability,
+                criteria.temperature,
+                rotating_beam_limit=criteria.endurance_limit,
+            )
+            marin_rows.append(
+                [
+                    point.shaft,
+                    point.segment,
+                    _num(units.from_si(diameter, "length")),
+                    *(f"{factor.value:.4g}" for factor in limit.factors[:5]),
+                    _num(units.from_si(limit.rotating_beam_limit, "stress")),
+                    _num(units.from_si(limit.value, "stress")),
+                ]
+            )
+            for factor in limit.factors[:5]:
+                bases.setdefault(f"{factor.symbol}: {factor.basis}", None)
+            bases.setdefault(f"Se′: {limit.rotating_beam_basis}", None)
+    finally:
+        display_units.reset(token)
+    parts += [
+        "<h4>Marin factors</h4>",
+        _table(
+            [
+                "shaft",
+                "segment",
+                f"Ø [{length}]",
+                "ka",
+                "kb",
+                "kc",
+                "kd",
+                "ke",
+                f"Se′ [{stress}]",
+                f"Sse [{stress}]",
+            ],
+            marin_rows,
+        ),
+        "<ul>" + "".join(f"<li>{escape(text)}</li>" for text in bases) + "</ul>",
+    ]
+    required = criteria.factor_of_safety
+    rows = []
+    for point in report.fatigue_points:
+        factors = point.factors
+        governing = min(factors.factor_of_safety(criteria.criterion), factors.first_cycle_yield)
+        rows.append(
+            [
+                point.shaft,
+                point.segment,
+                _num(units.from_si(point.x, "length")),
+                _num(units.from_si(factors.mean_shear, "stress")),
+                _num(units.from_si(factors.alternating_shear, "stress")),
+                f"{point.concentration:.3g}",
+                _num(units.from_si(factors.endurance_shear, "stress")),
+                _factor(factors.goodman),
+                _factor(factors.gerber),
+                _factor(factors.asme_elliptic),
+                _factor(factors.soderberg),
+                _factor(factors.first_cycle_yield),
+                "pass" if governing >= required else "FAIL",
+            ]
+        )
+    chosen = criteria.criterion.replace("_", "-")
+    parts += [
+        "<h3>Factors of safety</h3>",
+        f"<p>Verdict by the chosen criterion ({escape(chosen)}) and by first-cycle yield "
+        f"(Langer): both must reach the required factor {required:g}. Columns Goodman to "
+        "Langer are factors of safety n; the other criteria are shown for comparison. "
+        f"Stresses in {escape(stress)}; x in {escape(length)}.</p>",
+        _table(
+            [
+                "shaft",
+                "segment",
+                "x",
+                "τm",
+                "τa",
+                "Kfs",
+                "Sse",
+                "Goodman",
+                "Gerber",
+                "ASME-elliptic",
+                "Soderberg",
+                "Langer",
+                "verdict",
+            ],
+            rows,
+            "fatigue",
+        ),
+        "<ul>"
+        + "".join(
+            f"<li>{escape(p.shaft)} segment {p.segment}: {escape(p.basis.split('; ')[0])}</li>"
+            for p in report.fatigue_points
+        )
+        + "</ul>",
+    ]
+    if not report.fatigue_points:
+        parts.append("<p>No segment could be checked for fatigue; see Warnings.</p>")
+    for point in report.fatigue_points:
+        factors = point.factors
+        svg = fatigue_diagram_svg(
+            f"fatigue diagram, shaft {point.shaft} segment {point.segment}",
+            float(units.from_si(factors.endurance_shear, "stress")),
+            float(units.from_si(factors.ultimate_shear, "stress")),
+            float(units.from_si(factors.yield_shear, "stress")),
+            (
+                float(units.from_si(factors.mean_shear, "stress")),
+                float(units.from_si(factors.alternating_shear, "stress")),
+            ),
+            stress,
+        )
+        parts.append(
+            _img(
+                svg,
+                f"fatigue diagram of shaft {point.shaft} segment {point.segment}",
+                "figure fatigue-diagram",
+            )
+        )
+    if report.fatigue_points:
+        parts.append(
+            '<p class="caption">Fatigue diagrams: alternating against mean shear stress with the '
+            "criteria's failure lines (Sse, Ssu, Ssy of the segment), the radial load line "
+            "(dotted) and the governing cycle (red point).</p>"
+        )
+    return "\n".join(parts)
+
+
 def _hand_check_html(computation: Computation) -> tuple[str, list[str]]:
     from workbench.record.handcheck import (  # noqa: PLC0415
         AGREEMENT_TOLERANCE,
@@ -662,15 +1182,34 @@ def _title_html(title_block: Mapping[str, Any], model: Model, signed: bool) -> s
     )
 
 
+def _default_scope(model: Model) -> str:
+    vibration = _has_inertia(model)
+    fatigue = getattr(model.design, "fatigue", None) is not None
+    left_out = ["bending", "axial load"]
+    left_out += [] if fatigue else ["fatigue"]
+    left_out += [] if vibration else ["vibration"]
+    left_out.append("buckling")
+    added = [
+        *(
+            ["torsional vibration (natural frequencies, separation from running speeds)"]
+            if vibration
+            else []
+        ),
+        *(["fatigue under the fluctuating torque named in the design"] if fatigue else []),
+    ]
+    text = f"Torsion only (no {', '.join(left_out[:-1])} or {left_out[-1]}); static loads"
+    if added:
+        text += "; also " + " and ".join(added)
+    return text + "; the members, supports and loads listed under Inputs."
+
+
 def _text_sections(title_block: Mapping[str, Any], model: Model) -> str:
     texts = {
         "purpose": title_block.get("purpose")
         or f"Check the shafts of “{model.title or 'the case'}” in torsion: support torques, "
         "internal torque, angle of twist and shear stress for every load case and combination, "
         "against the design criteria stated below.",
-        "scope": title_block.get("scope")
-        or "Torsion only (no bending, axial load, fatigue, vibration or buckling); static loads; "
-        "the members, supports and loads listed under Inputs.",
+        "scope": title_block.get("scope") or _default_scope(model),
     }
     return "".join(
         f"<h3>{escape(key.capitalize())}</h3><p>{escape(texts[key])}</p>" for key in TEXT_FIELDS
@@ -690,6 +1229,16 @@ def _signature_html(signer: str, signed_at: str, fingerprint: str | None) -> str
         ],
         "signature",
     )
+
+
+def extra_sections(computation: Computation) -> list[str]:
+    """The torsional vibration and fatigue sections, when the case asks for them."""
+    out = []
+    if computation.modes is not None or computation.modes_error is not None:
+        out.append(_section("vibration", "Torsional vibration", _vibration_html(computation)))
+    if computation.report.design.fatigue is not None:
+        out.append(_section("fatigue", "Fatigue", _fatigue_html(computation)))
+    return out
 
 
 def render_body(
@@ -747,6 +1296,7 @@ def render_body(
         _section("inputs", "Inputs", _inputs_html(computation)),
         _section("method", "Method and assumptions", _method_html()),
         _section("results", "Results", _results_html(computation)),
+        *extra_sections(computation),
         _section("checks", "Design checks", _checks_html(computation)),
         _section("hand-check", "Independent hand check", hand_html),
         _section("warnings", "Warnings", warning_html),

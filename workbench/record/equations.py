@@ -67,12 +67,16 @@ class Equation:
         A plain-text reading of it (the picture's alternative text).
     meaning
         What it states, shown beside it.
+    group
+        The record section that shows it: ``"statics"`` (Method and assumptions),
+        ``"vibration"`` (Torsional vibration) or ``"fatigue"`` (Fatigue).
     """
 
     name: str
     tex: str
     reading: str
     meaning: str
+    group: str = "statics"
 
 
 #: Equations of the method, in the order the record numbers them.
@@ -124,6 +128,71 @@ EQUATIONS: tuple[Equation, ...] = (
         r"\theta_{B0} + R_B\,f_{BB} = r_B - \dfrac{R_B}{k_B}",
         "θ_B0 + R_B·f_BB = r_B − R_B/k_B",
         "compatibility at the released support (hand check)",
+    ),
+    Equation(
+        "consistent-mass",
+        r"M_e = \dfrac{\mu\,L_e}{6} \left[ \genfrac{}{}{0}{0}{2}{1} \quad \genfrac{}{}{0}{0}{1}{2} "
+        r"\right],\qquad \mu = \sum_i \rho_i\,J_i",
+        "M_e = μ·L_e/6·[[2, 1], [1, 2]], μ = Σ ρᵢ·Jᵢ",
+        "consistent mass of a prismatic element (tapered: integrated exactly); discs add their "
+        "inertia on their node",
+        "vibration",
+    ),
+    Equation(
+        "gear-constraint",
+        r"\theta = T\,q,\qquad c_a\,\theta_a + c_b\,\theta_b = 0,\qquad "
+        r"\theta_b = -\dfrac{r_a}{r_b}\,\theta_a",
+        "θ = T·q; c_a·θ_a + c_b·θ_b = 0; θ_b = −(r_a/r_b)·θ_a",
+        "constraints by transformation: fixed supports and gear meshes remove rotations",
+        "vibration",
+    ),
+    Equation(
+        "eigenproblem",
+        r"T^{\,T} K\,T\,q = \omega^2\,T^{\,T} M\,T\,q,\qquad f = \dfrac{\omega}{2\pi}",
+        "Tᵀ·K·T·q = ω²·Tᵀ·M·T·q, f = ω/(2π)",
+        "undamped free vibration on the constrained coordinates",
+        "vibration",
+    ),
+    Equation(
+        "fatigue-stresses",
+        r"\tau_m = K_{fs}\,\dfrac{|T_1 + T_2|}{2}\,\dfrac{r_o}{J},\qquad "
+        r"\tau_a = K_{fs}\,\dfrac{|T_1 - T_2|}{2}\,\dfrac{r_o}{J},\qquad K_{fs} = 1 + q\,(K_{ts} - 1)",
+        "τm = Kfs·|T₁ + T₂|/2·r_o/J, τa = Kfs·|T₁ − T₂|/2·r_o/J, Kfs = 1 + q·(Kts − 1)",
+        "mean and alternating shear stress of the cycle between two torque states",
+        "fatigue",
+    ),
+    Equation(
+        "endurance-limit",
+        r"S_{se} = k_a\,k_b\,k_c\,k_d\,k_e\,S_e^{\prime}",
+        "Sse = ka·kb·kc·kd·ke·Se′",
+        "corrected shear endurance limit (Marin factors; kc for torsion)",
+        "fatigue",
+    ),
+    Equation(
+        "goodman-soderberg",
+        r"\dfrac{1}{n} = \dfrac{\tau_a}{S_{se}} + \dfrac{\tau_m}{S_{su}}\ \ (\mathrm{Goodman}),"
+        r"\qquad \dfrac{1}{n} = \dfrac{\tau_a}{S_{se}} + \dfrac{\tau_m}{S_{sy}}\ \ "
+        r"(\mathrm{Soderberg})",
+        "1/n = τa/Sse + τm/Ssu (Goodman); 1/n = τa/Sse + τm/Ssy (Soderberg)",
+        "linear criteria",
+        "fatigue",
+    ),
+    Equation(
+        "gerber-elliptic",
+        r"\dfrac{n\,\tau_a}{S_{se}} + \left(\dfrac{n\,\tau_m}{S_{su}}\right)^2 = 1\ \ "
+        r"(\mathrm{Gerber}),\qquad \left(\dfrac{n\,\tau_a}{S_{se}}\right)^2 + "
+        r"\left(\dfrac{n\,\tau_m}{S_{sy}}\right)^2 = 1\ \ (\mathrm{ASME\ elliptic})",
+        "n·τa/Sse + (n·τm/Ssu)² = 1 (Gerber); (n·τa/Sse)² + (n·τm/Ssy)² = 1 (ASME-elliptic)",
+        "curved criteria",
+        "fatigue",
+    ),
+    Equation(
+        "langer",
+        r"n_y = \dfrac{S_{sy}}{\tau_a + \tau_m},\qquad S_{su} = 0.67\,S_{ut},\quad "
+        r"S_{sy} = S_y/\sqrt{3}",
+        "n_y = Ssy/(τa + τm); Ssu = 0.67·Sut, Ssy = Sy/√3",
+        "first-cycle yield (Langer) and the torsional strengths",
+        "fatigue",
     ),
 )
 

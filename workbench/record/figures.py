@@ -22,7 +22,13 @@ from markupsafe import escape
 
 from workbench.solver.model import Model, Segment, Shaft
 
-__all__ = ["data_uri", "elevation_svg", "line_diagram_svg"]
+__all__ = [
+    "data_uri",
+    "elevation_svg",
+    "fatigue_diagram_svg",
+    "line_diagram_svg",
+    "mode_shape_svg",
+]
 
 #: Fonts of the drawings; an SVG shown as an image uses the reader's installed fonts.
 FONT_FAMILY = "DejaVu Sans, Helvetica, Arial, sans-serif"
@@ -648,6 +654,246 @@ def line_diagram_svg(
         f"{escape(_nice(x_max))}</text>",
         f'<text x="{left + plot_width / 2:.1f}" y="{bottom:g}" text-anchor="middle">'
         f"{escape(x_label)}</text>",
+        "</svg>",
+    ]
+    return "\n".join(parts)
+
+
+# --- mode shapes ----------------------------------------------------------------------------
+
+
+def mode_shape_svg(
+    title: str,
+    shafts: Sequence[tuple[str, Sequence[float], Sequence[float]]],
+    discs: Sequence[tuple[str, float]],
+    x_label: str,
+    width: int = 720,
+    panel_height: int = 70,
+    font_size: float = 11.0,
+) -> str:
+    """One mode shape: the normalised angle along each shaft, one panel per shaft.
+
+    Parameters
+    ----------
+    title
+        What the drawing shows (mode number and frequency).
+    shafts
+        ``(shaft id, x at the nodes (reader's length unit), normalised angle)`` per shaft.
+    discs
+        ``(shaft id, x)`` of each disc (reader's length unit), marked on its shaft's line.
+    x_label
+        Label of the x axis (with its unit).
+    width, panel_height
+        Size in CSS pixels.
+    font_size
+        Size of the text (CSS px).
+
+    Returns
+    -------
+    str
+        An SVG document; every panel shares one x scale (the longest shaft) and the angle axis
+        −1 … 1, so the shafts' amplitudes compare directly (a gear's ratio shows as a step in
+        amplitude from one shaft to the next).
+    """
+    left, right, top, gap = 74, 14, font_size + 10, 22
+    longest = max((float(max(x)) for _, x, _ in shafts if len(x)), default=1.0) or 1.0
+    plot_width = width - left - right
+    height = int(top + len(shafts) * (panel_height + gap) + font_size + 6)
+
+    def to_x(value: float) -> float:
+        return left + value / longest * plot_width
+
+    parts = [
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" '
+        f'viewBox="0 0 {width} {height}" font-family="{FONT_FAMILY}" '
+        f'font-size="{font_size:g}">',
+        f'<rect width="{width}" height="{height}" fill="#ffffff"/>',
+        f'<text x="{left}" y="{font_size + 2:g}" font-weight="bold">{escape(title)}</text>',
+    ]
+    for number, (shaft_id, xs, angles) in enumerate(shafts):
+        y0 = top + number * (panel_height + gap)
+        middle = y0 + panel_height / 2.0
+
+        def to_y(value: float, y0: float = y0) -> float:
+            return y0 + (1.0 - value) / 2.0 * panel_height
+
+        points = " ".join(
+            f"{to_x(float(a)):.2f},{to_y(float(b)):.2f}" for a, b in zip(xs, angles, strict=True)
+        )
+        parts += [
+            f'<rect x="{left}" y="{y0:g}" width="{plot_width}" height="{panel_height}" '
+            'fill="none" stroke="#bbbbbb" stroke-width="0.6"/>',
+            f'<line x1="{left}" y1="{middle:.2f}" x2="{left + plot_width}" y2="{middle:.2f}" '
+            'stroke="#888888" stroke-width="0.6" stroke-dasharray="3,2"/>',
+            f'<polyline points="{points}" fill="none" stroke="{_SUPPORT}" stroke-width="1.4"/>',
+            f'<text x="{left - 4}" y="{y0 + font_size - 1:g}" text-anchor="end">1</text>',
+            f'<text x="{left - 4}" y="{y0 + panel_height:g}" text-anchor="end">\u22121</text>',
+            f'<text x="{left + 4}" y="{y0 + font_size + 1:g}" fill="#333333">'
+            f"shaft {escape(shaft_id)}</text>",
+        ]
+        for disc_shaft, disc_x in discs:
+            if disc_shaft != shaft_id:
+                continue
+            angle = float(np.interp(disc_x, np.asarray(xs, float), np.asarray(angles, float)))
+            parts.append(
+                f'<rect x="{to_x(disc_x) - 3:.2f}" y="{to_y(angle) - 6:.2f}" width="6" '
+                f'height="12" fill="{_LOAD}"/>'
+            )
+    bottom = top + len(shafts) * (panel_height + gap) - gap + font_size + 3
+    parts += [
+        f'<text x="{left}" y="{bottom:g}">0</text>',
+        f'<text x="{left + plot_width}" y="{bottom:g}" text-anchor="end">'
+        f"{escape(_nice(longest))}</text>",
+        f'<text x="{left + plot_width / 2:.1f}" y="{bottom:g}" text-anchor="middle">'
+        f"{escape(x_label)}</text>",
+        "</svg>",
+    ]
+    return "\n".join(parts)
+
+
+# --- fatigue diagram ------------------------------------------------------------------------
+
+#: The criteria's lines: (name, colour, dash pattern or "").
+_CRITERIA_STYLE = (
+    ("Goodman", "#1f4e79", ""),
+    ("Gerber", "#2a6f2a", "6,3"),
+    ("ASME-elliptic", "#7a4a12", "2,2"),
+    ("Soderberg", "#555555", "8,2,2,2"),
+    ("Langer (first-cycle yield)", "#a00000", "4,4"),
+)
+
+
+def fatigue_diagram_svg(
+    title: str,
+    endurance: float,
+    ultimate: float,
+    shear_yield: float,
+    point: tuple[float, float],
+    unit: str,
+    width: int = 720,
+    height: int = 300,
+    font_size: float = 11.0,
+) -> str:
+    """Alternating against mean shear stress: the failure lines and the operating point.
+
+    Parameters
+    ----------
+    title
+        What the drawing shows (shaft and segment).
+    endurance, ultimate, shear_yield
+        Sse, Ssu and Ssy in the reader's stress unit.
+    point
+        (τm, τa) of the governing cycle in the reader's stress unit.
+    unit
+        The stress unit's label.
+    width, height
+        Size in CSS pixels.
+    font_size
+        Size of the text (CSS px).
+
+    Returns
+    -------
+    str
+        An SVG document with the modified Goodman line τa = Sse·(1 − τm/Ssu), the Gerber
+        parabola τa = Sse·(1 − (τm/Ssu)²), the ASME-elliptic quadrant (τa/Sse)² + (τm/Ssy)² = 1,
+        the Soderberg line τa = Sse·(1 − τm/Ssy) and the Langer line τa + τm = Ssy, the load line
+        from the origin through the operating point, and the point itself.
+
+    References
+    ----------
+    .. [1] Budynas & Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed., §6-12, fig.
+       6-27 (fatigue diagram of the criteria) and §6-14 (torsion).
+    """
+    left, right, top, bottom_margin = 74, 190, font_size + 12, 40
+    mean, alternating = point
+    x_max = max(ultimate, mean) * 1.08
+    y_max = max(shear_yield, endurance, alternating) * 1.08
+    plot_width, plot_height = width - left - right, height - top - bottom_margin
+    bottom = top + plot_height
+
+    def to_x(value: float) -> float:
+        return left + value / x_max * plot_width
+
+    def to_y(value: float) -> float:
+        return bottom - value / y_max * plot_height
+
+    fractions = np.linspace(0.0, 1.0, 41)
+    curves = (
+        (fractions * ultimate, endurance * (1.0 - fractions)),
+        (fractions * ultimate, endurance * (1.0 - fractions**2)),
+        (
+            shear_yield * np.sin(fractions * math.pi / 2.0),
+            endurance * np.cos(fractions * math.pi / 2.0),
+        ),
+        (fractions * shear_yield, endurance * (1.0 - fractions)),
+        (fractions * shear_yield, shear_yield * (1.0 - fractions)),
+    )
+    parts = [
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" '
+        f'viewBox="0 0 {width} {height}" font-family="{FONT_FAMILY}" '
+        f'font-size="{font_size:g}">',
+        f'<rect width="{width}" height="{height}" fill="#ffffff"/>',
+        f'<text x="{left}" y="{font_size + 2:g}" font-weight="bold">{escape(title)}</text>',
+        f'<line x1="{left}" y1="{bottom:g}" x2="{left + plot_width}" y2="{bottom:g}" '
+        f'stroke="{_INK}" stroke-width="1"/>',
+        f'<line x1="{left}" y1="{top:g}" x2="{left}" y2="{bottom:g}" stroke="{_INK}" '
+        'stroke-width="1"/>',
+    ]
+    for (_name, colour, dash), (xs, ys) in zip(_CRITERIA_STYLE, curves, strict=True):
+        points = " ".join(f"{to_x(a):.2f},{to_y(b):.2f}" for a, b in zip(xs, ys, strict=True))
+        style = f' stroke-dasharray="{dash}"' if dash else ""
+        parts.append(
+            f'<polyline points="{points}" fill="none" stroke="{colour}" stroke-width="1.3"{style}/>'
+        )
+    for number, (name, colour, dash) in enumerate(_CRITERIA_STYLE):
+        y = top + 6 + number * (font_size + 7)
+        x = left + plot_width + 14
+        style = f' stroke-dasharray="{dash}"' if dash else ""
+        parts += [
+            f'<line x1="{x}" y1="{y:g}" x2="{x + 24}" y2="{y:g}" stroke="{colour}" '
+            f'stroke-width="1.3"{style}/>',
+            f'<text x="{x + 30}" y="{y + font_size * 0.35:.1f}">{escape(name)}</text>',
+        ]
+    # The load line: the cycle grows in proportion from the origin (radial load line).
+    reaches = [limit / value for limit, value in ((x_max, mean), (y_max, alternating)) if value]
+    if reaches:
+        reach = min(reaches)
+        parts.append(
+            f'<line x1="{to_x(0.0):.2f}" y1="{to_y(0.0):.2f}" x2="{to_x(mean * reach):.2f}" '
+            f'y2="{to_y(alternating * reach):.2f}" stroke="#777777" stroke-width="0.7" '
+            'stroke-dasharray="1,3"/>'
+        )
+    parts += [
+        f'<circle cx="{to_x(mean):.2f}" cy="{to_y(alternating):.2f}" r="3.5" fill="{_LOAD}"/>',
+        f'<text x="{to_x(mean) + 6:.2f}" y="{to_y(alternating) - 6:.2f}" fill="{_LOAD}">'
+        f"(τm {escape(_nice(mean))}, τa {escape(_nice(alternating))})</text>",
+    ]
+    ticks = (
+        (endurance, "Sse", "y"),
+        (shear_yield, "Ssy", "y"),
+        (shear_yield, "Ssy", "x"),
+        (ultimate, "Ssu", "x"),
+    )
+    for value, name, axis in ticks:
+        text = f"{name} {_nice(value)}"
+        if axis == "y":
+            parts.append(
+                f'<text x="{left - 4}" y="{to_y(value) + font_size * 0.35:.1f}" '
+                f'text-anchor="end">{escape(text)}</text>'
+            )
+        else:
+            parts += [
+                f'<line x1="{to_x(value):.2f}" y1="{bottom:g}" x2="{to_x(value):.2f}" '
+                f'y2="{bottom + 4:g}" stroke="{_INK}" stroke-width="1"/>',
+                f'<text x="{to_x(value):.2f}" y="{bottom + font_size + 4:g}" '
+                f'text-anchor="middle">{escape(text)}</text>',
+            ]
+    parts += [
+        f'<text x="{left + plot_width / 2:.1f}" y="{height - 6}" text-anchor="middle">'
+        f"mean shear stress τm [{escape(unit)}]</text>",
+        f'<text x="14" y="{(top + bottom) / 2:.1f}" text-anchor="middle" '
+        f'transform="rotate(-90 14 {(top + bottom) / 2:.1f})">alternating shear stress τa '
+        f"[{escape(unit)}]</text>",
         "</svg>",
     ]
     return "\n".join(parts)

@@ -12,8 +12,9 @@ script, no template). It
    with the signed one (any changed number or word, in the body or the CSS, fails);
 4. rebuilds the signature block from the token and key and compares it byte for byte;
 5. re-runs the solver and the checks from the signed case and compares the results digest,
-   and compares the results and checks sections written in the record with those rebuilt
-   from the recomputation.
+   (natural modes and fatigue cycles included), and compares the results, checks, torsional
+   vibration and fatigue sections written in the record with those rebuilt from the
+   recomputation.
 
 A calculation package (zip, see :mod:`workbench.record.package`) is checked by
 :func:`verify_package`: the manifest's signature, every file's size and SHA-256 against the
@@ -44,6 +45,7 @@ from workbench.record.document import (
     _section,
     compute,
     content_digest,
+    extra_sections,
     signature_block,
 )
 from workbench.solver.errors import InputError, WorkbenchError
@@ -280,14 +282,18 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
             "re-solving the embedded case gives results other than those signed "
             "(results digest mismatch)"
         )
-    for ident, title, builder in (
-        ("results", "Results", _results_html),
-        ("checks", "Design checks", _checks_html),
-    ):
-        if _section(ident, title, builder(computation)) not in outside:
+    sections = [
+        ("results", _section("results", "Results", _results_html(computation))),
+        ("design checks", _section("checks", "Design checks", _checks_html(computation))),
+    ]
+    for section in extra_sections(computation):
+        title = "torsional vibration" if 'id="vibration"' in section else "fatigue"
+        sections.append((f"{title} section", section))
+    for title, section in sections:
+        if section not in outside:
             problems.append(
-                f"the {title.lower()} written in the record differ from those recomputed from "
-                "the embedded case"
+                f"the {title} written in the record differ from those recomputed from the "
+                "embedded case"
             )
     outcome.ok = signed and not problems
     return outcome
