@@ -389,6 +389,9 @@ class CheckReport:
         Remarks that apply to the whole report (ranges of fits, defaults used).
     fatigue_points
         The governing stress cycle of each segment, when the design asks for a fatigue check.
+    modes
+        The natural modes (:class:`workbench.solver.modes.Modes`) the frequency-separation
+        checks used, when the case has running speeds; ``None`` otherwise.
     """
 
     results: Results
@@ -396,6 +399,7 @@ class CheckReport:
     checks: tuple[Check, ...]
     notes: tuple[str, ...] = field(default=())
     fatigue_points: tuple[FatiguePoint, ...] = field(default=())
+    modes: Any = None
 
     @property
     def passes(self) -> bool:
@@ -469,6 +473,7 @@ class _Checker:
         self.checks: list[Check] = []
         self.notes: list[str] = []
         self.fatigue_points: list[FatiguePoint] = []
+        self.modes: Any = None
         self._allowables: dict[int, Allowable] = {}
 
     def allowable(self, material: Material) -> Allowable:
@@ -560,6 +565,7 @@ class _Checker:
             tuple(self.checks),
             tuple(dict.fromkeys(self.notes)),
             tuple(self.fatigue_points),
+            self.modes,
         )
 
     def _stress(
@@ -695,15 +701,18 @@ class _Checker:
             return
         from workbench.solver.modes import (  # noqa: PLC0415 - only cases with running speeds
             DEFAULT_FREQUENCY_MARGIN,
+            DEFAULT_MODE_COUNT,
             frequency_separations,
             natural_modes,
             separation_note,
         )
 
         margin = self.design.frequency_margin
+        # The usual count (not 1): for small systems every mode comes at once anyway, and the
+        # report keeps them for charts and records to reuse.
         modes = natural_modes(
             self.model,
-            count=1,
+            count=DEFAULT_MODE_COUNT,
             up_to=max(speed.maximum for speed in speeds) * (1.0 + margin),
             elements_per_segment=self.design.modal_elements_per_segment,
             max_element_length=self.design.modal_max_element_length,
@@ -731,6 +740,7 @@ class _Checker:
             "excitation once per revolution; shaft and x name where the mode's angle is largest"
         )
         self.notes.extend(modes.notes)
+        self.modes = modes
 
 
 def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckReport:

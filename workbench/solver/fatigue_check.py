@@ -20,6 +20,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
@@ -45,10 +46,10 @@ from workbench.solver.fatigue import (
 )
 from workbench.solver.model import Model, Segment, field_path
 from workbench.solver.sections import require_positive
+from workbench.solver.units import UnitSystem, display_units
 
 if TYPE_CHECKING:
     from workbench.solver.analysis import Results
-    from workbench.solver.units import UnitSystem
 
 
 @dataclass(frozen=True)
@@ -297,7 +298,8 @@ def fatigue_checks(
                         station = int(stations[0]) if this_side else int(stations[0]) - 1
                         places.append((station, kfs, how, side))
             best: tuple[float, int, FatigueResult] | None = None
-            for place, (station, kfs, _, (limit, ultimate, shear_yield)) in enumerate(places):
+            for place in _undominated(places, results, first, second, criteria):
+                station, kfs, _, (limit, ultimate, shear_yield) = places[place]
                 factor = float(mesh.station_stress_per_torque[station])
                 torque_a = float(results.torque[first, station])
                 torque_b = float(results.torque[second, station])
@@ -345,6 +347,65 @@ def fatigue_checks(
     return rows, points
 
 
+def _undominated(
+    places: list[tuple[int, float, str, Any]],
+    results: Results,
+    first: int,
+    second: int,
+    criteria: FatigueCriteria,
+) -> list[int]:
+    """Places whose (|τm|, τa) no other place with the same strengths exceeds in both.
+
+    Every criterion's factor of safety falls as |τm| or τa grows, so a dominated place can
+    never govern; skipping it keeps the check fast without changing its answer.
+    """
+    stations = np.array([place[0] for place in places])
+    kfs = np.array([place[1] for place in places])
+    stress = results.mesh.station_stress_per_torque[stations] * kfs
+    torque_a, torque_b = results.torque[first, stations], results.torque[second, stations]
+    if criteria.extremes is not None:
+        mean, alternating = (
+            np.abs(stress * (torque_a + torque_b) / 2),
+            stress * np.abs(torque_a - torque_b) / 2,
+        )
+    else:
+        mean, alternating = np.abs(stress * torque_a), stress * np.abs(torque_b)
+    groups = np.array([id(place[3]) for place in places])
+    # beats[j, i]: place j has the same strengths, at least i's stresses, and more of one.
+    covers = (
+        (groups[:, None] == groups[None, :])
+        & (mean[:, None] >= mean[None, :])
+        & (alternating[:, None] >= alternating[None, :])
+    )
+    beats = covers & (
+        (mean[:, None] > mean[None, :]) | (alternating[:, None] > alternating[None, :])
+    )
+    return [int(index) for index in np.flatnonzero(~beats.any(axis=0))]
+
+
+@functools.lru_cache(maxsize=512)
+def _endurance_limit(
+    ultimate_strength: float,
+    diameter: float,
+    finish: str,
+    reliability: float,
+    temperature: float | None,
+    tested_limit: float | None,
+    units: UnitSystem,
+) -> EnduranceLimit:
+    # The Marin chain depends only on these (and the units its basis text quotes): every edit of
+    # a live panel would otherwise rebuild the same limits and sentences.
+    return endurance_limit(
+        ultimate_strength,
+        diameter,
+        finish,
+        "torsion",
+        reliability,
+        temperature,
+        rotating_beam_limit=tested_limit,
+    )
+
+
 def _strengths(
     segment: Segment, criteria: FatigueCriteria
 ) -> tuple[EnduranceLimit, float, float] | None:
@@ -353,14 +414,14 @@ def _strengths(
     material = segment.layers[0].material
     if diameter is None or material.ultimate_strength is None or material.yield_strength is None:
         return None
-    limit = endurance_limit(
+    limit = _endurance_limit(
         material.ultimate_strength,
         diameter,
         criteria.finish,
-        "torsion",
         criteria.reliability,
         criteria.temperature,
-        rotating_beam_limit=criteria.endurance_limit,
+        criteria.endurance_limit,
+        display_units.get(),
     )
     return (
         limit,
