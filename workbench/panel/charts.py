@@ -453,3 +453,321 @@ def segment_utilisation(
         if check.shaft == shaft_id and check.result == result and check.segment is not None:
             values[check.segment] = max(values[check.segment], check.utilisation)
     return np.arange(count), values
+
+
+#: Colours of the mode shapes, lowest mode first (our own ramp from slate blue to amber).
+MODE_COLOURS = ["#3d5a80", "#5c8a8a", "#8a6f3e", "#e09f3e", "#6b4e71", "#9a9a9a"]
+#: How many of the lowest modes the mode-shape chart draws.
+MODES_SHOWN = 4
+#: Colours of the fatigue criteria lines.
+CRITERION_COLOURS = {
+    "goodman": "#3d5a80",
+    "gerber": "#5c8a8a",
+    "asme_elliptic": "#6b4e71",
+    "soderberg": "#8a6f3e",
+    "langer": LIMIT,
+}
+CRITERION_NAMES = {
+    "goodman": "modified Goodman",
+    "gerber": "Gerber",
+    "asme_elliptic": "ASME elliptic",
+    "soderberg": "Soderberg",
+    "langer": "Langer (first-cycle yield)",
+}
+_CURVE_POINTS = 61
+
+
+def rpm(angular_frequency: Any) -> Any:
+    """Revolutions per minute of a circular frequency or speed (rad/s)."""
+    return np.asarray(angular_frequency, dtype=float) * 60.0 / (2.0 * np.pi)
+
+
+def criteria_lines(
+    endurance_shear: float, ultimate_shear: float, yield_shear: float
+) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """(τm, τa) of each failure line of the fatigue diagram, in the units of the strengths given.
+
+    Parameters
+    ----------
+    endurance_shear, ultimate_shear, yield_shear
+        Sse, Ssu, Ssy (any one stress unit).
+
+    Returns
+    -------
+    dict
+        ``goodman``: Sse–Ssu line; ``gerber``: τa = Sse·(1 − (τm/Ssu)²); ``asme_elliptic``:
+        (τa/Sse)² + (τm/Ssy)² = 1; ``soderberg``: Sse–Ssy line; ``langer``: Ssy–Ssy line.
+
+    References
+    ----------
+    .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
+       §6-12, Table 6-6 and 6-7 (the failure criteria for fluctuating stress, written here for
+       shear strengths as in §7-4).
+    """
+    # Every line has the same number of points, so that one mark can hold them all.
+    mean = np.linspace(0.0, 1.0, _CURVE_POINTS)
+    return {
+        "goodman": (mean * ultimate_shear, endurance_shear * (1.0 - mean)),
+        "gerber": (mean * ultimate_shear, endurance_shear * (1.0 - mean**2)),
+        "asme_elliptic": (
+            mean * yield_shear,
+            endurance_shear * np.sqrt(np.clip(1.0 - mean**2, 0.0, None)),
+        ),
+        "soderberg": (mean * yield_shear, endurance_shear * (1.0 - mean)),
+        "langer": (mean * yield_shear, yield_shear * (1.0 - mean)),
+    }
+
+
+class ModesChart:
+    """Mode shapes along the shaft shown, and natural frequencies against running-speed bands."""
+
+    def __init__(self) -> None:
+        self.x_scale, self.y_scale = bq.LinearScale(), bq.LinearScale(min=-1.1, max=1.1)
+        scales = {"x": self.x_scale, "y": self.y_scale}
+        self.flexible = bq.Lines(
+            x=[[0.0, 1.0]],
+            y=[[0.0, 0.0]],
+            scales=scales,
+            colors=MODE_COLOURS,
+            stroke_width=2.0,
+            display_legend=True,
+            labels=["mode"],
+            marker="circle",
+            marker_size=12,
+        )
+        self.rigid = bq.Lines(
+            x=[[0.0, 1.0]],
+            y=[[0.0, 0.0]],
+            scales=scales,
+            colors=[SUPPORT],
+            line_style="dashed",
+            stroke_width=1.5,
+            display_legend=True,
+            labels=["rigid body"],
+            visible=False,
+        )
+        self.shapes = _figure(
+            [self.flexible, self.rigid],
+            self.x_scale,
+            self.y_scale,
+            "x",
+            "normalised angle",
+            "Mode shapes (largest |angle| = 1)",
+            height=260,
+        )
+        self.shapes.legend_location = "top-right"
+        self.shapes.add_class("wb-chart-modes")
+        self.speed_scale = bq.LogScale()
+        self.band_y = bq.LinearScale(min=0.0, max=1.0)
+        band_scales = {"x": self.speed_scale, "y": self.band_y}
+        self.widened = bq.Lines(
+            x=[[1.0, 1.0]],
+            y=[[0.0, 1.0]],
+            scales=band_scales,
+            colors=[LOAD],
+            fill="inside",
+            fill_colors=[LOAD],
+            fill_opacities=[0.12],
+            line_style="dashed",
+            stroke_width=1.0,
+            visible=False,
+        )
+        self.bands = bq.Lines(
+            x=[[1.0, 1.0]],
+            y=[[0.0, 1.0]],
+            scales=band_scales,
+            colors=[LOAD],
+            fill="inside",
+            fill_colors=[LOAD],
+            fill_opacities=[0.45],
+            stroke_width=1.0,
+            visible=False,
+        )
+        self.frequencies = bq.Lines(
+            x=[[1.0, 1.0]],
+            y=[[0.0, 1.0]],
+            scales=band_scales,
+            colors=[SHAFT],
+            stroke_width=2.2,
+            visible=False,
+        )
+        self.frequency_marks = bq.Scatter(
+            x=[],
+            y=[],
+            scales=band_scales,
+            marker="diamond",
+            colors=[SHAFT],
+            default_size=60,
+            tooltip=bq.Tooltip(fields=["x"], labels=["natural frequency [rpm]"], formats=[".4g"]),
+        )
+        self.against = bq.Figure(
+            marks=[self.widened, self.bands, self.frequencies, self.frequency_marks],
+            axes=[
+                bq.Axis(scale=self.speed_scale, label="speed, frequency [rpm]", grid_lines="none"),
+            ],
+            title="Natural frequencies against running-speed bands (±margin dashed)",
+            animation_duration=0,
+            fig_margin={"top": 30, "bottom": 40, "left": 20, "right": 20},
+            layout=Layout(width="100%", min_width="340px", height="150px"),
+            title_style={"font-size": "13px"},
+        )
+        self.against.add_class("wb-chart-frequencies")
+        self.figures = [self.shapes, self.against]
+
+    def draw(self, modes: Any, shaft_number: int, speeds: Any, margin: float) -> None:
+        """Draw the lowest :data:`MODES_SHOWN` modes along one shaft and every frequency."""
+        units = modes.model.units
+        shaft = modes.model.shafts[shaft_number]
+        length_unit = unit_label(units, "length")
+        shown = range(min(MODES_SHOWN, len(modes)))
+        flexible = [mode for mode in shown if not modes.rigid_body[mode]]
+        rigid = [mode for mode in shown if modes.rigid_body[mode]]
+        with _held(self.shapes):
+            self.shapes.axes[0].label = f"x [{length_unit}]"
+            for mark, chosen, colours in (
+                (self.flexible, flexible, MODE_COLOURS),
+                (self.rigid, rigid, [SUPPORT]),
+            ):
+                mark.visible = bool(chosen)
+                if not chosen:
+                    continue
+                xs, ys = [], []
+                for mode in chosen:
+                    x, angle = modes.shape(mode, shaft.id)
+                    xs.append(units.from_si(x, "length"))
+                    ys.append(angle)
+                mark.x, mark.y = np.array(xs), np.array(ys)
+                mark.colors = [colours[n % len(colours)] for n in range(len(chosen))]
+                mark.labels = [
+                    f"mode {mode + 1}: rigid body (0 Hz)"
+                    if modes.rigid_body[mode]
+                    else f"mode {mode + 1}: {modes.frequency[mode]:.4g} Hz"
+                    for mode in chosen
+                ]
+                _set_tooltip(mark, [f"x [{length_unit}]", "normalised angle"])
+        natural = rpm(modes.angular_frequency[~modes.rigid_body])
+        lows = np.array([rpm(speed.minimum) for speed in speeds])
+        highs = np.array([rpm(speed.maximum) for speed in speeds])
+        wide_low, wide_high = lows * (1.0 - margin), highs * (1.0 + margin)
+        positive = [value for value in [*natural, *wide_low, *highs] if value > 0.0]
+        floor = 0.5 * min(positive) if positive else 1.0
+        with _held(self.against):
+            self.frequencies.visible = bool(len(natural))
+            if len(natural):
+                self.frequencies.x = np.repeat(natural[:, None], 2, axis=1)
+                self.frequencies.y = np.tile([0.0, 1.0], (len(natural), 1))
+            self.frequency_marks.x = natural
+            self.frequency_marks.y = np.full(len(natural), 0.5)
+            for mark, bottom, high in (
+                (self.widened, wide_low, wide_high),
+                (self.bands, lows, highs),
+            ):
+                mark.visible = bool(len(bottom))
+                if len(bottom):
+                    low = np.maximum(bottom, floor)  # a band from 0 starts at the axis' left end
+                    mark.x = np.stack([low, high, high, low, low], axis=1)
+                    mark.y = np.tile([0.05, 0.05, 0.95, 0.95, 0.05], (len(low), 1))
+                    mark.labels = [speed.name for speed in speeds]
+            self.speed_scale.min = floor
+            self.speed_scale.max = 2.0 * max(positive) if positive else 10.0
+
+
+class FatigueChart:
+    """Alternating against mean shear stress: the failure lines and the operating points."""
+
+    def __init__(self) -> None:
+        self.x_scale, self.y_scale = bq.LinearScale(min=0.0), bq.LinearScale(min=0.0)
+        scales = {"x": self.x_scale, "y": self.y_scale}
+        self.lines = bq.Lines(
+            x=[[0.0, 1.0]],
+            y=[[1.0, 0.0]],
+            scales=scales,
+            colors=list(CRITERION_COLOURS.values()),
+            stroke_width=1.6,
+            display_legend=True,
+            labels=list(CRITERION_NAMES.values()),
+        )
+        self.chosen = bq.Lines(
+            x=[0.0, 1.0],
+            y=[1.0, 0.0],
+            scales=scales,
+            colors=[SHAFT],
+            stroke_width=4.0,
+            opacities=[0.35],
+        )
+        self.others = bq.Scatter(
+            x=[],
+            y=[],
+            scales=scales,
+            marker="circle",
+            colors=[BASELINE],
+            default_size=40,
+        )
+        self.point = bq.Scatter(
+            x=[0.0],
+            y=[0.0],
+            scales=scales,
+            marker="circle",
+            colors=[LIMIT],
+            default_size=110,
+            stroke=SUPPORT,
+        )
+        self.figure = _figure(
+            [self.chosen, self.lines, self.others, self.point],
+            self.x_scale,
+            self.y_scale,
+            "τm",
+            "τa",
+            "Fatigue diagram",
+            height=300,
+        )
+        self.figure.legend_location = "top-right"
+        self.figure.add_class("wb-chart-fatigue")
+        self.governing: Any = None
+
+    def draw(self, points: Any, units: Any, criterion: str) -> None:
+        """Draw the lines of the governing point's strengths and every point (stress units).
+
+        ``points`` are the :class:`~workbench.solver.fatigue_check.FatiguePoint` of the shaft
+        shown, the governing one (lowest factor of safety by the criterion or Langer) first.
+        """
+        governing = points[0]
+        self.governing = governing
+        factors = governing.factors
+        stress_unit = unit_label(units, "stress")
+
+        def stress(value: Any) -> Any:
+            return units.from_si(value, "stress")
+
+        lines = criteria_lines(
+            float(stress(factors.endurance_shear)),
+            float(stress(factors.ultimate_shear)),
+            float(stress(factors.yield_shear)),
+        )
+        x_label, y_label = f"τm [{stress_unit}]", f"τa [{stress_unit}]"
+        with _held(self.figure):
+            self.figure.axes[0].label = x_label
+            self.figure.axes[1].label = y_label
+            self.lines.x = np.array([line[0] for line in lines.values()])
+            self.lines.y = np.array([line[1] for line in lines.values()])
+            self.chosen.x, self.chosen.y = lines[criterion]
+            self.point.x = np.array([float(stress(factors.mean_shear))])
+            self.point.y = np.array([float(stress(factors.alternating_shear))])
+            self.others.x = np.array([float(stress(p.factors.mean_shear)) for p in points[1:]])
+            self.others.y = np.array(
+                [float(stress(p.factors.alternating_shear)) for p in points[1:]]
+            )
+            _set_tooltip(self.lines, [x_label, y_label])
+            _set_tooltip(self.chosen, [x_label, f"{CRITERION_NAMES[criterion]} {y_label}"])
+            _set_tooltip(self.point, [f"governing {x_label}", y_label])
+            _set_tooltip(self.others, [f"other segments' {x_label}", y_label])
+            self.figure.title = (
+                f"Fatigue diagram, {governing.shaft} segment {governing.segment} at x = "
+                f"{units.from_si(governing.x, 'length'):.4g} {unit_label(units, 'length')} "
+                f"(n = {factors.factor_of_safety(criterion):.3g} {CRITERION_NAMES[criterion]})"
+            )
+            top = max(float(stress(factors.ultimate_shear)), float(self.others.x.max(initial=0)))
+            self.x_scale.max = 1.05 * top
+            self.y_scale.max = 1.1 * max(
+                float(stress(factors.yield_shear)), float(self.others.y.max(initial=0))
+            )

@@ -101,9 +101,17 @@ _ITEM_WORDS = {
     "distributed": "distributed torque",
     "combinations": "combination",
     "rotation_limits": "rotation limit",
+    "discs": "disc",
+    "operating_speeds": "running-speed band",
+    "extremes": "result",
 }
 _QUIET_KEYS = {"section"}
-_NAMED_BY = {"shafts": "id", "load_cases": "name", "combinations": "name"}
+_NAMED_BY = {
+    "shafts": "id",
+    "load_cases": "name",
+    "combinations": "name",
+    "operating_speeds": "name",
+}
 
 
 def field_words(path: Path, document: Any = None) -> str:
@@ -221,6 +229,11 @@ KEY_QUANTITY: dict[str, str | None] = {
     "width": "length",
     "height": "length",
     "thickness": "length",
+    "inertia": "inertia",
+    "min": "speed",
+    "max": "speed",
+    "density": "density",
+    "frequency_margin": None,
 }
 
 
@@ -270,6 +283,13 @@ def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:
                         ("load_cases", c, "distributed", n, key),
                         f"{case.get('name')} distributed {n} · {label(key)}",
                     )
+    for n, disc in enumerate(document.get("discs") or []):
+        for key in ("inertia", "x"):
+            if isinstance(disc.get(key), (int, float)):
+                yield ("discs", n, key), f"disc {n} · {label(key)}"
+    for name, material in (document.get("materials") or {}).items():
+        if isinstance(material, dict) and isinstance(material.get("density"), (int, float)):
+            yield ("materials", name, "density"), f"{name} · {label('density')}"
     design = document.get("design") or {}
     for key in ("factor_of_safety", "allowable_shear_stress", "max_twist_rate"):
         if isinstance(design.get(key), (int, float)):

@@ -155,16 +155,34 @@ def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> 
                 for name, factor in factors.items()
             }
             varied_combinations.append(Combination.of(_variant(combination.name, number), renamed))
+    varied_names = {swept.name} | {
+        c.name for c in base.combinations if swept.name in dict(c.factors)
+    }
+    design = base.design
+    fatigue = design.fatigue if isinstance(design, DesignCriteria) else None
+    if (
+        isinstance(design, DesignCriteria)
+        and fatigue is not None
+        and varied_names & set(fatigue.result_names)
+    ):
+        if request.metric == "governing_utilisation":
+            # The fatigue check reads the swept result by name: check point by point.
+            return np.array(
+                [_solo_metric(case_model(base, case_number, case), request) for case in variants]
+            )
+        design = dataclasses.replace(design, fatigue=None)  # not read by the other metrics
     model = dataclasses.replace(
         base,
         load_cases=(*others, *variants),
         combinations=(*fixed_combinations, *varied_combinations),
+        design=design,
     )
     results = solve(model)
     fixed_names = {case.name for case in others} | {c.name for c in fixed_combinations}
-    varied_names = {swept.name} | {
-        c.name for c in base.combinations if swept.name in dict(c.factors)
-    }
+    # Rows that do not follow the load: running-speed bands, and a fatigue check of fixed results.
+    fixed_names |= {speed.name for speed in base.operating_speeds}
+    if fatigue is not None and isinstance(design, DesignCriteria) and design.fatigue is not None:
+        fixed_names.add(fatigue.label)
     report = run_checks(results) if request.metric == "governing_utilisation" else None
     utilisation: dict[str, float] = {}
     if report is not None:
@@ -183,6 +201,13 @@ def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> 
     return out
 
 
+def case_model(base: Model, number: int, variant: LoadCase) -> Model:
+    """``base`` with load case ``number`` replaced by a swept variant under its own name."""
+    cases = list(base.load_cases)
+    cases[number] = dataclasses.replace(variant, name=cases[number].name)
+    return dataclasses.replace(base, load_cases=tuple(cases))
+
+
 def _variant(name: str, number: int) -> str:
     return f"{name} ⟨sweep {number}⟩"
 
@@ -198,8 +223,11 @@ def _copies_chunk(
     out = np.full(len(part), np.nan)
     if not good:
         return out
-    if request.path[0] == "design":
-        # Copies share one set of design criteria: a criterion's sweep is checked point by point.
+    if request.path[0] == "design" or (
+        request.metric == "governing_utilisation" and base.operating_speeds
+    ):
+        # Copies share one set of design criteria: a criterion's sweep is checked point by point;
+        # so are natural frequencies, which are of the whole system, not of one copy.
         return np.array(
             [_solo_metric(model, request) if model is not None else np.nan for model in models]
         )
@@ -337,4 +365,6 @@ def _side_by_side(models: Sequence[Model]) -> Model:
             for n, case in enumerate(first.load_cases)
         ),
         design=design,
+        discs=(),  # the copies are for statics; their frequencies are checked one by one
+        operating_speeds=(),
     )

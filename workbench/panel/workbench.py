@@ -30,7 +30,7 @@ import numpy as np
 from IPython.display import display
 
 from workbench.panel import CASE_MIME_TYPE
-from workbench.panel.charts import Charts
+from workbench.panel.charts import CRITERION_NAMES, Charts, FatigueChart, ModesChart, rpm
 from workbench.panel.document import (
     UNIT_CHOICES,
     Path,
@@ -53,8 +53,11 @@ from workbench.solver.allowables import SHEAR_CRITERIA
 from workbench.solver.analysis import Results, solve
 from workbench.solver.checks import CAUTION, CHECK_QUANTITIES, CheckReport, run_checks
 from workbench.solver.errors import InputError
+from workbench.solver.fatigue import FATIGUE_CRITERIA, RELIABILITY_FACTORS, SURFACE_FINISHES
+from workbench.solver.fatigue_check import FatiguePoint
 from workbench.solver.io import case_to_dict, decode_case_text, parse_case, save_case
 from workbench.solver.model import Model
+from workbench.solver.modes import DEFAULT_FREQUENCY_MARGIN, Modes, natural_modes
 
 _SHAPE_KEYS = {
     "solid": ("diameter",),
@@ -99,6 +102,11 @@ class Workbench:
         self._model: Model | None = None
         self._results: Results | None = None
         self._report: CheckReport | None = None
+        # Natural modes are worked out only while the Modes section is open (or when asked for),
+        # once per solved model: they are a dense eigenproblem, too dear for every edit.
+        self._modes: Modes | None = None
+        self._modes_message = ""
+        self._modes_model: Model | None = None
         self.baseline: tuple[Results, CheckReport] | None = None
         self._stale = False
         self._error: InputError | None = None
@@ -119,6 +127,8 @@ class Workbench:
         self._sweep_cancelled = False
         self.sweep_values: np.ndarray | None = None
         self.charts = Charts()
+        self.modes_chart = ModesChart()
+        self.fatigue_chart = FatigueChart()
         self._build()
         self.refresh()
 
@@ -141,6 +151,26 @@ class Workbench:
         """Checks of :attr:`results`."""
         self.settle()
         return self._report
+
+    @property
+    def modes(self) -> Modes | None:
+        """Natural modes of :attr:`model` (as ``natural_modes`` gives them), or ``None``.
+
+        ``None`` when the case has no inertia (:attr:`modes_message` says why).
+        """
+        self.settle()
+        self._ensure_modes()
+        return self._modes
+
+    def _ensure_modes(self) -> None:
+        if self._model is not None and self._modes_model is not self._model:
+            report = self._report
+            if report is not None and report.results.model is self._model and report.modes:
+                # The checks already found them (running-speed bands): no second eigensolve.
+                self._modes, self._modes_message = report.modes, ""
+            else:
+                self._modes, self._modes_message = _modes_of(self._model)
+            self._modes_model = self._model
 
     @property
     def stale(self) -> bool:
@@ -224,6 +254,7 @@ class Workbench:
         self.loads_box = w.VBox()
         self.combinations_box = w.VBox()
         self.design_box = w.VBox()
+        self.vibration_box = w.VBox()
         self.whatif_box = w.VBox()
         self.editors = w.Tab(
             children=[
@@ -233,11 +264,21 @@ class Workbench:
                 self.loads_box,
                 self.combinations_box,
                 self.design_box,
+                self.vibration_box,
                 self.whatif_box,
             ]
         )
         for number, name in enumerate(
-            ["Segments", "Supports", "Gears", "Loads", "Combinations", "Design", "What-if"]
+            [
+                "Segments",
+                "Supports",
+                "Gears",
+                "Loads",
+                "Combinations",
+                "Design",
+                "Vibration",
+                "What-if",
+            ]
         ):
             self.editors.set_title(number, name)
         self.charts_box = w.VBox(
@@ -252,6 +293,7 @@ class Workbench:
                     ],
                     layout=w.Layout(grid_template_columns="1fr 1fr", width="100%"),
                 ),
+                self._build_more_charts(),
             ]
         )
         self.charts_box.add_class("wb-charts")
@@ -299,6 +341,7 @@ class Workbench:
             self._build_loads()
             self._build_combinations()
             self._build_design()
+            self._build_vibration()
             self._refresh_sweep_inputs()
         finally:
             self._muted = False
@@ -337,11 +380,15 @@ class Workbench:
         *,
         optional: bool = False,
         width: str = "150px",
+        default: float = 0.0,
     ) -> w.Widget:
-        """A numeric entry bound to ``path``, with its unit shown (optional: 0 removes the key)."""
+        """A numeric entry bound to ``path``, with its unit shown (optional: 0 removes the key).
+
+        ``default`` is shown while the document has no value there (the solver's own default).
+        """
         value = get_at(self.document, path)
         field = w.FloatText(
-            value=float(value) if isinstance(value, (int, float)) else 0.0,
+            value=float(value) if isinstance(value, (int, float)) else default,
             description=description,
             layout=_short("", width),
             style={"description_width": "initial"},
@@ -875,6 +922,7 @@ class Workbench:
                     self._message(("design", "rotation_limits")),
                 ]
             ),
+            *self._fatigue_rows(),
             self._message("design"),
         ]
 
@@ -910,6 +958,314 @@ class Workbench:
             design["rotation_limits"].pop(n)
             if not design["rotation_limits"]:
                 design.pop("rotation_limits")
+
+        self._structural(change)
+
+    # --- vibration and fatigue: editors and charts ---------------------------------------------
+
+    def _build_more_charts(self) -> w.Tab:
+        self.modes_message = w.HTML()
+        self.modes_message.add_class("wb-modes-message")
+        self.frequency_table = w.HTML()
+        self.frequency_table.add_class("wb-frequencies")
+        self.modes_figures = w.VBox(
+            [self.modes_chart.shapes, self.modes_chart.against, self.frequency_table]
+        )
+        self.fatigue_message = w.HTML()
+        self.fatigue_message.add_class("wb-fatigue-message")
+        self.fatigue_table = w.HTML()
+        self.fatigue_figures = w.VBox([self.fatigue_chart.figure, self.fatigue_table])
+        self.more_charts = w.Accordion(
+            children=[
+                w.VBox([self.modes_message, self.modes_figures]),
+                w.VBox([self.fatigue_message, self.fatigue_figures]),
+            ],
+            titles=("Modes: natural frequencies and mode shapes", "Fatigue diagram"),
+            selected_index=None,
+        )
+        self.more_charts.observe(lambda _: self._redraw(), "selected_index")
+        return self.more_charts
+
+    def open_modes(self) -> None:
+        """Open the Modes section (its charts then follow every edit)."""
+        self.more_charts.selected_index = 0
+
+    def open_fatigue(self) -> None:
+        """Open the Fatigue section."""
+        self.more_charts.selected_index = 1
+
+    def _draw_modes(self, shaft: int) -> None:
+        if self.more_charts.selected_index != 0:
+            return  # drawn when the section is opened
+        self._ensure_modes()
+        modes, model = self._modes, self._model
+        assert model is not None
+        if modes is None:
+            self.modes_message.value = f"<i>{html.escape(self._modes_message)}</i>"
+            self.modes_figures.layout.display = "none"
+            self.frequency_table.value = ""
+            return
+        self.modes_message.value = ""
+        self.modes_figures.layout.display = None
+        assert self._report is not None
+        margin = self._report.design.frequency_margin
+        self.modes_chart.draw(modes, shaft, model.operating_speeds, margin)
+        self.frequency_table.value = self._frequencies_html(modes)
+
+    def _frequencies_html(self, modes: Modes) -> str:
+        length = self._unit("length")
+        rows = []
+        for mode in range(len(modes)):
+            where, x = modes.antinode(mode)
+            if modes.rigid_body[mode]:
+                values = "<td>0</td><td>0</td><td>rigid body (free to spin)</td>"
+            else:
+                values = (
+                    f"<td>{modes.frequency[mode]:.4g}</td>"
+                    f"<td>{float(rpm(modes.angular_frequency[mode])):.4g}</td><td></td>"
+                )
+            rows.append(
+                f"<tr><td>{mode + 1}</td>{values}<td>{html.escape(where)}</td>"
+                f"<td>{self._units.from_si(x, 'length'):.4g}</td></tr>"
+            )
+        head = (
+            "<tr><th>mode</th><th>f [Hz]</th><th>[rpm]</th><th></th><th>largest angle on</th>"
+            f"<th>x [{length}]</th></tr>"
+        )
+        notes = "".join(f"<br>• {html.escape(note)}" for note in modes.notes)
+        return (
+            f"<b>Natural frequencies</b> (lowest {len(modes)}; "
+            f"{modes.elements_per_segment} elements per segment with inertia)"
+            f"<table class='wb-table'>{head}{''.join(rows)}</table>{notes}"
+        )
+
+    def _draw_fatigue(self, shaft: int) -> None:
+        if self.more_charts.selected_index != 1:
+            return  # drawn when the section is opened
+        model, report = self._model, self._report
+        assert model is not None and report is not None
+        fatigue = report.design.fatigue
+        points = governing_fatigue_points(report, model.shafts[shaft].id)
+        if fatigue is None or not points:
+            self.fatigue_message.value = (
+                "<i>No fatigue check: switch it on in the Design tab (two results the torque "
+                "cycles between, or a mean and an alternating one).</i>"
+                if fatigue is None
+                else "<i>No segment could be checked for fatigue (see the notes below the "
+                "checks).</i>"
+            )
+            self.fatigue_figures.layout.display = "none"
+            return
+        self.fatigue_message.value = ""
+        self.fatigue_figures.layout.display = None
+        self.fatigue_chart.draw(points, self._units, fatigue.criterion)
+        units, stress = self._units, self._unit("stress")
+        rows = []
+        for point in points:
+            factors = point.factors
+            rows.append(
+                f"<tr><td>{html.escape(point.shaft)}</td><td>{point.segment}</td>"
+                f"<td>{units.from_si(point.x, 'length'):.4g}</td>"
+                + "".join(
+                    f"<td>{units.from_si(value, 'stress'):.4g}</td>"
+                    for value in (
+                        factors.mean_shear,
+                        factors.alternating_shear,
+                        factors.endurance_shear,
+                        factors.ultimate_shear,
+                        factors.yield_shear,
+                    )
+                )
+                + f"<td>{point.concentration:.3g}</td>"
+                f"<td>{factors.factor_of_safety(fatigue.criterion):.3g}</td>"
+                f"<td>{factors.first_cycle_yield:.3g}</td></tr>"
+            )
+        head = (
+            f"<tr><th>shaft</th><th>segment</th><th>x [{self._unit('length')}]</th>"
+            + "".join(f"<th>{name} [{stress}]</th>" for name in ("τm", "τa", "Sse", "Ssu", "Ssy"))
+            + f"<th>Kfs</th><th>n {html.escape(CRITERION_NAMES[fatigue.criterion])}</th>"
+            "<th>n Langer</th></tr>"
+        )
+        self.fatigue_table.value = (
+            "The lines are drawn for the governing segment's strengths (first row); the other "
+            f"segments' points are grey.<table class='wb-table'>{head}{''.join(rows)}</table>"
+        )
+
+    def _build_vibration(self) -> None:
+        doc = self.document
+        rows: list[w.Widget] = [w.HTML("<b>Discs</b> (rigid rotors, flywheels, hubs)")]
+        for n, _disc in enumerate(doc.get("discs") or []):
+            base: Path = ("discs", n)
+            rows.append(
+                w.HBox(
+                    [
+                        w.Label(f"{n}", layout=_short("", "24px")),
+                        self.choice((*base, "shaft"), "shaft", self._shaft_ids(), width="160px"),
+                        self.number((*base, "x"), "x", "length"),
+                        self.number((*base, "inertia"), "inertia", "inertia", width="170px"),
+                        self._button("✕", lambda n=n: self._remove_listed("discs", n)),
+                        self._message(base),
+                    ],
+                    layout=w.Layout(align_items="center", flex_flow="row wrap"),
+                )
+            )
+        rows.append(
+            w.HBox(
+                [self._button("add disc", self._add_disc, width="110px"), self._message("discs")]
+            )
+        )
+        rows.append(w.HTML("<b>Running-speed bands</b>"))
+        for n, _speed in enumerate(doc.get("operating_speeds") or []):
+            base = ("operating_speeds", n)
+            rows.append(
+                w.HBox(
+                    [
+                        w.Label(f"{n}", layout=_short("", "24px")),
+                        self._text((*base, "name"), "name"),
+                        self.number((*base, "min"), "min", "speed"),
+                        self.number((*base, "max"), "max", "speed"),
+                        self._button("✕", lambda n=n: self._remove_listed("operating_speeds", n)),
+                        self._message(base),
+                    ],
+                    layout=w.Layout(align_items="center", flex_flow="row wrap"),
+                )
+            )
+        rows.append(
+            w.HBox(
+                [
+                    self._button("add speed band", self._add_speed, width="130px"),
+                    self._message("operating_speeds"),
+                ]
+            )
+        )
+        rows.append(
+            self.number(
+                ("design", "frequency_margin"),
+                "frequency margin (fraction)",
+                None,
+                width="260px",
+                default=DEFAULT_FREQUENCY_MARGIN,
+            )
+        )
+        rows.append(w.HTML("<b>Material density</b> (0 = massless; the segments then only spring)"))
+        for name in sorted((doc.get("materials") or {}).keys()):
+            if isinstance(doc["materials"][name], dict):
+                rows.append(
+                    self.number(
+                        ("materials", name, "density"),
+                        name,
+                        "density",
+                        optional=True,
+                        width="260px",
+                    )
+                )
+        self.vibration_box.children = rows
+
+    def _remove_listed(self, key: str, index: int) -> None:
+        def change() -> None:
+            self.document[key].pop(index)
+            if not self.document[key]:
+                self.document.pop(key)
+
+        self._structural(change)
+
+    def _add_disc(self) -> None:
+        shaft = self.document["shafts"][self.shaft.value or 0]
+        end = sum(float(seg.get("length", 0)) for seg in shaft["segments"])
+        entry = {"shaft": shaft["id"], "x": _clean(end), "inertia": 0.1}
+        self._structural(lambda: self.document.setdefault("discs", []).append(entry))
+
+    def _add_speed(self) -> None:
+        speeds = self.document.setdefault("operating_speeds", [])
+        entry = {"name": f"band {len(speeds) + 1}", "min": 100, "max": 200}
+        self._structural(lambda: speeds.append(entry))
+
+    def _fatigue_rows(self) -> list[w.Widget]:
+        """The fatigue check's editor (design.fatigue), switched on and off by a checkbox."""
+        fatigue = get_at(self.document, ("design", "fatigue"))
+        switch = w.Checkbox(value=isinstance(fatigue, dict), description="fatigue check")
+        switch.observe(lambda c: self._switch_fatigue(c["new"]), "value")
+        rows: list[w.Widget] = [
+            w.HTML("<b>Fatigue</b> under a torque that fluctuates between two results"),
+            w.HBox([switch, self._message(("design", "fatigue"))]),
+        ]
+        if not isinstance(fatigue, dict):
+            return rows
+        base: Path = ("design", "fatigue")
+        names = [c.get("name") for c in self.document.get("load_cases", [])] + [
+            c.get("name") for c in self.document.get("combinations", [])
+        ]
+        pair = "extremes" if "extremes" in fatigue else "mean and alternating"
+        how = w.Dropdown(
+            options=["extremes", "mean and alternating"],
+            value=pair,
+            description="torques are",
+            layout=_short("", "300px"),
+            style={"description_width": "initial"},
+        )
+        how.observe(lambda c: self._fatigue_pair(c["new"]), "value")
+        if pair == "extremes":
+            picks = [
+                self.choice((*base, "extremes", 0), "between", names, width="260px"),
+                self.choice((*base, "extremes", 1), "and", names, width="220px"),
+                self._message((*base, "extremes")),
+            ]
+        else:
+            picks = [
+                self.choice((*base, "mean"), "mean", names, width="240px"),
+                self.choice((*base, "alternating"), "alternating", names, width="260px"),
+            ]
+        rows += [
+            w.HBox([how, *picks], layout=w.Layout(align_items="center", flex_flow="row wrap")),
+            w.HBox(
+                [
+                    self.choice((*base, "finish"), "finish", list(SURFACE_FINISHES)),
+                    self.choice((*base, "reliability"), "reliability", list(RELIABILITY_FACTORS)),
+                    self.choice(
+                        (*base, "criterion"), "criterion", list(FATIGUE_CRITERIA), width="220px"
+                    ),
+                    self.number(
+                        (*base, "factor_of_safety"),
+                        "fatigue factor of safety",
+                        None,
+                        width="240px",
+                        default=1.5,
+                    ),
+                ],
+                layout=w.Layout(align_items="center", flex_flow="row wrap"),
+            ),
+        ]
+        return rows
+
+    def _switch_fatigue(self, on: bool) -> None:
+        design = self.document.setdefault("design", {})
+        names = [c.get("name") for c in self.document.get("load_cases", [])]
+
+        def change() -> None:
+            if on:
+                first, second = (names * 2)[:2] if names else ("", "")
+                design["fatigue"] = {
+                    "extremes": [first, second],
+                    "finish": "machined",
+                    "reliability": 0.5,
+                    "criterion": "goodman",
+                    "factor_of_safety": 1.5,
+                }
+            else:
+                design.pop("fatigue", None)
+
+        self._structural(change)
+
+    def _fatigue_pair(self, pair: str) -> None:
+        fatigue = self.document["design"]["fatigue"]
+
+        def change() -> None:
+            if pair == "extremes":
+                first, second = fatigue.pop("mean", None), fatigue.pop("alternating", None)
+                fatigue["extremes"] = [first, second]
+            else:
+                first, second = (fatigue.pop("extremes", None) or [None, None])[:2]
+                fatigue["mean"], fatigue["alternating"] = first, second
 
         self._structural(change)
 
@@ -1229,6 +1585,8 @@ class Workbench:
         notes = "".join(f"<br>• {html.escape(n)}" for n in self.report.notes)
         self.caution.value = f"<div class='wb-caution'><b>Caution.</b> {CAUTION}{notes}</div>"
         self.difference.value = self._difference_html(result)
+        self._draw_modes(shaft)
+        self._draw_fatigue(shaft)
 
     def key_values(self, results: Results, report: CheckReport, result: str) -> dict[str, float]:
         """Headline values of a result in the panel's units (for the summary and the diff)."""
@@ -1336,6 +1694,47 @@ class Workbench:
         """The current case file text (last valid case, panel units)."""
         assert self.model is not None
         return json.dumps(case_to_dict(self.model), indent=2, ensure_ascii=False)
+
+
+def _has_inertia(model: Model) -> bool:
+    """Whether a case has discs or a material with a density (anything to vibrate)."""
+    return bool(model.discs) or any(
+        layer.material.density
+        for shaft in model.shafts
+        for segment in shaft.segments
+        for layer in segment.layers
+    )
+
+
+def _modes_of(model: Model) -> tuple[Modes | None, str]:
+    """The natural modes of a case (as ``workbench modes`` gives them), or why there are none."""
+    if not _has_inertia(model):
+        return None, (
+            "This case has no inertia, so no natural frequencies: add discs, or a density for "
+            "the shafts' materials (Vibration tab)."
+        )
+    try:
+        return natural_modes(model), ""
+    except InputError as error:
+        return None, f"No natural modes: {plain_words(error.message)}"
+
+
+def governing_fatigue_points(report: CheckReport, shaft: str) -> list[FatiguePoint]:
+    """The fatigue points of one shaft (else of all), the governing one first.
+
+    Governing: the lowest factor of safety by the design's criterion or against first-cycle
+    yield, as in the check table.
+    """
+    fatigue = report.design.fatigue
+    points = [p for p in report.fatigue_points if p.shaft == shaft] or list(report.fatigue_points)
+    if fatigue is None or not points:
+        return []
+
+    def worst(point: FatiguePoint) -> float:
+        factors = point.factors
+        return min(factors.factor_of_safety(fatigue.criterion), factors.first_cycle_yield)
+
+    return sorted(points, key=worst)
 
 
 def _clean(value: float) -> float | int:
