@@ -14,6 +14,7 @@ from pathlib import Path
 import nbformat
 import pytest
 
+from tests.browser.lab import CHROMIUM, FLAGS
 from workbench.record.demo import DEMO_TITLE_BLOCK, FEED_DRIVE_CASE, demo_notebook
 from workbench.record.exporter import export_file
 from workbench.record.signing import write_key_pair
@@ -22,16 +23,6 @@ pytestmark = pytest.mark.browser
 
 ALERT = "<script>alert(1)</script>"
 ARTIFACTS = Path(__file__).resolve().parents[2] / "test-artifacts"
-FLAGS = [
-    "--headless",
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-quic",
-    "--no-first-run",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-]
 
 
 def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
@@ -70,7 +61,7 @@ def test_record_renders_offline_and_runs_no_script(tmp_path: Path) -> None:
     with sync_playwright() as p:
         context = p.chromium.launch_persistent_context(
             str(tmp_path / "profile"),
-            executable_path="/usr/bin/chromium",
+            executable_path=CHROMIUM,
             headless=True,
             args=FLAGS,
         )
@@ -138,7 +129,7 @@ def test_vibration_and_fatigue_drawings_render_offline(tmp_path: Path) -> None:
     with sync_playwright() as p:
         context = p.chromium.launch_persistent_context(
             str(tmp_path / "profile"),
-            executable_path="/usr/bin/chromium",
+            executable_path=CHROMIUM,
             headless=True,
             args=FLAGS,
         )
