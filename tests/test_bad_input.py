@@ -510,6 +510,49 @@ BAD: list[tuple[str, Callable[[dict[str, Any]], None], str, str]] = [
         "supports[1].stiffness",
         "needs a stiffness",
     ),
+    # a notch with a stated Kts
+    (
+        "notch kts below one",
+        setter(f"{SEGMENT}.0.notch", {"kts": 0.9}),
+        "shafts[0].segments[0].notch.kts",
+        "at least 1, not 0.9",
+    ),
+    (
+        "notch without kts",
+        setter(f"{SEGMENT}.0.notch", {"radius": 1}),
+        "shafts[0].segments[0].notch.kts",
+        "is required",
+    ),
+    (
+        "notch radius and sensitivity",
+        setter(f"{SEGMENT}.0.notch", {"kts": 2, "radius": 1, "notch_sensitivity": 0.9}),
+        "shafts[0].segments[0].notch.notch_sensitivity",
+        "not both",
+    ),
+    (
+        "notch sensitivity above one",
+        setter(f"{SEGMENT}.0.notch", {"kts": 2, "notch_sensitivity": 1.2}),
+        "shafts[0].segments[0].notch.notch_sensitivity",
+        "between 0 and 1, not 1.2",
+    ),
+    (
+        "notch zero radius",
+        setter(f"{SEGMENT}.0.notch", {"kts": 2, "radius": 0}),
+        "shafts[0].segments[0].notch.radius",
+        "greater than zero (0 mm)",
+    ),
+    (
+        "notch unknown key",
+        setter(f"{SEGMENT}.0.notch", {"kts": 2, "depth": 1}),
+        "shafts[0].segments[0].notch.depth",
+        "unknown key",
+    ),
+    (
+        "notch not an object",
+        setter(f"{SEGMENT}.0.notch", 1.8),
+        "shafts[0].segments[0].notch",
+        "must be an object",
+    ),
     ("duplicate shaft id", setter("shafts.1.id", "main"), "shafts[1].id", "duplicate"),
     (
         "duplicate load-case name",

@@ -448,6 +448,101 @@ def test_keyseat_uses_kts_three_with_full_notch_sensitivity() -> None:
     assert "keyseat, q = 1" in row(report, "fatigue").note
 
 
+# --- (2b) a notch with a stated Kts, and the nominal mean stress --------------------------------
+# Kfs = 1 + q(Kts − 1): Shigley 9th ed., eq. (6-32). Kts 1.8 and q 0.85 are round demo values
+# of a groove, not from a source; the check must carry them through the published formulas.
+
+
+@pytest.mark.parametrize(
+    ("notch", "q"),
+    [
+        ({"kts": 1.8, "notch_sensitivity": 0.85}, 0.85),
+        # no radius, no stated q: full sensitivity, Kfs = Kts (the safe side)
+        ({"kts": 1.8}, 1.0),
+    ],
+    ids=["stated-q", "no-q"],
+)
+def test_notch_with_a_stated_kts(notch: dict[str, Any], q: float) -> None:
+    report = report_of(
+        fatigue_case(segments=[segment(30.0, notch={**notch, "description": "groove"})])
+    )
+    kfs = 1.0 + q * (1.8 - 1.0)
+    hand = hand_factors(*hand_cycle(30.0, kfs), shear_endurance(30.0))
+    assert_row(row(report, "fatigue"), hand["goodman"])
+    assert_row(row(report, "first_cycle_yield"), hand["first_cycle_yield"])
+    assert "groove, Kts = 1.8" in row(report, "fatigue").note
+    # the static check: Kts times the nominal stress of the larger torque, against the allowable
+    notch_row = max(
+        (c for c in report.checks if c.kind == "notch_stress"), key=lambda c: c.utilisation
+    )
+    assert notch_row.value == pytest.approx(1.8 * tau(T_MAX, 30.0) * MPA, rel=1e-9)
+
+
+def test_notch_radius_gives_q_by_neuber() -> None:
+    # q = 1/(1 + √a/√r), √a from Shigley eq. (6-35b) in kpsi (from memory; see the module note).
+    radius_mm = 1.0
+    strength_kpsi = SUT / KPSI_MPA
+    sqrt_a = 0.190 - 2.51e-3 * strength_kpsi + 1.35e-5 * strength_kpsi**2
+    sqrt_a -= 2.67e-8 * strength_kpsi**3
+    q = 1.0 / (1.0 + sqrt_a / math.sqrt(radius_mm / INCH_MM))
+    notch = {"kts": 1.8, "radius": radius_mm}
+    report = report_of(fatigue_case(segments=[segment(30.0, notch=notch)]))
+    hand = hand_factors(*hand_cycle(30.0, 1.0 + q * 0.8), shear_endurance(30.0))
+    assert_row(row(report, "fatigue"), hand["goodman"])
+
+
+def test_keyseat_and_notch_on_one_segment_take_the_larger_factor() -> None:
+    # Where along the segment each sits is not known: the larger Kfs governs (keyseat 3.0, q = 1).
+    notch = {"kts": 1.8, "notch_sensitivity": 0.85}
+    report = report_of(fatigue_case(segments=[segment(30.0, keyseat=True, notch=notch)]))
+    (point,) = report.fatigue_points
+    assert point.concentration == pytest.approx(3.0, rel=1e-12)
+    kinds = {c.kind for c in report.checks}
+    assert {"keyseat_stress", "notch_stress"} <= kinds
+
+
+def test_nominal_mean_stress_leaves_the_mean_unconcentrated() -> None:
+    # mean_concentration "none": τm nominal, τa with Kfs (Kf in the endurance limit only, as in
+    # Brown, Marks' Calculations for Machine Design, ch. 7, Example 3).
+    notch = {"kts": 1.8, "notch_sensitivity": 0.85}
+    fatigue = {
+        "extremes": ["A", "B"],
+        "finish": "machined",
+        "reliability": 0.99,
+        "factor_of_safety": REQUIRED,
+        "mean_concentration": "none",
+    }
+    report = report_of(fatigue_case(segments=[segment(30.0, notch=notch)], fatigue=fatigue))
+    kfs = 1.0 + 0.85 * 0.8
+    mean, _ = hand_cycle(30.0)
+    _, alternating = hand_cycle(30.0, kfs)
+    hand = hand_factors(mean, alternating, shear_endurance(30.0))
+    assert_row(row(report, "fatigue"), hand["goodman"])
+    assert_row(row(report, "first_cycle_yield"), hand["first_cycle_yield"])
+    assert "nominal mean stress" in row(report, "fatigue").note
+    default = report_of(fatigue_case(segments=[segment(30.0, notch=notch)]))
+    assert row(default, "fatigue").value > row(report, "fatigue").value
+
+
+def test_notch_round_trips_through_a_saved_case(tmp_path: Path) -> None:
+    notch = {"kts": 1.8, "radius": 1.0, "description": "ring groove"}
+    fatigue = {"extremes": ["A", "B"], "mean_concentration": "none"}
+    case = fatigue_case(segments=[segment(30.0, notch=notch)], fatigue=fatigue)
+    model = parse_case(case)
+    path = tmp_path / "saved.json"
+    save_case(model, path, us_customary())
+    written = json.loads(path.read_text(encoding="utf-8"))
+    saved = written["shafts"][0]["segments"][0]["notch"]
+    assert saved["radius"] == pytest.approx(1.0 / INCH_MM, rel=1e-11)
+    assert (saved["kts"], saved["description"]) == (1.8, "ring groove")
+    assert written["design"]["fatigue"]["mean_concentration"] == "none"
+    again = load_case(path).shafts[0].segments[0].notch
+    original = model.shafts[0].segments[0].notch
+    assert again is not None and original is not None
+    assert again.radius == pytest.approx(original.radius, rel=1e-11)
+    assert (again.kts, again.notch_sensitivity, again.label) == (1.8, None, "ring groove")
+
+
 # --- (3) the JSON check document ---------------------------------------------------------------
 
 
@@ -559,6 +654,8 @@ VALID_FATIGUE = {
     "mean-alternating-full": FULL_PAIR,
     "nulls": {"extremes": ["A", "B"], "temperature": None, "endurance_limit": None},
     "polished-asme": {"extremes": ["A", "B"], "finish": "polished", "criterion": "asme_elliptic"},
+    "nominal-mean": {"extremes": ["A", "B"], "mean_concentration": "none"},
+    "concentrated-mean": {"extremes": ["A", "B"], "mean_concentration": "kfs"},
 }
 
 
@@ -587,6 +684,7 @@ INVALID_FATIGUE = {
     "endurance-limit-negative": {"extremes": ["A", "B"], "endurance_limit": -100},
     "temperature-zero": {"extremes": ["A", "B"], "temperature": 0},
     "unknown-key": {"extremes": ["A", "B"], "margin": 0.1},
+    "unknown-mean-concentration": {"extremes": ["A", "B"], "mean_concentration": "half"},
 }
 
 
@@ -622,6 +720,8 @@ BAD_INPUT = [
      "design.fatigue.endurance_limit", "-100"),
     ("extremes-of-one", {"extremes": ["A"]}, "design.fatigue.extremes", "two"),
     ("extremes-of-three", {"extremes": ["A", "B", "A"]}, "design.fatigue.extremes", "two"),
+    ("unknown-mean-concentration", {"extremes": ["A", "B"], "mean_concentration": "half"},
+     "design.fatigue.mean_concentration", "half"),
 ]  # fmt: skip
 
 

@@ -1049,3 +1049,22 @@ def test_mode_shape_drawing_follows_the_shape() -> None:
     top, height = float(frame.get("y", "")), float(frame.get("height", ""))
     for (_, y), value in zip(points, angle, strict=True):
         assert y == pytest.approx(top + (1 - value) / 2 * height, abs=0.006)
+
+
+def test_record_shows_a_notch_and_the_nominal_mean_choice() -> None:
+    # A stated-Kts notch appears in the inputs, its factor in the fatigue table, and the choice of
+    # a nominal mean stress is stated with its caution. Kfs = 1 + q(Kts − 1) (Shigley eq. 6-32).
+    case = copy.deepcopy(FEED_DRIVE_CASE)
+    case["shafts"][0]["segments"][0]["notch"] = {
+        "kts": 1.65,
+        "notch_sensitivity": 0.9,
+        "description": "ring groove",
+    }
+    case["design"]["fatigue"]["mean_concentration"] = "none"
+    html = _body(case)
+    assert "ring groove: Kts 1.65, q 0.9" in html
+    fatigue = _section_of(html, "fatigue")
+    assert "none (nominal mean stress)" in fatigue
+    assert "not conservative for a notch" in fatigue
+    row = _table_rows(fatigue, "fatigue")[0]
+    assert row[5] == f"{1 + 0.9 * 0.65:.3g}"

@@ -105,7 +105,8 @@ def geared_case() -> dict[str, Any]:
             {"id": "b", "segments": [
                 {"length": 200, "material": "steel", "section": SECTIONS["solid"]},
                 {"length": 200, "material": "steel", "section": {"shape": "solid", "diameter": 30},
-                 "fillet_radius": 2, "cross_hole_diameter": 5},
+                 "fillet_radius": 2, "cross_hole_diameter": 5,
+                 "notch": {"kts": 1.7, "radius": 0.5, "description": "ring groove"}},
             ]},
         ],
         "supports": [{"shaft": "b", "x": 400, "kind": "fixed"},
@@ -236,6 +237,14 @@ BAD: dict[str, Callable[[], dict[str, Any]]] = {
     "length-string": edit(("shafts", 0, "segments", 0, "length"), setter("400")),
     "diameter-bool": edit(("shafts", 0, "segments", 0, "section", "diameter"), setter(True)),
     "keyseat-string": edit(("shafts", 1, "segments", 0, "keyseat"), setter("yes")),
+    "notch-kts-below-one": edit(("shafts", 1, "segments", 1, "notch", "kts"), setter(0.8)),
+    "notch-radius-and-q": edit(
+        ("shafts", 1, "segments", 1, "notch", "notch_sensitivity"), setter(0.9)
+    ),
+    "notch-q-above-one": edit(
+        ("shafts", 1, "segments", 1, "notch"), setter({"kts": 1.7, "notch_sensitivity": 1.5})
+    ),
+    "notch-unknown-key": edit(("shafts", 1, "segments", 1, "notch", "depth"), setter(1)),
     "shafts-object": edit(("shafts",), setter({"id": "a"})),
     "segments-object": edit(("shafts", 0, "segments"), setter({})),
     "torque-string": edit(("load_cases", 0, "torques", 0, "torque"), setter("90 N*m")),

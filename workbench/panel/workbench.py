@@ -438,11 +438,15 @@ class Workbench:
         on_change: Callable[..., Any] | None = None,
         width: str = "180px",
     ) -> w.HBox:
-        """A drop-down bound to ``path`` (or to ``on_change``), with its message line."""
+        """A drop-down bound to ``path`` (or to ``on_change``), with its message line.
+
+        ``options`` are values, or (label, value) pairs.
+        """
         value = get_at(self.document, path)
+        values = [option[1] if isinstance(option, tuple) else option for option in options]
         field = w.Dropdown(
             options=options,
-            value=value if value in options else options[0],
+            value=value if value in values else values[0],
             description=description,
             layout=_short("", width),
             style={"description_width": "initial"},
@@ -1230,6 +1234,12 @@ class Workbench:
                         None,
                         width="240px",
                         default=1.5,
+                    ),
+                    self.choice(
+                        (*base, "mean_concentration"),
+                        "mean stress",
+                        [("× Kfs (conservative)", "kfs"), ("nominal", "none")],
+                        width="260px",
                     ),
                 ],
                 layout=w.Layout(align_items="center", flex_flow="row wrap"),

@@ -59,7 +59,7 @@ from workbench.solver.checks import (
 )
 from workbench.solver.errors import InputError
 from workbench.solver.io import parse_case
-from workbench.solver.model import Model
+from workbench.solver.model import Model, Notch
 from workbench.solver.modes import Modes
 from workbench.solver.tables import results_document
 
@@ -340,6 +340,16 @@ def _equations_table(group: str) -> str:
     return f'<table class="equations"><tbody>{"".join(rows)}</tbody></table>'
 
 
+def _notch_text(notch: Notch, units: Any) -> str:
+    """``groove: Kts 1.65, q 0.9`` — a notch as the inputs table shows it."""
+    parts = [f"Kts {notch.kts:g}"]
+    if notch.radius is not None:
+        parts.append(f"r = {_num(units.from_si(notch.radius, 'length'))}")
+    if notch.notch_sensitivity is not None:
+        parts.append(f"q {notch.notch_sensitivity:g}")
+    return f"{notch.label}: {', '.join(parts)}"
+
+
 def _section_text(section: Any, units: Any) -> str:
     def length(value: float) -> str:
         return _num(units.from_si(value, "length"))
@@ -392,6 +402,8 @@ def _inputs_html(computation: Computation) -> str:
                 extras.append(
                     f"cross hole Ø{_num(units.from_si(segment.cross_hole_diameter, 'length'))}"
                 )
+            if segment.notch is not None:
+                extras.append(_notch_text(segment.notch, units))
             rows.append(
                 [
                     shaft.id,
@@ -909,6 +921,8 @@ def _fatigue_html(computation: Computation) -> str:
     units = model.units
     length, stress = units.label("length"), units.label("stress")
     first, second = criteria.result_names
+    nominal_mean = criteria.mean_concentration == "none"
+    mean_factor = "" if nominal_mean else "Kfs·"
     if criteria.extremes is not None:
         states = (
             f"<p>The torque cycles between the results <strong>{escape(first)}</strong> and "
@@ -919,13 +933,17 @@ def _fatigue_html(computation: Computation) -> str:
         states = (
             f"<p>Mean torque from the result <strong>{escape(first)}</strong>, alternating "
             f"amplitude from <strong>{escape(second)}</strong> (its magnitude): "
-            "τm = Kfs·Tm·r_o/J, τa = Kfs·|Ta|·r_o/J.</p>"
+            f"τm = {mean_factor}Tm·r_o/J, τa = Kfs·|Ta|·r_o/J.</p>"
         )
     settings = [
         ["criterion", criteria.criterion.replace("_", "-")],
         [
             "required factor of safety (fatigue and first-cycle yield)",
             f"{criteria.factor_of_safety:g}",
+        ],
+        [
+            "stress concentration on the mean stress",
+            "none (nominal mean stress)" if nominal_mean else "Kfs (as on the alternating)",
         ],
         ["surface finish", criteria.finish],
         ["reliability", f"{criteria.reliability:g}"],
@@ -943,9 +961,17 @@ def _fatigue_html(computation: Computation) -> str:
     method = [
         "For every one-layer round segment of a material with yield and ultimate strengths, at "
         "every station: the cycle's mean and alternating shear stress with the fatigue "
-        "stress-concentration factor Kfs on both (conservative practice for shafts).",
+        + (
+            "stress-concentration factor Kfs on the alternating stress only; the mean stress is "
+            "nominal, which relies on local yielding at the notch (not conservative for a notch "
+            "that stays elastic)."
+            if nominal_mean
+            else "stress-concentration factor Kfs on both (conservative practice for shafts)."
+        ),
         "Kfs = 1 + q·(Kts − 1): at a shoulder fillet Kts from fits to the shoulder charts and q "
-        "from the torsional Neuber relation; at a keyseat Kts = 3.0 with q = 1; no notch: 1.",
+        "from the torsional Neuber relation; at a keyseat Kts = 3.0 with q = 1; at a notch the "
+        "stated Kts with the stated q, or q from its radius by the Neuber relation, or q = 1; "
+        "no notch: 1.",
         "Sse = ka·kb·kc·kd·ke·Se′ (Marin factors: finish, size, torsion kc = 0.59, "
         "temperature, reliability); Se′ = 0.5·Sut up to 1400 MPa, else 700 MPa, unless tested.",
         "The factor of safety along a radial load line by the chosen criterion, and against "

@@ -10,6 +10,8 @@ For every load case and combination, every shaft and every segment, the checks f
 * ``shoulder_stress`` — Kts·τ_nom at a shoulder fillet (segment ``fillet_radius``), the nominal
   stress taken on the smaller diameter at the shoulder;
 * ``keyseat_stress`` — Kts·τ with the end-milled keyseat factor;
+* ``notch_stress`` — Kts·τ with the factor the case states for a segment's ``notch`` (a groove,
+  a spline run-out, …);
 * ``cross_hole_stress`` — the equivalent shear stress of the peak normal stress at a transverse
   hole;
 * ``twist_rate`` — the largest |T|/(G·K) along the segment against ``max_twist_rate``;
@@ -71,6 +73,7 @@ CHECK_QUANTITIES: dict[str, str] = {
     "shear_stress": "stress",
     "shoulder_stress": "stress",
     "keyseat_stress": "stress",
+    "notch_stress": "stress",
     "cross_hole_stress": "stress",
     "twist_rate": "twist_rate",
     "rotation": "angle",
@@ -620,24 +623,33 @@ class _Checker:
                 self._concentrated(
                     "shoulder_stress", shaft.id, number, factor, nominal, start, allowable
                 )
+        body_raisers = []
         if segment.keyseat:
+            body_raisers.append(("keyseat_stress", "keyseat", keyseat_kts()))
+        if segment.notch is not None:
+            notch = segment.notch
+            stated = ConcentrationFactor(
+                notch.kts,
+                True,
+                f"{notch.label}; nominal stress 16T/(πd³)",
+                "Kts stated in the case file",
+            )
+            body_raisers.append(("notch_stress", notch.label, stated))
+        for kind, what, factor in body_raisers:
             dims = _circular_diameter(segment, 0.5)
             if dims is None:
                 self.notes.append(
-                    f"{shaft.id} segment {number}: the keyseat factor is for one-layer round "
+                    f"{shaft.id} segment {number}: the {what} factor is for one-layer round "
                     "segments; not checked"
                 )
-            else:
-                factors = np.array(
-                    [
-                        _nominal_stress_factor(*_circular_diameter(segment, f) or dims)
-                        for f in np.linspace(0.0, 1.0, 3)
-                    ]
-                )
-                nominal = torque * max(factors)
-                self._concentrated(
-                    "keyseat_stress", shaft.id, number, keyseat_kts(), nominal, x, allowable
-                )
+                continue
+            # Where along the segment the detail sits is not known: the smallest section's
+            # nominal stress (largest stress per torque) governs.
+            largest = max(
+                _nominal_stress_factor(*_circular_diameter(segment, f) or dims)
+                for f in np.linspace(0.0, 1.0, 3)
+            )
+            self._concentrated(kind, shaft.id, number, factor, torque * largest, x, allowable)
         if segment.cross_hole_diameter is not None:
             dims = _circular_diameter(segment, 0.5)
             if dims is None or dims[1] > 0.0:

@@ -52,6 +52,11 @@ if TYPE_CHECKING:
     from workbench.solver.analysis import Results
 
 
+#: How the mean stress is concentrated: ``"kfs"`` (Kfsm = Kfs, the conservative practice for
+#: shafts) or ``"none"`` (the nominal mean stress, Kfsm = 1).
+MEAN_CONCENTRATIONS: tuple[str, ...] = ("kfs", "none")
+
+
 @dataclass(frozen=True)
 class FatigueCriteria:
     """How to check fatigue under fluctuating torque.
@@ -76,6 +81,13 @@ class FatigueCriteria:
         Required fatigue factor of safety (≥ 1), also used against first-cycle yield.
     endurance_limit
         A tested rotating-beam endurance limit Se' (Pa) to use instead of the 0.5·Sut estimate.
+    mean_concentration
+        ``"kfs"`` (default): the fatigue stress-concentration factor multiplies the mean stress
+        as well as the alternating one (Shigley's conservative practice for shafts);
+        ``"none"``: the mean stress is nominal (Kfsm = 1), the practice of texts that put Kf
+        into the endurance limit (Brown, *Marks' Calculations for Machine Design*, ch. 7).
+        ``"none"`` relies on local yielding at the notch relieving the steady stress; it is not
+        conservative for a notch that stays elastic.
     """
 
     extremes: tuple[str, str] | None = None
@@ -87,6 +99,7 @@ class FatigueCriteria:
     criterion: str = "goodman"
     factor_of_safety: float = 1.5
     endurance_limit: float | None = None
+    mean_concentration: str = "kfs"
 
     def __post_init__(self) -> None:
         given_pair = self.mean is not None or self.alternating is not None
@@ -111,6 +124,12 @@ class FatigueCriteria:
             raise InputError("criterion", msg)
         if self.endurance_limit is not None:
             require_positive("endurance_limit", self.endurance_limit, "stress")
+        if self.mean_concentration not in MEAN_CONCENTRATIONS:
+            msg = (
+                f"unknown mean_concentration {self.mean_concentration!r}; choose one of "
+                f"{', '.join(MEAN_CONCENTRATIONS)}"
+            )
+            raise InputError("mean_concentration", msg)
         if self.temperature is not None and not (
             math.isfinite(self.temperature) and self.temperature > 0.0
         ):
@@ -158,6 +177,7 @@ _FATIGUE_KEYS = (
     "criterion",
     "factor_of_safety",
     "endurance_limit",
+    "mean_concentration",
 )
 
 
@@ -185,6 +205,7 @@ def parse_fatigue(data: Any, units: UnitSystem) -> FatigueCriteria:
             criterion=reader.text("criterion", "goodman"),
             factor_of_safety=reader.number("factor_of_safety", None, 1.5),
             endurance_limit=reader.optional_number("endurance_limit", "stress"),
+            mean_concentration=reader.text("mean_concentration", "kfs"),
         )
 
 
@@ -205,6 +226,8 @@ def fatigue_to_dict(criteria: FatigueCriteria, units: UnitSystem) -> dict[str, A
         out["temperature"] = criteria.temperature
     if criteria.endurance_limit is not None:
         out["endurance_limit"] = float(f"{units.from_si(criteria.endurance_limit, 'stress'):.12g}")
+    if criteria.mean_concentration != "kfs":
+        out["mean_concentration"] = criteria.mean_concentration
     return out
 
 
@@ -279,11 +302,7 @@ def fatigue_checks(
             with field_path(f"shafts[{shaft_number}].segments[{number}]"):
                 own = _strengths(segment, criteria)
                 assert own is not None
-                body_factor, body_note = 1.0, "no notch"
-                if segment.keyseat:
-                    # No notch radius is known for a keyseat: q = 1 (full sensitivity).
-                    body = fatigue_concentration(keyseat_kts(), 1.0)
-                    body_factor, body_note = body.value, "keyseat, q = 1"
+                body_factor, body_note = _body_factor(segment)
                 # (station, Kfs, how): every station with the body's factor, plus the shoulder
                 # at the segment's start on its smaller side (the previous segment's last station
                 # when that one is the smaller).
@@ -303,10 +322,13 @@ def fatigue_checks(
                 factor = float(mesh.station_stress_per_torque[station])
                 torque_a = float(results.torque[first, station])
                 torque_b = float(results.torque[second, station])
+                kfsm = kfs if criteria.mean_concentration == "kfs" else 1.0
                 if criteria.extremes is not None:
-                    stresses = stresses_from_extremes(torque_a, torque_b, factor, kfs)
+                    stresses = stresses_from_extremes(torque_a, torque_b, factor, kfs, kfsm)
                 else:
-                    stresses = stresses_from_mean_alternating(torque_a, abs(torque_b), factor, kfs)
+                    stresses = stresses_from_mean_alternating(
+                        torque_a, abs(torque_b), factor, kfs, kfsm
+                    )
                 outcome = fatigue_factors(
                     stresses.mean_shear,
                     stresses.alternating_shear,
@@ -321,7 +343,8 @@ def fatigue_checks(
             _, place, outcome = best
             station, kfs, how, (limit, _, _) = places[place]
             x = float(mesh.station_x[station])
-            basis = f"Kfs = {kfs:.3g} ({how}); {limit.basis}"
+            mean_note = "" if criteria.mean_concentration == "kfs" else ", nominal mean stress"
+            basis = f"Kfs = {kfs:.3g} ({how}{mean_note}); {limit.basis}"
             if not limit.in_range:
                 notes.append(
                     f"{shaft.id} segment {number}, fatigue: a Marin factor is outside its data; {limit.basis}"
@@ -347,6 +370,31 @@ def fatigue_checks(
     return rows, points
 
 
+def _body_factor(segment: Segment) -> tuple[float, str]:
+    """Kfs along a segment's length and how it was found: the larger of keyseat and notch.
+
+    Where along the segment a keyseat or a stated notch sits is not known, so its factor applies
+    at every station; with both, the larger governs.
+    """
+    candidates = [(1.0, "no notch")]
+    if segment.keyseat:
+        # No notch radius is known for a keyseat: q = 1 (full sensitivity).
+        candidates.append((fatigue_concentration(keyseat_kts(), 1.0).value, "keyseat, q = 1"))
+    notch = segment.notch
+    if notch is not None:
+        ultimate_strength = segment.layers[0].material.ultimate_strength
+        if notch.notch_sensitivity is not None:
+            q, how = notch.notch_sensitivity, f"q = {notch.notch_sensitivity:.3g} as stated"
+        elif notch.radius is not None and ultimate_strength is not None:
+            sensitivity = notch_sensitivity_torsion(notch.radius, ultimate_strength)
+            q, how = sensitivity.value, f"q = {sensitivity.value:.2f} from its radius"
+        else:
+            q, how = 1.0, "q = 1 (no radius given)"
+        value = fatigue_concentration(notch.kts, q).value
+        candidates.append((value, f"{notch.label}, Kts = {notch.kts:.3g}, {how}"))
+    return max(candidates, key=lambda candidate: candidate[0])
+
+
 def _undominated(
     places: list[tuple[int, float, str, Any]],
     results: Results,
@@ -361,15 +409,17 @@ def _undominated(
     """
     stations = np.array([place[0] for place in places])
     kfs = np.array([place[1] for place in places])
-    stress = results.mesh.station_stress_per_torque[stations] * kfs
+    nominal = results.mesh.station_stress_per_torque[stations]
+    stress = nominal * kfs
+    mean_stress = stress if criteria.mean_concentration == "kfs" else nominal
     torque_a, torque_b = results.torque[first, stations], results.torque[second, stations]
     if criteria.extremes is not None:
         mean, alternating = (
-            np.abs(stress * (torque_a + torque_b) / 2),
+            np.abs(mean_stress * (torque_a + torque_b) / 2),
             stress * np.abs(torque_a - torque_b) / 2,
         )
     else:
-        mean, alternating = np.abs(stress * torque_a), stress * np.abs(torque_b)
+        mean, alternating = np.abs(mean_stress * torque_a), stress * np.abs(torque_b)
     groups = np.array([id(place[3]) for place in places])
     # beats[j, i]: place j has the same strengths, at least i's stresses, and more of one.
     covers = (

@@ -31,6 +31,7 @@ from workbench.solver.model import (
     Layer,
     LoadCase,
     Model,
+    Notch,
     OperatingSpeed,
     PointTorque,
     Segment,
@@ -210,6 +211,7 @@ def _parse_segment(
             "fillet_radius",
             "keyseat",
             "cross_hole_diameter",
+            "notch",
         ],
         units,
     )
@@ -217,6 +219,7 @@ def _parse_segment(
     fillet = reader.optional_number("fillet_radius", "length")
     keyseat = reader.flag("keyseat", False)
     hole = reader.optional_number("cross_hole_diameter", "length")
+    notch = _parse_notch(data["notch"], reader.at("notch"), units) if reader.has("notch") else None
     if reader.has("layers"):
         if reader.has("material") or reader.has("section"):
             msg = "give either material and section, or layers, not both"
@@ -236,7 +239,18 @@ def _parse_segment(
         material = find_material(reader.text("material"), reader.at("material"))
         layers = [Layer(material, _parse_section(data.get("section"), reader.at("section"), units))]
     with field_path(path):
-        return Segment(length, tuple(layers), fillet, keyseat, hole)
+        return Segment(length, tuple(layers), fillet, keyseat, hole, notch)
+
+
+def _parse_notch(data: Any, path: str, units: UnitSystem) -> Notch:
+    reader = _Object(data, path, ["kts", "radius", "notch_sensitivity", "description"], units)
+    with field_path(path):
+        return Notch(
+            kts=reader.number("kts", None),
+            radius=reader.optional_number("radius", "length"),
+            notch_sensitivity=reader.optional_number("notch_sensitivity", None),
+            description=reader.text("description", ""),
+        )
 
 
 def _parse_point(data: Any, path: str, units: UnitSystem) -> GearPosition:
@@ -484,6 +498,17 @@ def _number(value: float) -> float | int:
     return int(rounded) if rounded.is_integer() and abs(rounded) < 1e15 else rounded
 
 
+def _notch_to_dict(notch: Notch, length: Callable[[float], float | int]) -> dict[str, Any]:
+    entry: dict[str, Any] = {"kts": notch.kts}
+    if notch.radius is not None:
+        entry["radius"] = length(notch.radius)
+    if notch.notch_sensitivity is not None:
+        entry["notch_sensitivity"] = notch.notch_sensitivity
+    if notch.description:
+        entry["description"] = notch.description
+    return entry
+
+
 def _section_to_dict(section: Section, units: UnitSystem) -> dict[str, Any]:
     out: dict[str, Any] = {"shape": section.shape}
     for field in dataclasses.fields(section):
@@ -557,6 +582,8 @@ def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any
                 entry["keyseat"] = True
             if segment.cross_hole_diameter is not None:
                 entry["cross_hole_diameter"] = length(segment.cross_hole_diameter)
+            if segment.notch is not None:
+                entry["notch"] = _notch_to_dict(segment.notch, length)
             segments.append(entry)
         shafts.append({"id": shaft.id, "segments": segments})
     out["shafts"] = shafts

@@ -76,6 +76,57 @@ class Layer:
 
 
 @dataclass(frozen=True)
+class Notch:
+    """A stress raiser whose torsional stress-concentration factor the engineer states.
+
+    For details the design library has no factor for: a circumferential groove (a retaining-ring
+    or relief groove), a spline run-out, a press-fit edge. Read Kts from a chart (Pilkey & Pilkey,
+    *Peterson's Stress Concentration Factors*) on the nominal stress 16T/(πd³) of the segment's
+    own section: model a groove as a short segment of its root diameter so that the nominal
+    stress, and the twist, are those of the root.
+
+    Parameters
+    ----------
+    kts
+        Theoretical torsional stress-concentration factor Kts ≥ 1 (dimensionless).
+    radius
+        Notch root radius (m), for the notch sensitivity q of the fatigue check (Neuber's
+        relation); ``None`` when not known.
+    notch_sensitivity
+        A stated notch sensitivity 0 ≤ q ≤ 1 instead of ``radius``. With neither, the fatigue
+        check takes q = 1 (Kfs = Kts: the safe side).
+    description
+        What the detail is (shown in the check's note and the record).
+    """
+
+    kts: float
+    radius: float | None = None
+    notch_sensitivity: float | None = None
+    description: str = ""
+
+    def __post_init__(self) -> None:
+        require_finite("kts", self.kts)
+        if self.kts < 1.0:
+            msg = f"a stress-concentration factor must be at least 1, not {self.kts:g}"
+            raise InputError("kts", msg)
+        if self.radius is not None and self.notch_sensitivity is not None:
+            msg = "give the notch radius or a stated notch sensitivity, not both"
+            raise InputError("notch_sensitivity", msg)
+        if self.radius is not None:
+            require_positive("radius", self.radius)
+        if self.notch_sensitivity is not None:
+            require_finite("notch_sensitivity", self.notch_sensitivity)
+            if not 0.0 <= self.notch_sensitivity <= 1.0:
+                msg = f"must lie between 0 and 1, not {self.notch_sensitivity:g}"
+                raise InputError("notch_sensitivity", msg)
+
+    @property
+    def label(self) -> str:
+        """A few words naming the detail: its description, or "notch"."""
+        return self.description or "notch"
+
+
+@dataclass(frozen=True)
 class Segment:
     """A length of shaft with one cross-section, or several bonded coaxial layers acting together.
 
@@ -94,6 +145,8 @@ class Segment:
         Whether the segment carries an end-milled keyseat (stress concentration in the checks).
     cross_hole_diameter
         Diameter of a transverse through hole in the segment (m), or ``None``.
+    notch
+        A stress raiser with a stated Kts (:class:`Notch`), or ``None``.
 
     Notes
     -----
@@ -110,6 +163,7 @@ class Segment:
     fillet_radius: float | None = None
     keyseat: bool = False
     cross_hole_diameter: float | None = None
+    notch: Notch | None = None
 
     def __post_init__(self) -> None:
         require_positive("length", self.length)
@@ -165,9 +219,12 @@ class Segment:
         fillet_radius: float | None = None,
         keyseat: bool = False,
         cross_hole_diameter: float | None = None,
+        notch: Notch | None = None,
     ) -> Segment:
         """Build an ordinary one-layer segment."""
-        return cls(length, (Layer(material, section),), fillet_radius, keyseat, cross_hole_diameter)
+        return cls(
+            length, (Layer(material, section),), fillet_radius, keyseat, cross_hole_diameter, notch
+        )
 
     @property
     def prismatic(self) -> bool:

@@ -13,6 +13,7 @@ from typing import Any
 
 from workbench.solver.allowables import SHEAR_CRITERIA
 from workbench.solver.fatigue import FATIGUE_CRITERIA, RELIABILITY_FACTORS, SURFACE_FINISHES
+from workbench.solver.fatigue_check import MEAN_CONCENTRATIONS
 from workbench.solver.io import SHAPES
 from workbench.solver.units import UnitSystem
 
@@ -66,11 +67,24 @@ def case_schema() -> dict[str, Any]:
     ]
     section = {"oneOf": sections}
     layer = _object({"material": _NAME, "section": section}, ["material", "section"])
+    notch = _object(
+        {
+            "kts": {"type": "number", "minimum": 1},
+            "radius": _POSITIVE,
+            "notch_sensitivity": {"type": "number", "minimum": 0, "maximum": 1},
+            "description": {"type": "string"},
+        },
+        ["kts"],
+        "a stress raiser with a stated Kts on the segment's nominal stress 16T/(πd³); "
+        "radius (length units) or notch_sensitivity, not both",
+    )
+    notch["not"] = {"required": ["radius", "notch_sensitivity"]}
     segment_common = {
         "length": _POSITIVE,
         "fillet_radius": _POSITIVE,
         "keyseat": {"type": "boolean"},
         "cross_hole_diameter": _POSITIVE,
+        "notch": notch,
     }
     segment = {
         "oneOf": [
@@ -131,6 +145,7 @@ def case_schema() -> dict[str, Any]:
         "criterion": {"enum": list(FATIGUE_CRITERIA)},
         "factor_of_safety": {"type": "number", "minimum": 1},
         "endurance_limit": {"type": ["number", "null"], "exclusiveMinimum": 0},
+        "mean_concentration": {"enum": list(MEAN_CONCENTRATIONS)},
     }
     design = _object(
         {
