@@ -49,6 +49,7 @@ from pathlib import Path
 from typing import Any
 
 import jsonschema
+import numpy as np
 import pytest
 
 from workbench.cli import main
@@ -62,7 +63,11 @@ from workbench.solver.checks import (
 )
 from workbench.solver.concentration import shoulder_fillet_kts
 from workbench.solver.errors import InputError
-from workbench.solver.fatigue import notch_sensitivity_torsion
+from workbench.solver.fatigue import (
+    fatigue_factors,
+    notch_sensitivity_torsion,
+    stresses_from_extremes,
+)
 from workbench.solver.fatigue_check import FatigueCriteria
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
 from workbench.solver.model import Model
@@ -807,3 +812,70 @@ def test_a_segment_the_check_cannot_treat_is_noted_not_checked(second: dict[str,
     hand = hand_factors(*hand_cycle(30.0), shear_endurance(30.0))
     assert_row(row(report, "fatigue", 0), hand["goodman"])
     assert_row(row(report, "first_cycle_yield", 0), hand["first_cycle_yield"])
+
+
+@pytest.mark.parametrize("mean_concentration", ["kfs", "none"])
+def test_the_reported_cycle_is_the_worst_station(mean_concentration: str) -> None:
+    # The check picks its station among all at once; the scalar chain (Shigley eq. 6-36 and the
+    # criteria of §6-12) run station by station must find the same worst cycle. A load inside
+    # the shaft and a distributed torque make the stress vary along it.
+    fatigue = {
+        "extremes": ["A", "B"],
+        "reliability": 0.99,
+        "criterion": "gerber",
+        "mean_concentration": mean_concentration,
+    }
+    load_cases = [
+        {
+            "name": "A",
+            "torques": [{"shaft": "main", "x": 350.0, "torque": 260.0}],
+            "distributed": [
+                {
+                    "shaft": "main",
+                    "start": 0,
+                    "end": 500,
+                    "intensity_start": 0.3,
+                    "intensity_end": 0,
+                }
+            ],
+        },
+        {"name": "B", "torques": [{"shaft": "main", "x": 500.0, "torque": -90.0}]},
+    ]
+    case = fatigue_case(
+        segments=[
+            segment(BIG, 300.0, keyseat=True),
+            segment(SMALL, 200.0, notch={"kts": 1.6, "radius": 0.8}),
+        ],
+        fatigue=fatigue,
+        load_cases=load_cases,
+    )
+    results = solve(parse_case(case))
+    report = run_checks(results)
+    mesh = results.mesh
+    q = notch_sensitivity_torsion(0.8 * MM, SUT * MPA).value
+    body = {0: 3.0, 1: 1.0 + q * 0.6}  # keyseat Kts 3 with q = 1; notch Kts 1.6 (eq. 6-32)
+    assert len(report.fatigue_points) == 2
+    for point in report.fatigue_points:
+        kfs = body[point.segment]
+        assert point.concentration == pytest.approx(kfs, rel=1e-12)
+        kfsm = kfs if mean_concentration == "kfs" else 1.0
+        on_segment = mesh.element_segment[mesh.station_element] == point.segment
+        worst = math.inf
+        for station in np.flatnonzero(on_segment):
+            stresses = stresses_from_extremes(
+                float(results.torque[0, station]),
+                float(results.torque[1, station]),
+                float(mesh.station_stress_per_torque[station]),
+                kfs,
+                kfsm,
+            )
+            outcome = fatigue_factors(
+                stresses.mean_shear,
+                stresses.alternating_shear,
+                point.factors.endurance_shear,
+                point.factors.ultimate_shear,
+                point.factors.yield_shear,
+            )
+            worst = min(worst, outcome.gerber, outcome.first_cycle_yield)
+        found = min(point.factors.gerber, point.factors.first_cycle_yield)
+        assert found == pytest.approx(worst, rel=1e-12)

@@ -336,6 +336,28 @@ def test_uniform_mesh_meets_the_discrete_dispersion_relation(pieces: int, method
     np.testing.assert_allclose(angle, np.sin(wave[0] * x) / np.sin(wave[0] * length), atol=1e-7)
 
 
+@pytest.mark.parametrize(("pieces", "method"), [(40, "dense"), (200, "sparse")])
+def test_every_mode_up_to_a_frequency_and_the_first_above(pieces: int, method: str) -> None:
+    # The same discrete dispersion relation as above; ``up_to`` between modes 25 and 26 must
+    # bring back modes 1 to 26, however few ``count`` asks for.
+    length, diameter = 0.9, 0.03
+    step = length / pieces
+    wave = np.array([(2 * n - 1) * math.pi / (2 * length) for n in range(1, 27)])
+    cosine = np.cos(wave * step)
+    expected = np.sqrt(
+        6 * STEEL_SHEAR_MODULUS / (STEEL_DENSITY * step**2) * (1 - cosine) / (2 + cosine)
+    )
+    modes = natural_modes(
+        fixed_free_shaft(length, diameter),
+        count=1,
+        up_to=float(expected[24] + expected[25]) / 2,
+        elements_per_segment=pieces,
+        method=method,
+    )
+    np.testing.assert_allclose(modes.angular_frequency, expected[:26], rtol=1e-8)
+    assert not modes.complete
+
+
 def test_free_free_shaft_has_one_rigid_body_mode_then_n_pi_over_l() -> None:
     # Source: Rao, Mechanical Vibrations, uniform shaft free at both ends: ωₙ = nπ/L·√(G/ρ),
     # n = 0 the rigid-body rotation.

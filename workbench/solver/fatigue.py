@@ -52,9 +52,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from workbench.solver.concentration import ConcentrationFactor
 from workbench.solver.errors import InputError
-from workbench.solver.sections import require_positive
+from workbench.solver.sections import FloatArray, require_positive
 from workbench.solver.units import quote
 
 _MPA = 1e6
@@ -1060,9 +1062,47 @@ def _short_factor(value: float) -> str:
     return "∞" if math.isinf(value) else f"{value:.3g}"
 
 
-def _linear(first: float, second: float) -> float:
-    total = first + second
-    return math.inf if total == 0.0 else 1.0 / total
+def factors_of_safety(
+    mean_shear: FloatArray | float,
+    alternating_shear: FloatArray | float,
+    endurance_shear: FloatArray | float,
+    ultimate_shear: FloatArray | float,
+    yield_shear: FloatArray | float,
+) -> dict[str, FloatArray]:
+    """The formulas of :func:`fatigue_factors` for many cycles at once, without validation.
+
+    Parameters
+    ----------
+    mean_shear, alternating_shear
+        τm (sign ignored) and τa ≥ 0 (Pa), arrays or scalars that broadcast together.
+    endurance_shear, ultimate_shear, yield_shear
+        Sse, Ssu, Ssy (Pa), positive.
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        Factors of safety by ``goodman``, ``gerber``, ``asme_elliptic``, ``soderberg`` and
+        ``first_cycle_yield`` (``inf`` where the stresses they depend on are zero).
+
+    References
+    ----------
+    .. [1] Shigley's *Mechanical Engineering Design*, 9th ed., §6-12 and §6-14 (as in
+       :func:`fatigue_factors`).
+    """
+    magnitude = np.abs(mean_shear)
+    amplitude_ratio = np.asarray(alternating_shear, dtype=float) / endurance_shear
+    ultimate_ratio = magnitude / ultimate_shear
+    yield_ratio = magnitude / yield_shear
+    with np.errstate(divide="ignore"):
+        return {
+            "goodman": 1.0 / (amplitude_ratio + ultimate_ratio),
+            # The root of n·A + n²(|τm|/Ssu)² = 1, in a form exact for τm = 0 and for τa = 0.
+            "gerber": 2.0
+            / (amplitude_ratio + np.sqrt(amplitude_ratio**2 + 4.0 * ultimate_ratio**2)),
+            "asme_elliptic": 1.0 / np.hypot(amplitude_ratio, yield_ratio),
+            "soderberg": 1.0 / (amplitude_ratio + yield_ratio),
+            "first_cycle_yield": yield_shear / (alternating_shear + magnitude),
+        }
 
 
 def fatigue_factors(
@@ -1156,18 +1196,15 @@ def fatigue_factors(
         notes.append("static stress (τa = 0): the fatigue criteria reduce to static strength")
     elif magnitude == 0.0:
         notes.append("purely alternating stress (τm = 0): every criterion gives Sse/τa")
-    amplitude_ratio = alternating / endurance_shear
-    ultimate_ratio = magnitude / ultimate_shear
-    yield_ratio = magnitude / yield_shear
-    gerber_denominator = amplitude_ratio + math.sqrt(amplitude_ratio**2 + 4.0 * ultimate_ratio**2)
-    elliptic = math.hypot(amplitude_ratio, yield_ratio)
-    peak = alternating + magnitude
+    factors = factors_of_safety(
+        magnitude, alternating, endurance_shear, ultimate_shear, yield_shear
+    )
     return FatigueResult(
-        goodman=_linear(amplitude_ratio, ultimate_ratio),
-        gerber=math.inf if gerber_denominator == 0.0 else 2.0 / gerber_denominator,
-        asme_elliptic=math.inf if elliptic == 0.0 else 1.0 / elliptic,
-        soderberg=_linear(amplitude_ratio, yield_ratio),
-        first_cycle_yield=math.inf if peak == 0.0 else yield_shear / peak,
+        goodman=float(factors["goodman"]),
+        gerber=float(factors["gerber"]),
+        asme_elliptic=float(factors["asme_elliptic"]),
+        soderberg=float(factors["soderberg"]),
+        first_cycle_yield=float(factors["first_cycle_yield"]),
         mean_shear=magnitude,
         alternating_shear=alternating,
         endurance_shear=float(endurance_shear),

@@ -36,6 +36,7 @@ from workbench.solver.fatigue import (
     EnduranceLimit,
     FatigueResult,
     endurance_limit,
+    factors_of_safety,
     fatigue_concentration,
     fatigue_factors,
     notch_sensitivity_torsion,
@@ -316,32 +317,21 @@ def fatigue_checks(
                     if side is not None:
                         station = int(stations[0]) if this_side else int(stations[0]) - 1
                         places.append((station, kfs, how, side))
-            best: tuple[float, int, FatigueResult] | None = None
-            for place in _undominated(places, results, first, second, criteria):
-                station, kfs, _, (limit, ultimate, shear_yield) = places[place]
-                factor = float(mesh.station_stress_per_torque[station])
-                torque_a = float(results.torque[first, station])
-                torque_b = float(results.torque[second, station])
-                kfsm = kfs if criteria.mean_concentration == "kfs" else 1.0
-                if criteria.extremes is not None:
-                    stresses = stresses_from_extremes(torque_a, torque_b, factor, kfs, kfsm)
-                else:
-                    stresses = stresses_from_mean_alternating(
-                        torque_a, abs(torque_b), factor, kfs, kfsm
-                    )
-                outcome = fatigue_factors(
-                    stresses.mean_shear,
-                    stresses.alternating_shear,
-                    limit.value,
-                    ultimate,
-                    shear_yield,
+            place = _governing_place(places, results, first, second, criteria)
+            station, kfs, how, (limit, ultimate, shear_yield) = places[place]
+            factor = float(mesh.station_stress_per_torque[station])
+            torque_a = float(results.torque[first, station])
+            torque_b = float(results.torque[second, station])
+            kfsm = kfs if criteria.mean_concentration == "kfs" else 1.0
+            if criteria.extremes is not None:
+                stresses = stresses_from_extremes(torque_a, torque_b, factor, kfs, kfsm)
+            else:
+                stresses = stresses_from_mean_alternating(
+                    torque_a, abs(torque_b), factor, kfs, kfsm
                 )
-                worst = min(outcome.factor_of_safety(criteria.criterion), outcome.first_cycle_yield)
-                if best is None or worst < best[0]:
-                    best = (worst, place, outcome)
-            assert best is not None
-            _, place, outcome = best
-            station, kfs, how, (limit, _, _) = places[place]
+            outcome = fatigue_factors(
+                stresses.mean_shear, stresses.alternating_shear, limit.value, ultimate, shear_yield
+            )
             x = float(mesh.station_x[station])
             mean_note = "" if criteria.mean_concentration == "kfs" else ", nominal mean stress"
             basis = f"Kfs = {kfs:.3g} ({how}{mean_note}); {limit.basis}"
@@ -395,42 +385,35 @@ def _body_factor(segment: Segment) -> tuple[float, str]:
     return max(candidates, key=lambda candidate: candidate[0])
 
 
-def _undominated(
+def _governing_place(
     places: list[tuple[int, float, str, Any]],
     results: Results,
     first: int,
     second: int,
     criteria: FatigueCriteria,
-) -> list[int]:
-    """Places whose (|τm|, τa) no other place with the same strengths exceeds in both.
+) -> int:
+    """The place whose smaller factor of safety (the criterion's or Langer's) is least.
 
-    Every criterion's factor of safety falls as |τm| or τa grows, so a dominated place can
-    never govern; skipping it keeps the check fast without changing its answer.
+    All places at once, by the same formulas as the scalar chain that then reports the winner.
     """
     stations = np.array([place[0] for place in places])
     kfs = np.array([place[1] for place in places])
-    nominal = results.mesh.station_stress_per_torque[stations]
-    stress = nominal * kfs
-    mean_stress = stress if criteria.mean_concentration == "kfs" else nominal
-    torque_a, torque_b = results.torque[first, stations], results.torque[second, stations]
+    kfsm = kfs if criteria.mean_concentration == "kfs" else np.ones_like(kfs)
+    strengths = np.array([(s[0].value, s[1], s[2]) for *_, s in places]).T
+    per_torque = results.mesh.station_stress_per_torque[stations]
+    nominal_a = results.torque[first, stations] * per_torque
+    nominal_b = results.torque[second, stations] * per_torque
     if criteria.extremes is not None:
-        mean, alternating = (
-            np.abs(mean_stress * (torque_a + torque_b) / 2),
-            stress * np.abs(torque_a - torque_b) / 2,
-        )
+        mean = kfsm * (nominal_a + nominal_b) / 2.0
+        alternating = kfs * np.abs(nominal_a - nominal_b) / 2.0
     else:
-        mean, alternating = np.abs(mean_stress * torque_a), stress * np.abs(torque_b)
-    groups = np.array([id(place[3]) for place in places])
-    # beats[j, i]: place j has the same strengths, at least i's stresses, and more of one.
-    covers = (
-        (groups[:, None] == groups[None, :])
-        & (mean[:, None] >= mean[None, :])
-        & (alternating[:, None] >= alternating[None, :])
-    )
-    beats = covers & (
-        (mean[:, None] > mean[None, :]) | (alternating[:, None] > alternating[None, :])
-    )
-    return [int(index) for index in np.flatnonzero(~beats.any(axis=0))]
+        # stresses_from_mean_alternating: extremes Tm ± |Ta|, then as above.
+        high, low = nominal_a + np.abs(nominal_b), nominal_a - np.abs(nominal_b)
+        mean = kfsm * (high + low) / 2.0
+        alternating = kfs * np.abs(high - low) / 2.0
+    factors = factors_of_safety(mean, alternating, *strengths)
+    worst = np.minimum(factors[criteria.criterion], factors["first_cycle_yield"])
+    return int(np.argmin(worst))
 
 
 @functools.lru_cache(maxsize=512)
