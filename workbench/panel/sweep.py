@@ -12,13 +12,21 @@ few solver calls instead of one per point:
   model (shaft ids suffixed ``@n``): one assembly and one sparse factorization per chunk of points,
   which removes the per-call Python overhead of many small solves. The copies share no node, so
   each copy's results are exactly those of its own system.
+
+For the governing utilisation, the checks that read a swept result by name are made point by
+point from the batch's own rows: the fatigue check of a load sweep (its two results renamed to
+the point's), and the frequency-separation checks of the copies, whose natural frequencies are
+of each point's own system (the copies carry no discs or running speeds). A point's eigen-solve
+is skipped when its other checks already reach the most any frequency check could use
+(:func:`workbench.solver.checks.frequency_utilisation_ceiling`): it could not govern. Every value
+equals the point-by-point reference :func:`_solo_metric` to rounding.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import math
-from collections.abc import Iterator, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -26,8 +34,15 @@ import numpy as np
 
 from workbench.panel.document import KEY_QUANTITY, Path, clone, get_at, path_text, set_at
 from workbench.solver.analysis import Results, solve
-from workbench.solver.checks import DesignCriteria, run_checks
+from workbench.solver.checks import (
+    Check,
+    DesignCriteria,
+    frequency_checks,
+    frequency_utilisation_ceiling,
+    run_checks,
+)
 from workbench.solver.errors import InputError
+from workbench.solver.fatigue_check import FatigueCriteria, fatigue_checks
 from workbench.solver.io import parse_case
 from workbench.solver.model import Combination, LoadCase, Model, Shaft
 
@@ -128,20 +143,15 @@ def point_error(document: dict[str, Any], path: Path, value: float) -> str | Non
 def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> np.ndarray:
     case_number = int(request.path[1])
     swept = base.load_cases[case_number]
-    kind, item, key = request.path[2], int(request.path[3]), str(request.path[4])
-    quantity = KEY_QUANTITY[key] or "torque"
-    variants = []
+    variants: dict[int, LoadCase] = {}
     for number, value in enumerate(part):
-        si = float(base.units.to_si(value, quantity))
-        if kind == "torques":
-            torques = list(swept.torques)
-            torques[item] = dataclasses.replace(torques[item], torque=si)
-            case = LoadCase(_variant(swept.name, number), tuple(torques), swept.distributed)
-        else:
-            loads = list(swept.distributed)
-            loads[item] = dataclasses.replace(loads[item], **{key: si})  # type: ignore[arg-type]
-            case = LoadCase(_variant(swept.name, number), swept.torques, tuple(loads))
-        variants.append(case)
+        try:
+            variants[number] = _load_variant(swept, request.path, base.units.to_si, value, number)
+        except InputError:
+            continue  # not a valid load (a NaN, an infinite value): NaN at this point
+    out = np.full(len(part), np.nan)
+    if not variants:
+        return out
     others = [case for case in base.load_cases if case.name != swept.name]
     fixed_combinations, varied_combinations = [], []
     for combination in base.combinations:
@@ -149,7 +159,7 @@ def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> 
         if swept.name not in factors:
             fixed_combinations.append(combination)
             continue
-        for number in range(len(part)):
+        for number in variants:
             renamed = {
                 (_variant(swept.name, number) if name == swept.name else name): factor
                 for name, factor in factors.items()
@@ -160,20 +170,14 @@ def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> 
     }
     design = base.design
     fatigue = design.fatigue if isinstance(design, DesignCriteria) else None
-    if (
-        isinstance(design, DesignCriteria)
-        and fatigue is not None
-        and varied_names & set(fatigue.result_names)
-    ):
-        if request.metric == "governing_utilisation":
-            # The fatigue check reads the swept result by name: check point by point.
-            return np.array(
-                [_solo_metric(case_model(base, case_number, case), request) for case in variants]
-            )
-        design = dataclasses.replace(design, fatigue=None)  # not read by the other metrics
+    follows_load = fatigue is not None and bool(varied_names & set(fatigue.result_names))
+    if follows_load and isinstance(design, DesignCriteria):
+        # The fatigue check reads the swept result by name: each variant's own check is made
+        # below from the variant's rows; the other metrics do not read it.
+        design = dataclasses.replace(design, fatigue=None)
     model = dataclasses.replace(
         base,
-        load_cases=(*others, *variants),
+        load_cases=(*others, *variants.values()),
         combinations=(*fixed_combinations, *varied_combinations),
         design=design,
     )
@@ -181,18 +185,24 @@ def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> 
     fixed_names = {case.name for case in others} | {c.name for c in fixed_combinations}
     # Rows that do not follow the load: running-speed bands, and a fatigue check of fixed results.
     fixed_names |= {speed.name for speed in base.operating_speeds}
-    if fatigue is not None and isinstance(design, DesignCriteria) and design.fatigue is not None:
+    if fatigue is not None and not follows_load:
         fixed_names.add(fatigue.label)
     report = run_checks(results) if request.metric == "governing_utilisation" else None
     utilisation: dict[str, float] = {}
     if report is not None:
         for check in report.checks:
             utilisation[check.result] = max(utilisation.get(check.result, 0.0), check.utilisation)
-    out = np.empty(len(part))
-    for number in range(len(part)):
+    for number in variants:
         if report is not None:
             names = [*fixed_names, *(_variant(name, number) for name in varied_names)]
-            out[number] = max((utilisation.get(name, 0.0) for name in names), default=np.nan)
+            governing = max((utilisation.get(name, 0.0) for name in names), default=np.nan)
+            if fatigue is not None and follows_load:
+
+                def rename(name: str, number: int = number) -> str:
+                    return _variant(name, number) if name in varied_names else name
+
+                governing = max(governing, _fatigue_utilisation(results, fatigue, rename))
+            out[number] = governing
             continue
         name = request.result
         if name in varied_names:
@@ -201,11 +211,39 @@ def _linear_chunk(base: Model, request: SweepRequest, part: Sequence[float]) -> 
     return out
 
 
-def case_model(base: Model, number: int, variant: LoadCase) -> Model:
-    """``base`` with load case ``number`` replaced by a swept variant under its own name."""
-    cases = list(base.load_cases)
-    cases[number] = dataclasses.replace(variant, name=cases[number].name)
-    return dataclasses.replace(base, load_cases=tuple(cases))
+def _load_variant(
+    swept: LoadCase, path: Path, to_si: Callable[[float, str], float], value: float, number: int
+) -> LoadCase:
+    """The swept load case with one load's magnitude set to ``value`` (document units).
+
+    Raises :class:`InputError` when the value is not a valid load.
+    """
+    kind, item, key = path[2], int(path[3]), str(path[4])
+    si = float(to_si(value, KEY_QUANTITY[key] or "torque"))
+    name = _variant(swept.name, number)
+    if kind == "torques":
+        torques = list(swept.torques)
+        torques[item] = dataclasses.replace(torques[item], torque=si)
+        return LoadCase(name, tuple(torques), swept.distributed)
+    loads = list(swept.distributed)
+    loads[item] = dataclasses.replace(loads[item], **{key: si})  # type: ignore[arg-type]
+    return LoadCase(name, swept.torques, tuple(loads))
+
+
+def _fatigue_utilisation(
+    results: Results, criteria: FatigueCriteria, rename: Callable[[str], str]
+) -> float:
+    """The largest utilisation of the fatigue check of the results ``rename`` gives."""
+    if criteria.extremes is not None:
+        first, second = criteria.extremes
+        renamed = dataclasses.replace(criteria, extremes=(rename(first), rename(second)))
+    else:
+        assert criteria.mean is not None and criteria.alternating is not None
+        renamed = dataclasses.replace(
+            criteria, mean=rename(criteria.mean), alternating=rename(criteria.alternating)
+        )
+    rows, _ = fatigue_checks(results, renamed, [])  # notes are not needed for a number
+    return max((Check(*row).utilisation for row in rows), default=0.0)
 
 
 def _variant(name: str, number: int) -> str:
@@ -223,11 +261,8 @@ def _copies_chunk(
     out = np.full(len(part), np.nan)
     if not good:
         return out
-    if request.path[0] == "design" or (
-        request.metric == "governing_utilisation" and base.operating_speeds
-    ):
-        # Copies share one set of design criteria: a criterion's sweep is checked point by point;
-        # so are natural frequencies, which are of the whole system, not of one copy.
+    if request.path[0] == "design":
+        # Copies share one set of design criteria: a criterion's sweep is checked point by point.
         return np.array(
             [_solo_metric(model, request) if model is not None else np.nan for model in models]
         )
@@ -248,6 +283,14 @@ def _copies_chunk(
         for check in report.checks:
             copy = copy_of[check.shaft]
             utilisation[copy] = max(utilisation[copy], check.utilisation)
+        # The copies carry no discs or running speeds: natural frequencies are of each point's
+        # own system, checked one by one.
+        utilisation = np.array(
+            [
+                _with_frequencies(model, statics)
+                for model, statics in zip(good, utilisation, strict=True)
+            ]
+        )
     starts = results.mesh.shaft_station_start
     values = []
     for copy in range(len(good)):
@@ -269,6 +312,17 @@ def _solo_metric(model: Model, request: SweepRequest) -> float:
         governing = run_checks(results).governing
         return governing.utilisation if governing is not None else math.nan
     return _row_metric(results, results.index(request.result), request, slice(None), 0)
+
+
+def _with_frequencies(model: Model, statics: float) -> float:
+    """Governing utilisation of ``model``, given the largest of its other checks (``statics``)."""
+    if not model.operating_speeds:
+        return statics
+    design = model.design if isinstance(model.design, DesignCriteria) else DesignCriteria()
+    if statics >= frequency_utilisation_ceiling(model, design):
+        return statics  # no frequency check can govern: the eigen-solve would not change it
+    checks, _, _ = frequency_checks(model, design)
+    return max([statics, *(check.utilisation for check in checks)])
 
 
 def _row_metric(

@@ -708,51 +708,121 @@ class _Checker:
             )
 
     def _frequencies(self) -> None:
-        speeds = self.model.operating_speeds
-        if not speeds:
-            return
-        from workbench.solver.modes import (  # noqa: PLC0415 - only cases with running speeds
-            DEFAULT_FREQUENCY_MARGIN,
-            DEFAULT_MODE_COUNT,
-            frequency_separations,
-            natural_modes,
-            separation_note,
-        )
+        checks, notes, modes = frequency_checks(self.model, self.design)
+        self.checks.extend(checks)
+        self.notes.extend(notes)
+        self.modes = modes
 
-        margin = self.design.frequency_margin
+
+def frequency_checks(model: Model, design: DesignCriteria) -> tuple[list[Check], list[str], Any]:
+    """The ``frequency_separation`` checks of a model's running-speed bands.
+
+    Parameters
+    ----------
+    model
+        The validated model (SI), with its ``operating_speeds`` and inertia (discs, densities).
+    design
+        Criteria: the frequency margin and the modal mesh settings.
+
+    Returns
+    -------
+    tuple
+        (checks, notes, modes): one check per mode near each band, the report's notes on them,
+        and the :class:`workbench.solver.modes.Modes` used; ``([], [], None)`` without bands.
+
+    References
+    ----------
+    .. [1] Separation of natural frequencies from running speeds by a margin: common practice,
+       no source (see :func:`workbench.solver.modes.frequency_separations`).
+    """
+    speeds = model.operating_speeds
+    if not speeds:
+        return [], [], None
+    from workbench.solver.modes import (  # noqa: PLC0415 - only cases with running speeds
+        DEFAULT_FREQUENCY_MARGIN,
+        DEFAULT_MODE_COUNT,
+        frequency_separations,
+        natural_modes,
+        separation_note,
+    )
+
+    margin = design.frequency_margin
+    token = display_units.set(model.units)  # the notes quote speeds in the case's units
+    try:
         # The usual count (not 1): for small systems every mode comes at once anyway, and the
         # report keeps them for charts and records to reuse.
         modes = natural_modes(
-            self.model,
+            model,
             count=DEFAULT_MODE_COUNT,
             up_to=max(speed.maximum for speed in speeds) * (1.0 + margin),
-            elements_per_segment=self.design.modal_elements_per_segment,
-            max_element_length=self.design.modal_max_element_length,
+            elements_per_segment=design.modal_elements_per_segment,
+            max_element_length=design.modal_max_element_length,
         )
-        for separation in frequency_separations(modes, speeds, margin):
-            self.checks.append(
-                Check(
-                    separation.speed.name,
-                    separation.shaft,
-                    None,
-                    "frequency_separation",
-                    separation.value,
-                    separation.limit,
-                    separation.x,
-                    separation_note(separation, margin),
-                )
+        checks = [
+            Check(
+                separation.speed.name,
+                separation.shaft,
+                None,
+                "frequency_separation",
+                separation.value,
+                separation.limit,
+                separation.x,
+                separation_note(separation, margin),
             )
-        source = (
-            "the default, common practice, no source"
-            if margin == DEFAULT_FREQUENCY_MARGIN
-            else "the case's frequency_margin"
-        )
-        self.notes.append(
-            f"frequency separation: running-speed bands widened by ±{margin:.0%} ({source}), "
-            "excitation once per revolution; shaft and x name where the mode's angle is largest"
-        )
-        self.notes.extend(modes.notes)
-        self.modes = modes
+            for separation in frequency_separations(modes, speeds, margin)
+        ]
+    finally:
+        display_units.reset(token)
+    source = (
+        "the default, common practice, no source"
+        if margin == DEFAULT_FREQUENCY_MARGIN
+        else "the case's frequency_margin"
+    )
+    notes = [
+        f"frequency separation: running-speed bands widened by ±{margin:.0%} ({source}), "
+        "excitation once per revolution; shaft and x name where the mode's angle is largest",
+        *modes.notes,
+    ]
+    return checks, notes, modes
+
+
+def frequency_utilisation_ceiling(model: Model, design: DesignCriteria) -> float:
+    """The largest utilisation any ``frequency_separation`` check of the model could have.
+
+    Whatever its natural frequencies: a caller that knows another check's utilisation is at
+    least this can skip the eigen-solve, since no frequency check can govern then.
+
+    Parameters
+    ----------
+    model
+        The model; only its ``operating_speeds`` (rad/s) are read.
+    design
+        Criteria: the frequency margin m.
+
+    Returns
+    -------
+    float
+        0 without bands; else the largest over the bands of max(1, √(high/low)), with
+        low = min·(1 − m) and high = max·(1 + m); ``inf`` when a band starts at 0.
+
+    Notes
+    -----
+    A mode below a widened band has utilisation ω/low ≤ 1, one above it high/ω ≤ 1. One inside
+    it (low < ω < high) is measured from the nearer edge, min(ω/low, high/ω), which is largest,
+    √(high/low), at ω = √(low·high). With low = 0 an inside mode has high/ω, unbounded.
+
+    References
+    ----------
+    .. [1] From the definition of the check, :func:`workbench.solver.modes.frequency_separations`.
+    """
+    ceiling = 0.0
+    margin = design.frequency_margin
+    for speed in model.operating_speeds:
+        low, high = speed.minimum * (1.0 - margin), speed.maximum * (1.0 + margin)
+        if low <= 0.0:
+            return math.inf
+        ceiling = max(ceiling, 1.0, math.sqrt(high / low))
+    return ceiling
 
 
 def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckReport:
