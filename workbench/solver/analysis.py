@@ -28,6 +28,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import itertools
 import math
 import warnings
@@ -139,8 +140,29 @@ def _varying_element(
 ) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
     """Stations, cumulative flexibility moments, stress factors and rigidity of a varying element.
 
-    8-point Gauss–Legendre on pieces graded so that the rule is exact to rounding.
+    8-point Gauss–Legendre on pieces graded so that the rule is exact to rounding. The same
+    piece of the same segment (equal by value) is integrated once: sweeps, sizing and the modal
+    mesh rebuild unchanged tapers many times over. The arrays returned are read-only.
     """
+    try:
+        return _varying_element_cached(segment, fraction_start, fraction_end)
+    except TypeError:  # a segment whose parts cannot be hashed: integrate it afresh
+        return _integrate_varying_element(segment, fraction_start, fraction_end)
+
+
+@functools.lru_cache(maxsize=4096)
+def _varying_element_cached(
+    segment: Segment, fraction_start: float, fraction_end: float
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
+    arrays = _integrate_varying_element(segment, fraction_start, fraction_end)
+    for array in arrays:
+        array.setflags(write=False)
+    return arrays
+
+
+def _integrate_varying_element(
+    segment: Segment, fraction_start: float, fraction_end: float
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
     breaks = segment.quadrature_breaks()
     inside = breaks[(breaks > fraction_start) & (breaks < fraction_end)]
     fractions = np.unique(
