@@ -311,7 +311,9 @@ def demo_shaft_model(segments: int, *, distributed: bool = True) -> Any:
     )
 
 
-def many_case_model(segments: int, cases: int, *, on_joints: bool = True, random_state: int = 7) -> Any:
+def many_case_model(
+    segments: int, cases: int, *, on_joints: bool = True, random_state: int = 7
+) -> Any:
     """A ``segments``-segment demo shaft (as :func:`demo_shaft_model`) with ``cases`` load cases.
 
     Each case is one point torque of random size (±300 N·m) at a random place: a segment joint
