@@ -727,3 +727,28 @@ def test_add_and_remove_disc_and_speed_band(panel: Workbench) -> None:
     panel._remove_listed("operating_speeds", 1)
     panel._remove_listed("discs", 2)
     assert len(panel.document["discs"]) == 2 and len(panel.document["operating_speeds"]) == 1
+
+
+def test_mean_stress_choice_moves_the_operating_point(panel: Workbench) -> None:
+    # "nominal" leaves Kfs off the mean stress (Kfsm = 1): the operating point's τm falls by the
+    # factor Kfs, τa stays (Shigley's Mechanical Engineering Design, 9th ed., eq. 6-36 with
+    # Kfsm = Kfs or 1). The demo's governing segment carries a keyseat, Kfs = 3.0.
+    from workbench.panel.workbench import governing_fatigue_points
+
+    panel.open_fatigue()
+    before = governing_fatigue_points(panel.report, "auger")[0]
+    chooser = field(panel, "design.fatigue.mean_concentration")
+    assert chooser.value == "kfs"
+    chooser.value = "none"
+    assert panel.document["design"]["fatigue"]["mean_concentration"] == "none"
+    after = governing_fatigue_points(panel.report, "auger")[0]
+    assert (after.shaft, after.segment) == (before.shaft, before.segment)
+    assert after.factors.mean_shear == pytest.approx(
+        before.factors.mean_shear / before.concentration, rel=1e-12
+    )
+    assert after.factors.alternating_shear == pytest.approx(
+        before.factors.alternating_shear, rel=1e-12
+    )
+    assert panel.fatigue_chart.point.x[0] == pytest.approx(
+        after.factors.mean_shear / 1e6, rel=1e-12
+    )
