@@ -126,6 +126,33 @@ def _collector_off() -> Iterator[None]:
             gc.enable()
 
 
+def time_pair(
+    first: Callable[[], object],
+    second: Callable[[], object],
+    *,
+    repeats: int,
+    warmup: int = 1,
+) -> tuple[Timing, Timing]:
+    """Time two calls taking turns, so that both see the same machine (for a ratio).
+
+    A slow spell of the machine (another process, a frequency step) then lands on both sides
+    instead of on one; the garbage collector runs between calls, outside the timed windows.
+    """
+    for _ in range(warmup):
+        first()
+        second()
+    times: tuple[list[float], list[float]] = ([], [])
+    with _collector_off():
+        for _ in range(repeats):
+            for call, out in ((first, times[0]), (second, times[1])):
+                start = time.perf_counter()
+                result = call()
+                out.append(time.perf_counter() - start)
+                del result
+                gc.collect()
+    return Timing(tuple(times[0])), Timing(tuple(times[1]))
+
+
 def time_calls(
     call: Callable[[], object],
     *,

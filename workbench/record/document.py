@@ -148,6 +148,9 @@ def record_modes(model: Model, report: CheckReport) -> Modes:
     """
     from workbench.solver.modes import natural_modes  # noqa: PLC0415
 
+    if report.modes is not None:
+        # The frequency checks asked for exactly these modes (the same count, bands and mesh).
+        return report.modes
     speeds = model.operating_speeds
     up_to = None
     if speeds:
