@@ -1066,5 +1066,7 @@ def test_record_shows_a_notch_and_the_nominal_mean_choice() -> None:
     fatigue = _section_of(html, "fatigue")
     assert "none (nominal mean stress)" in fatigue
     assert "not conservative for a notch" in fatigue
+    assert "τm is written without Kfs" in fatigue
+    assert "τm is written without Kfs" not in _section_of(_body(FEED_DRIVE_CASE), "fatigue")
     row = _table_rows(fatigue, "fatigue")[0]
     assert row[5] == f"{1 + 0.9 * 0.65:.3g}"

@@ -987,6 +987,12 @@ def _fatigue_html(computation: Computation) -> str:
         "<h3>Method</h3>",
         "<ul>" + "".join(f"<li>{escape(text)}</li>" for text in method) + "</ul>",
         _equations_table("fatigue"),
+        (
+            "<p>This case takes the mean stress nominal: in the first line above, τm is written "
+            "without Kfs.</p>"
+            if nominal_mean
+            else ""
+        ),
         "<p>References: R. G. Budynas and J. K. Nisbett, <em>Shigley's Mechanical Engineering "
         "Design</em>, 9th/10th ed., ch. 6 (Marin factors, notch sensitivity, fluctuating "
         "stresses, torsion) and ch. 7 (shafts); ASME B106.1M-1985 (the elliptic criterion).</p>",
