@@ -752,3 +752,35 @@ def test_mean_stress_choice_moves_the_operating_point(panel: Workbench) -> None:
     assert panel.fatigue_chart.point.x[0] == pytest.approx(
         after.factors.mean_shear / 1e6, rel=1e-12
     )
+
+
+def test_keyseat_and_notch_from_the_segment_row() -> None:
+    # A stated Kts multiplies the nominal stress 16T/(πd³) (Pilkey & Pilkey, Peterson's Stress
+    # Concentration Factors, 3rd ed., definition of Kts); the end-milled keyseat takes 3.0
+    # (Shigley's Mechanical Engineering Design, Table 7-1).
+    panel = Workbench(simple_case(diameter=40.0, torque=500.0))
+    nominal = 16 * 500.0 / (math.pi * 0.040**3)
+
+    def largest(kind: str) -> float | None:
+        values = [c.value for c in panel.report.checks if c.kind == kind]
+        return max(values) if values else None
+
+    assert largest("keyseat_stress") is None and largest("notch_stress") is None
+    field(panel, "shafts[0].segments[0].keyseat").value = True
+    assert panel.document["shafts"][0]["segments"][0]["keyseat"] is True
+    assert largest("keyseat_stress") == pytest.approx(3.0 * nominal, rel=1e-9)
+    field(panel, "shafts[0].segments[0].keyseat").value = False
+    assert "keyseat" not in panel.document["shafts"][0]["segments"][0]
+    assert largest("keyseat_stress") is None
+
+    notch = field(panel, "shafts[0].segments[0].notch.kts")
+    notch.value = 1.8
+    assert panel.document["shafts"][0]["segments"][0]["notch"] == {"kts": 1.8}
+    assert largest("notch_stress") == pytest.approx(1.8 * nominal, rel=1e-9)
+    notch.value = 0.7  # below 1: refused beside the field, the last good results kept
+    assert panel.stale
+    assert "at least 1" in message_beside(panel, "shafts[0].segments[0].notch.kts").value
+    notch.value = 0.0  # no notch
+    assert "notch" not in panel.document["shafts"][0]["segments"][0]
+    assert not panel.stale
+    assert largest("notch_stress") is None

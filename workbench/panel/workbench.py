@@ -430,6 +430,45 @@ class Workbench:
         field.observe(lambda change: self._write(path, _clean(change["new"]), field), "value")
         return field
 
+    def flag(self, path: Path, description: str) -> w.HBox:
+        """A check box bound to a true-or-absent key of the case (unticked removes the key)."""
+        box = w.Checkbox(
+            value=bool(get_at(self.document, path)),
+            description=description,
+            indent=False,
+            layout=_short("", "90px"),
+        )
+        self._register(path, box)
+        box.observe(lambda change: self._write(path, True if change["new"] else None, box), "value")
+        return self._beside(box, path)
+
+    def _notch_field(self, base: Path) -> w.HBox:
+        """Kts of a segment's stated notch (a groove, a spline run-out); 0 removes the notch.
+
+        Its radius, notch sensitivity and description are kept as the case file gives them.
+        """
+        path = (*base, "notch", "kts")
+        value = get_at(self.document, path)
+        field = w.FloatText(
+            value=float(value) if isinstance(value, (int, float)) else 0.0,
+            description="notch Kts",
+            layout=_short("", "130px"),
+            style={"description_width": "initial"},
+        )
+        self._register(path, field)
+
+        def changed(change: dict[str, Any]) -> None:
+            if self._muted:
+                return
+            if change["new"] == 0:
+                get_at(self.document, base).pop("notch", None)
+                self._edited(field)
+            else:
+                self._write(path, _clean(change["new"]), field)
+
+        field.observe(changed, "value")
+        return self._beside(field, path)
+
     def choice(
         self,
         path: Path,
@@ -535,6 +574,7 @@ class Workbench:
                     (*base, "fillet_radius"), "fillet r", "length", optional=True, width="120px"
                 )
             )
+            parts += [self.flag((*base, "keyseat"), "keyseat"), self._notch_field(base)]
             parts += [
                 self._button("↑", lambda k=k: self._move_segment(k, -1)),
                 self._button("↓", lambda k=k: self._move_segment(k, 1)),
