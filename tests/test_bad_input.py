@@ -19,9 +19,9 @@ from typing import Any
 
 import pytest
 
+from workbench.case.errors import InputError, MechanismError
 from workbench.cli import main
 from workbench.solver.analysis import solve
-from workbench.solver.errors import InputError, MechanismError
 from workbench.solver.io import parse_case
 
 ROOT = Path(__file__).resolve().parents[1]

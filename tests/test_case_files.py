@@ -18,11 +18,11 @@ from typing import Any
 import numpy as np
 import pytest
 
-from workbench.cli import DEMO_CASE
+from workbench.case.units import SI, UnitSystem
+from workbench.cli.solve import DEMO_CASE
 from workbench.solver.analysis import solve
 from workbench.solver.io import load_case, parse_case, save_case
 from workbench.solver.model import Model
-from workbench.solver.units import SI, UnitSystem
 
 RELATIVE = 1e-9
 

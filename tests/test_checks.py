@@ -1,4 +1,4 @@
-"""Design checks (``workbench.solver.checks``) against values worked out by hand.
+"""Design checks (``workbench.design.checks``) against values worked out by hand.
 
 The reference for every number is a hand calculation on a statically determinate cantilever
 (internal torque known from statics alone), with the formula and its source beside it:
@@ -37,19 +37,13 @@ from typing import Any
 
 import pytest
 
+from workbench.case.design import DesignCriteria
+from workbench.case.errors import InputError
 from workbench.cli import main
+from workbench.design.caution import CAUTION
+from workbench.design.checks import Check, CheckReport, check_document, check_text, run_checks
+from workbench.design.concentration import shoulder_fillet_kts
 from workbench.solver.analysis import solve
-from workbench.solver.checks import (
-    CAUTION,
-    Check,
-    CheckReport,
-    DesignCriteria,
-    check_document,
-    check_text,
-    run_checks,
-)
-from workbench.solver.concentration import shoulder_fillet_kts
-from workbench.solver.errors import InputError
 from workbench.solver.io import parse_case
 
 PROJECT_ROOT = Path(__file__).resolve().parents[1]

@@ -9,11 +9,11 @@ from pathlib import Path
 
 import pytest
 
+from workbench.case.units import registry
 from workbench.cli import main
+from workbench.design.checks import plastic_reserves, run_checks
 from workbench.solver.analysis import solve
-from workbench.solver.checks import plastic_reserves, run_checks
 from workbench.solver.io import case_to_dict, parse_case
-from workbench.solver.units import registry
 
 DIAMETER_MM = 40.0
 TORQUE = 500.0  # N·m

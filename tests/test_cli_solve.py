@@ -18,7 +18,9 @@ from typing import Any
 
 import pytest
 
-from workbench.cli import CAUTION, DEMO_CASE, main
+from workbench.cli import main
+from workbench.cli.solve import DEMO_CASE
+from workbench.design.caution import CAUTION
 
 ROOT = Path(__file__).resolve().parents[1]
 RESULT_KEYS = {"name", "reactions", "shafts"}
@@ -285,9 +287,9 @@ IMPORT_PROBE = """
 import json, sys, time
 start = time.perf_counter()
 import workbench.solver
-import workbench.solver.analysis, workbench.solver.errors, workbench.solver.io
+import workbench.solver.analysis, workbench.case.errors, workbench.solver.io
 import workbench.solver.model, workbench.solver.sections, workbench.solver.tables
-import workbench.solver.units
+import workbench.case.units
 imported = time.perf_counter() - start
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case

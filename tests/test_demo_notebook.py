@@ -9,8 +9,8 @@ from pathlib import Path
 import nbformat
 from nbclient import NotebookClient
 
+from workbench.design.checks import CHECK_QUANTITIES
 from workbench.panel import CASE_MIME_TYPE
-from workbench.solver.checks import CHECK_QUANTITIES
 from workbench.solver.io import load_case, parse_case
 
 NOTEBOOKS = Path(__file__).resolve().parents[1] / "notebooks"

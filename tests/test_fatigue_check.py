@@ -52,27 +52,21 @@ import jsonschema
 import numpy as np
 import pytest
 
+from workbench.case.design import DesignCriteria, FatigueCriteria
+from workbench.case.errors import InputError
+from workbench.case.units import SI, us_customary
 from workbench.cli import main
-from workbench.solver.analysis import solve
-from workbench.solver.checks import (
-    Check,
-    CheckReport,
-    DesignCriteria,
-    check_document,
-    run_checks,
-)
-from workbench.solver.concentration import shoulder_fillet_kts
-from workbench.solver.errors import InputError
-from workbench.solver.fatigue import (
+from workbench.design.checks import Check, CheckReport, check_document, run_checks
+from workbench.design.concentration import shoulder_fillet_kts
+from workbench.design.fatigue import (
     fatigue_factors,
     notch_sensitivity_torsion,
     stresses_from_extremes,
 )
-from workbench.solver.fatigue_check import FatigueCriteria
+from workbench.solver.analysis import solve
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
 from workbench.solver.model import Model
 from workbench.solver.schema import case_schema
-from workbench.solver.units import SI, us_customary
 
 PROJECT_ROOT = Path(__file__).resolve().parents[1]
 

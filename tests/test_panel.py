@@ -20,12 +20,13 @@ import ipywidgets as w
 import numpy as np
 import pytest
 
+from workbench.design.caution import CAUTION
+from workbench.design.checks import run_checks
 from workbench.panel import CASE_MIME_TYPE, Workbench
 from workbench.panel.document import get_at, normal_field, parse_path, plain_words
 from workbench.panel.sweep import SweepRequest, run_sweep
 from workbench.panel.workbench import _clean
 from workbench.solver.analysis import solve
-from workbench.solver.checks import CAUTION, run_checks
 from workbench.solver.io import load_case, parse_case
 from workbench.solver.sections import SolidCircle
 

@@ -9,7 +9,6 @@ equation pictures are redrawn with matplotlib.
 
 from __future__ import annotations
 
-import argparse
 import base64
 import copy
 import hashlib
@@ -30,17 +29,18 @@ import pytest
 from jwcrypto import jwk as jwcrypto_jwk
 from jwcrypto import jws as jwcrypto_jws
 
-from workbench.record import cli_commands, equations
+from workbench import cli
+from workbench.design.checks import run_checks
+from workbench.design.handcheck import force_method_check
+from workbench.record import equations
 from workbench.record.demo import DEMO_TITLE_BLOCK, FEED_DRIVE_CASE, LINE_SHAFT_CASE, demo_notebook
 from workbench.record.document import BLOCK_END, BLOCK_START, CSP, compute, render_body
 from workbench.record.exporter import RecordExporter, export_file
 from workbench.record.figures import elevation_svg
-from workbench.record.handcheck import force_method_check
 from workbench.record.package import build_package
 from workbench.record.signing import write_key_pair
 from workbench.record.verify import verify_package, verify_record, verify_text
 from workbench.solver.analysis import solve
-from workbench.solver.checks import run_checks
 from workbench.solver.io import parse_case
 from workbench.solver.modes import natural_modes
 
@@ -313,7 +313,7 @@ def test_case_file_fallback_and_last_output_wins(tmp_path: Path) -> None:
 
 
 def test_no_case_is_a_clear_input_error(tmp_path: Path) -> None:
-    from workbench.solver.errors import InputError
+    from workbench.case.errors import InputError
 
     path = tmp_path / "empty.ipynb"
     nbformat.write(nbformat.v4.new_notebook(), str(path))
@@ -322,17 +322,8 @@ def test_no_case_is_a_clear_input_error(tmp_path: Path) -> None:
 
 
 def _cli(argv: list[str]) -> int:
-    from workbench import cli
-
-    parser = argparse.ArgumentParser(prog="workbench")
-    commands = parser.add_subparsers(dest="command", required=True)
-    cli_commands.register(commands)
-    arguments = parser.parse_args(argv)
-    try:
-        return arguments.run(arguments)
-    except cli.WorkbenchError as error:  # what the main command does: one line, exit 2
-        sys.stderr.write(f"{error}\n")
-        return cli.EXIT_BAD_INPUT
+    """The ``workbench`` command line, as a user runs it."""
+    return cli.main(argv)
 
 
 def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
@@ -562,7 +553,7 @@ def test_shipped_equations_match_their_source() -> None:
 def test_equation_pictures_from_another_source_are_refused(
     tmp_path: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    from workbench.solver.errors import InputError
+    from workbench.case.errors import InputError
 
     equations.write_equations(tmp_path)
     monkeypatch.setattr(equations, "equations_dir", lambda: tmp_path)
@@ -1013,9 +1004,9 @@ def test_changed_fatigue_factor_fails_verify(feed_record: Path, keys: dict) -> N
 
 
 def test_results_digest_covers_modes_and_fatigue_and_keeps_old_cases() -> None:
+    from workbench.design.checks import check_document
     from workbench.record.canonical import canonicalize
     from workbench.record.document import _rounded, results_digest
-    from workbench.solver.checks import check_document
     from workbench.solver.tables import results_document
 
     plain = compute(LINE_SHAFT_CASE)

@@ -16,8 +16,8 @@ from typing import Any
 import jsonschema
 import pytest
 
+from workbench.case.errors import InputError
 from workbench.cli import main
-from workbench.solver.errors import InputError
 from workbench.solver.io import case_to_dict, parse_case
 from workbench.solver.schema import case_schema
 

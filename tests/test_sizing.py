@@ -1,4 +1,4 @@
-"""Sizing (``workbench.solver.sizing``): preferred diameters that pass every check, and no smaller.
+"""Sizing (``workbench.design.sizing``): preferred diameters that pass every check, and no smaller.
 
 Outside references:
 
@@ -11,7 +11,7 @@ Outside references:
   (Shigley's *Mechanical Engineering Design*, ch. 5 and ch. 7, d ∝ (T/τ_allow)^(1/3)).
 
 Every "next smaller size fails" claim is re-checked here by building the model independently with
-:func:`workbench.solver.sizing.resized` and running ``run_checks(solve(...))``.
+:func:`workbench.design.sizing.resized` and running ``run_checks(solve(...))``.
 """
 
 from __future__ import annotations
@@ -29,12 +29,9 @@ from typing import Any
 import pytest
 
 from workbench.cli import main
-from workbench.solver.analysis import solve
-from workbench.solver.checks import CAUTION, run_checks
-from workbench.solver.io import load_case, parse_case
-from workbench.solver.model import Layer, Model
-from workbench.solver.sections import SolidCircle, Tube
-from workbench.solver.sizing import (
+from workbench.design.caution import CAUTION
+from workbench.design.checks import run_checks
+from workbench.design.sizing import (
     SizingOutcome,
     SizingRequest,
     resized,
@@ -42,6 +39,10 @@ from workbench.solver.sizing import (
     sizing_document,
     sizing_text,
 )
+from workbench.solver.analysis import solve
+from workbench.solver.io import load_case, parse_case
+from workbench.solver.model import Layer, Model
+from workbench.solver.sections import SolidCircle, Tube
 
 MM = 1e-3
 #: AISI 1020 CD (Shigley Table A-20, from memory; G from Table A-5), MPa.

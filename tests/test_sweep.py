@@ -22,17 +22,13 @@ from typing import Any
 import numpy as np
 import pytest
 
+from workbench.case.design import DesignCriteria
+from workbench.case.errors import InputError
+from workbench.design.checks import frequency_checks, frequency_utilisation_ceiling, run_checks
 from workbench.panel.document import Path as DocumentPath
 from workbench.panel.document import clone, set_at
 from workbench.panel.sweep import SweepRequest, _solo_metric, run_sweep
 from workbench.solver.analysis import solve
-from workbench.solver.checks import (
-    DesignCriteria,
-    frequency_checks,
-    frequency_utilisation_ceiling,
-    run_checks,
-)
-from workbench.solver.errors import InputError
 from workbench.solver.io import parse_case
 from workbench.solver.modes import DEFAULT_MODE_COUNT, natural_modes
 

@@ -2,7 +2,7 @@
 
 Property (hypothesis): a random case written once in SI base units and once in inches, lbf·in,
 psi and degrees — each number converted with the conversion factors of pint's registry
-(``workbench.solver.units.registry()``; pint's definitions: 1 in = 0.0254 m exactly,
+(``workbench.case.units.registry()``; pint's definitions: 1 in = 0.0254 m exactly,
 1 lbf = 4.448 221 615 260 5 N exactly, 1 psi = 1 lbf/in²) — gives the same verdict and the same
 check rows and solve results after conversion, to 1e-9 relative.
 
@@ -23,13 +23,13 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from workbench.case.errors import InputError
+from workbench.case.units import UnitSystem, registry
 from workbench.cli import main
+from workbench.design.checks import check_document, run_checks
 from workbench.solver.analysis import solve
-from workbench.solver.checks import check_document, run_checks
-from workbench.solver.errors import InputError
 from workbench.solver.io import parse_case
 from workbench.solver.tables import results_document
-from workbench.solver.units import UnitSystem, registry
 
 US_UNITS = {"length": "in", "torque": "lbf*in", "stress": "psi", "angle": "deg"}
 SI_UNITS = {"length": "m", "torque": "N*m", "stress": "Pa", "angle": "rad"}

@@ -16,11 +16,12 @@ import dataclasses
 from typing import Any
 
 from tests.benchmarks.common import Row, demo_steel, many_case_model, time_calls
+from workbench.case.design import DesignCriteria, RotationLimit
+from workbench.design.checks import run_checks
+from workbench.design.sizing import SizingRequest, size_shafts
 from workbench.solver.analysis import solve
-from workbench.solver.checks import DesignCriteria, RotationLimit, run_checks
 from workbench.solver.model import LoadCase, Model, PointTorque, Segment, Shaft, Support
 from workbench.solver.sections import SolidCircle
-from workbench.solver.sizing import SizingRequest, size_shafts
 
 MS = 1e3
 

@@ -22,7 +22,7 @@ MS = 1e3
 
 
 def _line_shaft(segments: int, density: float | None = 7850.0) -> Any:
-    from workbench.solver.materials import Material
+    from workbench.case.materials import Material
     from workbench.solver.model import Disc, LoadCase, Model, Segment, Shaft, Support
     from workbench.solver.sections import SolidCircle, Tube
 
@@ -51,7 +51,7 @@ def _line_shaft(segments: int, density: float | None = 7850.0) -> Any:
 
 
 def _chain() -> Any:
-    from workbench.solver.materials import Material
+    from workbench.case.materials import Material
     from workbench.solver.model import Disc, LoadCase, Model, Segment, Shaft, Support
     from workbench.solver.sections import SolidCircle
 

@@ -23,7 +23,7 @@ def run() -> list[Row]:
     """Time export (record vs plain HTML), verify, and measure the record's size."""
     from nbconvert.exporters import HTMLExporter
 
-    from workbench.cli import DEMO_CASE
+    from workbench.cli.solve import DEMO_CASE
     from workbench.record.demo import demo_notebook
     from workbench.record.exporter import RecordExporter
     from workbench.record.signing import generate_key

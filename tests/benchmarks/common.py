@@ -267,7 +267,7 @@ def rows_in_fresh_process(module: str, function: str = "run", timeout: float = 6
 
 def demo_steel() -> Any:
     """A demo carbon steel, G = 79.3 GPa."""
-    from workbench.solver.materials import Material
+    from workbench.case.materials import Material
 
     return Material("demo drive steel", 79.3e9, 390e6, 470e6)
 

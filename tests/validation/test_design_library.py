@@ -16,35 +16,35 @@ from hypothesis import given
 from hypothesis import strategies as st
 from scipy.integrate import quad
 
-from workbench.solver.allowables import (
-    SHEAR_CRITERIA,
+from workbench.case.design import SHEAR_CRITERIA
+from workbench.case.errors import InputError
+from workbench.case.materials import LIBRARY, Material, library_material
+from workbench.case.power import torque_from_power
+from workbench.case.units import SI_ENGINEERING, display_units, registry
+from workbench.design.allowables import (
     TWIST_RATE_PRESETS,
     allowable_shear_stress,
     twist_rate_one_degree_in_twenty_diameters,
 )
-from workbench.solver.concentration import (
+from workbench.design.concentration import (
     FILLET_RATIO_RANGE,
     NORTON_TORSION_FITS,
     keyseat_kts,
     shoulder_fillet_kts,
     transverse_hole_kts,
 )
-from workbench.solver.errors import InputError
-from workbench.solver.materials import LIBRARY, Material, library_material
-from workbench.solver.plastic import (
+from workbench.design.plastic import (
     partly_plastic_torque,
     plastic_reserve,
     plastic_torque,
     yield_torque,
 )
-from workbench.solver.power import torque_from_power
-from workbench.solver.preferred import (
+from workbench.design.preferred import (
     RENARD_SERIES,
     next_smaller_preferred,
     round_up_preferred,
     round_up_to_list,
 )
-from workbench.solver.units import SI_ENGINEERING, display_units, registry
 
 MPA = 1e6
 GPA = 1e9

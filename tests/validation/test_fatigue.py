@@ -55,12 +55,11 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy.stats import norm
 
-from workbench.solver.analysis import solve
-from workbench.solver.checks import run_checks
-from workbench.solver.concentration import keyseat_kts, shoulder_fillet_kts
-from workbench.solver.errors import InputError
-from workbench.solver.fatigue import (
-    FATIGUE_CRITERIA,
+from workbench.case.design import FATIGUE_CRITERIA
+from workbench.case.errors import InputError
+from workbench.design.checks import run_checks
+from workbench.design.concentration import keyseat_kts, shoulder_fillet_kts
+from workbench.design.fatigue import (
     RELIABILITY_FACTORS,
     SURFACE_FACTORS_KPSI,
     SURFACE_FACTORS_MPA,
@@ -81,6 +80,7 @@ from workbench.solver.fatigue import (
     ultimate_shear_strength,
     yield_shear_strength,
 )
+from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 
 KPSI = 6.894757293168361e6

@@ -25,9 +25,7 @@ Sources, each also named beside its check:
 
 from __future__ import annotations
 
-import contextlib
 import copy
-import io
 import json
 import math
 from collections.abc import Callable, Sequence
@@ -46,10 +44,9 @@ from sectionproperties.pre.library import rectangular_hollow_section, rectangula
 from shapely.geometry import Polygon
 
 from workbench import cli
-from workbench.modes_cli import register
+from workbench.case.errors import InputError
+from workbench.design.checks import run_checks
 from workbench.solver.analysis import build_mesh, torsion_stiffness_matrix
-from workbench.solver.checks import run_checks
-from workbench.solver.errors import InputError
 from workbench.solver.io import case_to_dict, parse_case
 from workbench.solver.model import Model
 from workbench.solver.modes import (
@@ -783,8 +780,8 @@ def test_frequency_separation_check(
 def test_frequency_check_rows_in_the_check_document() -> None:
     # Source: the check table contract (kind, segment null, speeds in the file's units) and the
     # chain's closed form (Rao).
+    from workbench.design.checks import check_document
     from workbench.solver.analysis import solve
-    from workbench.solver.checks import check_document
 
     model = parse_case(
         chain_case(
@@ -898,20 +895,9 @@ def test_vibration_keys_round_trip_and_follow_the_schema() -> None:
 # --- the command line -----------------------------------------------------------------------------
 
 
-def _modes_wired() -> bool:
-    with contextlib.redirect_stderr(io.StringIO()):
-        try:
-            cli.build_parser().parse_args(["modes", "case.json"])
-        except SystemExit:
-            return False
-    return True
-
-
 @pytest.fixture
-def workbench_main(monkeypatch: pytest.MonkeyPatch) -> Callable[[list[str]], int]:
-    """``workbench.cli.main`` with the ``modes`` sub-command (added here until cli.py has it)."""
-    if not _modes_wired():
-        monkeypatch.setattr(cli, "_EXTRA_COMMANDS", [*cli._EXTRA_COMMANDS, register])
+def workbench_main() -> Callable[[list[str]], int]:
+    """``workbench.cli.main``, the command line the ``modes`` sub-command is part of."""
     return cli.main
 
 

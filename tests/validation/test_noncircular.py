@@ -28,7 +28,8 @@ from sectionproperties.pre.library import rectangular_hollow_section, rectangula
 from shapely.geometry import Polygon
 from shapely.geometry import box as shapely_box
 
-from workbench.solver.errors import InputError
+from workbench.case.errors import InputError
+from workbench.case.units import SI_ENGINEERING, display_units
 from workbench.solver.noncircular import (
     NONCIRCULAR_SHAPES,
     THIN_WALL_LIMIT,
@@ -40,7 +41,6 @@ from workbench.solver.noncircular import (
     Wall,
     rectangle_coefficients,
 )
-from workbench.solver.units import SI_ENGINEERING, display_units
 
 # --------------------------------------------------------------------------------------------
 # Rectangle: the Saint-Venant series

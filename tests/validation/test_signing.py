@@ -43,6 +43,7 @@ from jwcrypto import jwk as jose_jwk
 from jwcrypto import jws as jose_jws
 from jwcrypto.common import json_encode
 
+from workbench.case.errors import InputError, WorkbenchError
 from workbench.record.canonical import CanonicalizationError, canonicalize, format_number
 from workbench.record.signing import (
     PRIVATE_KEY_NAME,
@@ -62,7 +63,6 @@ from workbench.record.signing import (
     verify_compact,
     write_key_pair,
 )
-from workbench.solver.errors import InputError, WorkbenchError
 
 NODE = shutil.which("node")
 needs_v8 = pytest.mark.skipif(NODE is None, reason="Node.js (V8) is not installed")

@@ -10,8 +10,7 @@ from __future__ import annotations
 
 from typing import Any
 
-#: MIME type of the notebook output holding the panel's current case (``case_to_dict`` data).
-CASE_MIME_TYPE = "application/vnd.workbench.case+json"
+from workbench.case import CASE_MIME_TYPE
 
 __all__ = ["CASE_MIME_TYPE", "Workbench"]
 

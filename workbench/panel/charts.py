@@ -15,9 +15,9 @@ from typing import Any
 import numpy as np
 from ipywidgets import Layout
 
+from workbench.design.checks import CheckReport
 from workbench.panel.document import unit_label
 from workbench.solver.analysis import Results
-from workbench.solver.checks import CheckReport
 from workbench.solver.model import Model
 
 with warnings.catch_warnings():
@@ -728,7 +728,7 @@ class FatigueChart:
     def draw(self, points: Any, units: Any, criterion: str) -> None:
         """Draw the lines of the governing point's strengths and every point (stress units).
 
-        ``points`` are the :class:`~workbench.solver.fatigue_check.FatiguePoint` of the shaft
+        ``points`` are the :class:`~workbench.design.fatigue_check.FatiguePoint` of the shaft
         shown, the governing one (lowest factor of safety by the criterion or Langer) first.
         """
         governing = points[0]

@@ -14,7 +14,7 @@ import re
 from collections.abc import Iterator
 from typing import Any
 
-from workbench.solver.units import SI_ENGINEERING, UnitSystem, us_customary
+from workbench.case.units import SI_ENGINEERING, UnitSystem, us_customary
 
 Path = tuple[str | int, ...]
 

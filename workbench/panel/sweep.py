@@ -1,7 +1,7 @@
 """Sweeps: vary one input of a case over a range and follow one result.
 
 No mechanics here: every point is solved by :func:`workbench.solver.analysis.solve` and checked by
-:func:`workbench.solver.checks.run_checks`. What this module adds is batching, so a sweep costs a
+:func:`workbench.design.checks.run_checks`. What this module adds is batching, so a sweep costs a
 few solver calls instead of one per point:
 
 * A torque (or distributed-torque intensity) enters the equations linearly, so the points of its
@@ -18,7 +18,7 @@ point from the batch's own rows: the fatigue check of a load sweep (its two resu
 the point's), and the frequency-separation checks of the copies, whose natural frequencies are
 of each point's own system (the copies carry no discs or running speeds). A point's eigen-solve
 is skipped when its other checks already reach the most any frequency check could use
-(:func:`workbench.solver.checks.frequency_utilisation_ceiling`): it could not govern. Every value
+(:func:`workbench.design.checks.frequency_utilisation_ceiling`): it could not govern. Every value
 equals the point-by-point reference :func:`_solo_metric` to rounding.
 """
 
@@ -32,17 +32,17 @@ from typing import Any
 
 import numpy as np
 
-from workbench.panel.document import KEY_QUANTITY, Path, clone, get_at, path_text, set_at
-from workbench.solver.analysis import Results, solve
-from workbench.solver.checks import (
+from workbench.case.design import DesignCriteria, FatigueCriteria
+from workbench.case.errors import InputError
+from workbench.design.checks import (
     Check,
-    DesignCriteria,
     frequency_checks,
     frequency_utilisation_ceiling,
     run_checks,
 )
-from workbench.solver.errors import InputError
-from workbench.solver.fatigue_check import FatigueCriteria, fatigue_checks
+from workbench.design.fatigue_check import fatigue_checks
+from workbench.panel.document import KEY_QUANTITY, Path, clone, get_at, path_text, set_at
+from workbench.solver.analysis import Results, solve
 from workbench.solver.io import parse_case
 from workbench.solver.model import Combination, LoadCase, Model, Shaft
 

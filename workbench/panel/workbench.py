@@ -3,8 +3,8 @@
 The panel edits a case document (the case file's JSON in the panel's units, see
 :mod:`workbench.panel.document`). After every edit it hands a copy to the solver
 (:func:`~workbench.solver.io.parse_case`, :func:`~workbench.solver.analysis.solve`,
-:func:`~workbench.solver.checks.run_checks`) and redraws from what comes back. Bad input raises
-:class:`~workbench.solver.errors.InputError`; its message is shown, in plain words, beside the
+:func:`~workbench.design.checks.run_checks`) and redraws from what comes back. Bad input raises
+:class:`~workbench.case.errors.InputError`; its message is shown, in plain words, beside the
 field its path names, the last good charts stay up marked stale, and the value typed stays where
 it was typed.
 
@@ -29,6 +29,17 @@ import ipywidgets as w
 import numpy as np
 from IPython.display import display
 
+from workbench.case.design import (
+    DEFAULT_FREQUENCY_MARGIN,
+    FATIGUE_CRITERIA,
+    SHEAR_CRITERIA,
+    SURFACE_FINISHES,
+)
+from workbench.case.errors import InputError
+from workbench.design.caution import CAUTION
+from workbench.design.checks import CHECK_QUANTITIES, CheckReport, run_checks
+from workbench.design.fatigue import RELIABILITY_FACTORS
+from workbench.design.fatigue_check import FatiguePoint
 from workbench.panel import CASE_MIME_TYPE
 from workbench.panel.charts import CRITERION_NAMES, Charts, FatigueChart, ModesChart, rpm
 from workbench.panel.document import (
@@ -49,15 +60,10 @@ from workbench.panel.document import (
     unit_system,
 )
 from workbench.panel.sweep import METRICS, SweepRequest, sweep_chunks
-from workbench.solver.allowables import SHEAR_CRITERIA
 from workbench.solver.analysis import Results, solve
-from workbench.solver.checks import CAUTION, CHECK_QUANTITIES, CheckReport, run_checks
-from workbench.solver.errors import InputError
-from workbench.solver.fatigue import FATIGUE_CRITERIA, RELIABILITY_FACTORS, SURFACE_FINISHES
-from workbench.solver.fatigue_check import FatiguePoint
 from workbench.solver.io import case_to_dict, decode_case_text, parse_case, save_case
 from workbench.solver.model import Model
-from workbench.solver.modes import DEFAULT_FREQUENCY_MARGIN, Modes, natural_modes
+from workbench.solver.modes import Modes, natural_modes
 
 _SHAPE_KEYS = {
     "solid": ("diameter",),

@@ -25,7 +25,7 @@ import math
 from collections.abc import Mapping
 from typing import Any
 
-from workbench.solver.errors import InputError
+from workbench.case.errors import InputError
 
 __all__ = ["CanonicalizationError", "canonicalize", "format_number"]
 

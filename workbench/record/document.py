@@ -41,23 +41,18 @@ import time
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import lru_cache
-from pathlib import Path
 from typing import Any
 
 from markupsafe import Markup, escape
 
 import workbench
+from workbench.case.errors import InputError
+from workbench.design.caution import CAUTION
+from workbench.design.checks import CHECK_QUANTITIES, CheckReport, check_document, run_checks
+from workbench.record.assets import templates_dir
 from workbench.record.canonical import canonicalize
 from workbench.record.notebook import TEXT_FIELDS, TITLE_FIELDS
 from workbench.solver.analysis import Results, solve
-from workbench.solver.checks import (
-    CAUTION,
-    CHECK_QUANTITIES,
-    CheckReport,
-    check_document,
-    run_checks,
-)
-from workbench.solver.errors import InputError
 from workbench.solver.io import parse_case
 from workbench.solver.model import Model, Notch
 from workbench.solver.modes import Modes
@@ -72,7 +67,6 @@ __all__ = [
     "compute",
     "render_record",
     "signature_block",
-    "templates_dir",
 ]
 
 FORMAT = "workbench-calculation-record"
@@ -87,16 +81,6 @@ DOCUMENT_END = "</body>\n</html>\n"
 
 #: Significant digits kept in the results digest (cross-machine stability).
 DIGEST_DIGITS = 10
-
-
-def templates_dir() -> Path:
-    """The folder holding ``workbench_record/``: the source tree's or the installed package's."""
-    here = Path(__file__).resolve()
-    for candidate in (here.parents[1] / "templates", here.parents[2] / "templates"):
-        if (candidate / "workbench_record" / "conf.json").is_file():
-            return candidate
-    msg = f"the record template folder is missing (looked beside {here.parents[1]})"
-    raise InputError("templates", msg)
 
 
 # --- computation ---------------------------------------------------------------------------
@@ -720,11 +704,9 @@ def _rpm(angular: float) -> float:
 
 def _vibration_html(computation: Computation) -> str:
     """Inertia, method, natural frequencies, mode shapes and separation from running speeds."""
+    from workbench.case.design import DEFAULT_FREQUENCY_MARGIN  # noqa: PLC0415
+    from workbench.design.frequency import frequency_separations  # noqa: PLC0415
     from workbench.record.figures import mode_shape_svg  # noqa: PLC0415
-    from workbench.solver.modes import (  # noqa: PLC0415
-        DEFAULT_FREQUENCY_MARGIN,
-        frequency_separations,
-    )
 
     model, modes = computation.model, computation.modes
     units = model.units
@@ -914,9 +896,9 @@ def _factor(value: float) -> str:
 
 def _fatigue_html(computation: Computation) -> str:
     """Torque states, method with Marin factors, per-segment factors of safety, diagrams."""
+    from workbench.case.units import display_units  # noqa: PLC0415
+    from workbench.design.fatigue import endurance_limit  # noqa: PLC0415
     from workbench.record.figures import fatigue_diagram_svg  # noqa: PLC0415
-    from workbench.solver.fatigue import endurance_limit  # noqa: PLC0415
-    from workbench.solver.units import display_units  # noqa: PLC0415
 
     model, report = computation.model, computation.report
     criteria = report.design.fatigue
@@ -1136,7 +1118,7 @@ def _fatigue_html(computation: Computation) -> str:
 
 
 def _hand_check_html(computation: Computation) -> tuple[str, list[str]]:
-    from workbench.record.handcheck import (  # noqa: PLC0415
+    from workbench.design.handcheck import (  # noqa: PLC0415
         AGREEMENT_TOLERANCE,
         applicable,
         force_method_check,

@@ -35,7 +35,8 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from workbench.solver.errors import InputError
+from workbench.case.errors import InputError
+from workbench.record.assets import templates_dir
 
 __all__ = ["EQUATIONS", "Equation", "equation_file", "equations_dir", "load_equations", "main"]
 
@@ -199,8 +200,6 @@ EQUATIONS: tuple[Equation, ...] = (
 
 def equations_dir() -> Path:
     """The folder of the shipped equation pictures (beside the record template)."""
-    from workbench.record.document import templates_dir  # noqa: PLC0415
-
     return templates_dir() / "workbench_record" / "static" / "equations"
 
 

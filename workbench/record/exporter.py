@@ -16,7 +16,8 @@ from typing import Any
 from nbconvert.exporters import HTMLExporter
 from traitlets import Bool, Dict, Unicode, default
 
-from workbench.record.document import compute, render_record, templates_dir
+from workbench.record.assets import templates_dir
+from workbench.record.document import compute, render_record
 from workbench.record.notebook import find_case, has_case_output, title_block_from
 from workbench.record.sanitize import sanitize_notebook_html
 
@@ -134,7 +135,7 @@ def export_file(
     """
     import nbformat  # noqa: PLC0415
 
-    from workbench.solver.errors import InputError  # noqa: PLC0415
+    from workbench.case.errors import InputError  # noqa: PLC0415
 
     path = Path(notebook)
     try:

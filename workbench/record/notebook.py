@@ -14,7 +14,7 @@ import json
 from pathlib import Path
 from typing import Any
 
-from workbench.solver.errors import InputError
+from workbench.case.errors import InputError
 from workbench.solver.io import decode_case_text
 
 __all__ = [
@@ -25,8 +25,7 @@ __all__ = [
     "title_block_from",
 ]
 
-#: MIME type of the panel's case output.
-CASE_MIME_TYPE = "application/vnd.workbench.case+json"
+from workbench.case import CASE_MIME_TYPE
 
 #: Title-block fields, in the order the record shows them, with their labels.
 TITLE_FIELDS: dict[str, str] = {

@@ -41,8 +41,8 @@ from cryptography.hazmat.primitives import serialization
 from cryptography.hazmat.primitives.asymmetric import ec, ed448, rsa, x448, x25519
 from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey, Ed25519PublicKey
 
+from workbench.case.errors import WorkbenchError
 from workbench.record.canonical import canonicalize
-from workbench.solver.errors import WorkbenchError
 
 __all__ = [
     "PRIVATE_KEY_NAME",

@@ -35,6 +35,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from workbench.case.errors import InputError, WorkbenchError
 from workbench.record.document import (
     BLOCK_END,
     BLOCK_START,
@@ -48,7 +49,6 @@ from workbench.record.document import (
     extra_sections,
     signature_block,
 )
-from workbench.solver.errors import InputError, WorkbenchError
 
 __all__ = [
     "PACKAGE_FORMAT",

@@ -1,12 +1,15 @@
-"""The shared torsion solver: case files → validated model → solve → results → checks.
+"""The torsion solver: mechanics only — sections, mesh, statics, modes (numpy + scipy).
 
 numpy and scipy only (pint is loaded lazily for non-SI units, pandas lazily for DataFrames); no
 widget, nbconvert or matplotlib module is ever imported here.
 
->>> from workbench.solver import load_case, solve, run_checks
+>>> from workbench.solver import load_case, solve
 >>> results = solve(load_case("case.json"))          # doctest: +SKIP
 """
 
+from workbench.case.errors import InputError, MechanismError, WorkbenchError
+from workbench.case.materials import LIBRARY, Material, library_material
+from workbench.case.units import SI, SI_ENGINEERING, UnitSystem, us_customary
 from workbench.solver.analysis import (
     Envelope,
     LoadResult,
@@ -16,10 +19,7 @@ from workbench.solver.analysis import (
     build_mesh,
     solve,
 )
-from workbench.solver.checks import CAUTION, Check, CheckReport, DesignCriteria, run_checks
-from workbench.solver.errors import InputError, MechanismError, WorkbenchError
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
-from workbench.solver.materials import LIBRARY, Material, library_material
 from workbench.solver.model import (
     Combination,
     DistributedTorque,
@@ -34,18 +34,12 @@ from workbench.solver.model import (
     Support,
 )
 from workbench.solver.modes import Modes, natural_modes
-from workbench.solver.sizing import SizingRequest, size_shafts
-from workbench.solver.units import SI, SI_ENGINEERING, UnitSystem, us_customary
 
 __all__ = [
-    "CAUTION",
     "LIBRARY",
     "SI",
     "SI_ENGINEERING",
-    "Check",
-    "CheckReport",
     "Combination",
-    "DesignCriteria",
     "DistributedTorque",
     "Envelope",
     "GearMesh",
@@ -64,7 +58,6 @@ __all__ = [
     "Segment",
     "Shaft",
     "ShaftResult",
-    "SizingRequest",
     "Support",
     "UnitSystem",
     "WorkbenchError",
@@ -74,9 +67,7 @@ __all__ = [
     "load_case",
     "natural_modes",
     "parse_case",
-    "run_checks",
     "save_case",
-    "size_shafts",
     "solve",
     "us_customary",
 ]

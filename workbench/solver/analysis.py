@@ -40,7 +40,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from workbench.solver.errors import InputError, MechanismError
+from workbench.case.errors import InputError, MechanismError
 from workbench.solver.model import POSITION_TOLERANCE, Model, Segment
 from workbench.solver.sections import FloatArray
 
@@ -104,7 +104,8 @@ def _merge_points(points: FloatArray, length: float) -> FloatArray:
 def _key_points(model: Model) -> list[list[float]]:
     points: list[list[float]] = [[] for _ in model.shafts]
     # Design checks may ask for values at given points (rotation limits): make them nodes.
-    for shaft_id, x in getattr(model.design, "key_points", lambda: [])():
+    design_points = model.design.key_points() if model.design is not None else []
+    for shaft_id, x in (*design_points, *model.extra_nodes):
         points[model.shaft_number(shaft_id)].append(x)
     for support in model.supports:
         points[model.shaft_number(support.shaft)].append(support.x)

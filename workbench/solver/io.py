@@ -11,17 +11,20 @@ from __future__ import annotations
 import dataclasses
 import functools
 import json
-import math
 import os
 import tempfile
 import typing
-from collections.abc import Callable, Iterator, Mapping
+from collections.abc import Callable, Mapping
 from pathlib import Path
 from typing import Any
 
+from workbench.case.design import design_to_dict, parse_design
+from workbench.case.errors import InputError
+from workbench.case.materials import Material, library_material
+from workbench.case.reader import ObjectReader, kind_of
+from workbench.case.units import SI, UnitSystem, display_units
+from workbench.case.validate import field_path, join_path
 from workbench.solver import sections as circular
-from workbench.solver.errors import InputError
-from workbench.solver.materials import Material, library_material
 from workbench.solver.model import (
     Combination,
     Disc,
@@ -37,12 +40,9 @@ from workbench.solver.model import (
     Segment,
     Shaft,
     Support,
-    field_path,
-    join_path,
 )
 from workbench.solver.noncircular import NONCIRCULAR_SHAPES
 from workbench.solver.sections import Section
-from workbench.solver.units import SI, UnitSystem, display_units
 
 #: Every cross-section shape a case file may name, by its ``shape`` key.
 SHAPES: dict[str, type[Section]] = {
@@ -62,81 +62,12 @@ _MATERIAL_KEYS = {
 }
 
 
-class _Object:
-    """A JSON object being read, with its path, that refuses unknown keys."""
-
-    def __init__(self, data: Any, path: str, allowed: typing.Iterable[str], units: UnitSystem):
-        if not isinstance(data, dict):
-            raise InputError(path, f"must be an object, not {_kind(data)}")
-        allowed = set(allowed)
-        for key in data:
-            if key not in allowed:
-                expected = ", ".join(sorted(allowed))
-                raise InputError(join_path(path, str(key)), f"unknown key (expected: {expected})")
-        self.data, self.path, self.units = data, path, units
-
-    def at(self, key: str) -> str:
-        return join_path(self.path, key)
-
-    def has(self, key: str) -> bool:
-        return self.data.get(key) is not None
-
-    def number(self, key: str, quantity: str | None, default: float | None = None) -> float:
-        if key not in self.data or self.data[key] is None:
-            if default is None:
-                raise InputError(self.at(key), "is required")
-            return default
-        value = self.data[key]
-        if isinstance(value, bool) or not isinstance(value, (int, float)):
-            raise InputError(self.at(key), f"must be a number, not {_kind(value)}")
-        if not math.isfinite(value):
-            raise InputError(self.at(key), f"must be a finite number, not {value}")
-        return float(self.units.to_si(float(value), quantity)) if quantity else float(value)
-
-    def optional_number(self, key: str, quantity: str | None) -> float | None:
-        if self.data.get(key) is None:
-            return None
-        return self.number(key, quantity)
-
-    def text(self, key: str, default: str | None = None) -> str:
-        value = self.data.get(key, default)
-        if value is None:
-            raise InputError(self.at(key), "is required")
-        if not isinstance(value, str):
-            raise InputError(self.at(key), f"must be a string, not {_kind(value)}")
-        return value
-
-    def flag(self, key: str, default: bool) -> bool:
-        value = self.data.get(key, default)
-        if not isinstance(value, bool):
-            raise InputError(self.at(key), f"must be true or false, not {_kind(value)}")
-        return value
-
-    def items(self, key: str, required: bool = False) -> Iterator[tuple[str, Any]]:
-        value = self.data.get(key)
-        if value is None:
-            if required:
-                raise InputError(self.at(key), "is required")
-            return
-        if not isinstance(value, list):
-            raise InputError(self.at(key), f"must be a list, not {_kind(value)}")
-        for number, item in enumerate(value):
-            yield f"{self.at(key)}[{number}]", item
-
-
-def _kind(value: Any) -> str:
-    names = {dict: "an object", list: "a list", str: "a string", bool: "true/false"}
-    if value is None:
-        return "null"
-    return names.get(type(value), f"{value!r}")
-
-
 def parse_units(data: Any) -> UnitSystem:
     """Build the unit system from a case file's ``units`` object (absent: SI)."""
     if data is None:
         return SI
     known = [f.name for f in dataclasses.fields(UnitSystem) if not f.name.startswith("_")]
-    reader = _Object(data, "units", known, SI)
+    reader = ObjectReader(data, "units", known, SI)
     return UnitSystem(**{key: reader.text(key) for key in known if key in data})
 
 
@@ -154,7 +85,7 @@ def _build_dataclass(cls: type, data: Any, path: str, units: UnitSystem, skip: s
     """Build a section (or a part of one) from JSON by its dataclass fields."""
     hints = _type_hints(cls)
     own = [f for f in dataclasses.fields(cls) if f.init and f.name not in skip]
-    reader = _Object(data, path, [f.name for f in own] + sorted(skip), units)
+    reader = ObjectReader(data, path, [f.name for f in own] + sorted(skip), units)
     values: dict[str, Any] = {}
     for field in own:
         hint = hints[field.name]
@@ -177,7 +108,7 @@ def _build_dataclass(cls: type, data: Any, path: str, units: UnitSystem, skip: s
 
 def _parse_section(data: Any, path: str, units: UnitSystem) -> Section:
     if not isinstance(data, dict):
-        raise InputError(path, f"must be an object, not {_kind(data)}")
+        raise InputError(path, f"must be an object, not {kind_of(data)}")
     shape = data.get("shape")
     if shape not in SHAPES:
         known = ", ".join(SHAPES)
@@ -187,7 +118,7 @@ def _parse_section(data: Any, path: str, units: UnitSystem) -> Section:
 
 
 def _parse_material(name: str, data: Any, path: str, units: UnitSystem) -> Material:
-    reader = _Object(data, path, [*_MATERIAL_KEYS, "source"], units)
+    reader = ObjectReader(data, path, [*_MATERIAL_KEYS, "source"], units)
     values = {
         key: reader.optional_number(key, quantity) for key, quantity in _MATERIAL_KEYS.items()
     }
@@ -200,7 +131,7 @@ def _parse_material(name: str, data: Any, path: str, units: UnitSystem) -> Mater
 def _parse_segment(
     data: Any, path: str, units: UnitSystem, find_material: Callable[[str, str], Material]
 ) -> Segment:
-    reader = _Object(
+    reader = ObjectReader(
         data,
         path,
         [
@@ -226,7 +157,7 @@ def _parse_segment(
             raise InputError(reader.at("layers"), msg)
         layers = []
         for layer_path, item in reader.items("layers"):
-            layer = _Object(item, layer_path, ["material", "section"], units)
+            layer = ObjectReader(item, layer_path, ["material", "section"], units)
             layers.append(
                 Layer(
                     find_material(layer.text("material"), layer.at("material")),
@@ -243,7 +174,7 @@ def _parse_segment(
 
 
 def _parse_notch(data: Any, path: str, units: UnitSystem) -> Notch:
-    reader = _Object(data, path, ["kts", "radius", "notch_sensitivity", "description"], units)
+    reader = ObjectReader(data, path, ["kts", "radius", "notch_sensitivity", "description"], units)
     with field_path(path):
         return Notch(
             kts=reader.number("kts", None),
@@ -254,7 +185,7 @@ def _parse_notch(data: Any, path: str, units: UnitSystem) -> Notch:
 
 
 def _parse_point(data: Any, path: str, units: UnitSystem) -> GearPosition:
-    reader = _Object(data, path, ["shaft", "x", "radius"], units)
+    reader = ObjectReader(data, path, ["shaft", "x", "radius"], units)
     with field_path(path):
         return GearPosition(
             reader.text("shaft"), reader.number("x", "length"), reader.number("radius", "length")
@@ -262,7 +193,7 @@ def _parse_point(data: Any, path: str, units: UnitSystem) -> GearPosition:
 
 
 def _parse_torque(data: Any, path: str, units: UnitSystem) -> PointTorque:
-    reader = _Object(data, path, ["shaft", "x", "torque", "power", "speed"], units)
+    reader = ObjectReader(data, path, ["shaft", "x", "torque", "power", "speed"], units)
     if reader.has("power") or reader.has("speed"):
         if reader.has("torque"):
             raise InputError(reader.at("torque"), "give either torque, or power and speed")
@@ -309,7 +240,7 @@ def parse_case(data: Any) -> Model:
         "operating_speeds",
     ]
     if not isinstance(data, dict):
-        raise InputError("", f"a case file must be a JSON object, not {_kind(data)}")
+        raise InputError("", f"a case file must be a JSON object, not {kind_of(data)}")
     units = parse_units(data.get("units"))
     token = display_units.set(units)
     try:
@@ -319,12 +250,12 @@ def parse_case(data: Any) -> Model:
 
 
 def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[str]) -> Model:
-    top = _Object(data, "", top_keys, units)
+    top = ObjectReader(data, "", top_keys, units)
     materials: dict[str, Material] = {}
     raw_materials = data.get("materials")
     raw_materials = {} if raw_materials is None else raw_materials
     if not isinstance(raw_materials, dict):
-        raise InputError("materials", f"must be an object, not {_kind(raw_materials)}")
+        raise InputError("materials", f"must be an object, not {kind_of(raw_materials)}")
     for name, item in raw_materials.items():
         materials[name] = _parse_material(name, item, f"materials.{name}", units)
 
@@ -341,7 +272,7 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
     shafts = []
     for path, item in top.items("shafts", required=True):
-        shaft = _Object(item, path, ["id", "segments"], units)
+        shaft = ObjectReader(item, path, ["id", "segments"], units)
         segments = tuple(
             _parse_segment(segment, segment_path, units, find_material)
             for segment_path, segment in shaft.items("segments", required=True)
@@ -351,7 +282,7 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
     supports = []
     for path, item in top.items("supports"):
-        support = _Object(item, path, ["shaft", "x", "kind", "stiffness", "rotation"], units)
+        support = ObjectReader(item, path, ["shaft", "x", "kind", "stiffness", "rotation"], units)
         with field_path(path):
             supports.append(
                 Support(
@@ -365,7 +296,7 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
     gears = []
     for path, item in top.items("gears"):
-        gear = _Object(item, path, ["a", "b", "mesh"], units)
+        gear = ObjectReader(item, path, ["a", "b", "mesh"], units)
         with field_path(path):
             gears.append(
                 GearMesh(
@@ -377,11 +308,11 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
     load_cases = []
     for path, item in top.items("load_cases", required=True):
-        case = _Object(item, path, ["name", "torques", "distributed"], units)
+        case = ObjectReader(item, path, ["name", "torques", "distributed"], units)
         torques = tuple(_parse_torque(t, p, units) for p, t in case.items("torques"))
         distributed = []
         for load_path, load_item in case.items("distributed"):
-            load = _Object(
+            load = ObjectReader(
                 load_item,
                 load_path,
                 ["shaft", "start", "end", "intensity_start", "intensity_end"],
@@ -402,11 +333,13 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
     combinations = []
     for path, item in top.items("combinations"):
-        combination = _Object(item, path, ["name", "factors"], units)
+        combination = ObjectReader(item, path, ["name", "factors"], units)
         factors = item.get("factors")
         if not isinstance(factors, dict):
-            raise InputError(combination.at("factors"), f"must be an object, not {_kind(factors)}")
-        factor_reader = _Object(factors, combination.at("factors"), factors.keys(), units)
+            raise InputError(
+                combination.at("factors"), f"must be an object, not {kind_of(factors)}"
+            )
+        factor_reader = ObjectReader(factors, combination.at("factors"), factors.keys(), units)
         with field_path(path):
             combinations.append(
                 Combination(
@@ -419,8 +352,6 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
     design = None
     if data.get("design") is not None:
-        from workbench.solver.checks import parse_design  # noqa: PLC0415 - avoids an import cycle
-
         design = parse_design(data["design"], units)
 
     return Model(
@@ -439,19 +370,19 @@ def _parse_with_units(data: dict[str, Any], units: UnitSystem, top_keys: list[st
 
 
 def _parse_vibration(
-    top: _Object, units: UnitSystem
+    top: ObjectReader, units: UnitSystem
 ) -> tuple[tuple[Disc, ...], tuple[OperatingSpeed, ...]]:
     """The ``discs`` and ``operating_speeds`` of a case (torsional vibration)."""
     discs = []
     for path, item in top.items("discs"):
-        disc = _Object(item, path, ["shaft", "x", "inertia"], units)
+        disc = ObjectReader(item, path, ["shaft", "x", "inertia"], units)
         # Read outside field_path: the reader's errors already carry the full path.
         values = (disc.text("shaft"), disc.number("x", "length"), disc.number("inertia", "inertia"))
         with field_path(path):
             discs.append(Disc(*values))
     speeds = []
     for path, item in top.items("operating_speeds"):
-        speed = _Object(item, path, ["name", "min", "max"], units)
+        speed = ObjectReader(item, path, ["name", "min", "max"], units)
         name = speed.text("name")
         low, high = speed.number("min", "speed"), speed.number("max", "speed")
         with field_path(path):
@@ -613,9 +544,7 @@ def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any
             for combination in model.combinations
         ]
     if model.design is not None:
-        from workbench.solver.checks import design_to_dict  # noqa: PLC0415
-
-        out["design"] = design_to_dict(model.design, units)  # type: ignore[arg-type]
+        out["design"] = design_to_dict(model.design, units)
     if model.discs:
         out["discs"] = [
             {

@@ -11,52 +11,27 @@ rotations are positive along +x; a spring support exerts −stiffness·(θ − r
 
 from __future__ import annotations
 
-import contextlib
 import functools
 import itertools
-import math
-from collections.abc import Iterator, Mapping
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Literal
 
 import numpy as np
 
-from workbench.solver.errors import InputError
-from workbench.solver.materials import Material
-from workbench.solver.sections import FloatArray, Section, require_non_negative, require_positive
-from workbench.solver.units import SI, UnitSystem, quote
+from workbench.case.design import DesignCriteria
+from workbench.case.errors import InputError
+from workbench.case.materials import Material
+from workbench.case.units import SI, UnitSystem, quote
+from workbench.case.validate import (
+    require_finite,
+    require_non_negative,
+    require_positive,
+)
+from workbench.solver.sections import FloatArray, Section
 
 #: Two positions on one shaft closer than this fraction of its length are the same point.
 POSITION_TOLERANCE = 1e-9
-
-
-def join_path(prefix: str, name: str) -> str:
-    """Join a field path and a sub-field: ``join_path("shafts[0]", "length")``."""
-    if not prefix:
-        return name
-    if not name:
-        return prefix
-    return f"{prefix}{name}" if name.startswith("[") else f"{prefix}.{name}"
-
-
-@contextlib.contextmanager
-def field_path(prefix: str) -> Iterator[None]:
-    """Prefix the field of any :class:`InputError` raised inside the block with ``prefix``."""
-    try:
-        yield
-    except InputError as error:
-        # Readers inside the block already name the full path; prefix only bare field names.
-        if error.field == prefix or error.field.startswith((f"{prefix}.", f"{prefix}[")):
-            raise
-        raise type(error)(join_path(prefix, error.field), error.message) from None
-
-
-def require_finite(name: str, value: float) -> None:
-    """Raise :class:`InputError` unless ``value`` is a finite real number (sign free)."""
-    if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
-    if not math.isfinite(value):
-        raise InputError(name, f"must be a finite number, not {value}")
 
 
 @dataclass(frozen=True)
@@ -621,7 +596,10 @@ class Model:
     units
         The units the case was written in, used to report it back.
     design
-        Design criteria for the checks (``workbench.solver.checks.DesignCriteria``), or ``None``.
+        Design criteria for the checks (the case's ``design`` section), or ``None``.
+    extra_nodes
+        Further points (shaft id, x in m) the mesh must make nodes of, e.g. the subdivision
+        points of the vibration analysis.
     discs
         Rigid discs for the vibration analysis (:mod:`workbench.solver.modes`).
     operating_speeds
@@ -636,7 +614,8 @@ class Model:
     title: str = ""
     materials: tuple[Material, ...] = ()
     units: UnitSystem = SI
-    design: object | None = None
+    design: DesignCriteria | None = None
+    extra_nodes: tuple[tuple[str, float], ...] = ()
     discs: tuple[Disc, ...] = ()
     operating_speeds: tuple[OperatingSpeed, ...] = ()
     _shaft_index: dict[str, int] = field(
@@ -688,9 +667,24 @@ class Model:
                     raise InputError(f"combinations[{number}].factors.{case_name}", msg)
         self._check_vibration(names)
 
-        validate = getattr(self.design, "validate_against", None)
-        if validate is not None:
-            validate(self)
+        if self.design is not None:
+            self._check_design(self.design)
+
+    def _check_design(self, design: DesignCriteria) -> None:
+        """Raise :class:`InputError` when a rotation limit or a fatigue result is off the model."""
+        for number, limit in enumerate(design.rotation_limits):
+            path = f"design.rotation_limits[{number}]"
+            self._check_point(path, limit.shaft, limit.start, "start")
+            self._check_point(path, limit.shaft, limit.end, "end")
+        fatigue = design.fatigue
+        if fatigue is None:
+            return
+        known = self.result_names
+        keys = ("extremes", "extremes") if fatigue.extremes is not None else ("mean", "alternating")
+        for key, name in zip(keys, fatigue.result_names, strict=True):
+            if name not in known:
+                msg = f"unknown load case or combination {name!r}; known: {', '.join(known)}"
+                raise InputError(f"design.fatigue.{key}", msg)
 
     def _check_vibration(self, result_names: set[str]) -> None:
         for number, disc in enumerate(self.discs):

@@ -29,9 +29,10 @@ from typing import ClassVar
 import numpy as np
 from scipy.special import ellipe, zeta
 
-from workbench.solver.errors import InputError
-from workbench.solver.sections import Section, require_positive
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
+from workbench.solver.sections import Section
 
 #: Largest thin-wall parameter λ = t_max·P/(2·A_m) a closed cell may have (P the centre-line
 #: perimeter, A_m the enclosed area, so 2·A_m/P is the cell's "hydraulic radius" and equals the

@@ -11,11 +11,15 @@ import dataclasses
 import typing
 from typing import Any
 
-from workbench.solver.allowables import SHEAR_CRITERIA
-from workbench.solver.fatigue import FATIGUE_CRITERIA, RELIABILITY_FACTORS, SURFACE_FINISHES
-from workbench.solver.fatigue_check import MEAN_CONCENTRATIONS
+from workbench.case.design import (
+    FATIGUE_CRITERIA,
+    MEAN_CONCENTRATIONS,
+    RELIABILITIES,
+    SHEAR_CRITERIA,
+    SURFACE_FINISHES,
+)
+from workbench.case.units import UnitSystem
 from workbench.solver.io import SHAPES
-from workbench.solver.units import UnitSystem
 
 _NUMBER = {"type": "number"}
 _POSITIVE = {"type": "number", "exclusiveMinimum": 0}
@@ -140,7 +144,7 @@ def case_schema() -> dict[str, Any]:
     )
     fatigue_common = {
         "finish": {"enum": list(SURFACE_FINISHES)},
-        "reliability": {"enum": sorted(RELIABILITY_FACTORS)},
+        "reliability": {"enum": list(RELIABILITIES)},
         "temperature": {"type": ["number", "null"], "exclusiveMinimum": 0},
         "criterion": {"enum": list(FATIGUE_CRITERIA)},
         "factor_of_safety": {"type": "number", "minimum": 1},

@@ -26,8 +26,9 @@ from typing import ClassVar
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from workbench.solver.errors import InputError
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_non_negative, require_positive
 
 FloatArray = NDArray[np.float64]
 
@@ -35,26 +36,6 @@ FloatArray = NDArray[np.float64]
 #: varying section. With 8 Gauss–Legendre points per piece the integrals of 1/J are exact to
 #: rounding (the nearest pole of the integrand then lies 9 half-widths away).
 _GRADING_RATIO = 1.25
-
-
-def require_positive(name: str, value: float, quantity: str = "length") -> None:
-    """Raise :class:`InputError` unless ``value`` is a finite number greater than zero."""
-    if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
-    if not math.isfinite(value):
-        raise InputError(name, f"must be a finite number, not {value}")
-    if value <= 0.0:
-        raise InputError(name, f"must be greater than zero ({quote(value, quantity)})")
-
-
-def require_non_negative(name: str, value: float, quantity: str = "length") -> None:
-    """Raise :class:`InputError` unless ``value`` is a finite number of at least zero."""
-    if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
-    if not math.isfinite(value):
-        raise InputError(name, f"must be a finite number, not {value}")
-    if value < 0.0:
-        raise InputError(name, f"must not be negative ({quote(value, quantity)})")
 
 
 def polar_moment(outer_diameter: ArrayLike, inner_diameter: ArrayLike = 0.0) -> FloatArray:

@@ -10,8 +10,8 @@ from typing import Any
 
 import numpy as np
 
+from workbench.case.units import UnitSystem
 from workbench.solver.analysis import Results
-from workbench.solver.units import UnitSystem
 
 #: The base quantities a results document reports, with their unit keys.
 REPORTED_UNITS = ("length", "torque", "stress", "angle")

@@ -14,11 +14,12 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
+
 __all__ = ["EXIT_NOT_VERIFIED", "register"]
 
-EXIT_OK = 0
 #: ``workbench verify``: the record does not verify.
-EXIT_NOT_VERIFIED = 1
+EXIT_NOT_VERIFIED = EXIT_FAILED_CHECK
 
 _TITLE_OPTIONS = (
     ("project", "project name"),

@@ -33,40 +33,29 @@ from typing import Any
 
 import numpy as np
 
-from workbench.solver.allowables import (
-    SHEAR_CRITERIA,
+from workbench.case.design import DesignCriteria
+from workbench.case.materials import Material
+from workbench.case.units import UnitSystem, display_units
+from workbench.case.validate import field_path
+from workbench.design.allowables import (
     TWIST_RATE_PRESETS,
     Allowable,
     allowable_shear_stress,
     twist_rate_one_degree_in_twenty_diameters,
 )
-from workbench.solver.analysis import Results
-from workbench.solver.concentration import (
+from workbench.design.caution import CAUTION
+from workbench.design.concentration import (
     ConcentrationFactor,
     keyseat_kts,
     shoulder_fillet_kts,
     transverse_hole_kts,
 )
-from workbench.solver.errors import InputError
-from workbench.solver.fatigue_check import (
-    FatigueCriteria,
-    FatiguePoint,
-    fatigue_checks,
-    fatigue_to_dict,
-    parse_fatigue,
-)
-from workbench.solver.materials import Material
-from workbench.solver.model import Model, Segment, field_path
-from workbench.solver.plastic import plastic_reserve
-from workbench.solver.sections import FloatArray, SolidCircle, Tube, require_positive
-from workbench.solver.units import UnitSystem, display_units
-from workbench.solver.verdict import WithinLimit
-
-CAUTION = (
-    "These results are an aid to design, not a design approval. Verify them against the "
-    "applicable codes and standards and licensed professional practice before use; a qualified "
-    "engineer is responsible for the design."
-)
+from workbench.design.fatigue_check import FatiguePoint, fatigue_checks
+from workbench.design.plastic import plastic_reserve
+from workbench.design.verdict import WithinLimit
+from workbench.solver.analysis import Results
+from workbench.solver.model import Model, Segment
+from workbench.solver.sections import FloatArray, SolidCircle, Tube
 
 #: Check kinds and the quantity their value and limit are measured in.
 CHECK_QUANTITIES: dict[str, str] = {
@@ -82,10 +71,6 @@ CHECK_QUANTITIES: dict[str, str] = {
     "fatigue": "ratio",
     "first_cycle_yield": "ratio",
 }
-
-
-#: Named twist-rate limits a case may give instead of a number: rules of thumb (common practice).
-TWIST_RATE_RULES: tuple[str, ...] = (*TWIST_RATE_PRESETS, "twenty-diameters")
 
 
 def twist_rate_limit(design: DesignCriteria, diameter: float | None) -> tuple[float, str] | None:
@@ -104,242 +89,6 @@ def twist_rate_limit(design: DesignCriteria, diameter: float | None) -> tuple[fl
     if design.max_twist_rate is not None:
         return design.max_twist_rate, "stated limit"
     return None
-
-
-@dataclass(frozen=True)
-class RotationLimit:
-    """A limit on the relative rotation between two stations of one shaft.
-
-    Parameters
-    ----------
-    shaft
-        Shaft id.
-    start, end
-        The two stations (m).
-    limit
-        Largest |θ(end) − θ(start)| (rad).
-    """
-
-    shaft: str
-    start: float
-    end: float
-    limit: float
-
-    def __post_init__(self) -> None:
-        require_positive("limit", self.limit, "angle")
-
-
-@dataclass(frozen=True)
-class DesignCriteria:
-    """What the design must satisfy.
-
-    Parameters
-    ----------
-    factor_of_safety
-        Divides the shear yield strength for the ``von_mises`` and ``tresca`` criteria (≥ 1).
-    shear_criterion
-        ``"von_mises"`` (Sy/√3), ``"tresca"`` (Sy/2), ``"shafting_code"`` (min(0.30 Sy, 0.18 Su),
-        −25 % with keyways) or ``"allowable"`` (``allowable_shear_stress`` as stated).
-    keyway
-        Whether the shafts have keyways (the shafting code's 25 % reduction).
-    allowable_shear_stress
-        Stated allowable shear stress (Pa) for ``"allowable"``.
-    max_twist_rate
-        Largest rate of twist (rad/m), or ``None`` for no twist-rate check.
-    rotation_limits
-        Limits on relative rotation between stations.
-    frequency_margin
-        Relative widening of each running-speed band for the frequency check, 0 ≤ m < 1
-        (default 0.2, ±20 %: common practice, no source).
-    modal_elements_per_segment
-        Elements each segment with distributed inertia is cut into for the vibration analysis.
-    modal_max_element_length
-        Longest such element (m), or ``None``.
-    """
-
-    factor_of_safety: float = 2.0
-    shear_criterion: str = "von_mises"
-    keyway: bool = False
-    allowable_shear_stress: float | None = None
-    max_twist_rate: float | None = None
-    rotation_limits: tuple[RotationLimit, ...] = ()
-    frequency_margin: float = 0.2
-    modal_elements_per_segment: int = 8
-    modal_max_element_length: float | None = None
-    fatigue: FatigueCriteria | None = None
-    twist_rate_preset: str | None = None
-
-    def __post_init__(self) -> None:
-        if self.twist_rate_preset is not None and self.twist_rate_preset not in TWIST_RATE_RULES:
-            msg = (
-                f"unknown preset {self.twist_rate_preset!r}; give a number or one of "
-                f"{', '.join(TWIST_RATE_RULES)}"
-            )
-            raise InputError("max_twist_rate", msg)
-        if self.shear_criterion not in SHEAR_CRITERIA:
-            msg = f"unknown criterion {self.shear_criterion!r}; choose one of {', '.join(SHEAR_CRITERIA)}"
-            raise InputError("shear_criterion", msg)
-        if (
-            isinstance(self.factor_of_safety, bool)
-            or not isinstance(self.factor_of_safety, (int, float))
-            or not math.isfinite(self.factor_of_safety)
-            or self.factor_of_safety < 1.0
-        ):
-            raise InputError(
-                "factor_of_safety", f"must be at least 1, not {self.factor_of_safety:g}"
-            )
-        if self.shear_criterion == "allowable" and self.allowable_shear_stress is None:
-            msg = "is required when shear_criterion is 'allowable'"
-            raise InputError("allowable_shear_stress", msg)
-        if self.allowable_shear_stress is not None:
-            require_positive("allowable_shear_stress", self.allowable_shear_stress, "stress")
-        if self.max_twist_rate is not None:
-            require_positive("max_twist_rate", self.max_twist_rate, "twist_rate")
-        self._check_vibration_settings()
-
-    def _check_vibration_settings(self) -> None:
-        margin = self.frequency_margin
-        if (
-            isinstance(margin, bool)
-            or not isinstance(margin, (int, float))
-            or not math.isfinite(margin)
-            or not 0.0 <= margin < 1.0
-        ):
-            msg = f"must be a fraction from 0 up to (not including) 1, not {margin!r}"
-            raise InputError("frequency_margin", msg)
-        pieces = self.modal_elements_per_segment
-        if isinstance(pieces, bool) or not isinstance(pieces, int) or pieces < 1:
-            msg = f"must be a whole number of at least 1, not {pieces!r}"
-            raise InputError("modal_elements_per_segment", msg)
-        if self.modal_max_element_length is not None:
-            require_positive("modal_max_element_length", self.modal_max_element_length)
-
-    def key_points(self) -> list[tuple[str, float]]:
-        """Stations the analysis must make nodes of (rotation-limit ends)."""
-        return [(r.shaft, x) for r in self.rotation_limits for x in (r.start, r.end)]
-
-    def validate_against(self, model: Model) -> None:
-        """Raise :class:`InputError` when a rotation limit names a point off the model."""
-        for number, limit in enumerate(self.rotation_limits):
-            path = f"design.rotation_limits[{number}]"
-            model.check_point(path, limit.shaft, limit.start, "start")
-            model.check_point(path, limit.shaft, limit.end, "end")
-        if self.fatigue is not None:
-            self.fatigue.validate_against(model)
-
-    def allowable(self, material: Material) -> Allowable:
-        """Allowable shear stress of a material under these criteria."""
-        return allowable_shear_stress(
-            material,
-            self.shear_criterion,
-            self.factor_of_safety,
-            keyway=self.keyway,
-            stated_allowable=self.allowable_shear_stress,
-        )
-
-
-_DESIGN_KEYS = {
-    "factor_of_safety",
-    "shear_criterion",
-    "keyway",
-    "allowable_shear_stress",
-    "max_twist_rate",
-    "rotation_limits",
-    "frequency_margin",
-    "modal_elements_per_segment",
-    "modal_max_element_length",
-    "fatigue",
-}
-
-
-def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
-    """Read a case file's ``design`` object (in the file's units).
-
-    ``max_twist_rate`` is in angle units per length unit; ``allowable_shear_stress`` in stress
-    units; each ``rotation_limits`` entry is ``{"shaft", "start", "end", "limit"}``;
-    ``frequency_margin`` is a fraction, ``modal_max_element_length`` in length units.
-    """
-    from workbench.solver.io import _Object  # noqa: PLC0415 - io imports this module lazily
-
-    reader = _Object(data, "design", _DESIGN_KEYS, units)
-    limits = []
-    for path, item in reader.items("rotation_limits"):
-        entry = _Object(item, path, ["shaft", "start", "end", "limit"], units)
-        with field_path(path):
-            limits.append(
-                RotationLimit(
-                    entry.text("shaft"),
-                    entry.number("start", "length"),
-                    entry.number("end", "length"),
-                    entry.number("limit", "angle"),
-                )
-            )
-    # Read outside field_path: the reader's errors already carry the full path.
-    margin = reader.number("frequency_margin", None, 0.2)
-    pieces = reader.number("modal_elements_per_segment", None, 8.0)
-    if not pieces.is_integer():
-        msg = f"must be a whole number of at least 1, not {pieces:g}"
-        raise InputError(reader.at("modal_elements_per_segment"), msg)
-    longest = reader.optional_number("modal_max_element_length", "length")
-    fatigue = parse_fatigue(data["fatigue"], units) if data.get("fatigue") is not None else None
-    with field_path("design"):
-        return DesignCriteria(
-            factor_of_safety=reader.number("factor_of_safety", None, 2.0),
-            shear_criterion=reader.text("shear_criterion", "von_mises"),
-            keyway=reader.flag("keyway", False),
-            allowable_shear_stress=reader.optional_number("allowable_shear_stress", "stress"),
-            max_twist_rate=None
-            if isinstance(data.get("max_twist_rate"), str)
-            else reader.optional_number("max_twist_rate", "twist_rate"),
-            twist_rate_preset=data["max_twist_rate"]
-            if isinstance(data.get("max_twist_rate"), str)
-            else None,
-            rotation_limits=tuple(limits),
-            frequency_margin=margin,
-            modal_elements_per_segment=int(pieces),
-            modal_max_element_length=longest,
-            fatigue=fatigue,
-        )
-
-
-def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
-    """The case file's ``design`` object for these criteria, in ``units``."""
-    out: dict[str, Any] = {
-        "factor_of_safety": design.factor_of_safety,
-        "shear_criterion": design.shear_criterion,
-        "keyway": design.keyway,
-    }
-    if design.allowable_shear_stress is not None:
-        out["allowable_shear_stress"] = float(
-            f"{units.from_si(design.allowable_shear_stress, 'stress'):.12g}"
-        )
-    if design.twist_rate_preset is not None:
-        out["max_twist_rate"] = design.twist_rate_preset
-    if design.max_twist_rate is not None:
-        out["max_twist_rate"] = float(f"{units.from_si(design.max_twist_rate, 'twist_rate'):.12g}")
-    if design.rotation_limits:
-        out["rotation_limits"] = [
-            {
-                "shaft": r.shaft,
-                "start": float(f"{units.from_si(r.start, 'length'):.12g}"),
-                "end": float(f"{units.from_si(r.end, 'length'):.12g}"),
-                "limit": float(f"{units.from_si(r.limit, 'angle'):.12g}"),
-            }
-            for r in design.rotation_limits
-        ]
-    # Vibration settings are written only when they differ from the defaults.
-    defaults = DesignCriteria()
-    if design.frequency_margin != defaults.frequency_margin:
-        out["frequency_margin"] = design.frequency_margin
-    if design.modal_elements_per_segment != defaults.modal_elements_per_segment:
-        out["modal_elements_per_segment"] = design.modal_elements_per_segment
-    if design.modal_max_element_length is not None:
-        out["modal_max_element_length"] = float(
-            f"{units.from_si(design.modal_max_element_length, 'length'):.12g}"
-        )
-    if design.fatigue is not None:
-        out["fatigue"] = fatigue_to_dict(design.fatigue, units)
-    return out
 
 
 @dataclass(frozen=True)
@@ -482,7 +231,13 @@ class _Checker:
     def allowable(self, material: Material) -> Allowable:
         key = id(material)
         if key not in self._allowables:
-            self._allowables[key] = self.design.allowable(material)
+            self._allowables[key] = allowable_shear_stress(
+                material,
+                self.design.shear_criterion,
+                self.design.factor_of_safety,
+                keyway=self.design.keyway,
+                stated_allowable=self.design.allowable_shear_stress,
+            )
         return self._allowables[key]
 
     def add(
@@ -738,13 +493,9 @@ def frequency_checks(model: Model, design: DesignCriteria) -> tuple[list[Check],
     speeds = model.operating_speeds
     if not speeds:
         return [], [], None
-    from workbench.solver.modes import (  # noqa: PLC0415 - only cases with running speeds
-        DEFAULT_FREQUENCY_MARGIN,
-        DEFAULT_MODE_COUNT,
-        frequency_separations,
-        natural_modes,
-        separation_note,
-    )
+    from workbench.case.design import DEFAULT_FREQUENCY_MARGIN  # noqa: PLC0415
+    from workbench.design.frequency import frequency_separations, separation_note  # noqa: PLC0415
+    from workbench.solver.modes import DEFAULT_MODE_COUNT, natural_modes  # noqa: PLC0415
 
     margin = design.frequency_margin
     token = display_units.set(model.units)  # the notes quote speeds in the case's units

@@ -10,9 +10,9 @@ from __future__ import annotations
 
 import math
 
-from workbench.solver.errors import InputError
-from workbench.solver.sections import require_positive
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
 
 
 def torque_from_power(power: float, speed: float) -> float:

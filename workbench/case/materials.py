@@ -22,9 +22,9 @@ import difflib
 import math
 from dataclasses import dataclass
 
-from workbench.solver.errors import InputError
-from workbench.solver.sections import require_positive
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
 
 #: Standard acceleration of free fall (m/s²), to turn a tabulated weight density into a mass
 #: density (CGPM 1901, exact by definition).
@@ -345,7 +345,7 @@ def library_material(name: str) -> Material:
 
     References
     ----------
-    .. [1] See :mod:`workbench.solver.materials` (each row's ``source``).
+    .. [1] See :mod:`workbench.case.materials` (each row's ``source``).
     """
     key = name.strip().lower() if isinstance(name, str) else ""
     if key in LIBRARY:

@@ -16,9 +16,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from workbench.solver.errors import InputError
-from workbench.solver.sections import require_non_negative, require_positive
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_non_negative, require_positive
 
 
 def _check_section(outer_diameter: float, inner_diameter: float) -> None:

@@ -1,7 +1,8 @@
-"""The ``workbench`` command: solve, check and size case files; open the workbench; records.
+"""The case commands of ``workbench``: solve, check, size, schema, demo.
 
-Bad input never ends in a traceback: the command prints one line naming the field and what is
-wrong, on stderr, and exits with status 2.
+Exit status: 0 success (``check``: every check passes; ``size``: a passing size was found), 1 a
+check fails or nothing passes, 2 bad input (raised as :class:`InputError`, printed by the main
+command as one line).
 """
 
 from __future__ import annotations
@@ -9,22 +10,16 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
 
-from workbench.solver.errors import InputError, WorkbenchError
+from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
+from workbench.design.caution import CAUTION
 
-EXIT_OK, EXIT_FAILED_CHECK, EXIT_BAD_INPUT = 0, 1, 2
+__all__ = ["DEMO_CASE", "register"]
 
 #: The bundled demo case (a scenario of our own).
-DEMO_CASE = Path(__file__).parent / "cases" / "press_drive.json"
-
-CAUTION = (
-    "Caution: these results are an aid to design, not a design approval. A qualified engineer "
-    "must verify them against the applicable codes and standards and licensed professional "
-    "practice before use."
-)
+DEMO_CASE = Path(__file__).resolve().parents[1] / "cases" / "press_drive.json"
 
 
 def _print_json(document: Any) -> None:
@@ -43,13 +38,13 @@ def _command_solve(arguments: argparse.Namespace) -> int:
         _print_json(results_document(results))
     else:
         sys.stdout.write(results_text(results))
-        sys.stdout.write(f"\n{CAUTION}\n")
+        sys.stdout.write(f"\nCaution: {CAUTION}\n")
     return EXIT_OK
 
 
 def _command_check(arguments: argparse.Namespace) -> int:
+    from workbench.design.checks import check_document, check_text, run_checks  # noqa: PLC0415
     from workbench.solver.analysis import solve  # noqa: PLC0415
-    from workbench.solver.checks import check_document, check_text, run_checks  # noqa: PLC0415
     from workbench.solver.io import load_case  # noqa: PLC0415
 
     model = load_case(arguments.case)
@@ -62,8 +57,8 @@ def _command_check(arguments: argparse.Namespace) -> int:
 
 
 def _command_size(arguments: argparse.Namespace) -> int:
+    from workbench.design.sizing import SizingRequest, size_shafts, sizing_document, sizing_text  # noqa: PLC0415
     from workbench.solver.io import load_case, save_case  # noqa: PLC0415
-    from workbench.solver.sizing import SizingRequest, size_shafts, sizing_document, sizing_text  # noqa: PLC0415
 
     model = load_case(arguments.case)
     request = SizingRequest.from_arguments(
@@ -96,24 +91,13 @@ def _command_demo(arguments: argparse.Namespace) -> int:
     arguments.case = str(DEMO_CASE)
     arguments.json = False
     _command_solve(arguments)
-    try:
-        import workbench.solver.checks  # noqa: F401, PLC0415
-    except ImportError:
-        return EXIT_OK
     sys.stdout.write("\n")
     _command_check(arguments)
     return EXIT_OK
 
 
-def build_parser() -> argparse.ArgumentParser:
-    """The argument parser of the ``workbench`` command."""
-    parser = argparse.ArgumentParser(
-        prog="workbench",
-        description="Design and check members loaded in torsion.",
-        epilog=CAUTION,
-    )
-    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
-
+def register(commands: Any) -> None:
+    """Add ``solve``, ``check``, ``size``, ``schema`` and ``demo`` to the argparse sub-parsers."""
     solve_parser = commands.add_parser("solve", help="solve every load case and combination")
     solve_parser.add_argument("case", help="case file (JSON)")
     solve_parser.add_argument("--json", action="store_true", help="print the JSON document")
@@ -168,51 +152,3 @@ def build_parser() -> argparse.ArgumentParser:
 
     demo_parser = commands.add_parser("demo", help="solve and check the bundled demo case")
     demo_parser.set_defaults(run=_command_demo)
-
-    for register in _EXTRA_COMMANDS:
-        register(commands)
-    return parser
-
-
-def _register_panel(commands: Any) -> None:
-    from workbench.panel.cli_commands import register  # noqa: PLC0415 - light module
-
-    register(commands)
-
-
-def _register_modes(commands: Any) -> None:
-    from workbench.modes_cli import register  # noqa: PLC0415 - light module
-
-    register(commands)
-
-
-def _register_record(commands: Any) -> None:
-    from workbench.record.cli_commands import register  # noqa: PLC0415 - light module
-
-    register(commands)
-
-
-#: Sub-commands of vibration (modes), the panel (lab) and the record (keygen, export, verify,
-#: package).
-_EXTRA_COMMANDS: list[Callable[[Any], None]] = [_register_modes, _register_panel, _register_record]
-
-
-def main(argv: Sequence[str] | None = None) -> int:
-    """Run the command line; return the exit status."""
-    parser = build_parser()
-    arguments = parser.parse_args(argv)
-    try:
-        status: int = arguments.run(arguments)
-    except InputError as error:
-        sys.stderr.write(f"{error}\n")
-        return EXIT_BAD_INPUT
-    except WorkbenchError as error:
-        sys.stderr.write(f"error: {error}\n")
-        return EXIT_BAD_INPUT
-    except BrokenPipeError:
-        return EXIT_OK
-    return status
-
-
-if __name__ == "__main__":
-    raise SystemExit(main())

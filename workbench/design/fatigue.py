@@ -54,10 +54,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from workbench.solver.concentration import ConcentrationFactor
-from workbench.solver.errors import InputError
-from workbench.solver.sections import FloatArray, require_positive
-from workbench.solver.units import quote
+from workbench.case.design import FATIGUE_CRITERIA, SURFACE_FINISHES
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
+from workbench.design.concentration import ConcentrationFactor
+from workbench.solver.sections import FloatArray
 
 _MPA = 1e6
 #: One kpsi in pascals (1000 lbf/in², with the international inch and pound, exact to rounding).
@@ -83,14 +85,12 @@ SURFACE_FACTORS_KPSI: dict[str, tuple[float, float]] = {
     "as-forged": (39.9, -0.995),
 }
 
-#: Finishes :func:`surface_factor` accepts: the Table 6-2 rows and the polished specimen itself.
-SURFACE_FINISHES: tuple[str, ...] = ("polished", *SURFACE_FACTORS_MPA)
 
 #: Load factor kc by kind of loading (Shigley eq. 6-26).
 LOAD_FACTORS: dict[str, float] = {"bending": 1.0, "axial": 0.85, "torsion": 0.59}
 
 #: Reliability (fraction) -> reliability factor ke (Shigley Table 6-5; ke = 1 − 0.08·z_a).
-RELIABILITY_FACTORS: dict[float, float] = {
+RELIABILITY_FACTORS: dict[float, float] = {  # keys: RELIABILITIES of the case file
     0.5: 1.000,
     0.9: 0.897,
     0.95: 0.868,
@@ -124,9 +124,6 @@ NEUBER_TORSION_POLYNOMIAL: tuple[float, ...] = (0.190, -2.51e-3, 1.35e-5, -2.67e
 NEUBER_STRENGTH_RANGE: tuple[float, float] = (50.0 * _KPSI, 250.0 * _KPSI)
 #: Largest notch radius the notch-sensitivity charts show, 0.16 in ≈ 4 mm (from memory).
 CHART_NOTCH_RADIUS = 0.16 * _INCH
-
-#: Fatigue criteria :func:`fatigue_factors` evaluates, as :class:`FatigueResult` field names.
-FATIGUE_CRITERIA: tuple[str, ...] = ("goodman", "gerber", "asme_elliptic", "soderberg")
 
 _SHIGLEY = "Shigley's Mechanical Engineering Design, 9th/10th ed."
 
@@ -798,7 +795,7 @@ def fatigue_concentration(
     ----------
     kts
         Theoretical (elastic) torsional stress-concentration factor Kts ≥ 1 (dimensionless), or
-        a :class:`~workbench.solver.concentration.ConcentrationFactor`.
+        a :class:`~workbench.design.concentration.ConcentrationFactor`.
     q
         Notch sensitivity 0 ≤ q ≤ 1 (dimensionless), or a :class:`NotchSensitivity`.
 

@@ -21,18 +21,16 @@ References
 from __future__ import annotations
 
 import functools
-import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from workbench.solver.concentration import keyseat_kts, shoulder_fillet_kts
-from workbench.solver.errors import InputError
-from workbench.solver.fatigue import (
-    FATIGUE_CRITERIA,
-    RELIABILITY_FACTORS,
-    SURFACE_FINISHES,
+from workbench.case.design import FatigueCriteria
+from workbench.case.units import UnitSystem, display_units
+from workbench.case.validate import field_path
+from workbench.design.concentration import keyseat_kts, shoulder_fillet_kts
+from workbench.design.fatigue import (
     EnduranceLimit,
     FatigueResult,
     endurance_limit,
@@ -45,191 +43,10 @@ from workbench.solver.fatigue import (
     ultimate_shear_strength,
     yield_shear_strength,
 )
-from workbench.solver.model import Model, Segment, field_path
-from workbench.solver.sections import require_positive
-from workbench.solver.units import UnitSystem, display_units
+from workbench.solver.model import Segment
 
 if TYPE_CHECKING:
     from workbench.solver.analysis import Results
-
-
-#: How the mean stress is concentrated: ``"kfs"`` (Kfsm = Kfs, the conservative practice for
-#: shafts) or ``"none"`` (the nominal mean stress, Kfsm = 1).
-MEAN_CONCENTRATIONS: tuple[str, ...] = ("kfs", "none")
-
-
-@dataclass(frozen=True)
-class FatigueCriteria:
-    """How to check fatigue under fluctuating torque.
-
-    Parameters
-    ----------
-    extremes
-        Names of the two results (load cases or combinations) the torque cycles between.
-    mean, alternating
-        Instead of ``extremes``: the result whose torques are the mean torque, and the one whose
-        torques are the alternating amplitude.
-    finish
-        Surface finish for the Marin surface factor: ``ground``, ``machined``, ``cold-drawn``,
-        ``hot-rolled``, ``as-forged`` (or ``polished``).
-    reliability
-        Reliability of the endurance limit (0.5 … 0.999999, Shigley Table 6-5 values).
-    temperature
-        Operating temperature (K), or ``None`` for room temperature.
-    criterion
-        ``goodman``, ``gerber``, ``asme_elliptic`` or ``soderberg``.
-    factor_of_safety
-        Required fatigue factor of safety (≥ 1), also used against first-cycle yield.
-    endurance_limit
-        A tested rotating-beam endurance limit Se' (Pa) to use instead of the 0.5·Sut estimate.
-    mean_concentration
-        ``"kfs"`` (default): the fatigue stress-concentration factor multiplies the mean stress
-        as well as the alternating one (Shigley's conservative practice for shafts);
-        ``"none"``: the mean stress is nominal (Kfsm = 1), the practice of texts that put Kf
-        into the endurance limit (Brown, *Marks' Calculations for Machine Design*, ch. 7).
-        ``"none"`` relies on local yielding at the notch relieving the steady stress; it is not
-        conservative for a notch that stays elastic.
-    """
-
-    extremes: tuple[str, str] | None = None
-    mean: str | None = None
-    alternating: str | None = None
-    finish: str = "machined"
-    reliability: float = 0.5
-    temperature: float | None = None
-    criterion: str = "goodman"
-    factor_of_safety: float = 1.5
-    endurance_limit: float | None = None
-    mean_concentration: str = "kfs"
-
-    def __post_init__(self) -> None:
-        given_pair = self.mean is not None or self.alternating is not None
-        if (self.extremes is None) == (not given_pair):
-            what = "not both" if given_pair else "one of them is required"
-            msg = f"give either extremes (two results) or mean and alternating, {what}"
-            raise InputError("extremes", msg)
-        if given_pair and (self.mean is None or self.alternating is None):
-            raise InputError("alternating" if self.mean else "mean", "is required with the other")
-        if self.extremes is not None and len(self.extremes) != 2:
-            raise InputError("extremes", "must name exactly two results")
-        if self.finish not in SURFACE_FINISHES:
-            msg = f"unknown finish {self.finish!r}; choose one of {', '.join(SURFACE_FINISHES)}"
-            raise InputError("finish", msg)
-        if self.reliability not in RELIABILITY_FACTORS:
-            known = ", ".join(f"{r:g}" for r in RELIABILITY_FACTORS)
-            raise InputError("reliability", f"must be one of {known}, not {self.reliability!r}")
-        if self.criterion not in FATIGUE_CRITERIA:
-            msg = (
-                f"unknown criterion {self.criterion!r}; choose one of {', '.join(FATIGUE_CRITERIA)}"
-            )
-            raise InputError("criterion", msg)
-        if self.endurance_limit is not None:
-            require_positive("endurance_limit", self.endurance_limit, "stress")
-        if self.mean_concentration not in MEAN_CONCENTRATIONS:
-            msg = (
-                f"unknown mean_concentration {self.mean_concentration!r}; choose one of "
-                f"{', '.join(MEAN_CONCENTRATIONS)}"
-            )
-            raise InputError("mean_concentration", msg)
-        if self.temperature is not None and not (
-            math.isfinite(self.temperature) and self.temperature > 0.0
-        ):
-            raise InputError(
-                "temperature", f"must be a temperature above 0 K, not {self.temperature:g}"
-            )
-        if not (math.isfinite(self.factor_of_safety) and self.factor_of_safety >= 1.0):
-            raise InputError(
-                "factor_of_safety", f"must be at least 1, not {self.factor_of_safety:g}"
-            )
-
-    @property
-    def result_names(self) -> tuple[str, str]:
-        """The two results the check reads."""
-        if self.extremes is not None:
-            return self.extremes
-        assert self.mean is not None and self.alternating is not None
-        return self.mean, self.alternating
-
-    @property
-    def label(self) -> str:
-        """What the check rows carry in their ``result`` column."""
-        first, second = self.result_names
-        if self.extremes is not None:
-            return f"fatigue: {first} ↔ {second}"
-        return f"fatigue: mean {first}, alternating {second}"
-
-    def validate_against(self, model: Model) -> None:
-        """Raise :class:`InputError` when a named result is not in the model."""
-        known = model.result_names
-        keys = ("extremes", "extremes") if self.extremes is not None else ("mean", "alternating")
-        for key, name in zip(keys, self.result_names, strict=True):
-            if name not in known:
-                msg = f"unknown load case or combination {name!r}; known: {', '.join(known)}"
-                raise InputError(f"design.fatigue.{key}", msg)
-
-
-_FATIGUE_KEYS = (
-    "extremes",
-    "mean",
-    "alternating",
-    "finish",
-    "reliability",
-    "temperature",
-    "criterion",
-    "factor_of_safety",
-    "endurance_limit",
-    "mean_concentration",
-)
-
-
-def parse_fatigue(data: Any, units: UnitSystem) -> FatigueCriteria:
-    """Read the case file's ``design.fatigue`` object.
-
-    ``endurance_limit`` is in stress units, ``temperature`` in kelvin.
-    """
-    from workbench.solver.io import _Object  # noqa: PLC0415 - io imports the checks lazily
-
-    reader = _Object(data, "design.fatigue", _FATIGUE_KEYS, units)
-    extremes = data.get("extremes")
-    if extremes is not None and (
-        not isinstance(extremes, list) or not all(isinstance(name, str) for name in extremes)
-    ):
-        raise InputError("design.fatigue.extremes", "must be a list of two result names")
-    with field_path("design.fatigue"):
-        return FatigueCriteria(
-            extremes=tuple(extremes) if extremes is not None else None,
-            mean=reader.text("mean") if reader.has("mean") else None,
-            alternating=reader.text("alternating") if reader.has("alternating") else None,
-            finish=reader.text("finish", "machined"),
-            reliability=reader.number("reliability", None, 0.5),
-            temperature=reader.optional_number("temperature", None),
-            criterion=reader.text("criterion", "goodman"),
-            factor_of_safety=reader.number("factor_of_safety", None, 1.5),
-            endurance_limit=reader.optional_number("endurance_limit", "stress"),
-            mean_concentration=reader.text("mean_concentration", "kfs"),
-        )
-
-
-def fatigue_to_dict(criteria: FatigueCriteria, units: UnitSystem) -> dict[str, Any]:
-    """The case file's ``design.fatigue`` object."""
-    out: dict[str, Any] = {}
-    if criteria.extremes is not None:
-        out["extremes"] = list(criteria.extremes)
-    else:
-        out["mean"], out["alternating"] = criteria.mean, criteria.alternating
-    out |= {
-        "finish": criteria.finish,
-        "reliability": criteria.reliability,
-        "criterion": criteria.criterion,
-        "factor_of_safety": criteria.factor_of_safety,
-    }
-    if criteria.temperature is not None:
-        out["temperature"] = criteria.temperature
-    if criteria.endurance_limit is not None:
-        out["endurance_limit"] = float(f"{units.from_si(criteria.endurance_limit, 'stress'):.12g}")
-    if criteria.mean_concentration != "kfs":
-        out["mean_concentration"] = criteria.mean_concentration
-    return out
 
 
 @dataclass(frozen=True)

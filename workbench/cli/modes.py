@@ -14,21 +14,17 @@ import json
 import sys
 from typing import Any
 
+from workbench.cli.status import EXIT_OK
+from workbench.design.caution import CAUTION
+
 __all__ = ["register"]
-
-EXIT_OK = 0
-
-CAUTION = (
-    "Caution: these results are an aid to design, not a design approval. A qualified engineer "
-    "must verify them against the applicable codes and standards and licensed professional "
-    "practice before use."
-)
 
 
 def _command_modes(arguments: argparse.Namespace) -> int:
-    from workbench.solver.errors import InputError  # noqa: PLC0415 - keep `--help` fast
+    from workbench.case.errors import InputError  # noqa: PLC0415 - keep `--help` fast
+    from workbench.design.frequency import modes_text  # noqa: PLC0415
     from workbench.solver.io import load_case  # noqa: PLC0415
-    from workbench.solver.modes import modes_document, modes_text, natural_modes  # noqa: PLC0415
+    from workbench.solver.modes import modes_document, natural_modes  # noqa: PLC0415
 
     model = load_case(arguments.case)
     longest = arguments.max_element_length
@@ -61,7 +57,7 @@ def _command_modes(arguments: argparse.Namespace) -> int:
         sys.stdout.write(json.dumps(document, separators=(",", ":"), allow_nan=False) + "\n")
     else:
         sys.stdout.write(modes_text(modes, margin))
-        sys.stdout.write(f"\n{CAUTION}\n")
+        sys.stdout.write(f"\nCaution: {CAUTION}\n")
     return EXIT_OK
 
 

@@ -21,9 +21,9 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-from workbench.solver.errors import InputError
-from workbench.solver.sections import require_positive
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
 
 # Rounded preferred numbers of one decade, in hundredths (from memory).
 _HUNDREDTHS: dict[str, tuple[int, ...]] = {

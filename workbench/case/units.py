@@ -18,7 +18,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.solver.errors import InputError
+from workbench.case.errors import InputError
 
 #: SI unit of every quantity the solver works in.
 SI_UNITS: dict[str, str] = {

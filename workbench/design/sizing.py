@@ -22,13 +22,14 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
+from workbench.case.errors import InputError
+from workbench.case.units import display_units
+from workbench.design.caution import CAUTION
+from workbench.design.checks import Check, CheckReport, run_checks
+from workbench.design.preferred import RENARD_SERIES, next_smaller_preferred, round_up_preferred
 from workbench.solver.analysis import solve
-from workbench.solver.checks import CAUTION, Check, CheckReport, run_checks
-from workbench.solver.errors import InputError
 from workbench.solver.model import Layer, Model, Segment
-from workbench.solver.preferred import RENARD_SERIES, next_smaller_preferred, round_up_preferred
 from workbench.solver.sections import Section, SolidCircle, TaperedCircle, Tube
-from workbench.solver.units import display_units
 
 _MAX_ROUNDS = 40
 

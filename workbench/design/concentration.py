@@ -45,9 +45,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from workbench.solver.errors import InputError
-from workbench.solver.sections import require_positive
-from workbench.solver.units import quote
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
 
 #: Norton's fits Kts = A·(r/d)^b, as (D/d, A, b), in increasing D/d.
 NORTON_TORSION_FITS: tuple[tuple[float, float, float], ...] = (

@@ -12,7 +12,7 @@ How the factor of safety applies (the choice this module makes, stated in every 
 
 Keyways reduce the allowable only under the code. With the other criteria a keyseat is taken
 into account by its stress-concentration factor on the stress
-(:func:`workbench.solver.concentration.keyseat_kts`), which the basis sentence says.
+(:func:`workbench.design.concentration.keyseat_kts`), which the basis sentence says.
 
 The twist-rate limits are rules of thumb of common practice, not code requirements.
 
@@ -32,13 +32,13 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from workbench.solver.errors import InputError
-from workbench.solver.materials import Material
-from workbench.solver.sections import require_positive
-from workbench.solver.units import quote
+from workbench.case.design import SHEAR_CRITERIA
+from workbench.case.errors import InputError
+from workbench.case.materials import Material
+from workbench.case.units import quote
+from workbench.case.validate import require_positive
 
 #: Criteria :func:`allowable_shear_stress` accepts.
-SHEAR_CRITERIA: tuple[str, ...] = ("von_mises", "tresca", "shafting_code", "allowable")
 
 #: ASME transmission-shafting code fractions (of Sy, of Su) and the keyway reduction.
 SHAFTING_CODE_YIELD_FRACTION = 0.30

@@ -1,0 +1,62 @@
+"""Field checks shared by every reader of a case: finite, positive, non-negative; field paths.
+
+Errors name the field by its dotted path in the case file (``shafts[0].segments[1].length``).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import math
+from collections.abc import Iterator
+
+from workbench.case.errors import InputError
+from workbench.case.units import quote
+
+
+def require_positive(name: str, value: float, quantity: str = "length") -> None:
+    """Raise :class:`InputError` unless ``value`` is a finite number greater than zero."""
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        raise InputError(name, f"must be a number, not {value!r}")
+    if not math.isfinite(value):
+        raise InputError(name, f"must be a finite number, not {value}")
+    if value <= 0.0:
+        raise InputError(name, f"must be greater than zero ({quote(value, quantity)})")
+
+
+def require_non_negative(name: str, value: float, quantity: str = "length") -> None:
+    """Raise :class:`InputError` unless ``value`` is a finite number of at least zero."""
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        raise InputError(name, f"must be a number, not {value!r}")
+    if not math.isfinite(value):
+        raise InputError(name, f"must be a finite number, not {value}")
+    if value < 0.0:
+        raise InputError(name, f"must not be negative ({quote(value, quantity)})")
+
+
+def join_path(prefix: str, name: str) -> str:
+    """Join a field path and a sub-field: ``join_path("shafts[0]", "length")``."""
+    if not prefix:
+        return name
+    if not name:
+        return prefix
+    return f"{prefix}{name}" if name.startswith("[") else f"{prefix}.{name}"
+
+
+@contextlib.contextmanager
+def field_path(prefix: str) -> Iterator[None]:
+    """Prefix the field of any :class:`InputError` raised inside the block with ``prefix``."""
+    try:
+        yield
+    except InputError as error:
+        # Readers inside the block already name the full path; prefix only bare field names.
+        if error.field == prefix or error.field.startswith((f"{prefix}.", f"{prefix}[")):
+            raise
+        raise type(error)(join_path(prefix, error.field), error.message) from None
+
+
+def require_finite(name: str, value: float) -> None:
+    """Raise :class:`InputError` unless ``value`` is a finite real number (sign free)."""
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        raise InputError(name, f"must be a number, not {value!r}")
+    if not math.isfinite(value):
+        raise InputError(name, f"must be a finite number, not {value}")

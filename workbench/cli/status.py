@@ -1,0 +1,8 @@
+"""Exit statuses of the ``workbench`` command (the README's table)."""
+
+#: Success; every check passes.
+EXIT_OK = 0
+#: A check fails, nothing passes (``size``), or a record does not verify (``verify``).
+EXIT_FAILED_CHECK = 1
+#: Bad input: one line on stderr names the field.
+EXIT_BAD_INPUT = 2

@@ -1,0 +1,200 @@
+"""Separation of natural frequencies of torsional vibration from running-speed bands.
+
+The modes come from :func:`workbench.solver.modes.natural_modes`; this module judges them: each
+running-speed band, widened by a margin, against its neighbouring natural frequencies.
+
+References
+----------
+.. [1] Separation of natural frequencies from running speeds by a margin, ±20 % by default:
+   common practice, no source.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from workbench.case.design import DEFAULT_FREQUENCY_MARGIN
+from workbench.case.units import UnitSystem, display_units, quote
+from workbench.design.verdict import WithinLimit
+from workbench.solver.model import OperatingSpeed
+from workbench.solver.modes import Modes
+from workbench.solver.tables import format_table
+
+
+@dataclass(frozen=True)
+class Separation(WithinLimit):
+    """How far one natural frequency lies from one running-speed band.
+
+    Attributes
+    ----------
+    speed
+        The band.
+    mode
+        Index of the mode in its :class:`Modes` (0 = lowest).
+    angular_frequency
+        The mode's natural circular frequency ω (rad/s).
+    low, high
+        The band widened by the margin: minimum·(1 − margin), maximum·(1 + margin) (rad/s).
+    position
+        ``"below"``, ``"above"`` or ``"inside"`` the widened band.
+    value, limit
+        Below the band: ω and the widened lower edge; above it: the widened upper edge and ω;
+        inside: the pair of the nearer edge. The mode is clear when value ≤ limit, and
+        value/limit is the utilisation (rad/s both).
+    shaft, x
+        Where the mode's |angle| is largest (shaft id, m).
+    """
+
+    speed: OperatingSpeed
+    mode: int
+    angular_frequency: float
+    low: float
+    high: float
+    position: str
+    value: float
+    limit: float
+    shaft: str
+    x: float
+
+
+def frequency_separations(
+    modes: Modes, speeds: Sequence[OperatingSpeed], margin: float
+) -> tuple[Separation, ...]:
+    """Each running-speed band against its neighbouring natural frequencies.
+
+    Parameters
+    ----------
+    modes
+        Natural modes (:func:`natural_modes`), computed at least up to the widest band's top.
+    speeds
+        Running-speed bands (rad/s). A band excites at once per revolution: the natural
+        circular frequency ω is compared with the speed in rad/s itself.
+    margin
+        Relative widening of each band, 0 ≤ margin < 1: [min·(1 − m), max·(1 + m)].
+
+    Returns
+    -------
+    tuple of Separation
+        For each band: the nearest mode below the widened band, every mode inside it and the
+        nearest mode above it; rigid-body modes are not resonances and are left out.
+
+    References
+    ----------
+    .. [1] Separation of natural frequencies from running speeds by a margin, ±20 % by default:
+       common practice, no source.
+    """
+    out = []
+    flexible = np.flatnonzero(~modes.rigid_body)
+    omega = modes.angular_frequency[flexible]
+    for speed in speeds:
+        low = speed.minimum * (1.0 - margin)
+        high = speed.maximum * (1.0 + margin)
+        below = flexible[omega <= low] if low > 0.0 else flexible[:0]
+        above = flexible[omega >= high]
+        inside = [mode for mode in flexible if mode not in below and mode not in above]
+        chosen = [*below[-1:], *inside, *above[:1]]
+        for mode in chosen:
+            natural = float(modes.angular_frequency[mode])
+            if mode in below:
+                position, value, limit = "below", natural, low
+            elif mode in above:
+                position, value, limit = "above", high, natural
+            else:
+                position = "inside"
+                from_below = natural / low if low > 0.0 else math.inf
+                from_above = high / natural
+                value, limit = (natural, low) if from_below < from_above else (high, natural)
+            shaft, x = modes.antinode(int(mode))
+            out.append(
+                Separation(speed, int(mode), natural, low, high, position, value, limit, shaft, x)
+            )
+    return tuple(out)
+
+
+def separation_note(separation: Separation, margin: float) -> str:
+    """One line on a separation, in the current display units (speeds) and Hz."""
+    speed = separation.speed
+    hertz = separation.angular_frequency / (2.0 * math.pi)
+    return (
+        f"mode {separation.mode + 1}: {hertz:.4g} Hz = {quote(separation.angular_frequency, 'speed')}"
+        f", {separation.position} {speed.name!r} {quote(speed.minimum, 'speed')} to "
+        f"{quote(speed.maximum, 'speed')} widened by ±{margin:.0%} to "
+        f"{quote(separation.low, 'speed')} to {quote(separation.high, 'speed')}; once per "
+        "revolution"
+    )
+
+
+def modes_text(modes: Modes, margin: float | None = None, units: UnitSystem | None = None) -> str:
+    """Readable tables: the modes, then each running-speed band against its neighbours."""
+    units = units or modes.model.units
+    speed_unit = units.label("speed")
+    length_unit = units.label("length")
+    rows = []
+    for mode in range(len(modes)):
+        shaft, x = modes.antinode(mode)
+        rows.append(
+            [
+                str(mode + 1),
+                f"{modes.frequency[mode]:.5g}",
+                f"{units.from_si(modes.angular_frequency[mode], 'speed'):.5g}",
+                "rigid body" if modes.rigid_body[mode] else "flexible",
+                f"{shaft} @ {units.from_si(x, 'length'):.4g}",
+            ]
+        )
+    lines = [
+        "Natural frequencies of torsional vibration (lowest first)",
+        format_table(
+            [
+                "mode",
+                "frequency [Hz]",
+                f"as a speed [{speed_unit}]",
+                "kind",
+                f"largest |angle| [shaft @ x {length_unit}]",
+            ],
+            rows,
+        ),
+        f"mesh: segments with inertia cut into at least {modes.elements_per_segment} elements; "
+        "refine (--elements-per-segment) to confirm the frequencies you rely on",
+    ]
+    if modes.model.operating_speeds:
+        margin = DEFAULT_FREQUENCY_MARGIN if margin is None else margin
+        token = display_units.set(units)
+        try:
+            separations = frequency_separations(modes, modes.model.operating_speeds, margin)
+            rows = [
+                [
+                    item.speed.name,
+                    str(item.mode + 1),
+                    f"{units.from_si(item.angular_frequency, 'speed'):.5g}",
+                    f"{units.from_si(item.low, 'speed'):.5g} to "
+                    f"{units.from_si(item.high, 'speed'):.5g}",
+                    item.position,
+                    f"{item.utilisation:.3f}",
+                    "clear" if item.passes else "TOO CLOSE",
+                ]
+                for item in separations
+            ]
+        finally:
+            display_units.reset(token)
+        lines += [
+            "",
+            f"Separation from running speeds (bands widened by ±{margin:.0%}; once per revolution)",
+            format_table(
+                [
+                    "band",
+                    "mode",
+                    f"natural [{speed_unit}]",
+                    f"widened band [{speed_unit}]",
+                    "where",
+                    "utilisation",
+                    "verdict",
+                ],
+                rows,
+            ),
+        ]
+    lines += [f"note: {note}" for note in modes.notes]
+    return "\n".join(lines) + "\n"
