@@ -323,3 +323,36 @@ def test_the_solver_imports_light_and_fast():
     assert report["loaded"] == []
     print(f"solver import time: {report['imported']:.3f} s")
     assert report["imported"] < 3.0  # loose bound: the target is < 1 s on an idle machine
+
+
+def test_an_unexpected_error_is_one_line_with_exit_status_3(
+    monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
+) -> None:
+    """The last line of defence: a defect is reported in one line, exit 3, never a traceback."""
+    from workbench.solver import analysis
+
+    def broken(*_: object, **__: object) -> None:
+        raise RuntimeError("a defect\nspread over lines " + "x" * 500)
+
+    monkeypatch.setattr(analysis, "solve", broken)
+    status = main(["solve", str(DEMO_CASE)])
+    captured = capsys.readouterr()
+    assert status == 3
+    lines = captured.err.splitlines()
+    assert len(lines) == 1
+    assert lines[0].startswith(f"internal error on {DEMO_CASE}: RuntimeError: a defect")
+    assert "please report" in lines[0] and "Traceback" not in captured.err
+    assert len(lines[0]) <= 200
+
+
+def test_debug_shows_the_traceback_of_an_internal_error(
+    monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
+) -> None:
+    from workbench.solver import analysis
+
+    def broken(*_: object, **__: object) -> None:
+        raise RuntimeError("a defect")
+
+    monkeypatch.setattr(analysis, "solve", broken)
+    assert main(["--debug", "solve", str(DEMO_CASE)]) == 3
+    assert "Traceback" in capsys.readouterr().err

@@ -1,7 +1,8 @@
 """The ``workbench`` command: solve, check and size case files; open the workbench; records.
 
 Bad input never ends in a traceback: the command prints one line naming the field and what is
-wrong, on stderr, and exits with status 2.
+wrong, on stderr, and exits with status 2. Anything unexpected is one line too ("internal error:
+…, please report"), exit status 3; ``--debug`` shows the traceback instead.
 """
 
 from __future__ import annotations
@@ -9,10 +10,11 @@ from __future__ import annotations
 import argparse
 import importlib
 import sys
+import traceback
 from collections.abc import Sequence
 
 from workbench.case.errors import InputError, WorkbenchError
-from workbench.cli.status import EXIT_BAD_INPUT, EXIT_OK
+from workbench.cli.status import EXIT_BAD_INPUT, EXIT_INTERNAL_ERROR, EXIT_OK
 from workbench.design.caution import CAUTION
 
 
@@ -22,6 +24,9 @@ def build_parser() -> argparse.ArgumentParser:
         prog="workbench",
         description="Design and check members loaded in torsion.",
         epilog=f"Caution: {CAUTION}",
+    )
+    parser.add_argument(
+        "--debug", action="store_true", help="show the traceback of an internal error"
     )
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
     for module_name in COMMAND_MODULES:
@@ -53,4 +58,30 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_BAD_INPUT
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as error:  # the last line of defence: every known fault is an InputError
+        if arguments.debug:
+            traceback.print_exc()
+        else:
+            sys.stderr.write(_internal_error_line(arguments, error) + "\n")
+        return EXIT_INTERNAL_ERROR
     return status
+
+
+def _internal_error_line(arguments: argparse.Namespace, error: Exception) -> str:
+    """One line for an unexpected error: what it was, on which file, and to report it."""
+    target = next(
+        (
+            value
+            for key in ("case", "notebook", "record")
+            if (value := getattr(arguments, key, None))
+        ),
+        "",
+    )
+    where = f" on {target}" if target else ""
+    detail = str(error).replace("\n", " ")
+    if len(detail) > 60:
+        detail = detail[:57] + "..."
+    return (
+        f"internal error{where}: {type(error).__name__}: {detail}; please report it "
+        "(run with --debug for the traceback)"
+    )

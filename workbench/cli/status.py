@@ -6,3 +6,5 @@ EXIT_OK = 0
 EXIT_FAILED_CHECK = 1
 #: Bad input: one line on stderr names the field.
 EXIT_BAD_INPUT = 2
+#: An unexpected internal error (a defect of workbench): one line, "please report".
+EXIT_INTERNAL_ERROR = 3
