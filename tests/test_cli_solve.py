@@ -356,3 +356,43 @@ def test_debug_shows_the_traceback_of_an_internal_error(
     monkeypatch.setattr(analysis, "solve", broken)
     assert main(["--debug", "solve", str(DEMO_CASE)]) == 3
     assert "Traceback" in capsys.readouterr().err
+
+
+def test_lab_stopped_with_sigterm_stops_its_server(tmp_path: Path) -> None:
+    """``workbench lab`` ended by SIGTERM leaves no server running behind it."""
+    import signal
+    import time
+
+    pid_file = tmp_path / "child.pid"
+    (tmp_path / "demo.ipynb").write_text("{}", encoding="utf-8")
+    # A stand-in server that records its pid and would run for a minute.
+    server = (
+        f"import os, time; open({str(pid_file)!r}, 'w').write(str(os.getpid())); time.sleep(60)"
+    )
+    script = (
+        "import sys\n"
+        "import workbench.cli.lab as lab\n"
+        f"lab.lab_command = lambda *a, **k: [sys.executable, '-c', {server!r}]\n"
+        "from workbench.cli import main\n"
+        f"sys.exit(main(['lab', '--folder', {str(tmp_path)!r}]))\n"
+    )
+    parent = subprocess.Popen([sys.executable, "-c", script])
+    deadline = time.monotonic() + 30
+    while not pid_file.exists() or not pid_file.read_text():
+        assert time.monotonic() < deadline, "the stand-in server never started"
+        time.sleep(0.05)
+    child = int(pid_file.read_text())
+    parent.send_signal(signal.SIGTERM)
+    assert parent.wait(timeout=30) == 128 + signal.SIGTERM
+    deadline = time.monotonic() + 10
+    while True:
+        try:
+            os.kill(child, 0)
+        except ProcessLookupError:
+            break  # the server is gone
+        # A zombie no longer runs; its parent (reaped by now) was the lab command.
+        status = Path(f"/proc/{child}/status")
+        if status.exists() and "zombie" in status.read_text():
+            break
+        assert time.monotonic() < deadline, "the server outlived workbench lab"
+        time.sleep(0.05)

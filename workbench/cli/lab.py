@@ -4,8 +4,10 @@ from __future__ import annotations
 
 import argparse
 import os
+import signal
 import subprocess
 import sys
+import threading
 from pathlib import Path
 from typing import Any
 
@@ -35,7 +37,35 @@ def _command_lab(arguments: argparse.Namespace) -> int:
     if not (folder / arguments.notebook).is_file():
         sys.stderr.write(f"{folder / arguments.notebook}: no such notebook\n")
         return 2
-    return subprocess.call(lab_command(folder, arguments.notebook, arguments.port))
+    return run_until_stopped(lab_command(folder, arguments.notebook, arguments.port))
+
+
+def run_until_stopped(command: list[str]) -> int:
+    """Run ``command``; when this process is told to stop (SIGTERM, SIGHUP), stop it too.
+
+    Without this a SIGTERM ends ``workbench lab`` at once and leaves JupyterLab running with
+    no parent. The child gets SIGTERM, then SIGKILL if it has not ended within 10 s; the exit
+    status is then 128 + the signal's number, as a shell reports it.
+    """
+    child = subprocess.Popen(command)
+    received: list[int] = []
+
+    def stop(signal_number: int, _frame: object) -> None:
+        # Only signal here: the main thread is inside child.wait() and holds its lock.
+        received.append(signal_number)
+        child.terminate()
+        timer = threading.Timer(10.0, child.kill)
+        timer.daemon = True
+        timer.start()
+
+    for name in ("SIGTERM", "SIGHUP"):
+        if hasattr(signal, name):
+            signal.signal(getattr(signal, name), stop)
+    try:
+        status = child.wait()
+    except KeyboardInterrupt:  # Ctrl-C reaches the child too (same process group)
+        status = child.wait()
+    return 128 + received[0] if received else status
 
 
 def register(commands: Any) -> None:
