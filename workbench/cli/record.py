@@ -14,6 +14,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from workbench.cli.output import output_file, writing
 from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
 
 __all__ = ["EXIT_NOT_VERIFIED", "register"]
@@ -70,6 +71,7 @@ def _command_keygen(arguments: argparse.Namespace) -> int:
 def _command_export(arguments: argparse.Namespace) -> int:
     from workbench.record.exporter import export_file  # noqa: PLC0415
 
+    output = output_file(arguments.output)
     record, _ = export_file(
         arguments.notebook,
         key_file=arguments.key,
@@ -77,10 +79,10 @@ def _command_export(arguments: argparse.Namespace) -> int:
         title_block=_title_overrides(arguments),
         execute=not arguments.no_execute,
     )
-    output = Path(arguments.output)
     temporary = output.with_name(output.name + ".partial")
-    temporary.write_text(record, encoding="utf-8", newline="")
-    temporary.replace(output)
+    with writing(output):
+        temporary.write_text(record, encoding="utf-8", newline="")
+        temporary.replace(output)
     status = "signed" if arguments.key else "UNSIGNED"
     sys.stdout.write(f"wrote {output} ({status}, {len(record.encode('utf-8')):,} bytes)\n")
     return EXIT_OK
@@ -104,13 +106,15 @@ def _command_verify(arguments: argparse.Namespace) -> int:
 def _command_package(arguments: argparse.Namespace) -> int:
     from workbench.record.package import build_package  # noqa: PLC0415
 
-    manifest = build_package(
-        arguments.notebook,
-        arguments.output,
-        key_file=arguments.key,
-        signer=arguments.signer,
-        title_block=_title_overrides(arguments),
-    )
+    output = output_file(arguments.output)
+    with writing(output):
+        manifest = build_package(
+            arguments.notebook,
+            output,
+            key_file=arguments.key,
+            signer=arguments.signer,
+            title_block=_title_overrides(arguments),
+        )
     names = ", ".join(entry["name"] for entry in manifest["files"])
     signed = "signed manifest" if arguments.key else "UNSIGNED manifest"
     sys.stdout.write(f"wrote {arguments.output}: {names}, manifest.json ({signed})\n")

@@ -13,6 +13,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from workbench.cli.output import output_file, writing
 from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
 from workbench.design.caution import CAUTION
 
@@ -60,6 +61,7 @@ def _command_size(arguments: argparse.Namespace) -> int:
     from workbench.design.sizing import SizingRequest, size_shafts, sizing_document, sizing_text  # noqa: PLC0415
     from workbench.solver.io import load_case, save_case  # noqa: PLC0415
 
+    output = output_file(arguments.output) if arguments.output else None
     model = load_case(arguments.case)
     request = SizingRequest.from_arguments(
         model,
@@ -74,8 +76,9 @@ def _command_size(arguments: argparse.Namespace) -> int:
         _print_json(sizing_document(outcome))
     else:
         sys.stdout.write(sizing_text(outcome))
-    if arguments.output:
-        save_case(outcome.model, arguments.output)
+    if output is not None:
+        with writing(output):
+            save_case(outcome.model, output)
     return EXIT_OK if outcome.passes else EXIT_FAILED_CHECK
 
 
