@@ -43,14 +43,15 @@ from jwcrypto import jwk as jose_jwk
 from jwcrypto import jws as jose_jws
 from jwcrypto.common import json_encode
 
-from workbench.record.canonical import CanonicalizationError, canonicalize, format_number
-from workbench.record.signing import (
+from workbench.signing import (
     PRIVATE_KEY_NAME,
     PUBLIC_KEY_NAME,
+    CanonicalizationError,
     SignatureInvalid,
     SigningError,
     b64url_decode,
     b64url_encode,
+    canonicalize,
     decode_unverified,
     generate_key,
     jwk_thumbprint,
@@ -62,6 +63,7 @@ from workbench.record.signing import (
     verify_compact,
     write_key_pair,
 )
+from workbench.signing.canonical import format_number
 from workbench.solver.errors import InputError, WorkbenchError
 
 NODE = shutil.which("node")
@@ -969,7 +971,7 @@ def test_record_room_imports_no_panel_and_no_jose_library() -> None:
     # Project rule (the record room may not import the panel; product code uses
     # `cryptography`, not a JOSE library) — no outside source.
     code = (
-        "import sys, workbench.record.signing, workbench.record.canonical\n"
+        "import sys, workbench.signing\n"
         "bad = [m for m in sys.modules if m.split('.')[0] in "
         "{'jwcrypto', 'joserfc', 'ipywidgets', 'bqplot', 'matplotlib'} "
         "or m.startswith('workbench.panel')]\n"

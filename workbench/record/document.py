@@ -47,8 +47,8 @@ from typing import Any
 from markupsafe import Markup, escape
 
 import workbench
-from workbench.record.canonical import canonicalize
 from workbench.record.notebook import TEXT_FIELDS, TITLE_FIELDS
+from workbench.signing import canonicalize
 from workbench.solver.analysis import Results, solve
 from workbench.solver.checks import (
     CAUTION,
@@ -1469,7 +1469,7 @@ def render_record(
     str
         The record file's text.
     """
-    from workbench.record.signing import jwk_thumbprint, public_jwk, sign_compact  # noqa: PLC0415
+    from workbench.signing import jwk_thumbprint, public_jwk, sign_compact  # noqa: PLC0415
 
     signed_at = signed_at or signing_time()
     signer = signer or str(title_block.get("prepared_by", ""))

@@ -41,7 +41,7 @@ from cryptography.hazmat.primitives import serialization
 from cryptography.hazmat.primitives.asymmetric import ec, ed448, rsa, x448, x25519
 from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey, Ed25519PublicKey
 
-from workbench.record.canonical import canonicalize
+from workbench.signing.canonical import canonicalize
 from workbench.solver.errors import WorkbenchError
 
 __all__ = [
