@@ -822,6 +822,28 @@ def test_sign_compact_refuses_reserved_header_members(rfc_key: Ed25519PrivateKey
         sign_compact(b"x", rfc_key.public_key())  # type: ignore[arg-type]
 
 
+def test_header_and_payload_sizes_are_bounded_both_ways(
+    rfc_key: Ed25519PrivateKey, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # Project rule (every input is bounded; whatever is signed must also verify) — no source.
+    from workbench.signing import jose
+
+    public = rfc_key.public_key()
+    with pytest.raises(SigningError, match="header is longer than 8192"):
+        sign_compact(b"x", rfc_key, {"note": "n" * 7000})
+    verify_compact(sign_compact(b"x", rfc_key, {"note": "n" * 5000}), public)
+    long_header = _forge({"alg": "EdDSA", "note": "n" * 7000}, b"x", b"s" * 64)
+    with pytest.raises(SignatureInvalid, match="header is longer than 8192"):
+        verify_compact(long_header, public)
+    token = sign_compact(b"x" * 30, rfc_key)
+    monkeypatch.setattr(jose, "MAX_PAYLOAD_BYTES", 20)
+    monkeypatch.setattr(jose, "_MAX_PAYLOAD_CHARACTERS", 28)
+    with pytest.raises(SigningError, match="more than a record signs"):
+        sign_compact(b"x" * 21, rfc_key)
+    with pytest.raises(SignatureInvalid, match="larger than a record signs"):
+        verify_compact(token, public)
+
+
 # =============================================================================================
 # Key files
 # =============================================================================================

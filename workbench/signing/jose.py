@@ -63,6 +63,7 @@ ALGORITHM = "EdDSA"
 #: Largest payload signed or verified (bytes): a record holds its whole case, so this is
 #: generous; it bounds what a token can make the verifier decode.
 MAX_PAYLOAD_BYTES = 256 * 1024 * 1024
+_MAX_PAYLOAD_CHARACTERS = -(-MAX_PAYLOAD_BYTES // 3) * 4  # its base64url text, at most
 #: Largest encoded protected header (characters); ours is about 90.
 _MAX_HEADER_CHARACTERS = 8192
 #: What joserfc warns on every use of "EdDSA" (RFC 9864); silenced where it is called, no more.
@@ -94,7 +95,7 @@ def _registry() -> Any:
 
     registry = JWSRegistry(algorithms=[ALGORITHM], strict_check_header=False)
     registry.max_header_length = _MAX_HEADER_CHARACTERS
-    registry.max_payload_length = -(-MAX_PAYLOAD_BYTES // 3) * 4  # base64url of the payload
+    registry.max_payload_length = _MAX_PAYLOAD_CHARACTERS
     return registry
 
 
@@ -406,18 +407,20 @@ def sign_compact(
     ordered = {name: header[name] for name in sorted(header)}
     try:
         with _eddsa_allowed():
-            return str(
-                serialize_compact(
-                    ordered,
-                    bytes(payload),
-                    _okp_key(private_key),
-                    algorithms=[ALGORITHM],
-                    registry=_registry(),
-                )
+            token = serialize_compact(
+                ordered,
+                bytes(payload),
+                _okp_key(private_key),
+                algorithms=[ALGORITHM],
+                registry=_registry(),
             )
     except JoseError as error:
         msg = f"the protected header is not valid: {error.description or error}"
         raise SigningError(msg) from None
+    if token.index(".") > _MAX_HEADER_CHARACTERS:  # verify_compact would refuse the token
+        msg = f"the protected header is longer than {_MAX_HEADER_CHARACTERS} characters encoded"
+        raise SigningError(msg)
+    return str(token)
 
 
 def decode_unverified(token: str) -> tuple[dict[str, Any], bytes]:
@@ -545,6 +548,9 @@ def _parse_compact(token: str) -> tuple[dict[str, Any], bytes, bytes]:
         raise SignatureInvalid(msg)
     if len(encoded_header) > _MAX_HEADER_CHARACTERS:
         msg = f"malformed JWS: the header is longer than {_MAX_HEADER_CHARACTERS} characters"
+        raise SignatureInvalid(msg)
+    if len(encoded_payload) > _MAX_PAYLOAD_CHARACTERS:
+        msg = f"JWS payload is larger than a record signs ({MAX_PAYLOAD_BYTES:,} bytes)"
         raise SignatureInvalid(msg)
     try:
         header_bytes = b64url_decode(encoded_header, "JWS header")
