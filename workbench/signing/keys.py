@@ -188,8 +188,7 @@ def load_private_key(
         msg = f"{file} is not a readable PEM private key (or the password is wrong): {error}"
         raise SigningError(msg) from None
     if not isinstance(key, Ed25519PrivateKey):
-        msg = f"{file} holds {_key_kind(key)}, not an Ed25519 key; record signatures use Ed25519"
-        raise SigningError(msg)
+        raise _not_ed25519(key, file)
     return key
 
 
@@ -247,8 +246,7 @@ def load_public_key(path: str | os.PathLike[str]) -> Ed25519PublicKey:
         msg = f"{file} is not a readable PEM public key: {error}"
         raise SigningError(msg) from None
     if not isinstance(key, Ed25519PublicKey):
-        msg = f"{file} holds {_key_kind(key)}, not an Ed25519 key; record signatures use Ed25519"
-        raise SigningError(msg)
+        raise _not_ed25519(key, file)
     return key
 
 
@@ -264,6 +262,11 @@ def _read_key_file(file: Path, kind: str) -> bytes:
     except OSError as error:
         msg = f"cannot read the {kind} file {file}: {error.strerror or error}"
         raise SigningError(msg) from None
+
+
+def _not_ed25519(key: object, file: Path) -> SigningError:
+    msg = f"{file} holds {_key_kind(key)}, not an Ed25519 key; record signatures use Ed25519"
+    return SigningError(msg)
 
 
 def _key_kind(key: object) -> str:
