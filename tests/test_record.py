@@ -38,8 +38,8 @@ from workbench.record.document import BLOCK_END, BLOCK_START, CSP, compute, rend
 from workbench.record.exporter import RecordExporter, export_file
 from workbench.record.figures import elevation_svg
 from workbench.record.package import build_package
-from workbench.record.signing import write_key_pair
 from workbench.record.verify import verify_package, verify_record, verify_text
+from workbench.signing import write_key_pair
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 from workbench.solver.modes import natural_modes
@@ -749,7 +749,7 @@ def test_manifest_edited_to_match_fails(package: Path, tmp_path: Path) -> None:
     for entry in manifest["files"]:
         if entry["name"] == "results.csv":
             entry["sha256"] = hashlib.sha256(table).hexdigest()
-    from workbench.record.canonical import canonicalize
+    from workbench.signing import canonicalize
 
     zipped = _rewritten(
         package,
@@ -946,9 +946,9 @@ def test_fatigue_diagram_is_drawn_to_its_numbers() -> None:
 
 def _resigned(text: str, private_key_path: Path) -> str:
     """The record with its body as edited, signed again by the same key (a signer who edits)."""
-    from workbench.record.canonical import canonicalize
     from workbench.record.document import content_digest, signature_block
-    from workbench.record.signing import (
+    from workbench.signing import (
+        canonicalize,
         jwk_thumbprint,
         load_private_key,
         public_jwk,
@@ -1005,8 +1005,8 @@ def test_changed_fatigue_factor_fails_verify(feed_record: Path, keys: dict) -> N
 
 def test_results_digest_covers_modes_and_fatigue_and_keeps_old_cases() -> None:
     from workbench.design.checks import check_document
-    from workbench.record.canonical import canonicalize
     from workbench.record.document import _rounded, results_digest
+    from workbench.signing import canonicalize
     from workbench.solver.tables import results_document
 
     plain = compute(LINE_SHAFT_CASE)

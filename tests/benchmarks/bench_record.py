@@ -26,8 +26,8 @@ def run() -> list[Row]:
     from workbench.cli.solve import DEMO_CASE
     from workbench.record.demo import demo_notebook
     from workbench.record.exporter import RecordExporter
-    from workbench.record.signing import generate_key
     from workbench.record.verify import verify_text
+    from workbench.signing import generate_key
 
     case = json.loads(DEMO_CASE.read_text("utf-8"))
     nb = demo_notebook(case, executed=True)

@@ -17,7 +17,7 @@ import pytest
 from tests.browser.lab import CHROMIUM, FLAGS
 from workbench.record.demo import DEMO_TITLE_BLOCK, FEED_DRIVE_CASE, demo_notebook
 from workbench.record.exporter import export_file
-from workbench.record.signing import write_key_pair
+from workbench.signing import write_key_pair
 
 pytestmark = pytest.mark.browser
 

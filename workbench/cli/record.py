@@ -52,7 +52,7 @@ def _add_title_options(parser: argparse.ArgumentParser) -> None:
 
 
 def _command_keygen(arguments: argparse.Namespace) -> int:
-    from workbench.record.signing import (  # noqa: PLC0415
+    from workbench.signing import (  # noqa: PLC0415
         jwk_thumbprint,
         load_private_key,
         write_key_pair,

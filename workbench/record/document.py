@@ -50,8 +50,8 @@ from workbench.case.errors import InputError
 from workbench.design.caution import CAUTION
 from workbench.design.checks import CHECK_QUANTITIES, CheckReport, check_document, run_checks
 from workbench.record.assets import templates_dir
-from workbench.record.canonical import canonicalize
 from workbench.record.notebook import TEXT_FIELDS, TITLE_FIELDS
+from workbench.signing import canonicalize
 from workbench.solver.analysis import Results, solve
 from workbench.solver.io import parse_case
 from workbench.solver.model import Model, Notch
@@ -1451,7 +1451,7 @@ def render_record(
     str
         The record file's text.
     """
-    from workbench.record.signing import jwk_thumbprint, public_jwk, sign_compact  # noqa: PLC0415
+    from workbench.signing import jwk_thumbprint, public_jwk, sign_compact  # noqa: PLC0415
 
     signed_at = signed_at or signing_time()
     signer = signer or str(title_block.get("prepared_by", ""))

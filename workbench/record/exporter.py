@@ -85,7 +85,7 @@ class RecordExporter(HTMLExporter):
         self, nb: Any, resources: dict[str, Any] | None = None, **kw: Any
     ) -> tuple[str, dict[str, Any]]:
         """Build the record of ``nb``; returns ``(record text, resources)``."""
-        from workbench.record.signing import load_private_key  # noqa: PLC0415
+        from workbench.signing import load_private_key  # noqa: PLC0415
 
         resources = self._init_resources(resources)
         path = (resources.get("metadata") or {}).get("path") or ""

@@ -15,8 +15,8 @@ import zipfile
 from pathlib import Path
 from typing import Any
 
-from workbench.record.canonical import canonicalize
 from workbench.record.document import FORMAT, compute
+from workbench.signing import canonicalize
 
 __all__ = ["build_package"]
 
@@ -64,7 +64,7 @@ def build_package(
         When the key cannot be read.
     """
     from workbench.record.exporter import export_file  # noqa: PLC0415
-    from workbench.record.signing import load_private_key, sign_compact  # noqa: PLC0415
+    from workbench.signing import load_private_key, sign_compact  # noqa: PLC0415
 
     notebook = Path(notebook)
     record, resources = export_file(

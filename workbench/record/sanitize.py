@@ -8,10 +8,12 @@ The record's Content-Security-Policy forbids scripts and fetches anyway; the san
 that a second, independent wall.
 
 SVG drawings (``image/svg+xml`` outputs, and ``<svg>`` written inline in HTML or markdown) are
-kept as pictures: each is cleaned (:func:`clean_svg`) and shown as
-``<img src="data:image/svg+xml;base64,…">``. A browser draws an SVG loaded as an image with
-scripting off and without fetching anything it references, so even a drawing that slipped
-through the cleaning could not run or load; the cleaning keeps it inert when opened on its own.
+kept as pictures: each is parsed with defusedxml (no entity expansion, nothing external), written
+back through an allow-list of static SVG (:func:`clean_svg`) and shown as
+``<img src="data:image/svg+xml;base64,…">``; a drawing that cannot be read safely is replaced by
+one line saying why. A browser draws an SVG loaded as an image with scripting off and without
+fetching anything it references, so even a drawing that slipped through the cleaning could not
+run or load; the cleaning keeps it inert when opened on its own.
 
 References
 ----------
@@ -19,6 +21,7 @@ References
 .. [2] OWASP, *Cross Site Scripting Prevention Cheat Sheet*, rules 1–2 and "HTML sanitization".
 .. [3] W3C, *SVG Integration*, Editor's Draft, §3 (the "secure static" and "secure animated"
    processing modes of SVG referenced as an image: no script, no external resources).
+.. [4] OWASP, *XML External Entity Prevention Cheat Sheet* (entity expansion, external entities).
 """
 
 from __future__ import annotations
@@ -27,13 +30,14 @@ import base64
 import binascii
 import re
 import urllib.parse
+from html import escape, unescape
 from xml.etree import ElementTree
 from xml.sax.saxutils import escape as xml_escape
 from xml.sax.saxutils import quoteattr
 
 import nh3
 
-__all__ = ["clean_svg", "sanitize_notebook_html", "svg_data_uri"]
+__all__ = ["clean_svg", "sanitize_notebook_html", "svg_data_uri", "svg_problem"]
 
 _DOCUMENT_TAGS = (set(nh3.ALLOWED_TAGS) | {"tfoot", "section"}) - {"map", "area", "main", "footer"}
 _DROPPED_WITH_CONTENT = {
@@ -76,48 +80,69 @@ _XLINK_NAMESPACE = "http://www.w3.org/1999/xlink"
 _XML_NAMESPACE = "http://www.w3.org/XML/1998/namespace"
 _SVG_DATA = "data:image/svg+xml"
 
-#: SVG elements that run, animate, embed other documents or media: removed with their content.
-_SVG_DROPPED = {
-    "script",
-    "foreignobject",
-    "iframe",
-    "object",
-    "embed",
-    "handler",
-    "listener",
-    "animate",
-    "animatemotion",
-    "animatetransform",
-    "animatecolor",
-    "set",
-    "discard",
-    "audio",
-    "video",
-    "canvas",
-}
-#: What a reference (href, src) inside an SVG may point at: a fragment or an embedded bitmap.
+#: SVG elements kept: static drawing, text, paint servers, clipping, masking and filters.
+#: Anything else (script, foreignObject, animation, media, fonts, metadata…) is left out with
+#: its content.
+_SVG_ELEMENTS = frozenset(
+    """
+    svg g defs symbol use switch title desc a style
+    path rect circle ellipse line polyline polygon text tspan textPath image
+    linearGradient radialGradient stop pattern clipPath mask marker
+    filter feBlend feColorMatrix feComponentTransfer feComposite feConvolveMatrix
+    feDiffuseLighting feDisplacementMap feDistantLight feDropShadow feFlood feFuncA feFuncB
+    feFuncG feFuncR feGaussianBlur feImage feMerge feMergeNode feMorphology feOffset
+    fePointLight feSpecularLighting feSpotLight feTile feTurbulence
+    """.split()  # noqa: SIM905 - read as the SVG index lists them, not 190 lines
+)
+#: Attributes kept (as written out: ``xlink:href``, ``xml:space``). No event handler (``on…``)
+#: is among them; values are checked further in :func:`_attribute_kept`.
+_SVG_ATTRIBUTES = frozenset(
+    """
+    id class style lang xml:lang xml:space role aria-label aria-hidden transform
+    width height viewBox preserveAspectRatio version x y x1 y1 x2 y2 cx cy r rx ry fx fy fr
+    d points pathLength dx dy rotate textLength lengthAdjust startOffset method spacing side
+    href xlink:href offset gradientUnits gradientTransform spreadMethod patternUnits
+    patternContentUnits patternTransform clipPathUnits maskUnits maskContentUnits markerUnits
+    markerWidth markerHeight refX refY orient filterUnits primitiveUnits in in2 result
+    stdDeviation mode operator k1 k2 k3 k4 values type tableValues slope intercept amplitude
+    exponent radius baseFrequency numOctaves seed stitchTiles scale xChannelSelector
+    yChannelSelector order kernelMatrix divisor bias targetX targetY edgeMode kernelUnitLength
+    preserveAlpha surfaceScale diffuseConstant specularConstant specularExponent azimuth
+    elevation z pointsAtX pointsAtY pointsAtZ limitingConeAngle
+    alignment-baseline baseline-shift clip clip-path clip-rule color color-interpolation
+    color-interpolation-filters color-rendering direction display dominant-baseline fill
+    fill-opacity fill-rule filter flood-color flood-opacity font-family font-size
+    font-size-adjust font-stretch font-style font-variant font-weight image-rendering
+    letter-spacing lighting-color marker-start marker-mid marker-end mask opacity overflow
+    paint-order shape-rendering stop-color stop-opacity stroke stroke-dasharray
+    stroke-dashoffset stroke-linecap stroke-linejoin stroke-miterlimit stroke-opacity
+    stroke-width text-anchor text-decoration text-rendering transform-origin unicode-bidi
+    vector-effect visibility word-spacing writing-mode
+    """.split()  # noqa: SIM905 - read as the SVG index lists them, not 190 lines
+)
+#: What a reference (href) inside an SVG may point at: a fragment or an embedded bitmap.
 _SAFE_REFERENCE = re.compile(r"#|data:image/(png|jpeg|gif|webp);base64,[A-Za-z0-9+/=\s]*$", re.I)
-#: CSS that could fetch: url() to anything but a fragment (struck out)…
+#: CSS that could fetch: url() to anything but a fragment (struck out of style sheets)…
 _CSS_URL = re.compile(r"url\(\s*(?!['\"]?#)[^)]*\)", re.I)
 #: …and what a simple pattern cannot follow (escapes, imports, image-set(), src(), the old
 #: expression()): a style sheet or attribute holding any of it is dropped whole.
 _CSS_REFUSED = re.compile(r"\\|@import|image-set|src\s*\(|expression\s*\(", re.I)
 _SVG_TAG = re.compile(r"<(/?)svg\b[^>]*>", re.I)
-
-
-def _local(name: str) -> str:
-    return name.rsplit("}", 1)[-1].lower()
+#: An ``<img>`` whose quoted ``src`` is an SVG data URL (nbconvert writes SVG outputs so).
+_SVG_IMG = re.compile(r"<img\b[^>]*?\ssrc\s*=\s*([\"'])(data:image/svg\+xml[^\"']*)\1[^>]*>", re.I)
 
 
 def clean_svg(svg: str) -> str | None:
     """Clean an SVG document so that it can neither run nor load anything.
 
-    Removes scripts, ``foreignObject``, animation and embedding elements (with their
-    content), every ``on…`` event attribute, every reference (``href``, ``xlink:href``,
-    ``src``) that is not a ``#fragment`` or an embedded bitmap, and CSS that could fetch
-    (``url()`` to anything but a fragment; a style sheet with ``@import``, ``image-set()``,
-    ``src()`` or escapes is dropped whole). Markup is parsed as XML; a document that declares entities (a DTD
-    internal subset) is refused, so nothing expands.
+    The text is parsed with defusedxml, which refuses entity declarations (no "billion
+    laughs") and external references (no external entity or DTD fetch). Only elements and
+    attributes named in an allow-list of static SVG are written back; everything else is left
+    out (elements with their content): scripts, ``foreignObject``, animation, event-handler
+    attributes and any other vocabulary. A reference (``href``, ``xlink:href``) must be a
+    ``#fragment`` or an embedded PNG/JPEG/GIF/WebP; an attribute or style sheet that could fetch
+    (``url()`` to anything but a fragment) is struck out, and one using ``@import``,
+    ``image-set()``, ``src()`` or CSS escapes is dropped whole.
 
     Parameters
     ----------
@@ -127,91 +152,100 @@ def clean_svg(svg: str) -> str | None:
     Returns
     -------
     str or None
-        The cleaned SVG document, or ``None`` when it is not a readable SVG document.
+        The cleaned SVG document, or ``None`` when it is not a readable SVG document
+        (:func:`svg_problem` says why).
+
+    References
+    ----------
+    .. [1] W3C, *Scalable Vector Graphics (SVG) 2*, Candidate Recommendation (2018), element
+       and attribute indexes (the allow-lists).
+    .. [2] OWASP, *XML External Entity Prevention Cheat Sheet* (entity expansion, XXE).
     """
-    if "<!ENTITY" in svg.upper():
-        return None
+    cleaned, _ = _clean_svg(svg)
+    return cleaned
+
+
+def svg_problem(svg: str) -> str | None:
+    """Why :func:`clean_svg` refuses ``svg`` (one line), or ``None`` when it accepts it."""
+    return _clean_svg(svg)[1]
+
+
+def _clean_svg(svg: str) -> tuple[str | None, str | None]:
+    from defusedxml import DefusedXmlException, EntitiesForbidden  # noqa: PLC0415
+    from defusedxml.ElementTree import ParseError, fromstring  # noqa: PLC0415
+
     try:
-        root = ElementTree.fromstring(svg)
-    except ElementTree.ParseError:
-        return None
+        # A DOCTYPE alone is common (drawing programs write SVG 1.1's); entities are not.
+        root = fromstring(svg, forbid_dtd=False, forbid_entities=True, forbid_external=True)
+    except EntitiesForbidden:
+        return None, "it declares XML entities, which could expand without end or read files"
+    except DefusedXmlException:  # ExternalReferenceForbidden: a DTD or entity to fetch
+        return None, "it refers to an external document"
+    except ParseError as error:
+        return None, f"it is not well-formed XML ({error})"
     if root.tag not in ("svg", f"{{{SVG_NAMESPACE}}}svg"):
-        return None
-    _clean_element(root)
+        return None, "it is not an SVG document"
     parts: list[str] = []
     _write(root, parts, top=True)
-    return "".join(parts)
+    return "".join(parts), None
 
 
 def _element_name(tag: str) -> str | None:
-    """The name to write an element under: SVG's own (inline SVG may omit the namespace)."""
+    """The SVG name to write an element under, or ``None`` to leave it out with its content."""
     if tag.startswith(f"{{{SVG_NAMESPACE}}}"):
-        return tag[len(SVG_NAMESPACE) + 2 :]
-    return None if tag.startswith("{") else tag
+        tag = tag[len(SVG_NAMESPACE) + 2 :]
+    return tag if tag in _SVG_ELEMENTS else None  # inline SVG may omit the namespace
 
 
-def _attribute_name(name: str) -> str | None:
+def _attribute_name(name: str) -> str:
     if not name.startswith("{"):
         return name
     namespace, _, local = name[1:].partition("}")
     return {_XLINK_NAMESPACE: "xlink:", _XML_NAMESPACE: "xml:"}.get(namespace, "\x00") + local
 
 
-def _write(element: ElementTree.Element, parts: list[str], top: bool = False) -> None:
-    """Write the element as SVG markup.
+def _attribute_kept(name: str, value: str) -> bool:
+    if name not in _SVG_ATTRIBUTES or _CSS_URL.search(value) or _CSS_REFUSED.search(value):
+        return False
+    return name not in ("href", "xlink:href") or bool(_SAFE_REFERENCE.match(value.strip()))
 
-    Elements and attributes of other vocabularies (editor metadata, RDF) are left out: they
-    draw nothing.
-    """
-    name = _element_name(str(element.tag))
-    if name is None:
+
+def _write(element: ElementTree.Element, parts: list[str], top: bool = False) -> None:
+    """Write the element as SVG markup if the allow-list names it (with its content)."""
+    name = _element_name(str(element.tag))  # comments and processing instructions: no str tag
+    if name is None or not isinstance(element.tag, str):
         return
     attributes = "".join(
         f" {written}={quoteattr(value)}"
         for key, value in element.attrib.items()
-        if (written := _attribute_name(key)) is not None and not written.startswith("\x00")
+        if _attribute_kept(written := _attribute_name(key), value)
     )
     if top:
         attributes = f' xmlns="{SVG_NAMESPACE}" xmlns:xlink="{_XLINK_NAMESPACE}"' + attributes
     parts.append(f"<{name}{attributes}>")
-    if element.text:
-        parts.append(xml_escape(element.text))
-    for child in element:
-        _write(child, parts)
-        if child.tail:
-            parts.append(xml_escape(child.tail))
-    parts.append(f"</{name}>")
-
-
-def _clean_element(element: ElementTree.Element) -> None:
-    if _local(str(element.tag)) == "style":
+    if name == "style":
         # A style sheet is text: markup inside one (a link that markdown made of a URL) is
         # taken back to its text before the fetching parts are struck out.
         text = "".join(element.itertext())
-        for child in list(element):
-            element.remove(child)
-        element.text = "" if _CSS_REFUSED.search(text) else _CSS_URL.sub("none", text)
-    for child in list(element):
-        if not isinstance(child.tag, str) or _local(child.tag) in _SVG_DROPPED:
-            element.remove(child)  # comments, processing instructions, active elements
-            continue
-        _clean_element(child)
-    for name in list(element.attrib):
-        local, value = _local(name), element.attrib[name]
-        if (
-            local.startswith("on")
-            or (local in ("href", "src") and not _SAFE_REFERENCE.match(value.strip()))
-            or (local == "style" and (_CSS_URL.search(value) or _CSS_REFUSED.search(value)))
-        ):
-            del element.attrib[name]
+        parts.append("" if _CSS_REFUSED.search(text) else xml_escape(_CSS_URL.sub("none", text)))
+    else:
+        if element.text:
+            parts.append(xml_escape(element.text))
+        for child in element:
+            _write(child, parts)
+            if child.tail:
+                parts.append(xml_escape(child.tail))
+    parts.append(f"</{name}>")
 
 
 def svg_data_uri(svg: str) -> str | None:
     """``data:image/svg+xml;base64,…`` of the cleaned SVG, or ``None`` when it is unreadable."""
     cleaned = clean_svg(svg)
-    if cleaned is None:
-        return None
-    return _SVG_DATA + ";base64," + base64.b64encode(cleaned.encode("utf-8")).decode("ascii")
+    return None if cleaned is None else _data_uri(cleaned)
+
+
+def _data_uri(cleaned_svg: str) -> str:
+    return _SVG_DATA + ";base64," + base64.b64encode(cleaned_svg.encode("utf-8")).decode("ascii")
 
 
 def _decode_svg_uri(uri: str) -> str | None:
@@ -263,13 +297,23 @@ def _inline_svgs_to_images(html: str) -> str:
     return "".join(pieces)
 
 
-def _svg_image(svg: str) -> str:
-    uri = svg_data_uri(svg)
-    if uri is None:
-        return (
-            '<p class="svg-dropped">[an SVG drawing that could not be read safely is left out]</p>'
-        )
-    return f'<img alt="SVG drawing from the notebook" src="{uri}">'
+def _svg_images_to_clean_images(html: str) -> str:
+    """Replace each ``<img>`` of an SVG data URL by an image of the cleaned drawing or a note.
+
+    Whatever this pattern misses still meets :func:`_attribute_filter`, which cleans the
+    drawing or drops its ``src``.
+    """
+    if "data:image/svg+xml" not in html.lower():
+        return html
+    return _SVG_IMG.sub(lambda match: _svg_image(_decode_svg_uri(unescape(match.group(2)))), html)
+
+
+def _svg_image(svg: str | None) -> str:
+    """An image of the cleaned drawing, or one line saying why the drawing is left out."""
+    cleaned, problem = (None, "its data URL cannot be decoded") if svg is None else _clean_svg(svg)
+    if cleaned is None:
+        return f'<p class="svg-dropped">[an SVG drawing is left out: {escape(str(problem))}]</p>'
+    return f'<img alt="SVG drawing from the notebook" src="{_data_uri(cleaned)}">'
 
 
 def sanitize_notebook_html(html: str) -> str:
@@ -289,7 +333,7 @@ def sanitize_notebook_html(html: str) -> str:
         ``http``/``https``/``mailto`` (following a link is the reader's act, not a fetch).
     """
     return nh3.clean(
-        _inline_svgs_to_images(html),
+        _inline_svgs_to_images(_svg_images_to_clean_images(html)),
         tags=_DOCUMENT_TAGS - _DROPPED_WITH_CONTENT,
         clean_content_tags=_DROPPED_WITH_CONTENT,
         attributes=_ATTRIBUTES,

@@ -119,7 +119,7 @@ def _read_with_key(
         raise InputError(str(file), msg) from None
     public_key = None
     if public_key_path is not None:
-        from workbench.record.signing import load_public_key  # noqa: PLC0415
+        from workbench.signing import load_public_key  # noqa: PLC0415
 
         public_key = load_public_key(public_key_path)
     return data, public_key
@@ -152,7 +152,7 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
     Verification
         Facts and problems; ``ok`` only when all holds.
     """
-    from workbench.record.signing import (  # noqa: PLC0415
+    from workbench.signing import (  # noqa: PLC0415
         SigningError,
         jwk_thumbprint,
         public_key_from_jwk,
@@ -364,7 +364,7 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
     Verification
         Facts and problems; ``ok`` only when all holds.
     """
-    from workbench.record.signing import (  # noqa: PLC0415
+    from workbench.signing import (  # noqa: PLC0415
         SigningError,
         decode_unverified,
         jwk_thumbprint,

@@ -1,13 +1,18 @@
-"""Ed25519 keys and JWS compact signatures for the calculation record.
+"""JWK, JWK thumbprints and JWS compact signatures (EdDSA over Ed25519), through `joserfc`.
 
 The record is signed as a JSON Web Signature (JWS) in compact serialization with the EdDSA
 algorithm over Ed25519. The protected header is ``{"alg": "EdDSA", "kid": <thumbprint>}`` plus
-any extra members, written as canonical JSON (RFC 8785) so the same header always gives the same
-bytes. The key id is the RFC 7638 JWK thumbprint of the public key: the fingerprint a checker
-compares with the one the engineer published.
+any extra members, in sorted order, so the same header always gives the same bytes. The key id
+is the RFC 7638 JWK thumbprint of the public key: the fingerprint a checker compares with the one
+the engineer published.
 
-Key files are PEM: the private key as unencrypted PKCS#8, readable by its owner only, the public
-key as SubjectPublicKeyInfo. A public key may also be read from a JWK JSON file (RFC 8037).
+`joserfc` encodes, signs, verifies and computes thumbprints. It is told the one algorithm
+accepted (EdDSA) on every call; RFC 9864 has since named ``Ed25519`` as the fully specified
+successor of ``EdDSA`` and joserfc warns about the older name, but records carry ``EdDSA``
+(RFC 8037), which every JOSE library reads, so exactly that warning is silenced where joserfc is
+called. This module adds the verifier's own policy — EdDSA only, no ``crit`` extensions, unique
+header members, the key id must be the key's thumbprint, one canonical base64url spelling — and
+says in one line what is wrong with a token that fails.
 
 References
 ----------
@@ -20,61 +25,55 @@ References
 .. [4] M. Jones and N. Sakimura, "JSON Web Key (JWK) Thumbprint", RFC 7638, September 2015, §3.
 .. [5] S. Josefsson, "The Base16, Base32, and Base64 Data Encodings", RFC 4648, October 2006,
    §3.2 (padding), §3.5 (canonical encoding), §5 (base64url).
-.. [6] A. Rundgren, B. Jordan and S. Erdtman, "JSON Canonicalization Scheme (JCS)", RFC 8785,
-   June 2020.
+.. [6] M. Jones, "Fully-Specified Algorithms for JOSE and COSE", RFC 9864, 2025.
 """
 
 from __future__ import annotations
 
-import base64
-import binascii
-import hashlib
 import json
-import os
 import re
-from collections.abc import Mapping
-from pathlib import Path
+import warnings
+from collections.abc import Iterator, Mapping
+from contextlib import contextmanager
+from functools import lru_cache
 from typing import Any
 
-from cryptography.exceptions import InvalidSignature, UnsupportedAlgorithm
-from cryptography.hazmat.primitives import serialization
-from cryptography.hazmat.primitives.asymmetric import ec, ed448, rsa, x448, x25519
 from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey, Ed25519PublicKey
 
 from workbench.case.errors import WorkbenchError
-from workbench.record.canonical import canonicalize
+from workbench.signing.canonical import canonicalize
 
 __all__ = [
-    "PRIVATE_KEY_NAME",
-    "PUBLIC_KEY_NAME",
+    "ALGORITHM",
+    "MAX_PAYLOAD_BYTES",
     "SignatureInvalid",
     "SigningError",
     "b64url_decode",
     "b64url_encode",
     "decode_unverified",
-    "generate_key",
     "jwk_thumbprint",
-    "load_private_key",
-    "load_public_key",
     "public_jwk",
     "public_key_from_jwk",
     "sign_compact",
     "verify_compact",
-    "write_key_pair",
 ]
-
-#: File names :func:`write_key_pair` gives the private and the public key.
-PRIVATE_KEY_NAME = "private.pem"
-PUBLIC_KEY_NAME = "public.pem"
 
 #: The one JWS algorithm accepted: EdDSA (RFC 8037 §3.1), here always over Ed25519.
 ALGORITHM = "EdDSA"
+#: Largest payload signed or verified (bytes): a record holds its whole case, so this is
+#: generous; it bounds what a token can make the verifier decode.
+MAX_PAYLOAD_BYTES = 256 * 1024 * 1024
+_MAX_PAYLOAD_CHARACTERS = -(-MAX_PAYLOAD_BYTES // 3) * 4  # its base64url text, at most
+#: Largest encoded protected header (characters); ours is about 90.
+_MAX_HEADER_CHARACTERS = 8192
+#: What joserfc warns on every use of "EdDSA" (RFC 9864); silenced where it is called, no more.
+_EDDSA_DEPRECATION = "EdDSA is deprecated via RFC 9864"
 
 _ED25519_KEY_BYTES = 32  # RFC 8032 §5.1.5: public key and seed are 32 octets
 _ED25519_SIGNATURE_BYTES = 64  # RFC 8032 §5.1.6
 _BASE64URL_TEXT = re.compile(r"[A-Za-z0-9_-]*")
 # Members sign_compact sets itself, or that would change how the token is to be read
-# (b64 and crit: RFC 7797, RFC 7515 §4.1.11), which this module does not implement.
+# (b64 and crit: RFC 7797, RFC 7515 §4.1.11), which records never use.
 _RESERVED_HEADER_MEMBERS = frozenset({"alg", "kid", "b64", "crit"})
 
 
@@ -84,6 +83,42 @@ class SigningError(WorkbenchError):
 
 class SignatureInvalid(SigningError):  # noqa: N818 - the name the record code uses
     """A JWS token is malformed, uses an algorithm other than EdDSA, or does not verify."""
+
+
+# --- joserfc, told the algorithm ---------------------------------------------------------------
+
+
+@lru_cache(maxsize=1)
+def _registry() -> Any:
+    """A joserfc JWS registry that allows EdDSA only and takes headers of any member names."""
+    from joserfc.jws import JWSRegistry  # noqa: PLC0415 - `workbench solve` never signs
+
+    registry = JWSRegistry(algorithms=[ALGORITHM], strict_check_header=False)
+    registry.max_header_length = _MAX_HEADER_CHARACTERS
+    registry.max_payload_length = _MAX_PAYLOAD_CHARACTERS
+    return registry
+
+
+@contextmanager
+def _eddsa_allowed() -> Iterator[None]:
+    """Silence exactly joserfc's RFC 9864 warning about the name "EdDSA", nothing else.
+
+    ``warnings.catch_warnings`` changes the process-wide filter list while it is active, so
+    signing from several threads at once may let that one warning through; never an error.
+    """
+    from joserfc.errors import SecurityWarning  # noqa: PLC0415
+
+    with warnings.catch_warnings():
+        warnings.filterwarnings(
+            "ignore", message=re.escape(_EDDSA_DEPRECATION), category=SecurityWarning
+        )
+        yield
+
+
+def _okp_key(key: Ed25519PrivateKey | Ed25519PublicKey) -> Any:
+    from joserfc.jwk import OKPKey  # noqa: PLC0415
+
+    return OKPKey.import_key(key)
 
 
 # --- base64url (RFC 4648 §5, no padding) ----------------------------------------------------
@@ -107,7 +142,9 @@ def b64url_encode(data: bytes) -> str:
     .. [1] RFC 4648, §5.
     .. [2] RFC 7515, §2 (Base64url Encoding) and Appendix C.
     """
-    return base64.urlsafe_b64encode(data).rstrip(b"=").decode("ascii")
+    from joserfc.util import urlsafe_b64encode  # noqa: PLC0415
+
+    return urlsafe_b64encode(bytes(data)).decode("ascii")
 
 
 def b64url_decode(text: str, what: str = "value") -> bytes:
@@ -139,6 +176,7 @@ def b64url_decode(text: str, what: str = "value") -> bytes:
     if not isinstance(text, str):
         msg = f"{what} must be base64url text, not {type(text).__name__}"
         raise SigningError(msg)
+    # joserfc decodes; these checks first say what is wrong (it would also take "Zg==").
     if "=" in text:
         msg = f"{what} is padded with '='; JWS base64url carries no padding (RFC 7515 §2)"
         raise SigningError(msg)
@@ -150,257 +188,13 @@ def b64url_decode(text: str, what: str = "value") -> bytes:
     if len(text) % 4 == 1:
         msg = f"{what} has {len(text)} characters, a length no base64url encoding has"
         raise SigningError(msg)
+    from joserfc.util import urlsafe_b64decode  # noqa: PLC0415
+
     try:
-        data = base64.urlsafe_b64decode(text + "=" * (-len(text) % 4))
-    except binascii.Error as error:  # not reached after the checks above; kept as a guard
-        msg = f"{what} is not valid base64url ({error})"
-        raise SigningError(msg) from None
-    if b64url_encode(data) != text:
+        return urlsafe_b64decode(text.encode("ascii"))
+    except ValueError:  # binascii.Error: what is left is a last character with bits set
         msg = f"{what} is not canonical base64url: its unused trailing bits are not zero"
-        raise SigningError(msg)
-    return data
-
-
-# --- keys --------------------------------------------------------------------------------------
-
-
-def generate_key() -> Ed25519PrivateKey:
-    """Make a new Ed25519 private key from the operating system's random source.
-
-    Returns
-    -------
-    Ed25519PrivateKey
-        The new key.
-
-    References
-    ----------
-    .. [1] RFC 8032, §5.1.5 (key generation).
-    """
-    return Ed25519PrivateKey.generate()
-
-
-def write_key_pair(
-    directory: str | os.PathLike[str], private_key: Ed25519PrivateKey | None = None
-) -> tuple[Path, Path]:
-    """Write a key pair to ``directory``, never replacing a key already there.
-
-    Parameters
-    ----------
-    directory
-        Folder to write into; made (owner-only) if missing.
-    private_key
-        Key to write; a new one from :func:`generate_key` when omitted.
-
-    Returns
-    -------
-    tuple of Path
-        ``(private_path, public_path)``: :data:`PRIVATE_KEY_NAME`, unencrypted PKCS#8 PEM with
-        mode 0o600, and :data:`PUBLIC_KEY_NAME`, SubjectPublicKeyInfo PEM with mode 0o644.
-
-    Raises
-    ------
-    SigningError
-        If either file already exists, or a file cannot be written.
-
-    Notes
-    -----
-    The private file is created with ``O_CREAT | O_EXCL`` and its final mode in one call, so it
-    is never readable by others, not even for an instant, and a file (or link) put there in the
-    meantime is not followed or overwritten.
-
-    References
-    ----------
-    .. [1] RFC 5958, "Asymmetric Key Packages" (PKCS#8); RFC 8410, §7 (Ed25519 in PKCS#8) and
-       §4 (SubjectPublicKeyInfo).
-    """
-    folder = Path(directory)
-    private_path = folder / PRIVATE_KEY_NAME
-    public_path = folder / PUBLIC_KEY_NAME
-    for path in (private_path, public_path):
-        if path.exists() or path.is_symlink():
-            msg = (
-                f"{path} already exists; refusing to overwrite a signing key (move it away "
-                "first if you really mean to replace it)"
-            )
-            raise SigningError(msg)
-    key = generate_key() if private_key is None else private_key
-    if not isinstance(key, Ed25519PrivateKey):
-        msg = f"private_key must be an Ed25519 private key, not {type(key).__name__}"
-        raise SigningError(msg)
-    private_pem = key.private_bytes(
-        serialization.Encoding.PEM,
-        serialization.PrivateFormat.PKCS8,
-        serialization.NoEncryption(),
-    )
-    public_pem = key.public_key().public_bytes(
-        serialization.Encoding.PEM, serialization.PublicFormat.SubjectPublicKeyInfo
-    )
-    try:
-        folder.mkdir(mode=0o700, parents=True, exist_ok=True)
-    except OSError as error:
-        msg = f"cannot make the key folder {folder}: {error.strerror or error}"
         raise SigningError(msg) from None
-    _write_new_file(private_path, private_pem, 0o600)
-    try:
-        _write_new_file(public_path, public_pem, 0o644)
-    except SigningError:
-        private_path.unlink()  # no half-written pair: the private key alone is of no use
-        raise
-    return private_path, public_path
-
-
-def _write_new_file(path: Path, content: bytes, mode: int) -> None:
-    flags = os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_NOFOLLOW", 0)
-    try:
-        descriptor = os.open(path, flags, mode)
-    except FileExistsError:
-        msg = f"{path} already exists; refusing to overwrite a signing key"
-        raise SigningError(msg) from None
-    except OSError as error:
-        msg = f"cannot create {path}: {error.strerror or error}"
-        raise SigningError(msg) from None
-    with os.fdopen(descriptor, "wb") as stream:
-        stream.write(content)
-
-
-def load_private_key(
-    path: str | os.PathLike[str], password: bytes | None = None
-) -> Ed25519PrivateKey:
-    """Read an Ed25519 private key from a PEM file (PKCS#8).
-
-    Parameters
-    ----------
-    path
-        The key file, as written by :func:`write_key_pair`.
-    password
-        Pass phrase of an encrypted PKCS#8 file; ``None`` for an unencrypted one.
-
-    Returns
-    -------
-    Ed25519PrivateKey
-        The key.
-
-    Raises
-    ------
-    SigningError
-        If the file is missing or unreadable, is not a PEM private key, needs a (different)
-        password, or holds a key of another type.
-
-    References
-    ----------
-    .. [1] RFC 8410, §7; RFC 5958 (PKCS#8).
-    """
-    file = Path(path)
-    data = _read_key_file(file, "private key")
-    if b"-----BEGIN" not in data:
-        msg = f"{file} is not a PEM file (no '-----BEGIN' line); expected a PKCS#8 private key"
-        raise SigningError(msg)
-    if b"PUBLIC KEY-----" in data and b"PRIVATE KEY-----" not in data:
-        msg = f"{file} holds a public key; signing needs the private key file"
-        raise SigningError(msg)
-    try:
-        key = serialization.load_pem_private_key(data, password=password)
-    except TypeError:
-        msg = (
-            f"{file} is encrypted and no password was given"
-            if password is None
-            else f"{file} is not encrypted; give no password"
-        )
-        raise SigningError(msg) from None
-    except (ValueError, UnsupportedAlgorithm) as error:
-        msg = f"{file} is not a readable PEM private key (or the password is wrong): {error}"
-        raise SigningError(msg) from None
-    if not isinstance(key, Ed25519PrivateKey):
-        msg = f"{file} holds {_key_kind(key)}, not an Ed25519 key; record signatures use Ed25519"
-        raise SigningError(msg)
-    return key
-
-
-def load_public_key(path: str | os.PathLike[str]) -> Ed25519PublicKey:
-    """Read an Ed25519 public key from a PEM (SubjectPublicKeyInfo) or a JWK JSON file.
-
-    Parameters
-    ----------
-    path
-        The key file: PEM as written by :func:`write_key_pair`, or a JSON object with
-        ``kty``, ``crv`` and ``x`` as :func:`public_jwk` gives.
-
-    Returns
-    -------
-    Ed25519PublicKey
-        The key.
-
-    Raises
-    ------
-    SigningError
-        If the file is missing or unreadable, holds a private key, is neither PEM nor a JWK,
-        or holds a key of another type.
-
-    References
-    ----------
-    .. [1] RFC 8410, §4 (SubjectPublicKeyInfo); RFC 8037, §2 (OKP JWK).
-    """
-    file = Path(path)
-    data = _read_key_file(file, "public key")
-    if data.lstrip().startswith(b"{"):
-        try:
-            jwk = json.loads(data.decode("utf-8"))
-        except (UnicodeDecodeError, ValueError) as error:
-            msg = f"{file} starts like JSON but is not valid JSON: {error}"
-            raise SigningError(msg) from None
-        if not isinstance(jwk, dict):
-            msg = f"{file} is JSON but not a JWK object"
-            raise SigningError(msg)
-        try:
-            return public_key_from_jwk(jwk)
-        except SigningError as error:
-            msg = f"{file}: {error}"
-            raise SigningError(msg) from None
-    if b"-----BEGIN" not in data:
-        msg = f"{file} is neither a PEM public key nor a JWK JSON file"
-        raise SigningError(msg)
-    if b"PRIVATE KEY-----" in data:
-        msg = (
-            f"{file} holds a private key; give the public key file (never hand out the private one)"
-        )
-        raise SigningError(msg)
-    try:
-        key = serialization.load_pem_public_key(data)
-    except (ValueError, UnsupportedAlgorithm) as error:
-        msg = f"{file} is not a readable PEM public key: {error}"
-        raise SigningError(msg) from None
-    if not isinstance(key, Ed25519PublicKey):
-        msg = f"{file} holds {_key_kind(key)}, not an Ed25519 key; record signatures use Ed25519"
-        raise SigningError(msg)
-    return key
-
-
-def _read_key_file(file: Path, kind: str) -> bytes:
-    try:
-        return file.read_bytes()
-    except FileNotFoundError:
-        msg = f"no {kind} file at {file}"
-        raise SigningError(msg) from None
-    except IsADirectoryError:
-        msg = f"{file} is a folder, not a {kind} file"
-        raise SigningError(msg) from None
-    except OSError as error:
-        msg = f"cannot read the {kind} file {file}: {error.strerror or error}"
-        raise SigningError(msg) from None
-
-
-def _key_kind(key: object) -> str:
-    kinds = (
-        ((rsa.RSAPrivateKey, rsa.RSAPublicKey), "an RSA key"),
-        ((ec.EllipticCurvePrivateKey, ec.EllipticCurvePublicKey), "an elliptic-curve (ECDSA) key"),
-        ((ed448.Ed448PrivateKey, ed448.Ed448PublicKey), "an Ed448 key"),
-        ((x25519.X25519PrivateKey, x25519.X25519PublicKey), "an X25519 key"),
-        ((x448.X448PrivateKey, x448.X448PublicKey), "an X448 key"),
-    )
-    for classes, label in kinds:
-        if isinstance(key, classes):
-            return label
-    return f"a key of type {type(key).__name__}"
 
 
 # --- JWK (RFC 8037) and thumbprint (RFC 7638) --------------------------------------------------
@@ -431,8 +225,8 @@ def public_jwk(public_key: Ed25519PublicKey) -> dict[str, str]:
     if not isinstance(public_key, Ed25519PublicKey):
         msg = f"expected an Ed25519 public key, not {type(public_key).__name__}"
         raise SigningError(msg)
-    raw = public_key.public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
-    return {"kty": "OKP", "crv": "Ed25519", "x": b64url_encode(raw)}
+    members = _okp_key(public_key).as_dict(private=False)
+    return {name: str(members[name]) for name in ("kty", "crv", "x")}
 
 
 def public_key_from_jwk(jwk: Mapping[str, Any]) -> Ed25519PublicKey:
@@ -459,17 +253,24 @@ def public_key_from_jwk(jwk: Mapping[str, Any]) -> Ed25519PublicKey:
     ----------
     .. [1] RFC 8037, §2.
     """
-    x = _okp_public_bytes(jwk)
+    required = _required_members(jwk)
     if "d" in jwk:
         msg = (
             "JWK holds the private member 'd'; give the public key only (kty, crv, x) and keep "
             "the private one secret"
         )
         raise SigningError(msg)
-    return Ed25519PublicKey.from_public_bytes(x)
+    from joserfc.jwk import OKPKey  # noqa: PLC0415
+
+    key = OKPKey.import_key(required).public_key
+    if not isinstance(key, Ed25519PublicKey):  # _required_members checked the curve
+        msg = f"JWK is not an Ed25519 public key ({type(key).__name__})"
+        raise SigningError(msg)
+    return key
 
 
-def _okp_public_bytes(jwk: Mapping[str, Any]) -> bytes:
+def _required_members(jwk: Mapping[str, Any]) -> dict[str, Any]:
+    """``kty``, ``crv`` and ``x`` of an Ed25519 JWK, checked (RFC 8037 §2, RFC 7638 §3.2)."""
     if not isinstance(jwk, Mapping):
         msg = f"a JWK is a JSON object, not {type(jwk).__name__}"
         raise SigningError(msg)
@@ -487,7 +288,7 @@ def _okp_public_bytes(jwk: Mapping[str, Any]) -> bytes:
     if len(raw) != _ED25519_KEY_BYTES:
         msg = f"JWK member 'x' holds {len(raw)} octets; an Ed25519 public key has 32"
         raise SigningError(msg)
-    return raw
+    return {"crv": crv, "kty": kty, "x": x}
 
 
 def jwk_thumbprint(jwk: Mapping[str, Any] | Ed25519PublicKey) -> str:
@@ -503,8 +304,8 @@ def jwk_thumbprint(jwk: Mapping[str, Any] | Ed25519PublicKey) -> str:
     -------
     str
         base64url (no padding) of SHA-256 over the UTF-8 JSON object of the required members
-        ``crv``, ``kty`` and ``x`` in that (lexicographic) order, without whitespace — the
-        RFC 8785 canonical form of that object. 43 characters.
+        ``crv``, ``kty`` and ``x`` in that (lexicographic) order, without whitespace. 43
+        characters.
 
     Raises
     ------
@@ -518,9 +319,9 @@ def jwk_thumbprint(jwk: Mapping[str, Any] | Ed25519PublicKey) -> str:
     """
     if isinstance(jwk, Ed25519PublicKey):
         jwk = public_jwk(jwk)
-    raw = _okp_public_bytes(jwk)
-    required = {"crv": "Ed25519", "kty": "OKP", "x": b64url_encode(raw)}
-    return b64url_encode(hashlib.sha256(canonicalize(required)).digest())
+    from joserfc.jwk import thumbprint  # noqa: PLC0415
+
+    return str(thumbprint(_required_members(jwk)))
 
 
 # --- JWS compact serialization (RFC 7515) ------------------------------------------------------
@@ -538,13 +339,14 @@ def sign_compact(
     Parameters
     ----------
     payload
-        The octets to sign (the record, already serialized).
+        The octets to sign (the record, already serialized), at most
+        :data:`MAX_PAYLOAD_BYTES`.
     private_key
         The signer's Ed25519 key.
     extra_header
         More protected header members (e.g. ``{"typ": "...", "iat": ...}``). ``alg`` and
         ``kid`` are set here and may not be given; nor may ``b64`` or ``crit``, which would
-        ask the reader for extensions this module does not implement.
+        ask the reader for extensions records never use.
     include_kid
         Put the RFC 7638 thumbprint of the public key in the header as ``kid`` (default). Off
         only to reproduce published examples whose header is ``{"alg":"EdDSA"}`` alone.
@@ -553,19 +355,21 @@ def sign_compact(
     -------
     str
         ``BASE64URL(header) '.' BASE64URL(payload) '.' BASE64URL(signature)``, where the header
-        is the RFC 8785 canonical JSON of the members above. Ed25519 is deterministic, so the
-        same key, header and payload always give the same token.
+        is the JSON object of the members above in sorted order (for ASCII text and integers,
+        as the record's header holds, exactly its RFC 8785 form). Ed25519 is deterministic, so
+        the same key, header and payload always give the same token.
 
     Raises
     ------
     SigningError
-        If the key is not an Ed25519 private key, the payload is not bytes, or the extra
-        header is not a JSON object of names other than the reserved ones, or has no
-        canonical JSON form.
+        If the key is not an Ed25519 private key, the payload is not bytes or is too large, or
+        the extra header is not a JSON object of names other than the reserved ones, has no
+        canonical JSON form, or gives a registered member (``typ``, ``cty``…) a value of the
+        wrong type.
 
     References
     ----------
-    .. [1] RFC 7515, §3.1, §5.1 and §7.1.
+    .. [1] RFC 7515, §3.1, §4.1, §5.1 and §7.1.
     .. [2] RFC 8037, §3.1 (EdDSA signing input and signature).
     .. [3] RFC 8032, §5.1.6 (Ed25519 signing).
     """
@@ -574,6 +378,11 @@ def sign_compact(
         raise SigningError(msg)
     if not isinstance(payload, (bytes, bytearray, memoryview)):
         msg = f"payload must be bytes, not {type(payload).__name__}; encode it first"
+        raise SigningError(msg)
+    if len(payload) > MAX_PAYLOAD_BYTES:
+        msg = (
+            f"payload of {len(payload):,} bytes is more than a record signs ({MAX_PAYLOAD_BYTES:,})"
+        )
         raise SigningError(msg)
     header: dict[str, Any] = {"alg": ALGORITHM}
     if include_kid:
@@ -588,13 +397,30 @@ def sign_compact(
             raise SigningError(msg)
         header.update(extra_header)
     try:
-        header_bytes = canonicalize(header)
+        canonicalize(header)
     except WorkbenchError as error:
         msg = f"the protected header has no canonical JSON form: {error}"
         raise SigningError(msg) from None
-    signing_input = f"{b64url_encode(header_bytes)}.{b64url_encode(bytes(payload))}"
-    signature = private_key.sign(signing_input.encode("ascii"))
-    return f"{signing_input}.{b64url_encode(signature)}"
+    from joserfc.errors import JoseError  # noqa: PLC0415
+    from joserfc.jws import serialize_compact  # noqa: PLC0415
+
+    ordered = {name: header[name] for name in sorted(header)}
+    try:
+        with _eddsa_allowed():
+            token = serialize_compact(
+                ordered,
+                bytes(payload),
+                _okp_key(private_key),
+                algorithms=[ALGORITHM],
+                registry=_registry(),
+            )
+    except JoseError as error:
+        msg = f"the protected header is not valid: {error.description or error}"
+        raise SigningError(msg) from None
+    if token.index(".") > _MAX_HEADER_CHARACTERS:  # verify_compact would refuse the token
+        msg = f"the protected header is longer than {_MAX_HEADER_CHARACTERS} characters encoded"
+        raise SigningError(msg)
+    return str(token)
 
 
 def decode_unverified(token: str) -> tuple[dict[str, Any], bytes]:
@@ -623,7 +449,7 @@ def decode_unverified(token: str) -> tuple[dict[str, Any], bytes]:
     ----------
     .. [1] RFC 7515, §5.2 steps 1–6 and §7.1.
     """
-    header, payload, _, _ = _parse_compact(token)
+    header, payload, _ = _parse_compact(token)
     return header, payload
 
 
@@ -662,7 +488,7 @@ def verify_compact(token: str, public_key: Ed25519PublicKey) -> tuple[dict[str, 
     if not isinstance(public_key, Ed25519PublicKey):
         msg = f"verification needs an Ed25519 public key, not {type(public_key).__name__}"
         raise SigningError(msg)
-    header, payload, signing_input, signature = _parse_compact(token)
+    header, payload, signature = _parse_compact(token)
     alg = header.get("alg")
     if alg == "none":
         msg = "JWS is unsigned (alg 'none'); unsigned tokens are never accepted"
@@ -684,19 +510,28 @@ def verify_compact(token: str, public_key: Ed25519PublicKey) -> tuple[dict[str, 
     if len(signature) != _ED25519_SIGNATURE_BYTES:
         msg = f"JWS signature has {len(signature)} octets; an Ed25519 signature has 64"
         raise SignatureInvalid(msg)
+    from joserfc.errors import BadSignatureError, JoseError  # noqa: PLC0415
+    from joserfc.jws import deserialize_compact  # noqa: PLC0415
+
     try:
-        public_key.verify(signature, signing_input)
-    except InvalidSignature:
+        with _eddsa_allowed():
+            deserialize_compact(
+                token, _okp_key(public_key), algorithms=[ALGORITHM], registry=_registry()
+            )
+    except BadSignatureError:
         msg = (
             f"JWS signature does not verify with key {thumbprint}: the header or the payload "
             "was changed after signing, or another key signed it"
         )
         raise SignatureInvalid(msg) from None
+    except JoseError as error:
+        msg = f"JWS is not accepted: {error.description or error}"
+        raise SignatureInvalid(msg) from None
     return header, payload
 
 
-def _parse_compact(token: str) -> tuple[dict[str, Any], bytes, bytes, bytes]:
-    """Split and decode a compact JWS: header, payload, signing input, signature."""
+def _parse_compact(token: str) -> tuple[dict[str, Any], bytes, bytes]:
+    """Split and decode a compact JWS: header, payload, signature (one message per fault)."""
     if not isinstance(token, str):
         msg = f"a JWS compact token is text, not {type(token).__name__}"
         raise SignatureInvalid(msg)
@@ -711,6 +546,12 @@ def _parse_compact(token: str) -> tuple[dict[str, Any], bytes, bytes, bytes]:
     if not encoded_header:
         msg = "malformed JWS: the header part is empty"
         raise SignatureInvalid(msg)
+    if len(encoded_header) > _MAX_HEADER_CHARACTERS:
+        msg = f"malformed JWS: the header is longer than {_MAX_HEADER_CHARACTERS} characters"
+        raise SignatureInvalid(msg)
+    if len(encoded_payload) > _MAX_PAYLOAD_CHARACTERS:
+        msg = f"JWS payload is larger than a record signs ({MAX_PAYLOAD_BYTES:,} bytes)"
+        raise SignatureInvalid(msg)
     try:
         header_bytes = b64url_decode(encoded_header, "JWS header")
         payload = b64url_decode(encoded_payload, "JWS payload")
@@ -718,9 +559,7 @@ def _parse_compact(token: str) -> tuple[dict[str, Any], bytes, bytes, bytes]:
     except SigningError as error:
         msg = f"malformed JWS: {error}"
         raise SignatureInvalid(msg) from None
-    header = _parse_header(header_bytes)
-    signing_input = f"{encoded_header}.{encoded_payload}".encode("ascii")
-    return header, payload, signing_input, signature
+    return _parse_header(header_bytes), payload, signature
 
 
 def _parse_header(header_bytes: bytes) -> dict[str, Any]:
@@ -744,7 +583,7 @@ def _parse_header(header_bytes: bytes) -> dict[str, Any]:
 
 def _unique_members(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
     # RFC 7515 §5.2 step 4: header member names must be unique; a second "alg" could make two
-    # readers of one token disagree about what it says.
+    # readers of one token disagree about what it says (joserfc would keep the last one).
     members: dict[str, Any] = {}
     for name, value in pairs:
         if name in members:
