@@ -281,7 +281,7 @@ def fatigue_diagram_svg(
         right_edge=left + plot_width,
         top=top,
         bottom=bottom,
-        curves=[points(to_x(xs), to_y(ys), decimals=2) for xs, ys in curves],
+        curves=[points(to_x(xs).tolist(), to_y(ys).tolist(), decimals=2) for xs, ys in curves],
         legend=[  # (line start, line end, text x, y, text y) of each criterion's entry
             (legend_x, legend_x + 24, legend_x + 30, y, y + drop)
             for y in (top + 6 + number * (font_size + 7) for number in range(5))
