@@ -110,7 +110,7 @@ def fatigue_view(report: CheckReport) -> FatigueView:
     marin: Rows = []
     bases: dict[str, None] = {}
     rows: Rows = []
-    diagrams = []
+    diagrams: list[tuple[str, int, str]] = []
     required = criteria.factor_of_safety
     for point in report.fatigue_points:
         limit = point.endurance_limit

@@ -70,7 +70,7 @@ def results_view(results: Results) -> ResultsView:
             for index, support in enumerate(model.supports)
         ]
         extremes: Rows = []
-        diagrams = []
+        diagrams: list[tuple[str, str]] = []
         for shaft_id, values in result.shafts.items():
             x = units.from_si(values.x, "length")
             torque = units.from_si(values.torque, "torque")

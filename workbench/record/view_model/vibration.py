@@ -174,7 +174,7 @@ def vibration_view(computation: Computation) -> VibrationView:
         )
     discs = [(disc.shaft, float(units.from_si(disc.x, "length"))) for disc in model.discs]
     length = units.label("length")
-    shapes = []
+    shapes: list[tuple[int, str]] = []
     flexible = [mode for mode in range(len(modes)) if not modes.rigid_body[mode]]
     for mode in flexible[:DRAWN_MODES]:
         shafts = []
