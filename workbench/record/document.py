@@ -50,6 +50,7 @@ from workbench.record.render import (
     signature_block,
 )
 from workbench.record.templating import templates_dir
+from workbench.record.view_model import heading, record_sections
 
 __all__ = [
     "BLOCK_END",
@@ -127,7 +128,7 @@ def render_record(
     signer = signer or str(title_block.get("prepared_by", ""))
     jwk = public_jwk(private_key.public_key()) if private_key is not None else None
     fingerprint = jwk_thumbprint(jwk) if jwk is not None else None
-    before, after = render_page(
+    sections = record_sections(
         computation,
         title_block,
         notebook_html,
@@ -135,8 +136,8 @@ def render_record(
         signed_at=signed_at,
         fingerprint=fingerprint,
         case_source=case_source,
-        extra_css=extra_css,
     )
+    before, after = render_page(sections, heading(title_block, computation.model), extra_css)
     payload = {
         "format": FORMAT,
         "format_version": FORMAT_VERSION,

@@ -29,6 +29,28 @@ __all__ = [
 ]
 
 
+def _stacked(
+    width: int, top: float, count: int, panel_height: int, gap: int, font_size: float
+) -> dict[str, Any]:
+    """The frame of a drawing of stacked panels: size, fonts, where the panels and x axis go (px).
+
+    Room is left for the values on the left (74 px) and a margin on the right (14 px).
+    """
+    left, right = 74, 14
+    plot_width = width - left - right
+    return {
+        "left": left,
+        "right_edge": left + plot_width,
+        "plot_width": plot_width,
+        "panel_height": panel_height,
+        "bottom": top + count * (panel_height + gap) - gap + font_size + 3,
+        "centre_x": left + plot_width / 2,
+        "font_family": FONT_FAMILY,
+        "font_size": font_size,
+        "width": width,
+    }
+
+
 def line_diagram_svg(
     x: Sequence[float],
     panels: Sequence[tuple[str, Sequence[float]]],
@@ -57,11 +79,12 @@ def line_diagram_svg(
     str
         An SVG document with a polyline per panel, a zero line, and the extreme values.
     """
-    left, right, top, gap = 74, 14, 8, 26
+    top, gap = 8, 26
+    frame = _stacked(width, top, len(panels), panel_height, gap, font_size)
+    left, plot_width = frame["left"], frame["plot_width"]
     xs = np.asarray(x, dtype=float)
     x_min, x_max = float(xs.min()), float(xs.max())
     span = x_max - x_min or 1.0
-    plot_width = width - left - right
     screen_x = left + (xs - x_min) / span * plot_width
     drawn = []
     for number, (label, raw_values) in enumerate(panels):
@@ -90,17 +113,9 @@ def line_diagram_svg(
         )
     return render(
         "svg/line_diagram.svg.j2",
-        width=width,
+        **frame,
         height=top + len(panels) * (panel_height + gap) + 16,
-        font_family=FONT_FAMILY,
-        font_size=font_size,
-        left=left,
-        right_edge=left + plot_width,
-        plot_width=plot_width,
-        panel_height=panel_height,
         panels=drawn,
-        bottom=top + len(panels) * (panel_height + gap) - gap + font_size + 3,
-        centre_x=left + plot_width / 2,
         x_min=nice(x_min),
         x_max=nice(x_max),
         x_label=x_label,
@@ -140,9 +155,10 @@ def mode_shape_svg(
         −1 … 1, so the shafts' amplitudes compare directly (a gear's ratio shows as a step in
         amplitude from one shaft to the next).
     """
-    left, right, top, gap = 74, 14, font_size + 10, 22
+    top, gap = font_size + 10, 22
+    frame = _stacked(width, top, len(shafts), panel_height, gap, font_size)
+    left, plot_width = frame["left"], frame["plot_width"]
     longest = max((float(max(x)) for _, x, _ in shafts if len(x)), default=1.0) or 1.0
-    plot_width = width - left - right
     drawn = []
     for number, (shaft_id, xs, angles) in enumerate(shafts):
         y0 = top + number * (panel_height + gap)
@@ -175,19 +191,11 @@ def mode_shape_svg(
         )
     return render(
         "svg/mode_shape.svg.j2",
-        width=width,
+        **frame,
         height=int(top + len(shafts) * (panel_height + gap) + font_size + 6),
-        font_family=FONT_FAMILY,
-        font_size=font_size,
         title=title,
         title_y=font_size + 2,
-        left=left,
-        right_edge=left + plot_width,
-        plot_width=plot_width,
-        panel_height=panel_height,
         shafts=drawn,
-        bottom=top + len(shafts) * (panel_height + gap) - gap + font_size + 3,
-        centre_x=left + plot_width / 2,
         longest=nice(longest),
         x_label=x_label,
     )

@@ -19,7 +19,7 @@ from markupsafe import Markup
 from workbench.record.canonical import canonicalize
 from workbench.record.computation import Computation
 from workbench.record.templating import record_css, render
-from workbench.record.view_model import Section, heading, record_sections, verified_sections
+from workbench.record.view_model import Section, record_sections, verified_sections
 
 __all__ = [
     "BLOCK_END",
@@ -72,39 +72,27 @@ def render_body(
     return render("body.html.j2", sections=sections)
 
 
-def render_page(
-    computation: Computation,
-    title_block: Mapping[str, Any],
-    notebook_html: str,
-    *,
-    signer: str,
-    signed_at: str,
-    fingerprint: str | None,
-    case_source: str,
-    extra_css: str = "",
-) -> tuple[str, str]:
+def render_page(sections: list[Section], title: Any, extra_css: str = "") -> tuple[str, str]:
     """The whole page but its signature block: ``(text before the block, text after it)``.
 
-    ``extra_css`` (the notebook cells' stylesheets) comes from nbconvert's templates, never
-    from the notebook.
+    Parameters
+    ----------
+    sections
+        From :func:`workbench.record.view_model.record_sections`.
+    title
+        The page's title (the record's heading).
+    extra_css
+        The notebook cells' stylesheets, from nbconvert's templates (never from the notebook).
     """
     css = (extra_css + "\n" + record_css()) if extra_css else record_css()
     page = render(
         "record.html.j2",
-        title=heading(title_block, computation.model),
+        title=title,
         # Marked safe here only: the policy is our constant (its quotes must stay quotes), and
         # the stylesheets are ours and nbconvert's, read from installed templates.
         csp=Markup(CSP),
         css=Markup(css),
-        sections=record_sections(
-            computation,
-            title_block,
-            notebook_html,
-            signer=signer,
-            signed_at=signed_at,
-            fingerprint=fingerprint,
-            case_source=case_source,
-        ),
+        sections=sections,
         signature_block=_BLOCK_PLACE,
     )
     before, _, after = page.rpartition(_BLOCK_PLACE)
