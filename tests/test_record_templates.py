@@ -210,6 +210,18 @@ def test_the_markup_check_finds_markup(tmp_path: Path) -> None:
     assert found == ["<td>", '<tr class="x">']
 
 
+def test_no_record_template_turns_escaping_off() -> None:
+    from workbench.record.templating import environment, templates_dir
+
+    assert environment().autoescape is True
+    folder = templates_dir() / "workbench_record"
+    # index.html.j2 is nbconvert's (the notebook's cells, cleaned afterwards by the sanitizer).
+    ours = [path for path in folder.rglob("*.j2") if path.name != "index.html.j2"]
+    assert len(ours) >= 20
+    opt_out = re.compile(r"\|\s*safe\b|autoescape\s+false|Markup", re.IGNORECASE)
+    assert [path.name for path in ours if opt_out.search(path.read_text("utf-8"))] == []
+
+
 # --- the fatigue section reads the check's own endurance limits ------------------------------
 
 

@@ -2,10 +2,11 @@
 
 Everything is rendered by the one autoescaped environment of
 :mod:`workbench.record.templating` from the view models of :mod:`workbench.record.view_model`.
-Three things pass unescaped, each marked safe in exactly one place, with the reason there: the
+Four things pass unescaped, each marked safe in exactly one place, with the reason there: the
 page's stylesheets and policy (:func:`render_page`), the sanitized notebook cells
-(:func:`workbench.record.view_model.record_sections`) and the JSON inside the signature
-block's script elements (:func:`signature_block`).
+(:func:`workbench.record.view_model.record_sections`), the drawings' ``data:`` URIs
+(:func:`workbench.record.drawing.data_uri`) and the JSON inside the signature block's script
+elements (:func:`signature_block`).
 """
 
 from __future__ import annotations
