@@ -1005,7 +1005,7 @@ def test_changed_fatigue_factor_fails_verify(feed_record: Path, keys: dict) -> N
 
 def test_results_digest_covers_modes_and_fatigue_and_keeps_old_cases() -> None:
     from workbench.design.checks import check_document
-    from workbench.record.document import _rounded, results_digest
+    from workbench.record.computation import digest_rounded, results_digest
     from workbench.signing import canonicalize
     from workbench.solver.tables import results_document
 
@@ -1015,7 +1015,7 @@ def test_results_digest_covers_modes_and_fatigue_and_keeps_old_cases() -> None:
         "results": results_document(plain.results),
         "checks": check_document(plain.report),
     }
-    expected = "sha256:" + hashlib.sha256(canonicalize(_rounded(document))).hexdigest()
+    expected = "sha256:" + hashlib.sha256(canonicalize(digest_rounded(document))).hexdigest()
     assert plain.results_digest == expected  # a static case signs what it always signed
     feed = compute(FEED_DRIVE_CASE)
     assert feed.modes is not None and feed.report.fatigue_points

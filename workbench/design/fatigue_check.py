@@ -65,6 +65,11 @@ class FatiguePoint:
         Kfs applied there.
     basis
         How the endurance limit was found.
+    endurance_limit
+        The segment's own corrected endurance limit (its diameter and material, every Marin
+        factor with its basis), as the check computed it. At a shoulder whose smaller side is
+        the previous segment the cycle is checked against that side's limit instead
+        (``factors.endurance_shear``).
     """
 
     shaft: str
@@ -73,6 +78,7 @@ class FatiguePoint:
     factors: FatigueResult
     concentration: float
     basis: str
+    endurance_limit: EnduranceLimit
 
 
 def _round_outer_diameter(segment: Segment) -> float | None:
@@ -156,7 +162,7 @@ def fatigue_checks(
                 notes.append(
                     f"{shaft.id} segment {number}, fatigue: a Marin factor is outside its data; {limit.basis}"
                 )
-            points.append(FatiguePoint(shaft.id, number, x, outcome, kfs, basis))
+            points.append(FatiguePoint(shaft.id, number, x, outcome, kfs, basis, own[0]))
             for kind, factor_of_safety in (
                 ("fatigue", outcome.factor_of_safety(criteria.criterion)),
                 ("first_cycle_yield", outcome.first_cycle_yield),

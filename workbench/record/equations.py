@@ -36,7 +36,7 @@ from pathlib import Path
 from typing import Any
 
 from workbench.case.errors import InputError
-from workbench.record.assets import templates_dir
+from workbench.record.templating import TEMPLATE_NAME, templates_dir
 
 __all__ = ["EQUATIONS", "Equation", "equation_file", "equations_dir", "load_equations", "main"]
 
@@ -200,7 +200,7 @@ EQUATIONS: tuple[Equation, ...] = (
 
 def equations_dir() -> Path:
     """The folder of the shipped equation pictures (beside the record template)."""
-    return templates_dir() / "workbench_record" / "static" / "equations"
+    return templates_dir() / TEMPLATE_NAME / "static" / "equations"
 
 
 def equation_file(equation: Equation) -> str:
@@ -239,11 +239,13 @@ def render_equation(tex: str, size: float = EQUATION_SIZE) -> str:
 
 
 def _size_pt(svg: str) -> tuple[float, float]:
-    head = svg[svg.index("<svg") : svg.index(">", svg.index("<svg"))]
+    """Width and height (pt) of a picture matplotlib drew (build time: our own output)."""
+    from xml.etree import ElementTree  # noqa: PLC0415
+
+    root = ElementTree.fromstring(svg)  # matplotlib's output, never a reader's file
 
     def attribute(name: str) -> float:
-        start = head.index(f' {name}="') + len(name) + 3
-        return float(head[start : head.index('"', start)].removesuffix("pt"))
+        return float(root.get(name, "").removesuffix("pt"))
 
     return attribute("width"), attribute("height")
 

@@ -16,10 +16,10 @@ from typing import Any
 from nbconvert.exporters import HTMLExporter
 from traitlets import Bool, Dict, Unicode, default
 
-from workbench.record.assets import templates_dir
 from workbench.record.document import compute, render_record
 from workbench.record.notebook import find_case, has_case_output, title_block_from
 from workbench.record.sanitize import sanitize_notebook_html
+from workbench.record.templating import templates_dir
 
 __all__ = ["RecordExporter", "execute_notebook"]
 

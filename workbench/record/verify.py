@@ -32,6 +32,7 @@ import zipfile
 import zlib
 from collections import Counter
 from dataclasses import dataclass, field
+from html.parser import HTMLParser
 from pathlib import Path
 from typing import Any
 
@@ -39,16 +40,12 @@ from workbench.case.errors import InputError, WorkbenchError
 from workbench.record.document import (
     BLOCK_END,
     BLOCK_START,
-    DOCUMENT_END,
     FORMAT,
-    _checks_html,
-    _results_html,
-    _section,
     compute,
     content_digest,
-    extra_sections,
     signature_block,
 )
+from workbench.record.render import document_end, render_sections
 
 __all__ = [
     "PACKAGE_FORMAT",
@@ -71,13 +68,54 @@ MANIFEST, MANIFEST_SIGNATURE, RECORD, CASE = (
 #: Largest member read from a package (bytes): a guard against a zip that inflates without end.
 MAX_MEMBER_BYTES = 256 * 1024 * 1024
 
-_TOKEN = re.compile(
-    r'<script type="application/jose" id="record-signature">([A-Za-z0-9_.-]*)</script>'
-)
-_JWK = re.compile(
-    r'<script type="application/jwk\+json" id="record-public-key">(\{[^<]*\})</script>'
-)
-_PAYLOAD = re.compile(r'<script type="application/json" id="record-payload">([^<]*)</script>')
+#: The signature block's data: (element id, type, what its text must match entirely).
+_TOKEN = ("record-signature", "application/jose", re.compile(r"[A-Za-z0-9_.-]*"))
+_JWK = ("record-public-key", "application/jwk+json", re.compile(r"\{[^<]*\}"))
+_PAYLOAD = ("record-payload", "application/json", re.compile(r"[^<]*"))
+
+#: What the verifier says of each section it rebuilds from the case, by the section's id.
+_REBUILT = {
+    "results": "results",
+    "checks": "design checks",
+    "vibration": "torsional vibration section",
+    "fatigue": "fatigue section",
+}
+
+
+class _BlockData(HTMLParser):
+    """The text of every script element of a signature block, by id (the first of each)."""
+
+    def __init__(self, block: str) -> None:
+        super().__init__(convert_charrefs=False)
+        self.scripts: dict[str, tuple[str, str]] = {}
+        self._open: tuple[str, str] | None = None
+        self._text: list[str] = []
+        self.feed(block)
+        self.close()
+
+    def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+        if tag == "script":
+            attributes = dict(attrs)
+            self._open = (attributes.get("id") or "", attributes.get("type") or "")
+            self._text = []
+
+    def handle_data(self, data: str) -> None:
+        if self._open is not None:
+            self._text.append(data)
+
+    def handle_endtag(self, tag: str) -> None:
+        if tag == "script" and self._open is not None:
+            ident, kind = self._open
+            self.scripts.setdefault(ident, (kind, "".join(self._text)))
+            self._open = None
+
+    def get(self, what: tuple[str, str, re.Pattern[str]]) -> str | None:
+        """The text of the script element ``what`` names, when its type and text are right."""
+        ident, kind, pattern = what
+        found = self.scripts.get(ident)
+        if found is None or found[0] != kind or not pattern.fullmatch(found[1]):
+            return None
+        return found[1]
 
 
 @dataclass
@@ -166,7 +204,7 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
     except UnicodeDecodeError:
         problems.append("the file is not UTF-8 text: not a workbench record, or damaged")
         return outcome
-    if not text.endswith(DOCUMENT_END):
+    if not text.endswith(document_end()):
         problems.append(
             "the file does not end the way a record ends (</body></html>): it was cut short "
             "(truncated) or something was appended"
@@ -184,21 +222,20 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
         problems.append("the signature block is malformed (truncated or edited)")
         return outcome
     block, outside = text[start:end], text[:start] + text[end:]
-    if text[end:] != DOCUMENT_END and not problems:
+    if text[end:] != document_end() and not problems:
         problems.append("something follows the signature block besides </body></html>")
 
-    token_match, jwk_match = _TOKEN.search(block), _JWK.search(block)
-    signed = token_match is not None
+    data_in_block = _BlockData(block)
+    token, jwk_text = data_in_block.get(_TOKEN), data_in_block.get(_JWK)
+    signed = token is not None
     jwk: dict[str, Any] | None = None
-    token: str | None = None
     fingerprint: str | None = None
-    if signed and token_match is not None:
-        token = token_match.group(1)
-        if jwk_match is None:
+    if token is not None:
+        if jwk_text is None:
             problems.append("the record's public key (record-public-key) is missing")
             return outcome
         try:
-            jwk = json.loads(jwk_match.group(1))
+            jwk = json.loads(jwk_text)
             embedded = public_key_from_jwk(jwk)
         except (ValueError, SigningError) as error:
             problems.append(f"the embedded public key is unreadable: {error}")
@@ -228,11 +265,11 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
         else:
             outcome.facts.append("Key: matches the public key given")
     else:
-        payload_match = _PAYLOAD.search(block)
-        if payload_match is None:
+        payload_text = data_in_block.get(_PAYLOAD)
+        if payload_text is None:
             problems.append("the record carries neither a signature nor a payload: damaged")
             return outcome
-        payload_bytes = payload_match.group(1).encode("utf-8")
+        payload_bytes = payload_text.encode("utf-8")
         problems.append("the record is UNSIGNED: nothing proves who made it")
     try:
         payload = json.loads(payload_bytes)
@@ -282,18 +319,11 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
             "re-solving the embedded case gives results other than those signed "
             "(results digest mismatch)"
         )
-    sections = [
-        ("results", _section("results", "Results", _results_html(computation))),
-        ("design checks", _section("checks", "Design checks", _checks_html(computation))),
-    ]
-    for section in extra_sections(computation):
-        title = "torsional vibration" if 'id="vibration"' in section else "fatigue"
-        sections.append((f"{title} section", section))
-    for title, section in sections:
+    for ident, section in render_sections(computation):
         if section not in outside:
             problems.append(
-                f"the {title} written in the record differ from those recomputed from the "
-                "embedded case"
+                f"the {_REBUILT[ident]} written in the record differ from those recomputed from "
+                "the embedded case"
             )
     outcome.ok = signed and not problems
     return outcome
@@ -497,12 +527,16 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
 
 
 def _record_key(record: bytes) -> dict[str, Any] | None:
-    """The public key (JWK) a record carries, or ``None``."""
-    match = _JWK.search(record.decode("utf-8", "replace"))
-    if match is None:
+    """The public key (JWK) a record's signature block carries, or ``None``."""
+    text = record.decode("utf-8", "replace")
+    start, end = text.find(BLOCK_START), text.find(BLOCK_END)
+    if start < 0 or end < start:
+        return None
+    jwk_text = _BlockData(text[start:end]).get(_JWK)
+    if jwk_text is None:
         return None
     try:
-        jwk = json.loads(match.group(1))
+        jwk = json.loads(jwk_text)
     except ValueError:
         return None
     return jwk if isinstance(jwk, dict) else None

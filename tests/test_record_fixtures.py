@@ -1,0 +1,67 @@
+"""Records signed by earlier versions of workbench still verify.
+
+The fixtures were exported and signed before the record's markup moved into templates:
+
+* ``record_demo_signed.html``: ``workbench export notebooks/demo.ipynb`` (the bundled press-drive
+  case: two shafts, a gear, distributed torque, discs, a running-speed band, fatigue);
+* ``record_hostile_names_signed.html``: the feed-drive demo case with markup in the title block,
+  a material's name and source, the shaft id, the load-case, combination and speed-band names.
+
+The verifier re-renders the results, checks, vibration and fatigue sections from the signed case
+and looks for them in the file, so these tests fail when the rendering of those sections changes
+by a single byte. The independent reference is the signature itself (jwcrypto checks it too).
+"""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import pytest
+from jwcrypto import jwk as jwcrypto_jwk
+from jwcrypto import jws as jwcrypto_jws
+
+from workbench.record.verify import verify_record, verify_text
+
+FIXTURES = Path(__file__).resolve().parent / "fixtures"
+PUBLIC_KEY = FIXTURES / "record_signer_public.pem"
+RECORDS = ("record_demo_signed.html", "record_hostile_names_signed.html")
+
+
+@pytest.mark.parametrize("name", RECORDS)
+def test_record_signed_before_the_templates_verifies(name: str) -> None:
+    outcome = verify_record(FIXTURES / name, PUBLIC_KEY)
+    assert outcome.ok, outcome.lines()
+    assert outcome.problems == []
+    assert any("every number agrees" in fact for fact in outcome.facts)
+    # The same signature by an independent JOSE library.
+    text = (FIXTURES / name).read_text("utf-8")
+    token = re.search(r'id="record-signature">([^<]+)<', text)
+    assert token is not None
+    checked = jwcrypto_jws.JWS()
+    checked.deserialize(token.group(1))
+    checked.verify(jwcrypto_jwk.JWK.from_pem(PUBLIC_KEY.read_bytes()), alg="EdDSA")
+    assert json.loads(checked.payload)["format"] == "workbench-calculation-record"
+
+
+@pytest.mark.parametrize("name", RECORDS)
+def test_old_record_re_signed_with_a_changed_section_fails(name: str) -> None:
+    """A changed results number is caught (so the test above can fail)."""
+    text = (FIXTURES / name).read_text("utf-8")
+    start = text.index('<table class="reactions">')
+    match = re.compile(r"<td>(\u2212?)(\d)").search(text, text.index("<tbody>", start))
+    assert match is not None
+    flipped = str((int(match.group(2)) + 1) % 10)
+    tampered = text[: match.start(2)] + flipped + text[match.end(2) :]
+    outcome = verify_text(tampered.encode("utf-8"), None)
+    assert not outcome.ok
+    assert any("content was altered" in line for line in outcome.problems)
+
+
+def test_hostile_fixture_holds_its_markup_as_text() -> None:
+    text = (FIXTURES / "record_hostile_names_signed.html").read_text("utf-8")
+    assert "<script>alert(1)</script>" not in text
+    assert "<img src=x" not in text
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in text
+    assert "&#34;&gt;&lt;img src=x onerror=alert(2)&gt;" in text

@@ -1,0 +1,135 @@
+"""The record as plain data: one view model per section, in the order the record shows them.
+
+Each section is a :class:`Section` — its anchor id, its heading and its view (strings already
+formatted in the case's units, numbers, lists, small dataclasses) — rendered by the template
+``sections/<id>.html.j2``. No markup is written here; the templates escape every value.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+from typing import Any
+
+from markupsafe import Markup
+
+import workbench
+from workbench.design.caution import CAUTION
+from workbench.record.computation import Computation
+from workbench.record.view_model.checks import checks_view
+from workbench.record.view_model.common import equations
+from workbench.record.view_model.fatigue import fatigue_view
+from workbench.record.view_model.front import (
+    SignatureView,
+    heading,
+    purpose_view,
+    revisions_view,
+    title_view,
+)
+from workbench.record.view_model.hand_check import hand_check_view
+from workbench.record.view_model.inputs import inputs_view
+from workbench.record.view_model.results import results_view
+from workbench.record.view_model.vibration import vibration_view
+
+__all__ = ["Section", "heading", "record_sections", "verified_sections"]
+
+
+@dataclass(frozen=True)
+class Section:
+    """One section of the record.
+
+    Attributes
+    ----------
+    ident
+        Its ``id`` in the page (also the name of its template).
+    title
+        Its heading.
+    view
+        What its template shows.
+    """
+
+    ident: str
+    title: str
+    view: Any
+
+    @property
+    def template(self) -> str:
+        """The section's template, below ``templates/workbench_record/``."""
+        return f"sections/{self.ident}.html.j2"
+
+
+def extra_sections(computation: Computation) -> list[Section]:
+    """The torsional vibration and fatigue sections, when the case asks for them."""
+    out = []
+    if computation.modes is not None or computation.modes_error is not None:
+        out.append(Section("vibration", "Torsional vibration", vibration_view(computation)))
+    if computation.report.design.fatigue is not None:
+        out.append(Section("fatigue", "Fatigue", fatigue_view(computation.report)))
+    return out
+
+
+def verified_sections(computation: Computation) -> list[Section]:
+    """The sections the verifier rebuilds from the signed case (results, checks, vibration…)."""
+    return [
+        Section("results", "Results", results_view(computation.results)),
+        *extra_sections(computation),
+        Section("checks", "Design checks", checks_view(computation.report)),
+    ]
+
+
+def record_sections(
+    computation: Computation,
+    title_block: Mapping[str, Any],
+    notebook_html: str,
+    *,
+    signer: str,
+    signed_at: str,
+    fingerprint: str | None,
+    case_source: str,
+) -> list[Section]:
+    """Every section of the record, in order.
+
+    Parameters
+    ----------
+    computation
+        From :func:`workbench.record.computation.compute`.
+    title_block
+        The notebook's title block (with the command line's fields over it).
+    notebook_html
+        The notebook's cells, already sanitized by :mod:`workbench.record.sanitize`.
+    signer, signed_at, fingerprint
+        Who signs, when (ISO 8601 UTC) and the key's thumbprint (``None``: unsigned).
+    case_source
+        Where the case came from (``cell output`` or ``case file …``).
+    """
+    model, report = computation.model, computation.report
+    hand_check, hand_warnings = hand_check_view(computation.results)
+    warnings = [*report.notes, *hand_warnings]
+    failing = [check for check in report.checks if not check.passes]
+    if failing:
+        warnings.append(f"{len(failing)} check(s) fail; see Design checks")
+    if fingerprint is None:
+        warnings.append("the record is UNSIGNED")
+    results, *extra, checks = verified_sections(computation)
+    return [
+        Section("title", "Title block", title_view(title_block, model, fingerprint is not None)),
+        Section("purpose", "Purpose and scope", purpose_view(title_block, model)),
+        Section("inputs", "Inputs", inputs_view(model, report.design)),
+        Section("method", "Method and assumptions", equations("statics")),
+        results,
+        *extra,
+        checks,
+        Section("hand-check", "Independent hand check", hand_check),
+        Section("warnings", "Warnings", warnings),
+        Section("caution", "Caution", CAUTION),
+        Section("revisions", "Revision history", revisions_view(title_block)),
+        Section("signature", "Signature", SignatureView(signer, signed_at, fingerprint)),
+        Section(
+            "software",
+            "Software",
+            {"version": workbench.__version__, "case_source": case_source},
+        ),
+        # The one place the notebook's cells pass unescaped: they are HTML, already cleaned by
+        # workbench.record.sanitize (an allow-list; no script, style, event handler or fetch).
+        Section("notebook", "Notebook", Markup(notebook_html)),
+    ]
