@@ -30,12 +30,14 @@ import base64
 import binascii
 import re
 import urllib.parse
-from html import escape, unescape
+from html import unescape
 from xml.etree import ElementTree
 from xml.sax.saxutils import escape as xml_escape
 from xml.sax.saxutils import quoteattr
 
 import nh3
+
+from workbench.record.templating import render
 
 __all__ = ["clean_svg", "sanitize_notebook_html", "svg_data_uri", "svg_problem"]
 
@@ -312,8 +314,8 @@ def _svg_image(svg: str | None) -> str:
     """An image of the cleaned drawing, or one line saying why the drawing is left out."""
     cleaned, problem = (None, "its data URL cannot be decoded") if svg is None else _clean_svg(svg)
     if cleaned is None:
-        return f'<p class="svg-dropped">[an SVG drawing is left out: {escape(str(problem))}]</p>'
-    return f'<img alt="SVG drawing from the notebook" src="{_data_uri(cleaned)}">'
+        return render("notebook/svg_drawing.html.j2", problem=str(problem), data_uri="")
+    return render("notebook/svg_drawing.html.j2", problem=None, data_uri=_data_uri(cleaned))
 
 
 def sanitize_notebook_html(html: str) -> str:
