@@ -116,14 +116,21 @@ def twist_rate_limit(design: DesignCriteria, diameter: float | None) -> tuple[fl
     return None
 
 
-def _circular_diameter(segment: Segment, fraction: float) -> tuple[float, float] | None:
-    """(outer, bore) diameters of a one-layer circular segment at a fraction, else None."""
+#: Fractions of a segment's length where the details' diameters are read: start, middle, end.
+_PROFILE_FRACTIONS = np.array([0.0, 0.5, 1.0])
+
+
+def _round_profile(segment: Segment) -> list[tuple[float, float]] | None:
+    """(outer, bore) diameters (m) of a one-layer round segment at its start, middle and end.
+
+    ``None`` for a layered or non-circular segment.
+    """
     if len(segment.layers) != 1 or not segment.layers[0].section.circular:
         return None
     section = segment.layers[0].section
-    outer = 2.0 * float(section.outer_radius_at(np.array([fraction]))[0])
-    bore = 2.0 * float(section.inner_radius_at(np.array([fraction]))[0])
-    return outer, bore
+    outer = 2.0 * section.outer_radius_at(_PROFILE_FRACTIONS)
+    bore = 2.0 * section.inner_radius_at(_PROFILE_FRACTIONS)
+    return list(zip(outer.tolist(), bore.tolist(), strict=True))
 
 
 def _nominal_stress_factor(outer: float, bore: float) -> float:
@@ -208,6 +215,7 @@ class _Preparation:
         self.twist_limit = np.full(count, np.nan)
         self.notes = [[""] * count for _ in STATIC_KINDS]
         self.layer_notes: list[tuple[str, ...]] = []
+        self.profiles = [_round_profile(segment) for *_, segment in self.segments]
         self.report_notes: list[str] = []
         self._allowables: dict[int, Allowable] = {}
 
@@ -229,7 +237,7 @@ class _Preparation:
             shaft = model.shafts[shaft_number]
             self._layers(index, shaft.boundaries[number], segment)
             with field_path(f"shafts[{shaft_number}].segments[{number}]"):
-                self._shoulder(index, shaft.id, number, shaft.segments)
+                self._shoulder(index, shaft.id, number, shaft.segments[number])
                 self._body_details(index, shaft.id, number, segment)
             self._twist(index, shaft.id, number, segment)
         limits = self.design.rotation_limits
@@ -302,23 +310,21 @@ class _Preparation:
         self.nominal[kind, index] = nominal
         self.notes[1 + kind][index] = note
 
-    def _shoulder(self, index: int, shaft: str, number: int, segments: tuple[Segment, ...]) -> None:
-        segment = segments[number]
+    def _shoulder(self, index: int, shaft: str, number: int, segment: Segment) -> None:
         if segment.fillet_radius is None or number == 0:
             return
-        here = _circular_diameter(segment, 0.0)
-        before = _circular_diameter(segments[number - 1], 1.0)
+        here, before = self.profiles[index], self.profiles[index - 1]
         if here is None or before is None:
             self.report_notes.append(
                 f"{shaft} segment {number}: the shoulder check needs one-layer round "
                 "segments on both sides; not checked"
             )
             return
-        small, big = sorted((here, before), key=lambda pair: pair[0])
+        small, big = sorted((here[0], before[-1]), key=lambda pair: pair[0])
         factor = shoulder_fillet_kts(big[0], small[0], segment.fillet_radius)
         # The nominal stress is that of the smaller diameter under its own torque: the previous
         # segment's last station sits just left of this one's first.
-        if here[0] > before[0]:
+        if here[0][0] > before[-1][0]:
             self.shoulder_station[index] = self.start[index] - 1
         self._detail(_SHOULDER, index, shaft, number, factor, _nominal_stress_factor(*small))
 
@@ -335,9 +341,9 @@ class _Preparation:
                 "Kts stated in the case file",
             )
             raisers.append((_NOTCH, notch.label, stated))
-        middle = _circular_diameter(segment, 0.5)
+        profile = self.profiles[index]
         for kind, what, factor in raisers:
-            if middle is None:
+            if profile is None:
                 self.report_notes.append(
                     f"{shaft} segment {number}: the {what} factor is for one-layer round "
                     "segments; not checked"
@@ -345,20 +351,18 @@ class _Preparation:
                 continue
             # Where along the segment the detail sits is not known: the smallest section's
             # nominal stress (largest stress per torque) governs.
-            largest = max(
-                _nominal_stress_factor(*(_circular_diameter(segment, fraction) or middle))
-                for fraction in (0.0, 0.5, 1.0)
-            )
+            largest = max(_nominal_stress_factor(*diameters) for diameters in profile)
             self._detail(kind, index, shaft, number, factor, largest)
         if segment.cross_hole_diameter is None:
             return
-        if middle is None or middle[1] > 0.0:
+        if profile is None or profile[1][1] > 0.0:
             self.report_notes.append(
                 f"{shaft} segment {number}: the cross-hole factor is for solid round "
                 "shafts; not checked"
             )
             return
-        factor = transverse_hole_kts(segment.cross_hole_diameter, middle[0])
+        middle = profile[1][0]
+        factor = transverse_hole_kts(segment.cross_hole_diameter, middle)
         # The hole's peak is a normal stress σ in a uniaxial state; its equivalent shear stress
         # is σ/√3 (von Mises) or σ/2 (Tresca, used for the other criteria).
         divisor = math.sqrt(3.0) if self.design.shear_criterion == "von_mises" else 2.0
@@ -369,7 +373,7 @@ class _Preparation:
             factor.source,
         )
         self._detail(
-            _CROSS_HOLE, index, shaft, number, equivalent, _nominal_stress_factor(middle[0], 0.0)
+            _CROSS_HOLE, index, shaft, number, equivalent, _nominal_stress_factor(middle, 0.0)
         )
 
     def _twist(self, index: int, shaft: str, number: int, segment: Segment) -> None:

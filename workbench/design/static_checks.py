@@ -194,24 +194,31 @@ class StaticUtilisations:
         (V, R, C, G) its limit (same unit); NaN where the check does not exist.
     station
         (V, R, C, G) the station where the value governs (index into S).
-    x
-        (V, R, C, G) its position (m).
     layer
         (V, R, G) the layer slot whose shear stress governs.
     checked
         (V, C, G) whether the check exists.
     rotation_value, rotation_limit
         (V, R, L) and (V, L): |θ(end) − θ(start)| and its limit (rad).
+    station_x
+        (V, S) the position of every station (m), for :attr:`x`.
     """
 
     value: FloatArray
     limit: FloatArray
     station: IntArray
-    x: FloatArray
     layer: IntArray
     checked: BoolArray
     rotation_value: FloatArray
     rotation_limit: FloatArray
+    station_x: FloatArray
+
+    @property
+    def x(self) -> FloatArray:
+        """(V, R, C, G) where each value governs (m)."""
+        variants = len(self.station)
+        flat = self.station.reshape(variants, -1)
+        return np.take_along_axis(self.station_x, flat, axis=1).reshape(self.station.shape)
 
     @property
     def utilisation(self) -> FloatArray:
@@ -228,12 +235,14 @@ class StaticUtilisations:
 
         NaN only for a variant whose values are all NaN (a variant the batch could not solve).
         """
-        variants = self.value.shape[0]
-        segments = np.fmax.reduce(self.utilisation.reshape(variants, -1), axis=1)
+        # Kinds and segments first, as static_utilisations lays the arrays out in memory: the
+        # reduction is then elementwise over whole (V, R) slabs.
+        by_kind = self.utilisation.transpose(2, 3, 0, 1)
+        slabs = by_kind.reshape(-1, *by_kind.shape[2:])
+        segments = np.fmax.reduce(np.fmax.reduce(slabs, axis=0), axis=-1)
         if self.rotation_value.shape[-1] == 0:
             return segments
-        rotations = np.fmax.reduce(self.rotation_utilisation.reshape(variants, -1), axis=1)
-        return np.fmax(segments, rotations)
+        return np.fmax(segments, np.fmax.reduce(self.rotation_utilisation, axis=(1, 2)))
 
 
 def segment_peaks(values: FloatArray, segment_start: IntArray) -> tuple[FloatArray, IntArray]:
@@ -249,16 +258,39 @@ def segment_peaks(values: FloatArray, segment_start: IntArray) -> tuple[FloatArr
     Returns
     -------
     tuple of numpy.ndarray
-        (..., G) the peaks (same unit) and the index of the station of each (the first one on a
-        tie, as :func:`numpy.argmax`; the segment's first station where the peak is NaN).
+        (..., G) the peaks (same unit) and the index of the station of each: the first one on a
+        tie, and a NaN anywhere in a segment makes its peak NaN at the first NaN, as
+        :func:`numpy.max` and :func:`numpy.argmax` do.
     """
-    stations = values.shape[-1]
-    peaks = np.maximum.reduceat(values, segment_start, axis=-1)
-    counts = np.diff(np.append(segment_start, stations))
-    at_peak = values == np.repeat(peaks, counts, axis=-1)
-    index = np.where(at_peak, np.arange(stations), stations)
-    first = np.minimum.reduceat(index, segment_start, axis=-1)
-    return peaks, np.where(first == stations, segment_start, first)
+    stations_first = np.ascontiguousarray(np.moveaxis(values, -1, 0))
+    peaks, stations = _peaks_by_segment(stations_first, segment_start)
+    return np.moveaxis(peaks, 0, -1), np.moveaxis(stations, 0, -1)
+
+
+def _peaks_by_segment(values: FloatArray, segment_start: IntArray) -> tuple[FloatArray, IntArray]:
+    """:func:`segment_peaks` of (S, ...) values, as (G, ...) arrays.
+
+    The segments' first stations are compared with their second ones, then their third ones…,
+    each step one elementwise pass over every variant and segment at once (a reduction along a
+    short axis, or ``numpy.maximum.reduceat``, is an order of magnitude slower per element).
+    """
+    counts = np.diff(np.append(segment_start, len(values)))
+    peaks = values[segment_start]
+    offsets = np.zeros(peaks.shape, dtype=np.intp)
+    for step in range(1, int(counts.max())):  # stations within the longest segment
+        rows = np.flatnonzero(counts > step)
+        every = len(rows) == len(counts)
+        candidate = values[segment_start[rows] + step]
+        current = peaks if every else peaks[rows]
+        chosen = offsets if every else offsets[rows]
+        better = (candidate > current) | np.isnan(candidate)
+        better &= ~np.isnan(current)
+        np.copyto(current, candidate, where=better)
+        np.copyto(chosen, step, where=better)
+        if not every:
+            peaks[rows], offsets[rows] = current, chosen
+    offsets += segment_start.reshape(-1, *(1,) * (peaks.ndim - 1))
+    return peaks, offsets
 
 
 def static_utilisations(inputs: StaticCheckInputs) -> StaticUtilisations:
@@ -298,99 +330,85 @@ def static_utilisations(inputs: StaticCheckInputs) -> StaticUtilisations:
     0.6
     """
     start = inputs.segment_start
-    magnitude = np.abs(inputs.torque)
-    slots = inputs.stress_per_torque.shape[1]
-    shear, layer, shear_limit, shear_station = _governing_layer(inputs, magnitude, slots)
+    variants, results, _ = inputs.torque.shape
+    segments = len(start)
+    # Stations (then segments) first in memory: a segment's stations are then whole rows.
+    magnitude = np.abs(np.moveaxis(inputs.torque, -1, 0), order="C")  # (S, V, R)
+    by_segment = (len(STATIC_KINDS), segments, variants, results)  # (C, G, V, R)
+    value, limit = np.empty(by_segment), np.empty(by_segment)
+    station = np.empty(by_segment, dtype=np.intp)
 
-    # K·|T|·s_nom along a segment peaks where |T| does: one pass over the stations serves all
-    # four details; the shoulder reads one station's torque instead.
-    torque_peak, torque_station = segment_peaks(magnitude, start)
-    shoulder_torque = np.take_along_axis(magnitude, inputs.shoulder_station[:, None, :], axis=-1)
-    nominal = inputs.nominal_stress_per_torque[:, None, :, :]
-    on_torque = np.stack([shoulder_torque, torque_peak, torque_peak, torque_peak], axis=2)
-    concentrated = inputs.concentration[:, None, :, :] * (on_torque * nominal)
-    concentrated_station = np.stack(
-        [
-            np.broadcast_to(start, torque_station.shape),
-            torque_station,
-            torque_station,
-            torque_station,
-        ],
-        axis=2,
-    )
+    value[0], layer, limit[0], station[0] = _governing_layer(inputs, magnitude)
 
-    twist_checked = ~np.isnan(inputs.twist_rate_limit)
-    if twist_checked.any():
-        rate, rate_station = segment_peaks(magnitude / inputs.torsional_rigidity[:, None, :], start)
-        rate = np.where(twist_checked[:, None, :], rate, np.nan)
-    else:  # no twist limit anywhere: skip the pass over the stations
-        rate, rate_station = np.full_like(torque_peak, np.nan), torque_station
+    # K·|T|·s_nom along a segment peaks where |T| does: one pass over the stations serves the
+    # keyseat, the notch and the cross hole; the shoulder reads one station's torque instead.
+    torque_peak, torque_station = _peaks_by_segment(magnitude, start)
+    shoulder_torque = magnitude[inputs.shoulder_station.T, np.arange(variants)]  # (G, V, R)
+    factor = np.moveaxis(inputs.concentration, 0, -1)[..., None]  # (4, G, V, 1)
+    nominal = np.moveaxis(inputs.nominal_stress_per_torque, 0, -1)[..., None]
+    details = slice(1, 1 + len(CONCENTRATION_KINDS))
+    value[1] = factor[0] * (shoulder_torque * nominal[0])
+    value[2 : details.stop] = factor[1:] * (torque_peak * nominal[1:])
+    station[1] = start[:, None, None]
+    station[2 : details.stop] = torque_station
+    detail_allowable = inputs.allowable[:, 0, :].T[..., None]  # (G, V, 1)
+    limit[details] = np.where(np.isnan(factor), np.nan, detail_allowable)
 
-    value = np.concatenate([shear[:, :, None], concentrated, rate[:, :, None]], axis=2)
+    twist_limit = inputs.twist_rate_limit.T[..., None]  # (G, V, 1)
+    limit[-1] = twist_limit
+    if np.isnan(twist_limit).all():  # no twist limit anywhere: skip the pass over the stations
+        value[-1], station[-1] = np.nan, start[:, None, None]
+    else:
+        rigidity = inputs.torsional_rigidity.T[..., None]  # (S, V, 1)
+        value[-1], station[-1] = _peaks_by_segment(magnitude / rigidity, start)
+        value[-1][np.isnan(limit[-1])] = np.nan
+
     checked = np.concatenate(
         [
-            np.ones_like(twist_checked)[:, None, :],
+            np.ones((variants, 1, segments), dtype=bool),
             ~np.isnan(inputs.concentration),
-            twist_checked[:, None, :],
+            ~np.isnan(inputs.twist_rate_limit)[:, None, :],
         ],
         axis=1,
     )
-    limits_by_segment = np.concatenate(
-        [
-            np.broadcast_to(inputs.allowable[:, None, 0, :], inputs.concentration.shape),
-            inputs.twist_rate_limit[:, None, :],
-        ],
-        axis=1,
-    )
-    limit = np.concatenate(
-        [
-            shear_limit[:, :, None, :],
-            np.broadcast_to(
-                limits_by_segment[:, None], (*shear.shape[:2], *limits_by_segment.shape[1:])
-            ),
-        ],
-        axis=2,
-    )
-    limit = np.where(checked[:, None], limit, np.nan)
-    value = np.where(checked[:, None], value, np.nan)
-    station = np.concatenate(
-        [shear_station[:, :, None], concentrated_station, rate_station[:, :, None]], axis=2
-    )
-    x = np.take_along_axis(
-        inputs.station_x[:, None, :], station.reshape(len(station), 1, -1), axis=-1
-    ).reshape(station.shape)
     rotation = np.abs(
         inputs.angle[..., inputs.rotation_end] - inputs.angle[..., inputs.rotation_start]
     )
+    to_variants_first = (2, 3, 0, 1)  # (C, G, V, R) -> (V, R, C, G), a view
     return StaticUtilisations(
-        value, limit, station, x, layer, checked, rotation, inputs.rotation_limit
+        value.transpose(to_variants_first),
+        limit.transpose(to_variants_first),
+        station.transpose(to_variants_first),
+        np.moveaxis(layer, 0, -1),
+        checked,
+        rotation,
+        inputs.rotation_limit,
+        inputs.station_x,
     )
 
 
 def _governing_layer(
-    inputs: StaticCheckInputs, magnitude: FloatArray, slots: int
+    inputs: StaticCheckInputs, magnitude: FloatArray
 ) -> tuple[FloatArray, IntArray, FloatArray, IntArray]:
-    """(V, R, G) shear stress, layer, allowable and station of the governing layer.
+    """(G, V, R) shear stress, layer slot, allowable and station of the governing layer.
 
-    The layer with the largest utilisation governs; on a tie the lower slot.
+    ``magnitude`` is |T| as (S, V, R). The layer with the largest utilisation governs; on a tie
+    the lower slot.
     """
-    best: tuple[FloatArray, IntArray, FloatArray, IntArray, FloatArray] | None = None
-    for slot in range(slots):  # layer slots, not segments: 1 for one-layer shafts
-        stress, station = segment_peaks(
-            magnitude * inputs.stress_per_torque[:, None, slot, :], inputs.segment_start
-        )
-        allowable = np.broadcast_to(inputs.allowable[:, None, slot, :], stress.shape)
-        utilisation = stress / allowable
-        if best is None:
-            best = (stress, np.zeros(stress.shape, dtype=np.intp), allowable, station, utilisation)
-            continue
-        better = utilisation > best[4]
-        best = (
-            np.where(better, stress, best[0]),
-            np.where(better, slot, best[1]),
-            np.where(better, allowable, best[2]),
-            np.where(better, station, best[3]),
-            np.where(better, utilisation, best[4]),
-        )
-    assert best is not None
-    return best[0], best[1], np.asarray(best[2]), best[3]
+    stress = magnitude * inputs.stress_per_torque[:, 0, :].T[..., None]
+    peak, station = _peaks_by_segment(stress, inputs.segment_start)
+    allowable = np.broadcast_to(inputs.allowable[:, 0, :].T[..., None], peak.shape).copy()
+    layer = np.zeros(peak.shape, dtype=np.intp)
+    utilisation = peak / allowable
+    for slot in range(1, inputs.stress_per_torque.shape[1]):  # layer slots, not segments
+        stress = magnitude * inputs.stress_per_torque[:, slot, :].T[..., None]
+        slot_peak, slot_station = _peaks_by_segment(stress, inputs.segment_start)
+        slot_allowable = inputs.allowable[:, slot, :].T[..., None]
+        slot_utilisation = slot_peak / slot_allowable
+        better = slot_utilisation > utilisation
+        np.copyto(peak, slot_peak, where=better)
+        np.copyto(station, slot_station, where=better)
+        np.copyto(allowable, np.broadcast_to(slot_allowable, peak.shape), where=better)
+        np.copyto(layer, slot, where=better)
+        np.copyto(utilisation, slot_utilisation, where=better)
+    return peak, layer, allowable, station
