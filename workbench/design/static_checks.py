@@ -153,11 +153,6 @@ class StaticCheckInputs:
             msg = "segment_start must rise from 0, each segment holding at least one station"
             raise ValueError(msg)
 
-    @property
-    def n_variants(self) -> int:
-        """V, the number of variants."""
-        return int(self.torque.shape[0])
-
     @classmethod
     def stack(cls, inputs: Sequence[StaticCheckInputs]) -> StaticCheckInputs:
         """The inputs of several variant batches of one topology as one batch.
@@ -346,11 +341,12 @@ def static_utilisations(inputs: StaticCheckInputs) -> StaticUtilisations:
     shoulder_torque = magnitude[inputs.shoulder_station.T, np.arange(variants)]  # (G, V, R)
     factor = np.moveaxis(inputs.concentration, 0, -1)[..., None]  # (4, G, V, 1)
     nominal = np.moveaxis(inputs.nominal_stress_per_torque, 0, -1)[..., None]
-    details = slice(1, 1 + len(CONCENTRATION_KINDS))
+    details = slice(1, 1 + len(CONCENTRATION_KINDS))  # the shoulder, then the body's details
+    body = slice(2, details.stop)
     value[1] = factor[0] * (shoulder_torque * nominal[0])
-    value[2 : details.stop] = factor[1:] * (torque_peak * nominal[1:])
+    value[body] = factor[1:] * (torque_peak * nominal[1:])
     station[1] = start[:, None, None]
-    station[2 : details.stop] = torque_station
+    station[body] = torque_station
     detail_allowable = inputs.allowable[:, 0, :].T[..., None]  # (G, V, 1)
     limit[details] = np.where(np.isnan(factor), np.nan, detail_allowable)
 
