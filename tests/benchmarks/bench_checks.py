@@ -6,6 +6,10 @@ Targets (on the 2-core reference machine):
   solve + checks reported beside it).
 * Sizing 5 segments to R40 preferred sizes, re-solving the whole system at every step:
   ``size_shafts`` median ≤ 200 ms.
+* Every static check of 10,000 variants of a 20-segment shaft with 5 results, judged at once by
+  ``static_utilisations`` on synthetic arrays shaped as a batched solve returns them: median
+  ≤ 500 ms, half of the 1 s a batched diameter sweep may take with its solve (the other half is
+  the batched solve's). The same with one result is reported beside it.
 
 Models are invented demo shafts (for timing only), built on :mod:`tests.benchmarks.common`.
 """
@@ -15,10 +19,13 @@ from __future__ import annotations
 import dataclasses
 from typing import Any
 
+import numpy as np
+
 from tests.benchmarks.common import Row, demo_steel, many_case_model, time_calls
 from workbench.case.design import DesignCriteria, RotationLimit
-from workbench.design.checks import run_checks
+from workbench.design.checks import model_check_inputs, run_checks
 from workbench.design.sizing import SizingRequest, size_shafts
+from workbench.design.static_checks import StaticCheckInputs, static_utilisations
 from workbench.solver.analysis import solve
 from workbench.solver.model import LoadCase, Model, PointTorque, Segment, Shaft, Support
 from workbench.solver.sections import SolidCircle
@@ -115,6 +122,74 @@ def _sizing() -> list[Row]:
     return [Row("5 segments: sizing median", timing.median * MS, "ms", 200.0, notes=(note,))]
 
 
+def variant_batch(variants: int = 10_000, results: int = 5, seed: int = 1) -> StaticCheckInputs:
+    """Synthetic inputs of ``variants`` variants of :func:`checks_model` (20 segments).
+
+    Each variant scales each segment's diameter by its own factor s in [0.8, 1.25]: the stress
+    per unit torque by s⁻³, the rigidity by s⁴; its torques by a factor in [0.5, 1.5] (a stand-in
+    for the split a batched solve would find), and each shoulder's smaller side is drawn. The
+    arrays have the shapes and magnitudes a batched solve of the topology gives.
+    """
+    model = checks_model(cases=results)
+    one = model_check_inputs(solve(model), model.design).inputs
+    rng = np.random.default_rng(seed)
+    segments = len(one.segment_start)
+    stations = one.torque.shape[-1]
+    scale = rng.uniform(0.8, 1.25, (variants, segments))
+    station_scale = np.repeat(scale, np.diff(np.append(one.segment_start, stations)), axis=1)
+
+    def tile(array: Any) -> Any:
+        return np.repeat(array, variants, axis=0)
+
+    previous = np.maximum(one.segment_start - 1, 0)
+    return StaticCheckInputs(
+        segment_start=one.segment_start,
+        torque=tile(one.torque) * rng.uniform(0.5, 1.5, (variants, 1, 1)),
+        station_x=tile(one.station_x),
+        stress_per_torque=tile(one.stress_per_torque) / station_scale[:, None, :] ** 3,
+        allowable=tile(one.allowable),
+        torsional_rigidity=tile(one.torsional_rigidity) * station_scale**4,
+        twist_rate_limit=tile(one.twist_rate_limit),
+        concentration=tile(one.concentration),
+        nominal_stress_per_torque=tile(one.nominal_stress_per_torque) / scale[:, None, :] ** 3,
+        shoulder_station=np.where(
+            rng.random((variants, segments)) < 0.5, one.segment_start, previous
+        ).astype(np.intp),
+        angle=tile(one.angle),
+        rotation_start=one.rotation_start,
+        rotation_end=one.rotation_end,
+        rotation_limit=tile(one.rotation_limit),
+    )
+
+
+def _batch() -> list[Row]:
+    rows = []
+    for results, target in ((5, 500.0), (1, None)):
+        batch = variant_batch(results=results)
+
+        def judge(batch: StaticCheckInputs = batch) -> Any:
+            return static_utilisations(batch).governing_utilisation()
+
+        timing = time_calls(judge, repeats=20, warmup=2, budget=5.0, collect_between=True)
+        variants, _, stations = batch.torque.shape
+        note = (
+            f"{variants:,} variants × {len(batch.segment_start)} segments ({stations} stations), "
+            f"{results} result(s); shear, shoulder, keyseat, cross-hole, twist rate and a rotation "
+            f"limit, and each variant's governing utilisation; {len(timing.times)} timed calls, "
+            f"p95 {timing.p95 * MS:.0f} ms; {timing.median / variants * 1e6:.1f} µs per variant"
+        )
+        rows.append(
+            Row(
+                f"10,000 variants, 20 segments, {results} result(s): static checks median",
+                timing.median * MS,
+                "ms",
+                target,
+                notes=(note,),
+            )
+        )
+    return rows
+
+
 def run() -> list[Row]:
     """Every check and sizing benchmark, in the order of the targets."""
-    return [*_checks(), *_sizing()]
+    return [*_checks(), *_sizing(), *_batch()]

@@ -1,7 +1,8 @@
 """Separation of natural frequencies of torsional vibration from running-speed bands.
 
 The modes come from :func:`workbench.solver.modes.natural_modes`; this module judges them: each
-running-speed band, widened by a margin, against its neighbouring natural frequencies.
+running-speed band, widened by a margin, against its neighbouring natural frequencies, and turns
+the result into the report's ``frequency_separation`` checks (:func:`frequency_checks`).
 
 References
 ----------
@@ -17,11 +18,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from workbench.case.design import DEFAULT_FREQUENCY_MARGIN
+from workbench.case.design import DEFAULT_FREQUENCY_MARGIN, DesignCriteria
 from workbench.case.units import UnitSystem, display_units, quote
+from workbench.design.check_report import Check
 from workbench.design.verdict import WithinLimit
-from workbench.solver.model import OperatingSpeed
-from workbench.solver.modes import Modes
+from workbench.solver.model import Model, OperatingSpeed
+from workbench.solver.modes import DEFAULT_MODE_COUNT, Modes, natural_modes
 from workbench.solver.tables import format_table
 
 
@@ -126,6 +128,111 @@ def separation_note(separation: Separation, margin: float) -> str:
         f"{quote(separation.low, 'speed')} to {quote(separation.high, 'speed')}; once per "
         "revolution"
     )
+
+
+def frequency_checks(
+    model: Model, design: DesignCriteria
+) -> tuple[list[Check], list[str], Modes | None]:
+    """The ``frequency_separation`` checks of a model's running-speed bands.
+
+    Parameters
+    ----------
+    model
+        The validated model (SI), with its ``operating_speeds`` and inertia (discs, densities).
+    design
+        Criteria: the frequency margin and the modal mesh settings.
+
+    Returns
+    -------
+    tuple
+        (checks, notes, modes): one check per mode near each band, the report's notes on them,
+        and the :class:`workbench.solver.modes.Modes` used; ``([], [], None)`` without bands.
+
+    References
+    ----------
+    .. [1] Separation of natural frequencies from running speeds by a margin: common practice,
+       no source (see :func:`workbench.solver.modes.frequency_separations`).
+    """
+    speeds = model.operating_speeds
+    if not speeds:
+        return [], [], None
+    margin = design.frequency_margin
+    token = display_units.set(model.units)  # the notes quote speeds in the case's units
+    try:
+        # The usual count (not 1): for small systems every mode comes at once anyway, and the
+        # report keeps them for charts and records to reuse.
+        modes = natural_modes(
+            model,
+            count=DEFAULT_MODE_COUNT,
+            up_to=max(speed.maximum for speed in speeds) * (1.0 + margin),
+            elements_per_segment=design.modal_elements_per_segment,
+            max_element_length=design.modal_max_element_length,
+        )
+        checks = [
+            Check(
+                separation.speed.name,
+                separation.shaft,
+                None,
+                "frequency_separation",
+                separation.value,
+                separation.limit,
+                separation.x,
+                separation_note(separation, margin),
+            )
+            for separation in frequency_separations(modes, speeds, margin)
+        ]
+    finally:
+        display_units.reset(token)
+    source = (
+        "the default, common practice, no source"
+        if margin == DEFAULT_FREQUENCY_MARGIN
+        else "the case's frequency_margin"
+    )
+    notes = [
+        f"frequency separation: running-speed bands widened by ±{margin:.0%} ({source}), "
+        "excitation once per revolution; shaft and x name where the mode's angle is largest",
+        *modes.notes,
+    ]
+    return checks, notes, modes
+
+
+def frequency_utilisation_ceiling(model: Model, design: DesignCriteria) -> float:
+    """The largest utilisation any ``frequency_separation`` check of the model could have.
+
+    Whatever its natural frequencies: a caller that knows another check's utilisation is at
+    least this can skip the eigen-solve, since no frequency check can govern then.
+
+    Parameters
+    ----------
+    model
+        The model; only its ``operating_speeds`` (rad/s) are read.
+    design
+        Criteria: the frequency margin m.
+
+    Returns
+    -------
+    float
+        0 without bands; else the largest over the bands of max(1, √(high/low)), with
+        low = min·(1 − m) and high = max·(1 + m); ``inf`` when a band starts at 0.
+
+    Notes
+    -----
+    A mode below a widened band has utilisation ω/low ≤ 1, one above it high/ω ≤ 1. One inside
+    it (low < ω < high) is measured from the nearer edge, min(ω/low, high/ω), which is largest,
+    √(high/low), at ω = √(low·high). With low = 0 an inside mode has high/ω, unbounded.
+
+    References
+    ----------
+    .. [1] From the definition of the check, :func:`workbench.solver.modes.frequency_separations`.
+    """
+    ceiling = 0.0
+    margin = design.frequency_margin
+    for speed in model.operating_speeds:
+        low, high = speed.minimum * (1.0 - margin), speed.maximum * (1.0 + margin)
+        if low <= 0.0:
+            return math.inf
+        ceiling = max(ceiling, 1.0, math.sqrt(high / low))
+    return ceiling
 
 
 def modes_text(modes: Modes, margin: float | None = None, units: UnitSystem | None = None) -> str:
