@@ -226,7 +226,10 @@ class SparseFactor:
         try:
             with warnings.catch_warnings():
                 warnings.simplefilter("error", spla.MatrixRankWarning)
-                self._lu = spla.splu(matrix, permc_spec="COLAMD")
+                # Natural order: every variant's block is factored as its own system would be,
+                # the border of multipliers after its band (fill-in stays within the band's
+                # reach of each constrained pair); row pivoting handles the zero diagonal.
+                self._lu = spla.splu(matrix, permc_spec="NATURAL")
         except (RuntimeError, spla.MatrixRankWarning):
             msg = (
                 "the system is singular: the gear meshes form a closed loop whose constraints "
@@ -303,30 +306,41 @@ def with_constraints(
     Returns
     -------
     factor, rhs
-        The factored bordered system and its (n_total, n_cases) right-hand sides, the
-        multipliers after all dofs (variant after variant).
+        The factored bordered system and its (n_total, n_cases) right-hand sides: variant after
+        variant, each variant's dofs then its multipliers (:func:`split_constrained`), so that
+        each variant is factored with the very arithmetic of its own system.
     """
     n_cases, n_variants, n_dofs = rhs.shape
     n_constraints = len(constraint_dofs)
+    block = n_dofs + n_constraints  # each variant's dofs, then its multipliers
     coefficients = np.broadcast_to(coefficients, (n_variants, n_constraints, 2))
     known = np.broadcast_to(known, (n_variants, n_constraints, 2))
     free = np.isnan(known)
-    dof = np.arange(n_variants)[:, None, None] * n_dofs + constraint_dofs[None]
-    multiplier = n_variants * n_dofs + np.arange(n_variants * n_constraints).reshape(
-        n_variants, n_constraints
-    )
-    multiplier = np.broadcast_to(multiplier[..., None], dof.shape)
+    first = np.arange(n_variants)[:, None, None] * block
+    dof = first + constraint_dofs[None]
+    multiplier = np.broadcast_to(first + n_dofs + np.arange(n_constraints)[:, None], dof.shape)
     base = band_to_sparse(band)
-    rows = np.concatenate([base.row, dof[free], multiplier[free]])
-    cols = np.concatenate([base.col, multiplier[free], dof[free]])
+    # Band numbering (variant · n_dofs + dof) to the bordered numbering (variant · block + dof).
+    base_row = base.row + (base.row // n_dofs) * n_constraints
+    base_col = base.col + (base.col // n_dofs) * n_constraints
+    rows = np.concatenate([base_row, dof[free], multiplier[free]])
+    cols = np.concatenate([base_col, multiplier[free], dof[free]])
     values = np.concatenate([base.data, coefficients[free], coefficients[free]])
-    size = n_variants * (n_dofs + n_constraints)
+    size = n_variants * block
     matrix = sp.csc_matrix((values, (rows, cols)), shape=(size, size))
     constraint_rhs = -np.where(free, 0.0, coefficients * np.nan_to_num(known)).sum(axis=2)
-    full = np.empty((size, n_cases))
-    full[: n_variants * n_dofs] = rhs.reshape(n_cases, -1).T
-    full[n_variants * n_dofs :] = constraint_rhs.reshape(-1)[:, None]
-    return SparseFactor(matrix), full
+    full = np.empty((n_variants, block, n_cases))
+    full[:, :n_dofs] = np.moveaxis(rhs, 0, -1)
+    full[:, n_dofs:] = constraint_rhs[..., None]
+    return SparseFactor(matrix), full.reshape(size, n_cases)
+
+
+def split_constrained(
+    solution: FloatArray, n_variants: int, n_dofs: int
+) -> tuple[FloatArray, FloatArray]:
+    """(n_cases, n_variants, n_dofs) dofs and (n_cases, n_variants, n_constraints) multipliers."""
+    blocks = solution.reshape(n_variants, -1, solution.shape[1])
+    return np.moveaxis(blocks[:, :n_dofs], -1, 0), np.moveaxis(blocks[:, n_dofs:], -1, 0)
 
 
 __all__ = [
@@ -338,5 +352,6 @@ __all__ = [
     "assemble_band",
     "band_to_sparse",
     "prescribe",
+    "split_constrained",
     "with_constraints",
 ]

@@ -109,6 +109,12 @@ class SegmentTable:
             object.__setattr__(self, name, _variant_rows(getattr(self, name), n_layers))
 
     @property
+    def n_variants(self) -> int:
+        """Number of variants the columns carry (1 for one case)."""
+        names = ("length", *LAYER_COLUMNS)
+        return max(getattr(self, name).shape[0] for name in names)
+
+    @property
     def n_segments(self) -> int:
         """Number of segments over all shafts."""
         return len(self.segment_layer_start) - 1
@@ -225,6 +231,18 @@ class CaseTable:
         if self.key_shaft is None or self.key_x is None:
             set_field(self, "key_shaft", np.zeros(0, dtype=np.intp))
             set_field(self, "key_x", np.zeros(0))
+
+    @property
+    def n_variants(self) -> int:
+        """Number of variants the columns carry (1 for one case)."""
+        columns = (
+            self.support_stiffness,
+            self.support_rotation,
+            self.gear_coefficient,
+            self.torque,
+            self.load_intensity,
+        )
+        return max(self.segments.n_variants, *(column.shape[0] for column in columns))
 
     @property
     def n_cases(self) -> int:
@@ -349,7 +367,9 @@ def segment_table(shafts: tuple[Shaft, ...]) -> SegmentTable:
     section = (
         parts[0].section
         if len(parts) == 1
-        else np.concatenate([part.section + offset for part, offset in zip(parts, offsets, strict=False)])
+        else np.concatenate(
+            [part.section + offset for part, offset in zip(parts, offsets, strict=False)]
+        )
     )
     described = np.concatenate([part.described for part in parts])
     # One gather per column: a strided (n, 6) gather would cost several times more.

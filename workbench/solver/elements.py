@@ -44,7 +44,7 @@ _GAUSS_POINTS, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(8)
 
 def _variant_index(column: FloatArray, variant: Any) -> Any:
     """Row of a (n_variants, n) column for ``variant``: 0 when the column has one variant."""
-    return variant if column.shape[0] > 1 else 0
+    return variant if column.shape[0] > 1 or isinstance(variant, slice) else 0
 
 
 def _layer_constants(
@@ -55,19 +55,26 @@ def _layer_constants(
     ``layer`` is an index array, or ``slice(None)`` for every layer in order (with ``variant``
     then ``slice(None)`` too), which reads the columns without copying them.
     """
-    pick = (variant, layer)
+
+    def take(column: FloatArray) -> Any:
+        return column[_variant_index(column, variant), layer]
+
     shape = segments.layer_shape[layer]
-    diameter = segments.outer_diameter_start[pick]
+    diameter = take(segments.outer_diameter_start)
     if not (isinstance(fraction, float) and fraction == 0.0):
-        diameter = diameter + (segments.outer_diameter_end[pick] - diameter) * fraction
-    constant = polar_moment(diameter, segments.inner_diameter[pick])
+        diameter = diameter + (take(segments.outer_diameter_end) - diameter) * fraction
+    constant = polar_moment(diameter, take(segments.inner_diameter))
     stress = np.divide(diameter, constant)
     stress *= 0.5
     given = shape == GIVEN
     if given.any():
-        constant = np.where(given, segments.torsion_constant[pick], constant)
-        stress = np.where(given, segments.stress_per_torque[pick], stress)
-    constant *= segments.shear_modulus[pick]
+        constant = np.where(given, take(segments.torsion_constant), constant)
+        stress = np.where(given, take(segments.stress_per_torque), stress)
+    modulus = take(segments.shear_modulus)
+    if np.broadcast_shapes(np.shape(modulus), constant.shape) == constant.shape:
+        constant *= modulus  # in place: no temporary the size of the mesh
+    else:
+        constant = constant * modulus
     return constant, stress
 
 
@@ -102,11 +109,10 @@ def segment_constants(
     if segment is None:
         if one_layer_each:
             return _layer_constants(segments, slice(None), slice(None), fraction)
-        variant = np.arange(segments.shear_modulus.shape[0])[:, None]
+        variant = np.arange(segments.n_variants)[:, None]
         segment = np.arange(segments.n_segments)[None, :]
-    v = _variant_index(segments.shear_modulus, variant)
     if one_layer_each:
-        return _layer_constants(segments, v, segment, fraction)
+        return _layer_constants(segments, variant, segment, fraction)
     first = segments.segment_layer_start[segment]
     count = segments.segment_layer_start[segment + 1] - first
     rigidity: Any = 0.0
@@ -114,7 +120,7 @@ def segment_constants(
     for slot in range(int(count.max())):  # bonded layers: a handful at most
         present = slot < count
         share, stress = _layer_constants(
-            segments, v, np.where(present, first + slot, first), fraction
+            segments, variant, np.where(present, first + slot, first), fraction
         )
         share = np.where(present, share, 0.0)
         rigidity = rigidity + share
@@ -122,21 +128,23 @@ def segment_constants(
     return rigidity, peak / rigidity
 
 
-def _segment_breaks(segments: SegmentTable) -> tuple[IntArray, IntArray, FloatArray]:
-    """(variant, segment, fraction) of every interior quadrature break of a tapered layer."""
+def _segment_breaks(segments: SegmentTable) -> tuple[IntArray, IntArray, FloatArray, int]:
+    """(variant, segment, fraction) of every interior quadrature break of a tapered layer.
+
+    Also returns the number of variants the diameters come in (1 when they do not vary).
+    """
     tapered = np.flatnonzero(segments.layer_shape == TAPERED)
-    n_variants = segments.outer_diameter_start.shape[0]
-    pick = (slice(None), tapered)
-    counts, fractions = taper_breaks(
-        segments.outer_diameter_start[pick].ravel(),
-        segments.outer_diameter_end[pick].ravel(),
-        segments.inner_diameter[pick].ravel(),
+    start, end, bore = np.broadcast_arrays(
+        segments.outer_diameter_start[:, tapered],
+        segments.outer_diameter_end[:, tapered],
+        segments.inner_diameter[:, tapered],
     )
-    pair = np.repeat(np.arange(n_variants * len(tapered)), counts)
+    counts, fractions = taper_breaks(start.ravel(), end.ravel(), bore.ravel())
+    pair = np.repeat(np.arange(start.size), counts)
     interior = (fractions > 0.0) & (fractions < 1.0)
-    pair = pair[interior]
-    segment = segments.layer_segment[tapered[pair % max(len(tapered), 1)]]
-    return pair // max(len(tapered), 1), segment, fractions[interior]
+    variant, column = np.divmod(pair[interior], max(len(tapered), 1))
+    segment = segments.layer_segment[tapered[column]]
+    return variant, segment, fractions[interior], start.shape[0]
 
 
 def _union(
@@ -177,9 +185,9 @@ class VaryingElements:
     station_count: IntArray
     station_fraction: FloatArray
 
-    def _rows_of_breaks(self, segments: SegmentTable) -> tuple[IntArray, FloatArray]:
+    def _rows_of_breaks(self, segments: SegmentTable) -> tuple[IntArray, FloatArray, int]:
         """Row (variant × n_varying + element) and fraction of each break inside an element."""
-        variant, segment, fraction = _segment_breaks(segments)
+        variant, segment, fraction, n_rows = _segment_breaks(segments)
         n_varying = len(self.element)
         # Merge breaks into the elements' (segment, start) order: each lands after its element.
         keys_segment = np.concatenate([self.segment, segment])
@@ -193,7 +201,7 @@ class VaryingElements:
         owner = owner[n_varying:]
         inside = (fraction > self.fraction[owner, 0]) & (fraction < self.fraction[owner, 1])
         inside &= self.segment[owner] == segment
-        return variant[inside] * n_varying + owner[inside], fraction[inside]
+        return variant[inside] * n_varying + owner[inside], fraction[inside], n_rows
 
     @classmethod
     def of(
@@ -212,7 +220,7 @@ class VaryingElements:
         even[:, -1] = end[:, 0]
         rows_even = np.repeat(np.arange(len(element)), CURVE_PIECES + 1)
         bare = cls(element, segment, fraction, np.zeros(len(element), np.intp), np.zeros(0))
-        rows_break, breaks = bare._rows_of_breaks(segments)
+        rows_break, breaks, _ = bare._rows_of_breaks(segments)
         row, value, _ = _union(rows_even, even.ravel(), rows_break, breaks)
         counts = np.bincount(row, minlength=len(element)).astype(np.intp)
         return cls(element, segment, fraction, counts, value)
@@ -241,13 +249,13 @@ class VaryingElements:
         stress_per_torque, rigidity
             (n_variants, n_stations) at the stations (1/m³, N·m²).
         """
-        n_variants = max(segments.shear_modulus.shape[0], segment_length.shape[0])
+        n_variants = max(segments.n_variants, segment_length.shape[0])
         n_varying, n_stations = len(self.element), len(self.station_fraction)
         station_row = np.repeat(np.arange(n_varying), self.station_count)
         all_rows = (np.arange(n_variants)[:, None] * n_varying + station_row).ravel()
         all_fractions = np.tile(self.station_fraction, n_variants)
-        rows_break, breaks = self._rows_of_breaks(segments)
-        if segments.shear_modulus.shape[0] < n_variants:  # one set of sections for all variants
+        rows_break, breaks, n_rows = self._rows_of_breaks(segments)
+        if n_rows < n_variants:  # one set of diameters for all variants
             offsets = np.arange(n_variants)[:, None] * n_varying
             rows_break = (offsets + rows_break).ravel()
             breaks = np.tile(breaks, n_variants)

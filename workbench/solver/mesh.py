@@ -48,6 +48,9 @@ class Geometry:
         (n_variants, n_stations) G·K (N·m²).
     interior_moments
         (n_variants, n_interior, 3) ∫₀ᵘ v^k dv/(G·K) at the stations inside elements.
+    nodes_moved
+        Whether the nodes are not where the case put them (segment lengths of the variants
+        differ): loads then span between their nodes rather than their stated positions.
     """
 
     node_x: FloatArray
@@ -58,6 +61,7 @@ class Geometry:
     station_stress_per_torque: FloatArray
     station_rigidity: FloatArray
     interior_moments: FloatArray
+    nodes_moved: bool = False
 
     @property
     def n_variants(self) -> int:
@@ -397,7 +401,9 @@ def start_and_end_values(topology: MeshTopology, node_values: FloatArray) -> tup
     return node_values[..., start_node], node_values[..., start_node + 1]
 
 
-def size_mesh(topology: MeshTopology, segments: SegmentTable, node_x: FloatArray) -> Geometry:
+def size_mesh(
+    topology: MeshTopology, segments: SegmentTable, node_x: FloatArray, nodes_moved: bool = False
+) -> Geometry:
     """Sizes of a mesh topology for every variant of the segment columns.
 
     Parameters
@@ -408,6 +414,8 @@ def size_mesh(topology: MeshTopology, segments: SegmentTable, node_x: FloatArray
         Segment columns with one or many variants.
     node_x
         (n_variants, n_nodes) node positions (m), or (1, n_nodes) when lengths do not vary.
+    nodes_moved
+        Whether ``node_x`` differs from the positions the case states (:func:`node_positions`).
 
     Returns
     -------
@@ -419,7 +427,7 @@ def size_mesh(topology: MeshTopology, segments: SegmentTable, node_x: FloatArray
     .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 3
        (flexibility of a prismatic member: I_k = L^(k+1)/((k+1)·G·K)).
     """
-    n_variants = max(segments.shear_modulus.shape[0], node_x.shape[0])
+    n_variants = max(segments.n_variants, node_x.shape[0])
     x_start, x_end = start_and_end_values(topology, node_x)
     length = x_end - x_start
     n_elements = length.shape[1]
@@ -488,6 +496,7 @@ def size_mesh(topology: MeshTopology, segments: SegmentTable, node_x: FloatArray
         station_stress_per_torque=station_stress,
         station_rigidity=station_rigidity,
         interior_moments=interior_moments,
+        nodes_moved=nodes_moved,
     )
 
 

@@ -16,6 +16,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Literal
 
 import numpy as np
 
@@ -25,6 +26,7 @@ from workbench.solver.assembly import (
     add_diagonal,
     assemble_band,
     prescribe,
+    split_constrained,
     with_constraints,
 )
 from workbench.solver.columns import CaseTable, IntArray
@@ -121,9 +123,11 @@ def _fixed_nodes(table: CaseTable, support_node: IntArray) -> IntArray:
     return nodes
 
 
-def _element_loads(table: CaseTable, mesh: Mesh, geometry: Geometry) -> ElementLoads:
+def _element_loads(
+    table: CaseTable, mesh: Mesh, geometry: Geometry, n_variants: int
+) -> ElementLoads:
     """Intensities of the distributed torques at the ends of every loaded element."""
-    n_cases, n_variants = table.n_cases, geometry.n_variants
+    n_cases = table.n_cases
     elements = np.flatnonzero(mesh.element_loaded)
     length = geometry.element_length[:, elements]
     start = np.zeros((n_cases, n_variants, len(elements)))
@@ -134,7 +138,7 @@ def _element_loads(table: CaseTable, mesh: Mesh, geometry: Geometry) -> ElementL
     x_start = geometry.node_x[:, node_a]
     x_end = geometry.node_x[:, node_a + 1]
     middle = 0.5 * (mesh.node_x[node_a] + mesh.node_x[node_a + 1])
-    if geometry.node_x.shape[0] == 1:
+    if not geometry.nodes_moved:
         span_start, span_end = table.load_start[None], table.load_end[None]
     else:  # lengths vary: the loads' ends stay on their nodes
         nodes_start = mesh.nodes_of(table.load_shaft, table.load_start)
@@ -157,7 +161,10 @@ def _element_loads(table: CaseTable, mesh: Mesh, geometry: Geometry) -> ElementL
 
 
 def solve_table(
-    table: CaseTable, mesh: Mesh | None = None, geometry: Geometry | None = None
+    table: CaseTable,
+    mesh: Mesh | None = None,
+    geometry: Geometry | None = None,
+    method: Literal["auto", "band", "sparse"] = "auto",
 ) -> StaticSolution:
     """Solve every load case (and combination) of a system given as columns.
 
@@ -170,6 +177,9 @@ def solve_table(
     geometry
         Sizes of many variants of the mesh (:func:`~workbench.solver.mesh.size_mesh`); the
         mesh's own sizes by default. The table's variant columns must match it.
+    method
+        ``"auto"``: banded LAPACK without gears, sparse LU with them; ``"sparse"`` forces the
+        sparse LU (for checks of one path against the other); ``"band"`` refuses gears.
 
     Returns
     -------
@@ -187,7 +197,8 @@ def solve_table(
     check_restrained(table)
     mesh = mesh if mesh is not None else build_mesh_from_table(table)
     geometry = geometry if geometry is not None else mesh.geometry
-    n_cases, n_variants, n_nodes = table.n_cases, geometry.n_variants, len(mesh.node_x)
+    n_cases, n_nodes = table.n_cases, len(mesh.node_x)
+    n_variants = max(geometry.n_variants, table.n_variants)
     support_node = mesh.nodes_of(table.support_shaft, table.support_x)
     fixed_nodes = _fixed_nodes(table, support_node)
     springs = np.flatnonzero(~table.support_fixed)
@@ -197,7 +208,7 @@ def solve_table(
     fixed_rotation = table.support_rotation[:, table.support_fixed]
 
     elements = SaintVenantElements(geometry.flexibility)
-    loads = _element_loads(table, mesh, geometry)
+    loads = _element_loads(table, mesh, geometry, n_variants)
     # Right-hand sides (n_cases, n_variants, n_nodes): point torques, consistent loads, springs.
     point = np.zeros((n_cases, n_variants, n_nodes))
     torque_node = mesh.nodes_of(table.torque_shaft, table.torque_x)
@@ -218,7 +229,10 @@ def solve_table(
     prescribe(band, rhs, fixed_nodes, fixed_rotation)
     n_gears = len(table.gear_x)
     factor: BandFactor | SparseFactor
-    if n_gears:
+    if n_gears and method == "band":
+        msg = "gear meshes need the sparse solver: a banded system holds no constraints"
+        raise InputError("method", msg)
+    if n_gears or method == "sparse":
         gear_nodes = mesh.nodes_of(table.gear_shaft.ravel(), table.gear_x.ravel()).reshape(-1, 2)
         known = np.full((fixed_rotation.shape[0], n_gears, 2), np.nan)
         for position, node in enumerate(fixed_nodes):  # a loop over fixed supports
@@ -228,9 +242,7 @@ def solve_table(
             msg = "both gears sit at fixed supports: the mesh torque is undefined"
             raise InputError(f"gears[{int(both[0])}]", msg)
         factor, full_rhs = with_constraints(band, rhs, gear_nodes, table.gear_coefficient, known)
-        solution = factor.solve(full_rhs)
-        node_angle = solution[: n_variants * n_nodes].T.reshape(n_cases, n_variants, n_nodes)
-        multipliers = solution[n_variants * n_nodes :].T.reshape(n_cases, n_variants, n_gears)
+        node_angle, multipliers = split_constrained(factor.solve(full_rhs), n_variants, n_nodes)
         gear_torques = -multipliers[..., None] * table.gear_coefficient
     else:
         gear_nodes = np.zeros((0, 2), dtype=np.intp)
