@@ -16,6 +16,7 @@ from workbench.solver.analysis import (
     build_mesh,
     solve,
 )
+from workbench.solver.batch import BatchResults, solve_batch
 from workbench.solver.checks import CAUTION, Check, CheckReport, DesignCriteria, run_checks
 from workbench.solver.errors import InputError, MechanismError, WorkbenchError
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
@@ -42,6 +43,7 @@ __all__ = [
     "LIBRARY",
     "SI",
     "SI_ENGINEERING",
+    "BatchResults",
     "Check",
     "CheckReport",
     "Combination",
@@ -78,5 +80,6 @@ __all__ = [
     "save_case",
     "size_shafts",
     "solve",
+    "solve_batch",
     "us_customary",
 ]

@@ -26,7 +26,7 @@ from __future__ import annotations
 import functools
 import warnings
 from dataclasses import dataclass
-from typing import Any, Protocol
+from typing import Protocol
 
 import numpy as np
 import scipy.sparse as sp
@@ -211,10 +211,10 @@ class BandFactor:
         width = self.band.half_width
         norm = float(np.abs(self.band.values[width:]).sum(axis=0).max())
         if self._tridiagonal:
-            rcond, info = lapack.dgtcon(*self._factors, norm)
+            rcond, _ = lapack.dgtcon(*self._factors, norm)
         else:
             lu, pivots = self._factors
-            rcond, info = lapack.dgbcon(width, width, lu, pivots, norm)
+            rcond, _ = lapack.dgbcon(width, width, lu, pivots, norm)
         return float(rcond)
 
 

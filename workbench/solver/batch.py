@@ -516,8 +516,12 @@ def _column(table: CaseTable, name: str) -> FloatArray:
 
 def _with_columns(table: CaseTable, columns: dict[str, FloatArray]) -> CaseTable:
     """The table with some of its variant columns replaced."""
-    segment_part = {name: values for name, values in columns.items() if name in SEGMENT_COLUMNS}
-    case_part = {name: values for name, values in columns.items() if name in CASE_COLUMNS}
+    segment_part: dict[str, Any] = {
+        name: values for name, values in columns.items() if name in SEGMENT_COLUMNS
+    }
+    case_part: dict[str, Any] = {
+        name: values for name, values in columns.items() if name in CASE_COLUMNS
+    }
     segments = dataclasses.replace(table.segments, **segment_part)
     return dataclasses.replace(table, segments=segments, **case_part)
 

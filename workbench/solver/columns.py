@@ -25,7 +25,7 @@ from __future__ import annotations
 import itertools
 import operator
 import weakref
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
@@ -213,7 +213,7 @@ class CaseTable:
     load_intensity: FloatArray
     case_names: tuple[str, ...]
     combination_names: tuple[str, ...] = ()
-    combination_factors: FloatArray | None = None
+    combination_factors: FloatArray = field(default_factory=lambda: np.zeros((0, 0)))
     key_shaft: IntArray | None = None
     key_x: FloatArray | None = None
 
@@ -226,7 +226,7 @@ class CaseTable:
         set_field(self, "gear_coefficient", _variant_rows(self.gear_coefficient, n_gears, 2))
         intensity = _variant_rows(self.load_intensity, len(self.load_start), 2)
         set_field(self, "load_intensity", intensity)
-        if self.combination_factors is None:
+        if not len(self.combination_factors):
             set_field(self, "combination_factors", np.zeros((0, len(self.case_names))))
         if self.key_shaft is None or self.key_x is None:
             set_field(self, "key_shaft", np.zeros(0, dtype=np.intp))
@@ -295,8 +295,12 @@ def _cached(owner: Any, build: Any) -> Any:
         return entry[1]
     value = build(owner)
     _CACHE[key] = (weakref.ref(owner), value)  # type: ignore[index]
-    weakref.finalize(owner, _CACHE.pop, key, None)
+    weakref.finalize(owner, _forget, key)
     return value
+
+
+def _forget(key: Any) -> None:
+    _CACHE.pop(key, None)
 
 
 @dataclass(frozen=True)

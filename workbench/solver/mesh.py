@@ -125,7 +125,7 @@ class Mesh(MeshTopology):
 
     @property
     def geometry(self) -> Geometry:
-        """This mesh's own sizes, as one variant."""
+        """The mesh's own sizes, as one variant."""
         return Geometry(
             node_x=self.node_x[None],
             element_length=self.element_length[None],

@@ -50,7 +50,7 @@ class ElementLoads:
 
     @property
     def slope(self) -> FloatArray:
-        """s of t(u) = t₀ + 2s·u (N·m/m²)."""
+        """Half the intensity's gradient, s in t(u) = t₀ + 2s·u (N·m/m²)."""
         return (self.end - self.start) / (2.0 * self.length)
 
     @property

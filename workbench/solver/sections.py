@@ -364,7 +364,7 @@ class TaperedCircle(Section):
         return self.bore / 2.0
 
     def quadrature_breaks(self) -> FloatArray:
-        counts, fractions = taper_breaks(
+        _, fractions = taper_breaks(
             np.array([self.diameter_start]), np.array([self.diameter_end]), np.array([self.bore])
         )
         return fractions

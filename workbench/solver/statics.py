@@ -16,7 +16,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Literal
+from typing import Any, Literal
 
 import numpy as np
 
@@ -212,7 +212,8 @@ def solve_table(
     # Right-hand sides (n_cases, n_variants, n_nodes): point torques, consistent loads, springs.
     point = np.zeros((n_cases, n_variants, n_nodes))
     torque_node = mesh.nodes_of(table.torque_shaft, table.torque_x)
-    np.add.at(point, (table.torque_case, slice(None), torque_node), table.torque.T)
+    at_torques: Any = (table.torque_case, slice(None), torque_node)
+    np.add.at(point, at_torques, table.torque.T)
     rhs = point.copy()
     if len(loads.elements):
         start_load, end_load = elements.consistent_loads(
@@ -255,13 +256,15 @@ def solve_table(
 
     # Concentrated torques known after the solve: applied, gears, springs.
     external = point
+    at_gears: Any = (slice(None), slice(None), gear_nodes.ravel())
     np.add.at(
         external,
-        (slice(None), slice(None), gear_nodes.ravel()),
+        at_gears,
         gear_torques.reshape(n_cases, n_variants, -1),
     )
     spring_reactions = -spring_stiffness * (node_angle[..., spring_nodes] - spring_rotation)
-    np.add.at(external, (slice(None), slice(None), spring_nodes), spring_reactions)
+    at_springs: Any = (slice(None), slice(None), spring_nodes)
+    np.add.at(external, at_springs, spring_reactions)
 
     n_elements = len(mesh.element_start_node)
     stiffness = elements.stiffness
