@@ -329,31 +329,19 @@ def test_banded_lapack_path_equals_sparse_lu_path(case):
 
 
 def test_the_band_refuses_gears_and_names_the_option() -> None:
+    def shaft(name: str, diameter: float) -> dict[str, Any]:
+        section = {"shape": "solid", "diameter": diameter}
+        return {"id": name, "segments": [{"length": 1.0, "material": "s", "section": section}]}
+
+    gear = {
+        "a": {"shaft": "a", "x": 1.0, "radius": 0.1},
+        "b": {"shaft": "b", "x": 0.0, "radius": 0.2},
+    }
     case = {
         "materials": {"s": {"shear_modulus": 80e9}},
-        "shafts": [
-            {"id": shaft, "segments": [{"length": 1.0, "material": "s", "section": solid}]}
-            for shaft, solid in (("a", {"shape": "solid", "diameter": 0.05}),) * 1
-        ]
-        + [
-            {
-                "id": "b",
-                "segments": [
-                    {
-                        "length": 1.0,
-                        "material": "s",
-                        "section": {"shape": "solid", "diameter": 0.04},
-                    }
-                ],
-            }
-        ],
+        "shafts": [shaft("a", 0.05), shaft("b", 0.04)],
         "supports": [{"shaft": "a", "x": 0.0}],
-        "gears": [
-            {
-                "a": {"shaft": "a", "x": 1.0, "radius": 0.1},
-                "b": {"shaft": "b", "x": 0.0, "radius": 0.2},
-            }
-        ],
+        "gears": [gear],
         "load_cases": [{"name": "c", "torques": [{"shaft": "b", "x": 1.0, "torque": 10.0}]}],
     }
     with pytest.raises(InputError) as raised:

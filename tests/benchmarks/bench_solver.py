@@ -26,16 +26,16 @@ import functools
 import gc
 import statistics
 import time
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-import scipy.linalg
 
+from tests.benchmarks.bare_solver import agreement, bare_solve, plain_system
 from tests.benchmarks.common import (
     Row,
     demo_shaft_model,
     many_case_model,
+    resource_use,
     rows_in_fresh_process,
     run_fresh_python,
     solve_phases,
@@ -60,101 +60,6 @@ def _with_hot_spots(row: Row, model: Any) -> Row:
     except Exception as error:  # a diagnostic must not hide the figure it explains
         hot_spots = [f"phase split failed: {type(error).__name__}: {error}"]
     return dataclasses.replace(row, notes=(*row.notes, *hot_spots))
-
-
-# --- the bare reference: numpy build + solve_banded of the same system ------------------------
-
-
-@dataclass(frozen=True)
-class _Plain:
-    """A single-shaft point-load system as plain arrays, the bare reference's input."""
-
-    length: FloatArray
-    outer: FloatArray
-    inner: FloatArray
-    modulus: FloatArray
-    spring_node: np.ndarray
-    spring_stiffness: FloatArray
-    load_node: np.ndarray
-    load_case: np.ndarray
-    load: FloatArray
-    n_cases: int
-
-
-def _plain(model: Any) -> _Plain:
-    """The columns of a demo model: one shaft, one layer per segment, fixed at both ends."""
-    table = case_table(model)
-    segments = table.segments
-    if len(segments.shaft_ids) != 1 or len(segments.layer_shape) != segments.n_segments:
-        msg = "the bare reference takes one shaft of one-layer segments"
-        raise AssertionError(msg)
-    if len(table.load_case) or np.any(table.support_rotation):
-        msg = "the bare reference takes point torques and supports at rotation 0"
-        raise AssertionError(msg)
-    boundaries = np.concatenate([[0.0], np.cumsum(segments.length[0])])
-
-    def node(x: FloatArray) -> np.ndarray:
-        found = np.searchsorted(boundaries, x - 1e-9 * boundaries[-1])
-        if not np.allclose(boundaries[found], x, rtol=0, atol=1e-9 * boundaries[-1]):
-            msg = "the bare reference needs supports and loads on segment ends"
-            raise AssertionError(msg)
-        return found
-
-    fixed = np.sort(node(table.support_x[table.support_fixed]))
-    if fixed.tolist() != [0, segments.n_segments]:
-        msg = "the bare reference holds the two ends fixed"
-        raise AssertionError(msg)
-    springs = ~table.support_fixed
-    return _Plain(
-        length=segments.length[0],
-        outer=segments.outer_diameter_start[0],
-        inner=segments.inner_diameter[0],
-        modulus=segments.shear_modulus[0],
-        spring_node=node(table.support_x[springs]),
-        spring_stiffness=table.support_stiffness[0, springs],
-        load_node=node(table.torque_x),
-        load_case=table.torque_case,
-        load=table.torque[0],
-        n_cases=table.n_cases,
-    )
-
-
-def _bare_solve(plain: _Plain) -> FloatArray:
-    """Element stiffness G·J/L, the tridiagonal band, loads, ``solve_banded``: nothing else."""
-    stiffness = plain.modulus * (np.pi / 32.0) * (plain.outer**4 - plain.inner**4) / plain.length
-    n_nodes = len(stiffness) + 1
-    diagonal = np.zeros(n_nodes)
-    diagonal[:-1] += stiffness
-    diagonal[1:] += stiffness
-    np.add.at(diagonal, plain.spring_node, plain.spring_stiffness)
-    band = np.empty((3, n_nodes - 2))  # the two fixed end nodes removed
-    band[0, 1:] = -stiffness[1:-1]
-    band[1] = diagonal[1:-1]
-    band[2, :-1] = -stiffness[1:-1]
-    rhs = np.zeros((n_nodes, plain.n_cases))
-    np.add.at(rhs, (plain.load_node, plain.load_case), plain.load)
-    return np.asarray(scipy.linalg.solve_banded((1, 1), band, rhs[1:-1]))
-
-
-def _agreement(model: Any, bare: FloatArray) -> str:
-    """How closely ``solve`` reproduces the bare solution (free node rotations).
-
-    The two sides build their stiffnesses in different orders of rounding (G·J/L against
-    1/∫dx/(G·J)), so they solve matrices a few ulps apart: their solutions may differ by up to
-    the condition number times the unit roundoff (forward error bound, Higham, *Accuracy and
-    Stability of Numerical Algorithms*, 2nd ed., §7.1; from memory).
-    """
-    ours = analysis.solve(model).node_angle[: bare.shape[1], 1:-1].T
-    error = float(np.max(np.abs(ours - bare)) / np.max(np.abs(bare)))
-    rcond = statics.solve_table(case_table(model)).factor.rcond
-    bound = 10.0 * float(np.finfo(float).eps) / rcond
-    if error > bound:
-        msg = f"solve() disagrees with the bare solution: {error:.1e} > κ·ε bound {bound:.1e}"
-        raise AssertionError(msg)
-    return (
-        f"solve() matches the bare solution's rotations to {error:.1e} (relative; bound "
-        f"10·ε/rcond = {bound:.1e}, rcond from ?gtcon)"
-    )
 
 
 # --- the targets ------------------------------------------------------------------------------
@@ -317,10 +222,10 @@ def _pipeline_versus_bare() -> list[Row]:
         case_table(fresh)
         columns = time.perf_counter() - start
         del fresh
-        plain = _plain(model)
+        plain = plain_system(model)
         ours, bare = time_pair(
             lambda model=model: analysis.solve(model),
-            lambda plain=plain: _bare_solve(plain),
+            lambda plain=plain: bare_solve(plain),
             repeats=repeats,
         )
         ratio = ours.median / bare.median
@@ -332,7 +237,9 @@ def _pipeline_versus_bare() -> list[Row]:
             f"ends, loads, scipy.linalg.solve_banded, median {bare.median * MS:.1f} ms",
             f"the two sides took turns, {len(ours.times)} calls each; best {ours.best * MS:.0f} "
             f"against {bare.best * MS:.1f} ms ({ours.best / bare.best:.1f}×)",
-            _agreement(model, _bare_solve(plain)),
+            agreement(model, bare_solve(plain)),
+            f"per call, ours: {resource_use(lambda model=model: analysis.solve(model))}; bare: "
+            f"{resource_use(lambda plain=plain: bare_solve(plain))}",
             f"columns taken from the {segments:,} Segment objects: {columns * MS:.0f} ms "
             f"({columns / segments * 1e9:.0f} ns per segment); first solve incl. them "
             f"{cold * MS:.0f} ms = {cold / bare.median:.1f}× bare; building the model "
@@ -409,10 +316,10 @@ def _count_factorizations(model: Any) -> int:
 def _many_cases() -> list[Row]:
     model = many_case_model(50, 1000)
     analysis.solve(model)  # columns taken once per model
-    plain = _plain(model)
+    plain = plain_system(model)
     ours, bare = time_pair(
         lambda: analysis.solve(model),
-        lambda: _bare_solve(plain),
+        lambda: bare_solve(plain),
         repeats=60,
         warmup=3,
     )
@@ -422,7 +329,9 @@ def _many_cases() -> list[Row]:
         f"side solve(model) median {ours.median * MS:.2f} ms (p95 {ours.p95 * MS:.2f}), bare "
         f"side G·J/L + band + loads + solve_banded with 1000 right-hand sides, median "
         f"{bare.median * MS:.2f} ms; taking turns, {len(ours.times)} calls each",
-        _agreement(model, _bare_solve(plain)),
+        agreement(model, bare_solve(plain)),
+        f"per call, ours: {resource_use(lambda: analysis.solve(model), 20)}; bare: "
+        f"{resource_use(lambda: bare_solve(plain), 20)}",
     )
     ratio = Row(
         "50 seg., 1000 cases: solve / bare solve_banded",
@@ -529,7 +438,7 @@ class _DenseFactor:
 
 def _versus_dense() -> list[Row]:
     model = demo_shaft_model(2000, distributed=False)
-    plain = _plain(model)
+    plain = plain_system(model)
     analysis.solve(model)
     ours = time_calls(lambda: analysis.solve(model), repeats=50, warmup=3, budget=2.0)
     original = statics.BandFactor
@@ -539,7 +448,7 @@ def _versus_dense() -> list[Row]:
         dense_pipeline = time_calls(lambda: analysis.solve(model), repeats=7, budget=3.0)
     finally:
         statics.BandFactor = original  # type: ignore[misc]
-    bare = _bare_solve(plain)
+    bare = bare_solve(plain)
     stiffness = plain.modulus * (np.pi / 32.0) * (plain.outer**4 - plain.inner**4) / plain.length
     size = len(stiffness) - 1
     matrix = np.diag(stiffness[:-1] + stiffness[1:])
@@ -552,7 +461,7 @@ def _versus_dense() -> list[Row]:
         np.max(np.abs(dense_results.node_angle[:3, 1:-1].T - bare)) / np.max(np.abs(bare))
     )
     checks = (
-        f"system: {size} free rotations × 3 load cases; {_agreement(model, bare)}; the dense-LU "
+        f"system: {size} free rotations × 3 load cases; {agreement(model, bare)}; the dense-LU "
         f"solve() run matches it to {error:.1e}",
     )
     pipeline_notes = (
@@ -589,7 +498,7 @@ def _versus_dense() -> list[Row]:
 def _core_versus_banded() -> list[Row]:
     """The factor-and-solve core on the assembled band against ``solve_banded``."""
     model = demo_shaft_model(100_000, distributed=False)
-    plain = _plain(model)
+    plain = plain_system(model)
     table = case_table(model)
     solution = statics.solve_table(table)
     band = solution.factor.band  # type: ignore[union-attr]
@@ -604,9 +513,9 @@ def _core_versus_banded() -> list[Row]:
         return assembly.BandFactor(band).solve(loads)
 
     stiffness = plain.modulus * (np.pi / 32.0) * (plain.outer**4 - plain.inner**4) / plain.length
-    ours, reference = time_pair(core, lambda: _bare_solve(plain), repeats=21, warmup=2)
+    ours, reference = time_pair(core, lambda: bare_solve(plain), repeats=21, warmup=2)
     error = float(
-        np.max(np.abs(core()[1:-1] - _bare_solve(plain))) / np.max(np.abs(_bare_solve(plain)))
+        np.max(np.abs(core()[1:-1] - bare_solve(plain))) / np.max(np.abs(bare_solve(plain)))
     )
     notes = (
         f"core: BandFactor (dgttrf + dgttrs, fixed rows held in place) on the assembled band of "

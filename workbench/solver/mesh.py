@@ -202,26 +202,16 @@ def _merge_points(
 
 def _key_points(table: CaseTable, n_shafts: int) -> list[FloatArray]:
     """Positions on each shaft that must be nodes: supports, gears, loads, design points."""
-    shafts = np.concatenate(
-        [
-            table.key_shaft,
-            table.support_shaft,
-            table.gear_shaft.ravel(),
-            table.torque_shaft,
-            table.load_shaft,
-            table.load_shaft,
-        ]
+    pairs = (
+        (table.key_shaft, table.key_x),
+        (table.support_shaft, table.support_x),
+        (table.gear_shaft.ravel(), table.gear_x.ravel()),
+        (table.torque_shaft, table.torque_x),
+        (table.load_shaft, table.load_start),
+        (table.load_shaft, table.load_end),
     )
-    positions = np.concatenate(
-        [
-            table.key_x,
-            table.support_x,
-            table.gear_x.ravel(),
-            table.torque_x,
-            table.load_start,
-            table.load_end,
-        ]
-    )
+    shafts = np.concatenate([shaft for shaft, _ in pairs])
+    positions = np.concatenate([x for _, x in pairs])
     return [positions[shafts == number] for number in range(n_shafts)]
 
 
@@ -385,9 +375,11 @@ def build_mesh_from_table(table: CaseTable) -> Mesh:
     return Mesh(**fields, **arrays)
 
 
-def interleave(first: FloatArray, second: FloatArray) -> FloatArray:
-    """[a₀, b₀, a₁, b₁, …] along the last axis."""
-    out = np.empty((*np.broadcast_shapes(first.shape, second.shape)[:-1], 2 * first.shape[-1]))
+def interleave(first: FloatArray, second: FloatArray, out: FloatArray | None = None) -> FloatArray:
+    """[a₀, b₀, a₁, b₁, …] along the last axis (into ``out`` when given)."""
+    if out is None:
+        count = max(first.shape[-1], second.shape[-1])
+        out = np.empty((*np.broadcast_shapes(first.shape[:-1], second.shape[:-1]), 2 * count))
     out[..., 0::2] = first
     out[..., 1::2] = second
     return out
@@ -446,7 +438,7 @@ def size_mesh(
     shape = (n_variants, len(topology.station_element))
     if topology.two_stations:
         full = (n_variants, n_elements)
-        station_u = interleave(np.zeros(full), np.broadcast_to(length, full))
+        station_u = interleave(np.zeros((1, 1)), np.broadcast_to(length, full))
         station_x = interleave(np.broadcast_to(x_start, full), np.broadcast_to(x_end, full))
         stress_pair = np.broadcast_to(element_stress, full)
         station_stress = interleave(stress_pair, stress_pair)

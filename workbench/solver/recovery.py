@@ -136,7 +136,9 @@ def station_values(
     end: FloatArray,
     node_angle: FloatArray,
     loads: ElementLoads,
-) -> tuple[FloatArray, FloatArray]:
+    torque: FloatArray,
+    angle: FloatArray,
+) -> None:
     """Internal torque and rotation at every station of every element.
 
     Parameters
@@ -149,18 +151,15 @@ def station_values(
         (n_cases, n_variants, n_nodes) nodal rotations (rad).
     loads
         The distributed torque on the loaded elements.
-
-    Returns
-    -------
     torque, angle
-        (n_cases, n_variants, n_stations) T (N·m) and θ (rad).
+        (n_cases, n_variants, n_stations) outputs, written here: T (N·m) and θ (rad).
     """
     angle_a, angle_b = start_and_end_values(mesh, node_angle)
     if mesh.two_stations:  # every element shows its two ends only: interleave them
-        return interleave(start, end), interleave(angle_a, angle_b)
+        interleave(start, end, out=torque)
+        interleave(angle_a, angle_b, out=angle)
+        return
     n_elements = start.shape[-1]
-    shape = (*start.shape[:2], len(mesh.station_element))
-    torque, angle = np.empty(shape), np.empty(shape)
     first = mesh.element_station_start[:-1]
     last = mesh.element_station_start[1:] - 1
     torque[..., first], torque[..., last] = start, end
@@ -180,7 +179,6 @@ def station_values(
         - intensity * moments[..., 1]
         - slope * moments[..., 2]
     )
-    return torque, angle
 
 
 def fixed_reactions(
@@ -223,4 +221,18 @@ def combine(values: FloatArray, factors: FloatArray) -> FloatArray:
     return np.concatenate([values, combined])
 
 
-__all__ = ["ElementLoads", "combine", "fixed_reactions", "start_torques", "station_values"]
+def combine_in_place(results: FloatArray, factors: FloatArray) -> None:
+    """Fill rows n_cases… of ``results`` with the combinations of its first n_cases rows."""
+    n_cases = factors.shape[1]
+    if len(factors):
+        results[n_cases:] = np.tensordot(factors, results[:n_cases], axes=(1, 0))
+
+
+__all__ = [
+    "ElementLoads",
+    "combine",
+    "combine_in_place",
+    "fixed_reactions",
+    "start_torques",
+    "station_values",
+]

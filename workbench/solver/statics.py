@@ -36,6 +36,7 @@ from workbench.solver.mesh import Geometry, Mesh, build_mesh_from_table
 from workbench.solver.recovery import (
     ElementLoads,
     combine,
+    combine_in_place,
     fixed_reactions,
     start_torques,
     station_values,
@@ -293,24 +294,30 @@ def solve_table(
     else:  # no distributed torque: the torque is constant along each element
         start = start_torques(mesh, fixed_node, external, None, stiffness_torque)
         end = start
-    torque, angle = station_values(mesh, geometry, start, end, node_angle, loads)
+    factors = table.combination_factors
+    # T, θ and τ of every result at every station, in one block: combinations are written in
+    # place instead of stacked by copying.
+    n_results = n_cases + len(factors)
+    stations = np.empty((3, n_results, n_variants, len(mesh.station_element)))
+    torque, angle, shear_stress = stations
+    station_values(mesh, geometry, start, end, node_angle, loads, torque[:n_cases], angle[:n_cases])
+    combine_in_place(torque, factors)
+    combine_in_place(angle, factors)
+    np.abs(torque, out=shear_stress)
+    shear_stress *= geometry.station_stress_per_torque
     reactions = np.zeros((n_cases, n_variants, len(table.support_x)))
     reactions[..., springs] = spring_reactions
     reactions[..., np.flatnonzero(table.support_fixed)] = fixed_reactions(
         mesh, fixed_nodes, start, end, external
     )
-    factors = table.combination_factors
-    all_torque = combine(torque, factors)
-    shear_stress = np.abs(all_torque)
-    shear_stress *= geometry.station_stress_per_torque
     return StaticSolution(
         names=table.result_names,
         mesh=mesh,
         geometry=geometry,
         reactions=combine(reactions, factors),
         gear_torques=combine(gear_torques, factors),
-        torque=all_torque,
-        angle=combine(angle, factors),
+        torque=torque,
+        angle=angle,
         shear_stress=shear_stress,
         node_angle=combine(node_angle, factors),
         factor=factor,
