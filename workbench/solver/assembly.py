@@ -99,6 +99,12 @@ def assemble_band(elements: ElementFamily, shaft_node_start: IntArray, n_variant
     -------
     Band
         The unconstrained stiffness matrices, without springs.
+
+    References
+    ----------
+    .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 2 (direct
+       stiffness assembly: K = Σ Aᵉᵀ kᵉ Aᵉ).
+    .. [2] Anderson et al., *LAPACK Users' Guide*, 3rd ed., §5.3.3 (band storage).
     """
     dofs = elements.dofs_per_node
     half_width = 2 * dofs - 1
@@ -139,6 +145,11 @@ def prescribe(band: Band, rhs: FloatArray, dofs: IntArray, values: FloatArray) -
         (n_fixed,) the held degrees of freedom, distinct.
     values
         (n_variants or 1, n_fixed) their values.
+
+    References
+    ----------
+    .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 2 (prescribed
+       displacements: their columns times the values move to the right-hand side).
     """
     blocks = band.blocks()
     diagonal_row, width = band.diagonal_row, band.half_width

@@ -248,6 +248,12 @@ class VaryingElements:
             (n_variants, n_varying, 3) the same over each whole element.
         stress_per_torque, rigidity
             (n_variants, n_stations) at the stations (1/m³, N·m²).
+
+        References
+        ----------
+        .. [1] Davis & Rabinowitz, *Methods of Numerical Integration*, 2nd ed., §2.7 (8-point
+           Gauss–Legendre, exact for polynomials of degree 15; from memory).
+        .. [2] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.4 (φ = ∫T dx/(G·J)).
         """
         n_variants = max(segments.n_variants, segment_length.shape[0])
         n_varying, n_stations = len(self.element), len(self.station_fraction)

@@ -98,6 +98,11 @@ def start_torques(
     -------
     numpy.ndarray
         (n_cases, n_variants, n_elements) T(0⁺) of each element (N·m).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.4 (internal torque from a free
+       body: T(x) = −Σ external torques on [0, x)).
     """
     n_elements = len(mesh.element_start_node)
     start = np.empty((*external.shape[:-1], n_elements))
@@ -153,6 +158,11 @@ def station_values(
         The distributed torque on the loaded elements.
     torque, angle
         (n_cases, n_variants, n_stations) outputs, written here: T (N·m) and θ (rad).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.4 (T(x) from equilibrium,
+       θ(x) = θ_a + ∫T/(G·J)).
     """
     angle_a, angle_b = start_and_end_values(mesh, node_angle)
     if mesh.two_stations:  # every element shows its two ends only: interleave them
@@ -203,6 +213,11 @@ def fixed_reactions(
     -------
     numpy.ndarray
         (n_cases, n_variants, n_fixed) reactions (N·m).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.8 (reactions of statically
+       indeterminate members from equilibrium once the twist is known).
     """
     shaft = np.searchsorted(mesh.shaft_node_start, nodes, side="right") - 1
     has_left = nodes > mesh.shaft_node_start[shaft]
@@ -214,7 +229,11 @@ def fixed_reactions(
 
 
 def combine(values: FloatArray, factors: FloatArray) -> FloatArray:
-    """Load cases then their factored combinations, stacked on the first axis."""
+    """Load cases then their factored combinations, stacked on the first axis.
+
+    Linear elasticity: a combination's effects are the factored sum of its cases' (superposition,
+    Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.5; section from memory).
+    """
     if not len(factors):
         return values
     combined = np.tensordot(factors, values, axes=(1, 0))
