@@ -88,7 +88,7 @@ class MeshTopology:
     station_is_end: BoolArray  # the station is its element's end
     shaft_station_start: IntArray  # (n_shafts + 1,)
     interior: IntArray  # stations strictly inside their element
-    interior_step: FloatArray  # their u/L on elements of even steps (NaN on varying ones)
+    interior_step: FloatArray  # their step number on elements of even steps (NaN on varying)
     varying: VaryingElements
     elements_are_segments: bool  # element i is segment row i
 
@@ -340,7 +340,7 @@ def build_mesh_from_table(table: CaseTable) -> Mesh:
         local = np.arange(len(station_element)) - station_start[station_element]
         is_end = local == counts[station_element] - 1
         interior = np.flatnonzero((local > 0) & ~is_end)
-        step = np.where(varies[station_element[interior]], np.nan, local[interior] / CURVE_PIECES)
+        step = np.where(varies[station_element[interior]], np.nan, local[interior])
     topology = MeshTopology(
         shaft_node_start=shaft_node_start,
         element_start_node=element_start_node,
@@ -452,7 +452,7 @@ def size_mesh(
         station_u[:, ends] = length
         interior = topology.interior
         interior_element = element[interior]
-        interior_u = length[:, interior_element] * topology.interior_step
+        interior_u = length[:, interior_element] * topology.interior_step / CURVE_PIECES
         interior_rigidity = element_rigidity[:, interior_element]
         interior_moments = np.stack(
             [
