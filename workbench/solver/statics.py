@@ -21,6 +21,7 @@ from typing import Any, Literal
 import numpy as np
 
 from workbench.solver.assembly import (
+    Band,
     BandFactor,
     SparseFactor,
     add_diagonal,
@@ -198,20 +199,76 @@ def solve_table(
     check_restrained(table)
     mesh = mesh if mesh is not None else build_mesh_from_table(table)
     geometry = geometry if geometry is not None else mesh.geometry
-    n_cases, n_nodes = table.n_cases, len(mesh.node_x)
     n_variants = max(geometry.n_variants, table.n_variants)
-    support_node = mesh.nodes_of(table.support_shaft, table.support_x)
-    fixed_nodes = _fixed_nodes(table, support_node)
-    springs = np.flatnonzero(~table.support_fixed)
-    spring_nodes = support_node[springs]
-    spring_stiffness = table.support_stiffness[:, springs]
-    spring_rotation = table.support_rotation[:, springs]
-    fixed_rotation = table.support_rotation[:, table.support_fixed]
-
+    supports = _Supports.of(table, mesh)
     elements = SaintVenantElements(geometry.flexibility)
     loads = _element_loads(table, mesh, geometry, n_variants)
-    # Right-hand sides (n_cases, n_variants, n_nodes): point torques, consistent loads, springs.
-    point = np.zeros((n_cases, n_variants, n_nodes))
+    point, rhs = _right_hand_sides(table, mesh, elements, loads, supports, n_variants)
+    band = assemble_band(elements, mesh.shaft_node_start, n_variants)
+    add_diagonal(band, supports.spring_nodes, supports.spring_stiffness)
+    prescribe(band, rhs, supports.fixed_nodes, supports.fixed_rotation)
+    node_angle, gear_torques, gear_nodes, factor = _factor_and_solve(
+        table, mesh, band, rhs, supports, method
+    )
+    # The held rows give θ̄·K_jj/K_jj: put the prescribed values back exactly.
+    node_angle[..., supports.fixed_nodes] = supports.fixed_rotation
+    return _recover(
+        table,
+        mesh,
+        geometry,
+        elements,
+        loads,
+        supports,
+        point,
+        node_angle,
+        gear_torques,
+        gear_nodes,
+        factor,
+    )
+
+
+@dataclass(frozen=True)
+class _Supports:
+    """The supports of a table on its mesh: fixed ones held, springs on the diagonal."""
+
+    fixed: IntArray  # support numbers of the fixed supports
+    fixed_nodes: IntArray
+    fixed_rotation: FloatArray  # (n_variants or 1, n_fixed) (rad)
+    springs: IntArray  # support numbers of the springs
+    spring_nodes: IntArray
+    spring_stiffness: FloatArray  # (n_variants or 1, n_springs) (N·m/rad)
+    spring_rotation: FloatArray  # (rad)
+
+    @classmethod
+    def of(cls, table: CaseTable, mesh: Mesh) -> _Supports:
+        support_node = mesh.nodes_of(table.support_shaft, table.support_x)
+        springs = np.flatnonzero(~table.support_fixed)
+        fixed = np.flatnonzero(table.support_fixed)
+        return cls(
+            fixed=fixed,
+            fixed_nodes=_fixed_nodes(table, support_node),
+            fixed_rotation=table.support_rotation[:, fixed],
+            springs=springs,
+            spring_nodes=support_node[springs],
+            spring_stiffness=table.support_stiffness[:, springs],
+            spring_rotation=table.support_rotation[:, springs],
+        )
+
+
+def _right_hand_sides(
+    table: CaseTable,
+    mesh: Mesh,
+    elements: SaintVenantElements,
+    loads: ElementLoads,
+    supports: _Supports,
+    n_variants: int,
+) -> tuple[FloatArray, FloatArray]:
+    """(point torques at nodes, right-hand sides), both (n_cases, n_variants, n_nodes) (N·m).
+
+    The right-hand sides add the consistent loads of distributed torques and the springs'
+    prescribed rotations (k·θ̄).
+    """
+    point = np.zeros((table.n_cases, n_variants, len(mesh.node_x)))
     torque_node = mesh.nodes_of(table.torque_shaft, table.torque_x)
     at_torques: Any = (table.torque_case, slice(None), torque_node)
     np.add.at(point, at_torques, table.torque.T)
@@ -223,53 +280,75 @@ def solve_table(
         node_a = mesh.element_start_node[loads.elements]
         rhs[..., node_a] += start_load
         rhs[..., node_a + 1] += end_load
-    for item, node in enumerate(spring_nodes):  # a loop over springs
-        rhs[..., node] += spring_stiffness[:, item] * spring_rotation[:, item]
+    for item, node in enumerate(supports.spring_nodes):  # a loop over springs
+        rhs[..., node] += supports.spring_stiffness[:, item] * supports.spring_rotation[:, item]
+    return point, rhs
 
-    band = assemble_band(elements, mesh.shaft_node_start, n_variants)
-    add_diagonal(band, spring_nodes, spring_stiffness)
-    prescribe(band, rhs, fixed_nodes, fixed_rotation)
+
+def _factor_and_solve(
+    table: CaseTable,
+    mesh: Mesh,
+    band: Band,
+    rhs: FloatArray,
+    supports: _Supports,
+    method: str,
+) -> tuple[FloatArray, FloatArray, IntArray, BandFactor | SparseFactor]:
+    """Nodal rotations and gear torques of every case: one factorization for all of them."""
+    n_cases, n_variants, n_nodes = rhs.shape
     n_gears = len(table.gear_x)
-    factor: BandFactor | SparseFactor
     if n_gears and method == "band":
         msg = "gear meshes need the sparse solver: a banded system holds no constraints"
         raise InputError("method", msg)
-    if n_gears or method == "sparse":
-        gear_nodes = mesh.nodes_of(table.gear_shaft.ravel(), table.gear_x.ravel()).reshape(-1, 2)
-        known = np.full((fixed_rotation.shape[0], n_gears, 2), np.nan)
-        for position, node in enumerate(fixed_nodes):  # a loop over fixed supports
-            known[:, gear_nodes == node] = fixed_rotation[:, position : position + 1]
-        both = np.flatnonzero(np.all(~np.isnan(known[0]), axis=1))
-        if len(both):
-            msg = "both gears sit at fixed supports: the mesh torque is undefined"
-            raise InputError(f"gears[{int(both[0])}]", msg)
-        factor, full_rhs = with_constraints(band, rhs, gear_nodes, table.gear_coefficient, known)
-        node_angle, multipliers = split_constrained(factor.solve(full_rhs), n_variants, n_nodes)
-        gear_torques = -multipliers[..., None] * table.gear_coefficient
-    else:
-        gear_nodes = np.zeros((0, 2), dtype=np.intp)
+    if not n_gears and method != "sparse":
         factor = BandFactor(band)
         solution = factor.solve(rhs.reshape(n_cases, -1).T)
         node_angle = solution.T.reshape(n_cases, n_variants, n_nodes)
-        gear_torques = np.zeros((n_cases, n_variants, 0, 2))
-    # The held rows give θ̄·K_jj/K_jj: put the prescribed values back exactly.
-    node_angle[..., fixed_nodes] = fixed_rotation
+        no_gears = np.zeros((n_cases, n_variants, 0, 2))
+        return node_angle, no_gears, np.zeros((0, 2), dtype=np.intp), factor
+    gear_nodes = mesh.nodes_of(table.gear_shaft.ravel(), table.gear_x.ravel()).reshape(-1, 2)
+    fixed_rotation = supports.fixed_rotation
+    known = np.full((fixed_rotation.shape[0], n_gears, 2), np.nan)
+    for position, node in enumerate(supports.fixed_nodes):  # a loop over fixed supports
+        known[:, gear_nodes == node] = fixed_rotation[:, position : position + 1]
+    both = np.flatnonzero(np.all(~np.isnan(known[0]), axis=1))
+    if len(both):
+        msg = "both gears sit at fixed supports: the mesh torque is undefined"
+        raise InputError(f"gears[{int(both[0])}]", msg)
+    sparse, full_rhs = with_constraints(band, rhs, gear_nodes, table.gear_coefficient, known)
+    node_angle, multipliers = split_constrained(sparse.solve(full_rhs), n_variants, n_nodes)
+    return node_angle, -multipliers[..., None] * table.gear_coefficient, gear_nodes, sparse
 
+
+def _recover(
+    table: CaseTable,
+    mesh: Mesh,
+    geometry: Geometry,
+    elements: SaintVenantElements,
+    loads: ElementLoads,
+    supports: _Supports,
+    point: FloatArray,
+    node_angle: FloatArray,
+    gear_torques: FloatArray,
+    gear_nodes: IntArray,
+    factor: BandFactor | SparseFactor,
+) -> StaticSolution:
+    """Internal torque, rotation and stress at the stations, and the reactions, by equilibrium."""
+    n_cases, n_variants, n_nodes = node_angle.shape
     # Concentrated torques known after the solve: applied, gears, springs.
     external = point
     at_gears: Any = (slice(None), slice(None), gear_nodes.ravel())
-    np.add.at(
-        external,
-        at_gears,
-        gear_torques.reshape(n_cases, n_variants, -1),
+    np.add.at(external, at_gears, gear_torques.reshape(n_cases, n_variants, -1))
+    spring_nodes = supports.spring_nodes
+    spring_reactions = -supports.spring_stiffness * (
+        node_angle[..., spring_nodes] - supports.spring_rotation
     )
-    spring_reactions = -spring_stiffness * (node_angle[..., spring_nodes] - spring_rotation)
     at_springs: Any = (slice(None), slice(None), spring_nodes)
     np.add.at(external, at_springs, spring_reactions)
 
     n_elements = len(mesh.element_start_node)
     stiffness = elements.stiffness
     load_moment = np.zeros((n_cases, n_variants, 0))
+    resultant = None
     if len(loads.elements):
         resultant = loads.full(loads.resultant, n_elements)
         moments = elements.flexibility[:, loads.elements]
@@ -287,13 +366,10 @@ def solve_table(
         return twist * stiffness[:, chosen]
 
     fixed_node = np.zeros(n_nodes, dtype=bool)
-    fixed_node[fixed_nodes] = True
-    if len(loads.elements):
-        start = start_torques(mesh, fixed_node, external, resultant, stiffness_torque)
-        end = start - resultant
-    else:  # no distributed torque: the torque is constant along each element
-        start = start_torques(mesh, fixed_node, external, None, stiffness_torque)
-        end = start
+    fixed_node[supports.fixed_nodes] = True
+    start = start_torques(mesh, fixed_node, external, resultant, stiffness_torque)
+    # Without distributed torque the torque is constant along each element.
+    end = start if resultant is None else start - resultant
     factors = table.combination_factors
     # T, θ and τ of every result at every station, in one block: combinations are written in
     # place instead of stacked by copying.
@@ -306,9 +382,9 @@ def solve_table(
     np.abs(torque, out=shear_stress)
     shear_stress *= geometry.station_stress_per_torque
     reactions = np.zeros((n_cases, n_variants, len(table.support_x)))
-    reactions[..., springs] = spring_reactions
-    reactions[..., np.flatnonzero(table.support_fixed)] = fixed_reactions(
-        mesh, fixed_nodes, start, end, external
+    reactions[..., supports.springs] = spring_reactions
+    reactions[..., supports.fixed] = fixed_reactions(
+        mesh, supports.fixed_nodes, start, end, external
     )
     return StaticSolution(
         names=table.result_names,
