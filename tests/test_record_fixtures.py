@@ -34,7 +34,9 @@ def test_record_signed_before_the_templates_verifies(name: str) -> None:
     outcome = verify_record(FIXTURES / name, PUBLIC_KEY)
     assert outcome.ok, outcome.lines()
     assert outcome.problems == []
-    assert any("every number agrees" in fact for fact in outcome.facts)
+    assert any(
+        "Results: re-solved from the embedded case, every number" in fact for fact in outcome.facts
+    )
     # The same signature by an independent JOSE library.
     text = (FIXTURES / name).read_text("utf-8")
     token = re.search(r'id="record-signature">([^<]+)<', text)
@@ -65,3 +67,48 @@ def test_hostile_fixture_holds_its_markup_as_text() -> None:
     assert "<img src=x" not in text
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in text
     assert "&#34;&gt;&lt;img src=x onerror=alert(2)&gt;" in text
+
+
+def test_a_digest_differing_in_the_last_digits_alone_is_named(
+    monkeypatch: pytest.MonkeyPatch,
+) -> None:
+    """Re-solving may differ from the signing build in the 10th digit (eigenvalues of a stiff
+    system), never in a number the record shows: the verifier says which of the two it found.
+    """
+    import dataclasses
+
+    from workbench.record import verify as verifier
+
+    real_compute = verifier.compute
+
+    def last_digits_differ(case: object) -> object:
+        computation = real_compute(case)  # type: ignore[arg-type]
+        return dataclasses.replace(computation, results_digest="sha256:" + "0" * 64)
+
+    monkeypatch.setattr(verifier, "compute", last_digits_differ)
+    outcome = verify_record(FIXTURES / "record_demo_signed.html", PUBLIC_KEY)
+    assert outcome.ok, outcome.problems
+    assert any("every number the record shows agrees" in fact for fact in outcome.facts)
+
+
+def test_a_shown_number_that_differs_on_re_solving_fails(monkeypatch: pytest.MonkeyPatch) -> None:
+    import dataclasses
+
+    from workbench.record import verify as verifier
+
+    real_compute, real_sections = verifier.compute, verifier.render_sections
+
+    def digest_differs(case: object) -> object:
+        computation = real_compute(case)  # type: ignore[arg-type]
+        return dataclasses.replace(computation, results_digest="sha256:" + "0" * 64)
+
+    def one_number_differs(computation: object) -> list[tuple[str, str]]:
+        sections = list(real_sections(computation))  # type: ignore[arg-type]
+        ident, section = sections[0]
+        return [(ident, section + "1"), *sections[1:]]
+
+    monkeypatch.setattr(verifier, "compute", digest_differs)
+    monkeypatch.setattr(verifier, "render_sections", one_number_differs)
+    outcome = verify_record(FIXTURES / "record_demo_signed.html", PUBLIC_KEY)
+    assert not outcome.ok
+    assert any("results digest mismatch" in problem for problem in outcome.problems)

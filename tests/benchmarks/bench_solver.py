@@ -1,14 +1,21 @@
-"""Speed and memory of the torsion solver (``workbench.solver.analysis.solve``) against its targets.
+"""Speed and memory of the torsion solver against its targets.
 
-Targets (on the 2-core reference machine):
+Targets (on the 2-core reference machine; ratios measured side by side in one run, the two sides
+taking turns so that both see the same machine):
 
 * 20-segment shaft, 3 load cases: ``solve(model)`` median ≤ 1 ms (p95 reported).
 * 100,000 segments: ``solve`` ≤ 1 s and ≤ 500 MB peak memory; t(100k)/t(10k) ≤ 12.
-* 1,000 load cases on a 50-segment shaft: ≤ 50 ms in all, one factorization.
+* The whole pipeline from a model to its ``Results`` at 10⁵ and 10⁶ segments: ≤ 5× a bare numpy
+  build + ``scipy.linalg.solve_banded`` of the same system; 10⁶ segments ≤ 2 s. The model's
+  columns are taken once per model (the case file decoded into columns will feed them directly);
+  the time to take them from the Segment objects is reported beside it.
+* 1,000 load cases on a 50-segment shaft: ≤ 5× ``solve_banded`` with 1,000 right-hand sides, one
+  factorization.
+* A batched diameter sweep, 10,000 variants of a 20-segment shaft: ≤ 1 s.
 * ≥ 20× faster than a dense ``numpy.linalg.solve`` of the same system at 2,000 segments.
 * The factor-and-solve core at 100,000 segments within 10× of ``scipy.linalg.solve_banded``.
 
-Also reported: model building time at 100,000 segments and the import time of the solver.
+Also reported: model building time, the import time of the solver.
 Models are the invented demo shafts of :mod:`tests.benchmarks.common`.
 """
 
@@ -16,24 +23,28 @@ from __future__ import annotations
 
 import dataclasses
 import functools
+import gc
 import statistics
+import time
 from typing import Any
 
 import numpy as np
-import scipy.linalg
-import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
+from tests.benchmarks.bare_solver import agreement, bare_solve, plain_system
 from tests.benchmarks.common import (
     Row,
     demo_shaft_model,
     many_case_model,
+    resource_use,
     rows_in_fresh_process,
     run_fresh_python,
     solve_phases,
     time_calls,
+    time_pair,
 )
-from workbench.solver import analysis
+from workbench.solver import analysis, assembly, statics
+from workbench.solver.batch import solve_batch
+from workbench.solver.columns import case_table
 from workbench.solver.sections import FloatArray
 
 MS = 1e3
@@ -49,50 +60,6 @@ def _with_hot_spots(row: Row, model: Any) -> Row:
     except Exception as error:  # a diagnostic must not hide the figure it explains
         hot_spots = [f"phase split failed: {type(error).__name__}: {error}"]
     return dataclasses.replace(row, notes=(*row.notes, *hot_spots))
-
-
-def _free_system(model: Any) -> tuple[sp.csc_matrix, np.ndarray, np.ndarray]:
-    """The constrained stiffness matrix, right-hand sides and free nodes of a point-load model.
-
-    Built from the public :func:`analysis.torsion_stiffness_matrix` (elements + springs) with the
-    rows and columns of the fixed supports' nodes removed; the loads are the point torques at
-    their nodes (every fixed support here holds rotation 0, so it adds nothing to the loads).
-    """
-    mesh = analysis.build_mesh(model)
-    stiffness = analysis.torsion_stiffness_matrix(model, mesh)
-    fixed = sorted(
-        mesh.node_of(model.shaft_number(support.shaft), support.x)
-        for support in model.supports
-        if support.kind == "fixed"
-    )
-    if any(support.rotation != 0.0 for support in model.supports):
-        msg = "the comparison systems hold every support at rotation 0"
-        raise AssertionError(msg)
-    free = np.setdiff1d(np.arange(len(mesh.node_x)), fixed)
-    loads = np.zeros((len(mesh.node_x), len(model.load_cases)))
-    for column, case in enumerate(model.load_cases):
-        if case.distributed:
-            msg = "the comparison systems carry point torques only"
-            raise AssertionError(msg)
-        for torque in case.torques:
-            loads[mesh.node_of(model.shaft_number(torque.shaft), torque.x), column] += torque.torque
-    matrix = sp.csc_matrix(stiffness[free][:, free])
-    matrix.sort_indices()
-    return matrix, np.ascontiguousarray(loads[free]), free
-
-
-def _solve_rotations(model: Any, free: np.ndarray) -> np.ndarray:
-    """(n_free, n_cases) rotations of the free nodes as ``solve`` returns them (rad)."""
-    return np.asarray(analysis.solve(model).node_angle[: len(model.load_cases)][:, free].T)
-
-
-def _check_same_system(reference: np.ndarray, solution: np.ndarray, what: str) -> str:
-    """Compare a solution of the free system with the node rotations ``solve`` returns."""
-    error = float(np.max(np.abs(solution - reference)) / np.max(np.abs(reference)))
-    if error > 1e-8:
-        msg = f"{what} disagrees with solve(): largest relative difference {error:.1e}"
-        raise AssertionError(msg)
-    return f"{what} matches solve() node rotations to {error:.1e} (relative)"
 
 
 # --- the targets ------------------------------------------------------------------------------
@@ -239,46 +206,141 @@ def _large_shaft_memory() -> list[Row]:
     ]
 
 
-def _count_factorizations(model: Any) -> int:
-    """LU factorizations made by one ``solve(model)`` (``splu`` calls seen by analysis.py)."""
-    calls = 0
-    original = analysis.spla.splu
+def _pipeline_versus_bare() -> list[Row]:
+    rows = []
+    for segments, repeats, label in ((100_000, 21, "100k"), (1_000_000, 11, "1M")):
+        start = time.perf_counter()
+        model = demo_shaft_model(segments, distributed=False)
+        built = time.perf_counter() - start
+        gc.collect()
+        start = time.perf_counter()
+        analysis.solve(model)  # takes the columns: the first solve of this model
+        cold = time.perf_counter() - start
+        fresh = demo_shaft_model(segments, distributed=False)
+        gc.collect()
+        start = time.perf_counter()
+        case_table(fresh)
+        columns = time.perf_counter() - start
+        del fresh
+        plain = plain_system(model)
+        ours, bare = time_pair(
+            lambda model=model: analysis.solve(model),
+            lambda plain=plain: bare_solve(plain),
+            repeats=repeats,
+        )
+        ratio = ours.median / bare.median
+        notes = (
+            f"our side: solve(model) once the model's columns are taken (cached per model), "
+            f"median {ours.median * MS:.0f} ms: meshing, element constants, banded LAPACK "
+            "factor-and-solve, T/θ/τ at every station, reactions, Results",
+            f"bare side: G·J/L from the same columns, the tridiagonal band without the fixed "
+            f"ends, loads, scipy.linalg.solve_banded, median {bare.median * MS:.1f} ms",
+            f"the two sides took turns, {len(ours.times)} calls each; best {ours.best * MS:.0f} "
+            f"against {bare.best * MS:.1f} ms ({ours.best / bare.best:.1f}×)",
+            agreement(model, bare_solve(plain)),
+            f"per call, ours: {resource_use(lambda model=model: analysis.solve(model))}; bare: "
+            f"{resource_use(lambda plain=plain: bare_solve(plain))}",
+            f"columns taken from the {segments:,} Segment objects: {columns * MS:.0f} ms "
+            f"({columns / segments * 1e9:.0f} ns per segment); first solve incl. them "
+            f"{cold * MS:.0f} ms = {cold / bare.median:.1f}× bare; building the model "
+            f"objects {built:.1f} s",
+        )
+        row = Row(
+            f"{label} segments: solve / bare build+solve_banded", ratio, "×", 5.0, notes=notes
+        )
+        rows.append(_with_hot_spots(row, model))
+        rows.append(
+            Row(
+                f"{label} segments: columns from the Model (no target)",
+                columns * MS,
+                "ms",
+                notes=("one pass over the Segment objects; a decoded case file feeds columns",),
+            )
+        )
+        if segments == 1_000_000:
+            rows.append(Row("1M segments: solve median", ours.median * MS, "ms", 2000.0))
+            rows.append(
+                Row(
+                    "1M segments: first solve incl. columns",
+                    cold * MS,
+                    "ms",
+                    2000.0,
+                    gate=False,
+                )
+            )
+        del model
+        gc.collect()
+    return rows
 
-    def counting(*args: Any, **kwargs: Any) -> Any:
+
+class _CountingLapack:
+    """Stands in for scipy.linalg.lapack inside assembly.py, counting factorizations."""
+
+    def __init__(self, lapack: Any) -> None:
+        self.lapack = lapack
+        self.factorizations = 0
+
+    def __getattr__(self, name: str) -> Any:
+        function = getattr(self.lapack, name)
+        if name.endswith(("gttrf", "gbtrf")):
+
+            def counted(*args: Any, **kwargs: Any) -> Any:
+                self.factorizations += 1
+                return function(*args, **kwargs)
+
+            return counted
+        return function
+
+
+def _count_factorizations(model: Any) -> int:
+    """LU factorizations made by one ``solve(model)`` (LAPACK band and SuperLU)."""
+    counting = _CountingLapack(assembly.lapack)
+    original_splu = assembly.spla.splu
+    calls = 0
+
+    def splu(*args: Any, **kwargs: Any) -> Any:
         nonlocal calls
         calls += 1
-        return original(*args, **kwargs)
+        return original_splu(*args, **kwargs)
 
-    analysis.spla.splu = counting
+    assembly.lapack = counting  # type: ignore[assignment]
+    assembly.spla.splu = splu
     try:
         analysis.solve(model)
     finally:
-        analysis.spla.splu = original
-    return calls
-
-
-def _factorization_row(model: Any) -> Row:
-    count = _count_factorizations(model)
-    if count == 0:
-        note = (
-            "solve() made no scipy.sparse.linalg.splu call: it factors some other way, so this "
-            "count no longer measures the number of factorizations",
-        )
-        return Row("50 segments, 1000 cases: LU factorizations", 0, "", 1.0, gate=False, notes=note)
-    return Row("50 segments, 1000 cases: LU factorizations", count, "", 1.0)
+        assembly.lapack = counting.lapack
+        assembly.spla.splu = original_splu
+    return counting.factorizations + calls
 
 
 def _many_cases() -> list[Row]:
     model = many_case_model(50, 1000)
-    timing = time_calls(lambda: analysis.solve(model), repeats=40, warmup=3, budget=3.0)
-    note = (
-        f"1000 cases, one point torque each on a segment joint (mesh stays "
-        f"{len(analysis.build_mesh(model).node_x) - 1} elements); median of {len(timing.times)}, "
-        f"p95 {timing.p95 * MS:.1f} ms"
+    analysis.solve(model)  # columns taken once per model
+    plain = plain_system(model)
+    ours, bare = time_pair(
+        lambda: analysis.solve(model),
+        lambda: bare_solve(plain),
+        repeats=60,
+        warmup=3,
     )
-    total = Row(
-        "50 segments, 1000 cases: solve median", timing.median * MS, "ms", 50.0, notes=(note,)
+    n_elements = len(analysis.build_mesh(model).node_x) - 1
+    notes = (
+        f"1000 cases, one point torque each on a segment joint ({n_elements} elements); our "
+        f"side solve(model) median {ours.median * MS:.2f} ms (p95 {ours.p95 * MS:.2f}), bare "
+        f"side G·J/L + band + loads + solve_banded with 1000 right-hand sides, median "
+        f"{bare.median * MS:.2f} ms; taking turns, {len(ours.times)} calls each",
+        agreement(model, bare_solve(plain)),
+        f"per call, ours: {resource_use(lambda: analysis.solve(model), 20)}; bare: "
+        f"{resource_use(lambda: bare_solve(plain), 20)}",
     )
+    ratio = Row(
+        "50 seg., 1000 cases: solve / bare solve_banded",
+        ours.median / bare.median,
+        "×",
+        5.0,
+        notes=notes,
+    )
+    count = _count_factorizations(model)
     scattered = many_case_model(50, 1000, on_joints=False)
     scattered_timing = time_calls(
         lambda: analysis.solve(scattered), repeats=20, warmup=2, budget=3.0
@@ -288,8 +350,9 @@ def _many_cases() -> list[Row]:
         f"{len(analysis.build_mesh(scattered).node_x) - 1} elements)",
     )
     return [
-        _with_hot_spots(total, model),
-        _factorization_row(model),
+        _with_hot_spots(ratio, model),
+        Row("50 segments, 1000 cases: solve median", ours.median * MS, "ms", 50.0),
+        Row("50 segments, 1000 cases: LU factorizations", count, "", 1.0),
         Row(
             "50 seg., 1000 cases off the joints: solve",
             scattered_timing.median * MS,
@@ -299,60 +362,118 @@ def _many_cases() -> list[Row]:
     ]
 
 
-def _dense_factor_and_solve(
-    matrix: sp.csc_matrix, rhs: FloatArray, has_constraints: bool
-) -> FloatArray:
-    """Stand-in for analysis._factor_and_solve: densify the assembled matrix, LAPACK LU."""
-    return np.asarray(np.linalg.solve(matrix.toarray(), rhs))
+def _batch_sweep() -> list[Row]:
+    model = demo_shaft_model(20, distributed=False)
+    segments = case_table(model).segments
+    scale = np.linspace(0.7, 1.3, 10_000)[:, None]
+    outer = segments.outer_diameter_start[0] * scale
+    inner = segments.inner_diameter[0] * scale
+    timing = time_calls(
+        lambda: solve_batch(model, outer_diameter=outer, inner_diameter=inner),
+        repeats=9,
+        warmup=1,
+        collect_between=True,
+    )
+    batch = solve_batch(model, outer_diameter=outer, inner_diameter=inner)
+    if not batch.valid.all():
+        msg = f"the sweep has invalid variants: {batch.reasons[int(np.argmin(batch.valid))]}"
+        raise AssertionError(msg)
+    alone = time_calls(lambda: analysis.solve(model), repeats=200, warmup=5)
+    worst = 0.0
+    for number in (0, 4_999, 9_999):  # a variant written as its own model agrees
+        variant = _scaled_model(model, float(scale[number, 0]))
+        reference = analysis.solve(variant).torque
+        worst = max(worst, float(np.abs(batch.torque[number] - reference).max()))
+    notes = (
+        f"10,000 diameters (×0.7 to ×1.3 of every segment's), 3 load cases, stations, T, θ, τ "
+        f"and the nominal stress per torque of every variant; median of {len(timing.times)}, "
+        f"p95 {timing.p95 * MS:.0f} ms",
+        f"one-by-one solve(model) of a variant: median {alone.median * MS:.3f} ms, i.e. "
+        f"{alone.median * 10_000:.1f} s for 10,000 ({alone.median * 10_000 / timing.median:.0f}× "
+        f"the batch); three variants solved alone agree to {worst:.1e} N·m",
+    )
+    return [
+        Row(
+            "10,000-variant diameter sweep: solve_batch",
+            timing.median * MS,
+            "ms",
+            1000.0,
+            notes=notes,
+        )
+    ]
+
+
+def _scaled_model(model: Any, factor: float) -> Any:
+    """The demo model with every section's diameters scaled."""
+    from workbench.solver.sections import SolidCircle, Tube
+
+    def scaled(section: Any) -> Any:
+        if isinstance(section, SolidCircle):
+            return SolidCircle(section.diameter * factor)
+        return Tube(section.outer_diameter * factor, section.inner_diameter * factor)
+
+    shaft = model.shafts[0]
+    segments = tuple(
+        dataclasses.replace(
+            segment,
+            layers=tuple(
+                dataclasses.replace(layer, section=scaled(layer.section))
+                for layer in segment.layers
+            ),
+        )
+        for segment in shaft.segments
+    )
+    return dataclasses.replace(model, shafts=(dataclasses.replace(shaft, segments=segments),))
+
+
+class _DenseFactor:
+    """Stand-in for assembly.BandFactor: densify the assembled band, LAPACK dense LU."""
+
+    def __init__(self, band: assembly.Band) -> None:
+        self.matrix = assembly.band_to_sparse(band).toarray()
+
+    def solve(self, rhs: FloatArray) -> FloatArray:
+        return np.asarray(np.linalg.solve(self.matrix, rhs))
 
 
 def _versus_dense() -> list[Row]:
     model = demo_shaft_model(2000, distributed=False)
-    matrix, rhs, free = _free_system(model)
-    dense = matrix.toarray()
-    dense_timing = time_calls(lambda: np.linalg.solve(dense, rhs), repeats=7, budget=3.0)
+    plain = plain_system(model)
+    analysis.solve(model)
     ours = time_calls(lambda: analysis.solve(model), repeats=50, warmup=3, budget=2.0)
-    # The swap relies on solve() handing its assembled system to this one private helper.
-    original = getattr(analysis, "_factor_and_solve", None)
-    if original is None:
-        msg = "analysis._factor_and_solve is gone: update the dense-LU swap of this benchmark"
-        raise AttributeError(msg)
-    analysis._factor_and_solve = _dense_factor_and_solve
+    original = statics.BandFactor
+    statics.BandFactor = _DenseFactor  # type: ignore[assignment,misc]
     try:
         dense_results = analysis.solve(model)
         dense_pipeline = time_calls(lambda: analysis.solve(model), repeats=7, budget=3.0)
     finally:
-        analysis._factor_and_solve = original
-
-    def core() -> np.ndarray:
-        factor = spla.splu(matrix, permc_spec="NATURAL", options={"SymmetricMode": True})
-        return np.asarray(factor.solve(rhs))
-
-    core_timing = time_calls(core, repeats=50, warmup=3, budget=2.0)
-    swapped = dense_results.node_angle[:3][:, free].T
-    reference = _solve_rotations(model, free)
+        statics.BandFactor = original  # type: ignore[misc]
+    bare = bare_solve(plain)
+    stiffness = plain.modulus * (np.pi / 32.0) * (plain.outer**4 - plain.inner**4) / plain.length
+    size = len(stiffness) - 1
+    matrix = np.diag(stiffness[:-1] + stiffness[1:])
+    matrix[plain.spring_node - 1, plain.spring_node - 1] += plain.spring_stiffness
+    matrix -= np.diag(stiffness[1:-1], 1) + np.diag(stiffness[1:-1], -1)
+    rhs = np.zeros((size + 2, plain.n_cases))
+    np.add.at(rhs, (plain.load_node, plain.load_case), plain.load)
+    dense_timing = time_calls(lambda: np.linalg.solve(matrix, rhs[1:-1]), repeats=7, budget=3.0)
+    error = float(
+        np.max(np.abs(dense_results.node_angle[:3, 1:-1].T - bare)) / np.max(np.abs(bare))
+    )
     checks = (
-        f"system: {matrix.shape[0]} free rotations × 3 load cases, the constrained stiffness "
-        "matrix (torsion_stiffness_matrix, fixed nodes removed, spring on the diagonal)",
-        _check_same_system(reference, np.linalg.solve(dense, rhs), "bare dense solution"),
-        _check_same_system(reference, swapped, "dense-LU solve() run"),
-        _check_same_system(reference, core(), "sparse core solution"),
+        f"system: {size} free rotations × 3 load cases; {agreement(model, bare)}; the dense-LU "
+        f"solve() run matches it to {error:.1e}",
     )
     pipeline_notes = (
-        f"dense side: the whole solve(model) with its factor-and-solve step swapped for "
-        f"np.linalg.solve(matrix.toarray(), rhs), median {dense_pipeline.median * MS:.1f} ms",
-        f"our side: the whole solve(model) as it is (meshing, assembly, sparse LU and solve, "
-        f"stations, reactions), median {ours.median * MS:.2f} ms",
+        f"dense side: the whole solve(model) with its band factorization swapped for "
+        f"np.linalg.solve on the densified matrix, median {dense_pipeline.median * MS:.1f} ms",
+        f"our side: the whole solve(model) as it is, median {ours.median * MS:.2f} ms",
         *checks,
     )
     bare_notes = (
         f"dense side: np.linalg.solve (LAPACK LU) on the ready dense matrix and loads only, "
         f"median {dense_timing.median * MS:.1f} ms; our side: the whole solve(model), "
         f"{ours.median * MS:.2f} ms (the harshest reading: only our side meshes and recovers)",
-    )
-    core_notes = (
-        f"dense side as above; our side: splu(NATURAL, SymmetricMode).solve on the same sparse "
-        f"matrix and loads only, median {core_timing.median * MS:.3f} ms",
     )
     pipeline = Row(
         "2000 seg.: solve() with dense LU / as is",
@@ -362,7 +483,7 @@ def _versus_dense() -> list[Row]:
         sense=">=",
         notes=pipeline_notes,
     )
-    bare = Row(
+    bare_row = Row(
         "2000 seg.: bare dense solve / solve()",
         dense_timing.median / ours.median,
         "×",
@@ -371,60 +492,47 @@ def _versus_dense() -> list[Row]:
         gate=False,
         notes=bare_notes,
     )
-    core_row = Row(
-        "2000 seg.: bare dense solve / sparse core",
-        dense_timing.median / core_timing.median,
-        "×",
-        20.0,
-        sense=">=",
-        gate=False,
-        notes=core_notes,
-    )
-    return [_with_hot_spots(pipeline, model), bare, core_row]
+    return [_with_hot_spots(pipeline, model), bare_row]
 
 
-def _versus_banded() -> list[Row]:
+def _core_versus_banded() -> list[Row]:
+    """The factor-and-solve core on the assembled band against ``solve_banded``."""
     model = demo_shaft_model(100_000, distributed=False)
-    matrix, rhs, free = _free_system(model)
-    offsets = matrix.todia().offsets
-    if set(offsets) - {-1, 0, 1}:
-        msg = f"the system is not tridiagonal (diagonals {sorted(offsets)})"
-        raise AssertionError(msg)
-    size = matrix.shape[0]
-    banded = np.zeros((3, size))
-    banded[0, 1:] = matrix.diagonal(1)
-    banded[1] = matrix.diagonal(0)
-    banded[2, :-1] = matrix.diagonal(-1)
+    plain = plain_system(model)
+    table = case_table(model)
+    solution = statics.solve_table(table)
+    band = solution.factor.band  # type: ignore[union-attr]
+    rhs = np.zeros((table.n_cases, 1, band.size))
+    mesh = solution.mesh
+    nodes = mesh.nodes_of(table.torque_shaft, table.torque_x)
+    np.add.at(rhs, (table.torque_case, 0, nodes), table.torque[0])
 
-    def factor() -> Any:
-        return spla.splu(matrix, permc_spec="NATURAL", options={"SymmetricMode": True})
+    def core() -> FloatArray:
+        # A copy in Fortran order: the solve overwrites its right-hand sides.
+        loads = np.array(rhs.reshape(table.n_cases, -1).T, order="F")
+        return assembly.BandFactor(band).solve(loads)
 
-    def core() -> np.ndarray:
-        return np.asarray(factor().solve(rhs))
-
-    core_timing = time_calls(core, repeats=21, warmup=2, budget=4.0)
-    banded_timing = time_calls(
-        lambda: scipy.linalg.solve_banded((1, 1), banded, rhs), repeats=21, warmup=2, budget=2.0
+    stiffness = plain.modulus * (np.pi / 32.0) * (plain.outer**4 - plain.inner**4) / plain.length
+    ours, reference = time_pair(core, lambda: bare_solve(plain), repeats=21, warmup=2)
+    error = float(
+        np.max(np.abs(core()[1:-1] - bare_solve(plain))) / np.max(np.abs(bare_solve(plain)))
     )
-    lu = factor()
-    factor_timing = time_calls(factor, repeats=11, budget=2.0)
-    solve_timing = time_calls(lambda: lu.solve(rhs), repeats=21, budget=1.0)
-    ratio = core_timing.median / banded_timing.median
-    reference = _solve_rotations(model, free)
     notes = (
-        f"system: {size} free rotations × 3 cases, tridiagonal, from torsion_stiffness_matrix "
-        "with the fixed nodes removed (csc, sorted indices)",
-        f"core: splu(permc_spec='NATURAL', SymmetricMode=True).solve(rhs) as analysis.py calls "
-        f"it, median {core_timing.median * MS:.2f} ms (factor "
-        f"{factor_timing.median * MS:.2f} ms + solve {solve_timing.median * MS:.2f} ms)",
-        f"reference: scipy.linalg.solve_banded((1, 1), ab, rhs), LAPACK gbsv with its input "
-        f"copies and finiteness check, median {banded_timing.median * MS:.2f} ms",
-        _check_same_system(reference, core(), "sparse core solution"),
-        _check_same_system(
-            reference, scipy.linalg.solve_banded((1, 1), banded, rhs), "banded solution"
-        ),
+        f"core: BandFactor (dgttrf + dgttrs, fixed rows held in place) on the assembled band of "
+        f"{band.size} rotations × 3 cases, median {ours.median * MS:.2f} ms",
+        f"reference: the bare build + scipy.linalg.solve_banded, median "
+        f"{reference.median * MS:.2f} ms ({len(stiffness)} elements); solutions agree to "
+        f"{error:.1e} (relative)",
     )
-    return [Row("100k seg.: splu core / solve_banded", ratio, "×", 10.0, notes=notes)]
+    return [
+        Row(
+            "100k seg.: band core / bare solve_banded",
+            ours.median / reference.median,
+            "×",
+            10.0,
+            notes=notes,
+        )
+    ]
 
 
 _IMPORT_PROBE = """
@@ -451,7 +559,12 @@ def _import_times() -> list[Row]:
 
 def versus_banded() -> list[Row]:
     """The factor-and-solve core against ``solve_banded`` (run in a fresh interpreter)."""
-    return _versus_banded()
+    return _core_versus_banded()
+
+
+def pipeline() -> list[Row]:
+    """The whole pipeline at 10⁵ and 10⁶ segments (run in a fresh interpreter)."""
+    return _pipeline_versus_bare()
 
 
 def run() -> list[Row]:
@@ -459,10 +572,11 @@ def run() -> list[Row]:
     return [
         *_small_shaft(),
         *_large_shaft(),
+        # A fresh process: the 10⁶-segment model's objects would shape the other figures' heap.
+        *rows_in_fresh_process(__name__, "pipeline"),
         *_many_cases(),
+        *_batch_sweep(),
         *_versus_dense(),
-        # SuperLU mallocs its work space on every factorization, so its time depends on what the
-        # process freed before (glibc moves its mmap threshold); a fresh process fixes that state.
         *rows_in_fresh_process(__name__, "versus_banded"),
         *_import_times(),
     ]

@@ -196,6 +196,27 @@ def time_calls(
     return Timing(tuple(times))
 
 
+def resource_use(call: Callable[[], object], repeats: int = 3) -> str:
+    """Page faults, user and system CPU time per call of ``call`` (after one warm-up), as text.
+
+    Fresh pages are faulted in by the kernel (system time): where a process's allocator hands
+    memory back between calls, every call of a code with large outputs pays them again.
+    """
+    import resource
+
+    call()
+    with _collector_off():
+        before = resource.getrusage(resource.RUSAGE_SELF)
+        for _ in range(repeats):
+            result = call()
+            del result
+        after = resource.getrusage(resource.RUSAGE_SELF)
+    faults = (after.ru_minflt - before.ru_minflt) / repeats
+    user = (after.ru_utime - before.ru_utime) / repeats
+    system = (after.ru_stime - before.ru_stime) / repeats
+    return f"{faults:,.0f} page faults, user {user * 1e3:.1f} ms, system {system * 1e3:.1f} ms"
+
+
 #: Marks the line of a fresh interpreter's output that carries its JSON answer.
 ANSWER_MARK = "BENCHMARK-ANSWER "
 
@@ -367,29 +388,45 @@ def many_case_model(
 # --- where the time goes -------------------------------------------------------------------------
 
 
-def solve_phases(model: Any, repeats: int = 5) -> list[str]:
-    """Split the time of ``analysis.solve(model)`` over the helpers it calls (ms per solve).
+#: The solver modules whose functions :func:`solve_phases` times.
+SOLVER_CORE = (
+    "workbench.solver.analysis",
+    "workbench.solver.columns",
+    "workbench.solver.mesh",
+    "workbench.solver.elements",
+    "workbench.solver.assembly",
+    "workbench.solver.recovery",
+    "workbench.solver.statics",
+)
 
-    Every function defined in ``workbench.solver.analysis`` (other than ``solve``) is wrapped with
-    a timer for the duration of the measurement and restored afterwards. Only calls made while
-    no other wrapped helper is running are counted, so nested helpers are not counted twice;
-    what is left is the assembly and result recovery written inside ``solve`` itself.
+
+def solve_phases(model: Any, repeats: int = 5) -> list[str]:
+    """Split the time of ``analysis.solve(model)`` over the core's functions (ms per solve).
+
+    Every function defined in the core's modules (:data:`SOLVER_CORE`, other than ``solve``) is
+    wrapped with a timer, wherever a core module refers to it, for the duration of the
+    measurement and restored afterwards. Only calls made while no other wrapped function is
+    running are counted, so nested calls are not counted twice; what is left is the work written
+    inside ``solve`` itself.
     """
+    import importlib
     import inspect
 
     from workbench.solver import analysis
 
+    modules = [importlib.import_module(name) for name in SOLVER_CORE]
     originals = {
-        name: function
-        for name, function in vars(analysis).items()
+        function: f"{module.__name__.rsplit('.', 1)[-1]}.{name}"
+        for module in modules
+        for name, function in vars(module).items()
         if inspect.isfunction(function)
-        and function.__module__ == analysis.__name__
-        and name != "solve"
+        and function.__module__ == module.__name__
+        and function is not analysis.solve
     }
-    spent = dict.fromkeys(originals, 0.0)
+    spent = dict.fromkeys(originals.values(), 0.0)
     depth = 0
 
-    def timed(name: str, function: Callable[..., Any]) -> Callable[..., Any]:
+    def timed(label: str, function: Callable[..., Any]) -> Callable[..., Any]:
         def wrapper(*args: Any, **kwargs: Any) -> Any:
             nonlocal depth
             depth += 1
@@ -399,26 +436,32 @@ def solve_phases(model: Any, repeats: int = 5) -> list[str]:
             finally:
                 depth -= 1
                 if depth == 0:
-                    spent[name] += time.perf_counter() - start
+                    spent[label] += time.perf_counter() - start
 
         return wrapper
 
+    patched = [
+        (module, name, function)
+        for module in modules
+        for name, function in vars(module).items()
+        if inspect.isfunction(function) and function in originals
+    ]
     try:
-        for name, function in originals.items():
-            setattr(analysis, name, timed(name, function))
+        for module, name, function in patched:
+            setattr(module, name, timed(originals[function], function))
         analysis.solve(model)
-        for name in spent:
-            spent[name] = 0.0
+        for label in spent:
+            spent[label] = 0.0
         total = time_calls(lambda: analysis.solve(model), repeats=repeats, warmup=0)
     finally:
-        for name, function in originals.items():
-            setattr(analysis, name, function)
+        for module, name, function in patched:
+            setattr(module, name, function)
     calls = len(total.times)
     mean_total = sum(total.times) / calls
     lines = [f"phases of solve() (mean of {calls}, total {mean_total * 1e3:.2f} ms):"]
     ranked = sorted(((name, value) for name, value in spent.items() if value), key=lambda x: -x[1])
     inside = mean_total * calls - sum(spent.values())
-    for name, seconds in [*ranked, ("assembly + recovery in solve()", inside)]:
+    for name, seconds in [*ranked[:12], ("inside solve() itself", inside)]:
         share = seconds / calls / mean_total
         lines.append(f"  {name:<32s} {seconds / calls * 1e3:8.2f} ms  {share:6.1%}")
     return lines

@@ -19,6 +19,7 @@ from workbench.solver.analysis import (
     build_mesh,
     solve,
 )
+from workbench.solver.batch import BatchResults, solve_batch
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
 from workbench.solver.model import (
     Combination,
@@ -39,6 +40,7 @@ __all__ = [
     "LIBRARY",
     "SI",
     "SI_ENGINEERING",
+    "BatchResults",
     "Combination",
     "DistributedTorque",
     "Envelope",
@@ -69,5 +71,6 @@ __all__ = [
     "parse_case",
     "save_case",
     "solve",
+    "solve_batch",
     "us_customary",
 ]

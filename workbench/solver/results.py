@@ -1,0 +1,211 @@
+"""Results of a static solution: every load case and combination along every shaft.
+
+Arrays have one row per result (load cases first, in model order, then combinations) and one
+column per mesh station; the per-shaft, per-result views and the tables users take away are
+built from them on demand.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator, Mapping
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from workbench.case.errors import InputError
+from workbench.solver.mesh import Mesh
+from workbench.solver.model import Model
+from workbench.solver.sections import FloatArray
+
+
+@dataclass(frozen=True)
+class ShaftResult:
+    """Results along one shaft for one load case or combination, at the mesh stations.
+
+    At a point where a value jumps (a point torque, a support, a gear, a change of section) the
+    station x appears twice: the value just left, then just right.
+
+    Attributes
+    ----------
+    x
+        Station positions along the shaft (m).
+    torque
+        Internal torque T(x) (N·m): the torque on the cut face whose outward normal is +x.
+    angle
+        Angle of twist θ(x) (rad), the rotation of the section.
+    shear_stress
+        Largest shear-stress magnitude over the section (Pa), over all layers.
+    """
+
+    x: FloatArray
+    torque: FloatArray
+    angle: FloatArray
+    shear_stress: FloatArray
+
+
+@dataclass(frozen=True)
+class LoadResult:
+    """Every result of one load case or combination.
+
+    Attributes
+    ----------
+    name
+        The load case's or combination's name.
+    is_combination
+        Whether it is a combination.
+    reactions
+        Torque each support exerts on its shaft (N·m), in model order.
+    gear_torques
+        (n_gears, 2): torque the mesh exerts on the shaft of gear a and of gear b (N·m).
+    shafts
+        Results along each shaft, by shaft id.
+    """
+
+    name: str
+    is_combination: bool
+    reactions: FloatArray
+    gear_torques: FloatArray
+    shafts: Mapping[str, ShaftResult]
+
+
+@dataclass(frozen=True)
+class Envelope:
+    """Least and greatest values over all load cases and combinations, station by station.
+
+    Attributes
+    ----------
+    x
+        Stations (m).
+    torque_min, torque_max
+        Internal torque bounds (N·m).
+    angle_min, angle_max
+        Rotation bounds (rad).
+    shear_stress_max
+        Largest shear stress (Pa).
+    """
+
+    x: FloatArray
+    torque_min: FloatArray
+    torque_max: FloatArray
+    angle_min: FloatArray
+    angle_max: FloatArray
+    shear_stress_max: FloatArray
+
+
+@dataclass(frozen=True)
+class Results:
+    """The solution of a model: every load case, then every combination.
+
+    Arrays have one row per result (load cases first, in model order, then combinations) and one
+    column per station; :meth:`__getitem__` gives a per-result view.
+
+    Attributes
+    ----------
+    model
+        The model solved.
+    mesh
+        Its mesh.
+    names
+        Result names in order.
+    reactions
+        (n_results, n_supports) support torques (N·m).
+    gear_torques
+        (n_results, n_gears, 2) mesh torques on gear a's and gear b's shaft (N·m).
+    torque, angle, shear_stress
+        (n_results, n_stations) internal torque (N·m), rotation (rad), peak shear stress (Pa).
+    node_angle
+        (n_results, n_nodes) rotation at the mesh nodes (rad).
+    """
+
+    model: Model
+    mesh: Mesh
+    names: tuple[str, ...]
+    reactions: FloatArray
+    gear_torques: FloatArray
+    torque: FloatArray
+    angle: FloatArray
+    shear_stress: FloatArray
+    node_angle: FloatArray
+
+    def index(self, name: str) -> int:
+        """Row of the named load case or combination."""
+        try:
+            return self.names.index(name)
+        except ValueError:
+            msg = f"unknown load case or combination {name!r}; known: {', '.join(self.names)}"
+            raise InputError("result", msg) from None
+
+    def __getitem__(self, name: str) -> LoadResult:
+        row = self.index(name)
+        shafts = {}
+        for number, shaft in enumerate(self.model.shafts):
+            window = self._window(number)
+            shafts[shaft.id] = ShaftResult(
+                x=self.mesh.station_x[window],
+                torque=self.torque[row, window],
+                angle=self.angle[row, window],
+                shear_stress=self.shear_stress[row, window],
+            )
+        return LoadResult(
+            name=name,
+            is_combination=row >= len(self.model.load_cases),
+            reactions=self.reactions[row],
+            gear_torques=self.gear_torques[row],
+            shafts=shafts,
+        )
+
+    def __iter__(self) -> Iterator[LoadResult]:
+        return (self[name] for name in self.names)
+
+    def __len__(self) -> int:
+        return len(self.names)
+
+    def _window(self, shaft_number: int) -> slice:
+        starts = self.mesh.shaft_station_start
+        return slice(int(starts[shaft_number]), int(starts[shaft_number + 1]))
+
+    def envelope(self, shaft_id: str) -> Envelope:
+        """Bounds over all results along one shaft."""
+        window = self._window(self.model.shaft_number(shaft_id))
+        return Envelope(
+            x=self.mesh.station_x[window],
+            torque_min=self.torque[:, window].min(axis=0),
+            torque_max=self.torque[:, window].max(axis=0),
+            angle_min=self.angle[:, window].min(axis=0),
+            angle_max=self.angle[:, window].max(axis=0),
+            shear_stress_max=self.shear_stress[:, window].max(axis=0),
+        )
+
+    def to_frame(self) -> Any:
+        """All station results as a long pandas DataFrame (SI units).
+
+        Columns: ``result``, ``shaft``, ``x``, ``torque``, ``angle``, ``shear_stress``.
+        """
+        import pandas as pd  # noqa: PLC0415 - tables are an edge; the solver core stays light
+
+        shaft_of_station = self.mesh.element_shaft[self.mesh.station_element]
+        shaft_ids = np.array([shaft.id for shaft in self.model.shafts], dtype=object)
+        rows = len(self.names)
+        return pd.DataFrame(
+            {
+                "result": np.repeat(np.array(self.names, dtype=object), len(shaft_of_station)),
+                "shaft": np.tile(shaft_ids[shaft_of_station], rows),
+                "x": np.tile(self.mesh.station_x, rows),
+                "torque": self.torque.ravel(),
+                "angle": self.angle.ravel(),
+                "shear_stress": self.shear_stress.ravel(),
+            }
+        )
+
+    def reactions_frame(self) -> Any:
+        """Support reactions (N·m) as a DataFrame: one row per result, one column per support."""
+        import pandas as pd  # noqa: PLC0415
+
+        columns = [
+            f"{support.shaft}@{support.x:g} m ({support.kind})" for support in self.model.supports
+        ]
+        return pd.DataFrame(self.reactions, index=list(self.names), columns=columns)
+
+
+__all__ = ["Envelope", "LoadResult", "Results", "ShaftResult"]

@@ -1,0 +1,403 @@
+"""The array core of the static solution: columns in, every load case of every variant out.
+
+:func:`solve_table` takes a system as columns (:class:`~workbench.solver.columns.CaseTable`),
+cuts it into exact elements, assembles the stiffness of all elements at once, factors it once
+(banded LAPACK without gears, SuperLU with them) for all load cases as a matrix of right-hand
+sides, and recovers T, θ and τ at every station by equilibrium. Many variants of one topology
+(:mod:`workbench.solver.batch`) go through the same code with a leading variant axis.
+
+References
+----------
+.. [1] W. McGuire, R. H. Gallagher and R. D. Ziemian, *Matrix Structural Analysis*, 2nd ed.,
+   Wiley, 2000, ch. 2-3 (direct stiffness method) and ch. 12 (Lagrange multipliers).
+.. [2] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.4 and §3.8.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any, Literal
+
+import numpy as np
+
+from workbench.case.errors import InputError, MechanismError
+from workbench.solver.assembly import (
+    Band,
+    BandFactor,
+    SparseFactor,
+    add_diagonal,
+    assemble_band,
+    prescribe,
+    split_constrained,
+    with_constraints,
+)
+from workbench.solver.columns import CaseTable, IntArray
+from workbench.solver.elements import SaintVenantElements
+from workbench.solver.mesh import Geometry, Mesh, build_mesh_from_table
+from workbench.solver.recovery import (
+    ElementLoads,
+    combine,
+    combine_in_place,
+    fixed_reactions,
+    start_torques,
+    station_values,
+)
+from workbench.solver.sections import FloatArray
+
+
+@dataclass(frozen=True)
+class StaticSolution:
+    """Every load case, then every combination, of every variant: arrays (n_results, n_variants, …).
+
+    Parameters
+    ----------
+    names
+        Result names: load cases, then combinations.
+    mesh
+        The mesh (its topology is every variant's).
+    geometry
+        The sizes of every variant.
+    reactions
+        (n_results, n_variants, n_supports) support torques (N·m).
+    gear_torques
+        (n_results, n_variants, n_gears, 2) mesh torques on gear a's and gear b's shaft (N·m).
+    torque, angle, shear_stress
+        (n_results, n_variants, n_stations) internal torque (N·m), rotation (rad), peak shear
+        stress (Pa).
+    node_angle
+        (n_results, n_variants, n_nodes) nodal rotations (rad).
+    factor
+        The factorization (its ``rcond`` estimates the reciprocal condition number).
+    """
+
+    names: tuple[str, ...]
+    mesh: Mesh
+    geometry: Geometry
+    reactions: FloatArray
+    gear_torques: FloatArray
+    torque: FloatArray
+    angle: FloatArray
+    shear_stress: FloatArray
+    node_angle: FloatArray
+    factor: BandFactor | SparseFactor
+
+
+def check_restrained(table: CaseTable) -> None:
+    """Raise :class:`MechanismError` naming every group of shafts no support restrains."""
+    shaft_ids = table.segments.shaft_ids
+    parent = list(range(len(shaft_ids)))
+
+    def root(number: int) -> int:
+        while parent[number] != number:
+            parent[number] = parent[parent[number]]
+            number = parent[number]
+        return number
+
+    for shaft_a, shaft_b in table.gear_shaft.tolist():  # a loop over gears
+        parent[root(shaft_a)] = root(shaft_b)
+    restrained = {root(number) for number in table.support_shaft.tolist()}
+    groups: dict[int, list[str]] = {}
+    for number, shaft_id in enumerate(shaft_ids):
+        groups.setdefault(root(number), []).append(shaft_id)
+    free = [names for group, names in groups.items() if group not in restrained]
+    if free:
+        names = free[0]
+        if len(names) == 1:
+            what = f"shaft {names[0]!r} is"
+        else:
+            what = "shafts " + ", ".join(repr(name) for name in names) + " (joined by gears) are"
+        msg = (
+            f"{what} free to spin (a mechanism): no support restrains it; add a fixed or spring "
+            "support, or a gear to a supported shaft"
+        )
+        raise MechanismError("supports", msg)
+
+
+def _fixed_nodes(table: CaseTable, support_node: IntArray) -> IntArray:
+    fixed_numbers = np.flatnonzero(table.support_fixed)
+    nodes = support_node[fixed_numbers]
+    _, first, counts = np.unique(nodes, return_index=True, return_counts=True)
+    if np.any(counts > 1):
+        repeated = nodes[first[counts > 1][0]]
+        number = int(fixed_numbers[np.flatnonzero(nodes == repeated)[1]])
+        msg = "a second fixed support at the same point of the shaft: the split is undefined"
+        raise InputError(f"supports[{number}]", msg)
+    return nodes
+
+
+def _element_loads(
+    table: CaseTable, mesh: Mesh, geometry: Geometry, n_variants: int
+) -> ElementLoads:
+    """Intensities of the distributed torques at the ends of every loaded element."""
+    n_cases = table.n_cases
+    elements = np.flatnonzero(mesh.element_loaded)
+    length = geometry.element_length[:, elements]
+    start = np.zeros((n_cases, n_variants, len(elements)))
+    end = np.zeros_like(start)
+    if not len(elements):
+        return ElementLoads(elements, start, end, length)
+    node_a = mesh.element_start_node[elements]
+    x_start = geometry.node_x[:, node_a]
+    x_end = geometry.node_x[:, node_a + 1]
+    middle = 0.5 * (mesh.node_x[node_a] + mesh.node_x[node_a + 1])
+    if not geometry.nodes_moved:
+        span_start, span_end = table.load_start[None], table.load_end[None]
+    else:  # lengths vary: the loads' ends stay on their nodes
+        nodes_start = mesh.nodes_of(table.load_shaft, table.load_start)
+        nodes_end = mesh.nodes_of(table.load_shaft, table.load_end)
+        span_start, span_end = geometry.node_x[:, nodes_start], geometry.node_x[:, nodes_end]
+    intensity = table.load_intensity
+    shaft = mesh.element_shaft[elements]
+    for number in range(len(table.load_case)):  # a loop over distributed torques
+        inside = (
+            (shaft == table.load_shaft[number])
+            & (middle > table.load_start[number])
+            & (middle < table.load_end[number])
+        )
+        low, high = span_start[:, number : number + 1], span_end[:, number : number + 1]
+        rate = (intensity[:, number, 1:] - intensity[:, number, :1]) / (high - low)
+        case = table.load_case[number]
+        start[case][:, inside] += intensity[:, number, :1] + rate * (x_start[:, inside] - low)
+        end[case][:, inside] += intensity[:, number, :1] + rate * (x_end[:, inside] - low)
+    return ElementLoads(elements, start, end, length)
+
+
+def solve_table(
+    table: CaseTable,
+    mesh: Mesh | None = None,
+    geometry: Geometry | None = None,
+    method: Literal["auto", "band", "sparse"] = "auto",
+) -> StaticSolution:
+    """Solve every load case (and combination) of a system given as columns.
+
+    Parameters
+    ----------
+    table
+        The system: segments, supports, gears, loads (SI).
+    mesh
+        Its mesh, when already built; built here otherwise.
+    geometry
+        Sizes of many variants of the mesh (:func:`~workbench.solver.mesh.size_mesh`); the
+        mesh's own sizes by default. The table's variant columns must match it.
+    method
+        ``"auto"``: banded LAPACK without gears, sparse LU with them; ``"sparse"`` forces the
+        sparse LU (for checks of one path against the other); ``"band"`` refuses gears.
+
+    Returns
+    -------
+    StaticSolution
+        Results of every load case and combination of every variant.
+
+    Raises
+    ------
+    MechanismError
+        When part of the system is free to spin.
+    InputError
+        When supports or gears contradict each other (two fixed supports at one point, a gear
+        held at both ends, a redundant loop of gears).
+    """
+    check_restrained(table)
+    mesh = mesh if mesh is not None else build_mesh_from_table(table)
+    geometry = geometry if geometry is not None else mesh.geometry
+    n_variants = max(geometry.n_variants, table.n_variants)
+    supports = _Supports.of(table, mesh)
+    elements = SaintVenantElements(geometry.flexibility)
+    loads = _element_loads(table, mesh, geometry, n_variants)
+    point, rhs = _right_hand_sides(table, mesh, elements, loads, supports, n_variants)
+    band = assemble_band(elements, mesh.shaft_node_start, n_variants)
+    add_diagonal(band, supports.spring_nodes, supports.spring_stiffness)
+    prescribe(band, rhs, supports.fixed_nodes, supports.fixed_rotation)
+    node_angle, gear_torques, gear_nodes, factor = _factor_and_solve(
+        table, mesh, band, rhs, supports, method
+    )
+    # The held rows give θ̄·K_jj/K_jj: put the prescribed values back exactly.
+    node_angle[..., supports.fixed_nodes] = supports.fixed_rotation
+    return _recover(
+        table,
+        mesh,
+        geometry,
+        elements,
+        loads,
+        supports,
+        point,
+        node_angle,
+        gear_torques,
+        gear_nodes,
+        factor,
+    )
+
+
+@dataclass(frozen=True)
+class _Supports:
+    """The supports of a table on its mesh: fixed ones held, springs on the diagonal."""
+
+    fixed: IntArray  # support numbers of the fixed supports
+    fixed_nodes: IntArray
+    fixed_rotation: FloatArray  # (n_variants or 1, n_fixed) (rad)
+    springs: IntArray  # support numbers of the springs
+    spring_nodes: IntArray
+    spring_stiffness: FloatArray  # (n_variants or 1, n_springs) (N·m/rad)
+    spring_rotation: FloatArray  # (rad)
+
+    @classmethod
+    def of(cls, table: CaseTable, mesh: Mesh) -> _Supports:
+        support_node = mesh.nodes_of(table.support_shaft, table.support_x)
+        springs = np.flatnonzero(~table.support_fixed)
+        fixed = np.flatnonzero(table.support_fixed)
+        return cls(
+            fixed=fixed,
+            fixed_nodes=_fixed_nodes(table, support_node),
+            fixed_rotation=table.support_rotation[:, fixed],
+            springs=springs,
+            spring_nodes=support_node[springs],
+            spring_stiffness=table.support_stiffness[:, springs],
+            spring_rotation=table.support_rotation[:, springs],
+        )
+
+
+def _right_hand_sides(
+    table: CaseTable,
+    mesh: Mesh,
+    elements: SaintVenantElements,
+    loads: ElementLoads,
+    supports: _Supports,
+    n_variants: int,
+) -> tuple[FloatArray, FloatArray]:
+    """(point torques at nodes, right-hand sides), both (n_cases, n_variants, n_nodes) (N·m).
+
+    The right-hand sides add the consistent loads of distributed torques and the springs'
+    prescribed rotations (k·θ̄).
+    """
+    point = np.zeros((table.n_cases, n_variants, len(mesh.node_x)))
+    torque_node = mesh.nodes_of(table.torque_shaft, table.torque_x)
+    at_torques: Any = (table.torque_case, slice(None), torque_node)
+    np.add.at(point, at_torques, table.torque.T)
+    rhs = point.copy()
+    if len(loads.elements):
+        start_load, end_load = elements.consistent_loads(
+            loads.elements, loads.length, np.stack([loads.start, loads.end], axis=-1)
+        )
+        node_a = mesh.element_start_node[loads.elements]
+        rhs[..., node_a] += start_load
+        rhs[..., node_a + 1] += end_load
+    for item, node in enumerate(supports.spring_nodes):  # a loop over springs
+        rhs[..., node] += supports.spring_stiffness[:, item] * supports.spring_rotation[:, item]
+    return point, rhs
+
+
+def _factor_and_solve(
+    table: CaseTable,
+    mesh: Mesh,
+    band: Band,
+    rhs: FloatArray,
+    supports: _Supports,
+    method: str,
+) -> tuple[FloatArray, FloatArray, IntArray, BandFactor | SparseFactor]:
+    """Nodal rotations and gear torques of every case: one factorization for all of them."""
+    n_cases, n_variants, n_nodes = rhs.shape
+    n_gears = len(table.gear_x)
+    if n_gears and method == "band":
+        msg = "gear meshes need the sparse solver: a banded system holds no constraints"
+        raise InputError("method", msg)
+    if not n_gears and method != "sparse":
+        factor = BandFactor(band)
+        solution = factor.solve(rhs.reshape(n_cases, -1).T)
+        node_angle = solution.T.reshape(n_cases, n_variants, n_nodes)
+        no_gears = np.zeros((n_cases, n_variants, 0, 2))
+        return node_angle, no_gears, np.zeros((0, 2), dtype=np.intp), factor
+    gear_nodes = mesh.nodes_of(table.gear_shaft.ravel(), table.gear_x.ravel()).reshape(-1, 2)
+    fixed_rotation = supports.fixed_rotation
+    known = np.full((fixed_rotation.shape[0], n_gears, 2), np.nan)
+    for position, node in enumerate(supports.fixed_nodes):  # a loop over fixed supports
+        known[:, gear_nodes == node] = fixed_rotation[:, position : position + 1]
+    both = np.flatnonzero(np.all(~np.isnan(known[0]), axis=1))
+    if len(both):
+        msg = "both gears sit at fixed supports: the mesh torque is undefined"
+        raise InputError(f"gears[{int(both[0])}]", msg)
+    sparse, full_rhs = with_constraints(band, rhs, gear_nodes, table.gear_coefficient, known)
+    node_angle, multipliers = split_constrained(sparse.solve(full_rhs), n_variants, n_nodes)
+    return node_angle, -multipliers[..., None] * table.gear_coefficient, gear_nodes, sparse
+
+
+def _recover(
+    table: CaseTable,
+    mesh: Mesh,
+    geometry: Geometry,
+    elements: SaintVenantElements,
+    loads: ElementLoads,
+    supports: _Supports,
+    point: FloatArray,
+    node_angle: FloatArray,
+    gear_torques: FloatArray,
+    gear_nodes: IntArray,
+    factor: BandFactor | SparseFactor,
+) -> StaticSolution:
+    """Internal torque, rotation and stress at the stations, and the reactions, by equilibrium."""
+    n_cases, n_variants, n_nodes = node_angle.shape
+    # Concentrated torques known after the solve: applied, gears, springs.
+    external = point
+    at_gears: Any = (slice(None), slice(None), gear_nodes.ravel())
+    np.add.at(external, at_gears, gear_torques.reshape(n_cases, n_variants, -1))
+    spring_nodes = supports.spring_nodes
+    spring_reactions = -supports.spring_stiffness * (
+        node_angle[..., spring_nodes] - supports.spring_rotation
+    )
+    at_springs: Any = (slice(None), slice(None), spring_nodes)
+    np.add.at(external, at_springs, spring_reactions)
+
+    n_elements = len(mesh.element_start_node)
+    stiffness = elements.stiffness
+    load_moment = np.zeros((n_cases, n_variants, 0))
+    resultant = None
+    if len(loads.elements):
+        resultant = loads.full(loads.resultant, n_elements)
+        moments = elements.flexibility[:, loads.elements]
+        load_moment = moments[..., 1] * loads.start + moments[..., 2] * loads.slope
+    loaded_position = np.full(n_elements, -1)
+    loaded_position[loads.elements] = np.arange(len(loads.elements))
+
+    def stiffness_torque(chosen: IntArray) -> FloatArray:
+        """T(0⁺) = (θ_b − θ_a + ∫m/GK)/I₀ of the chosen elements."""
+        node_a = mesh.element_start_node[chosen]
+        twist = node_angle[..., node_a + 1] - node_angle[..., node_a]
+        position = loaded_position[chosen]
+        on_load = position >= 0
+        twist[..., on_load] += load_moment[..., position[on_load]]
+        return twist * stiffness[:, chosen]
+
+    fixed_node = np.zeros(n_nodes, dtype=bool)
+    fixed_node[supports.fixed_nodes] = True
+    start = start_torques(mesh, fixed_node, external, resultant, stiffness_torque)
+    # Without distributed torque the torque is constant along each element.
+    end = start if resultant is None else start - resultant
+    factors = table.combination_factors
+    # T, θ and τ of every result at every station, in one block: combinations are written in
+    # place instead of stacked by copying.
+    n_results = n_cases + len(factors)
+    stations = np.empty((3, n_results, n_variants, len(mesh.station_element)))
+    torque, angle, shear_stress = stations
+    station_values(mesh, geometry, start, end, node_angle, loads, torque[:n_cases], angle[:n_cases])
+    combine_in_place(torque, factors)
+    combine_in_place(angle, factors)
+    np.abs(torque, out=shear_stress)
+    shear_stress *= geometry.station_stress_per_torque
+    reactions = np.zeros((n_cases, n_variants, len(table.support_x)))
+    reactions[..., supports.springs] = spring_reactions
+    reactions[..., supports.fixed] = fixed_reactions(
+        mesh, supports.fixed_nodes, start, end, external
+    )
+    return StaticSolution(
+        names=table.result_names,
+        mesh=mesh,
+        geometry=geometry,
+        reactions=combine(reactions, factors),
+        gear_torques=combine(gear_torques, factors),
+        torque=torque,
+        angle=angle,
+        shear_stress=shear_stress,
+        node_angle=combine(node_angle, factors),
+        factor=factor,
+    )
+
+
+__all__ = ["StaticSolution", "check_restrained", "solve_table"]
