@@ -25,7 +25,7 @@ from hypothesis import strategies as st
 from hypothesis.extra.numpy import array_shapes, broadcastable_shapes
 
 from workbench.case.errors import InputError
-from workbench.design import allowables, concentration
+from workbench.design import allowables, blockwise, concentration
 from workbench.design.allowables import (
     twenty_diameters_twist_rate,
     twist_rate_one_degree_in_twenty_diameters,
@@ -217,7 +217,8 @@ def test_the_references_reproduce_the_published_points() -> None:
     assert reference_hole(0.5, 1.0) == (pytest.approx(4.36712, abs=1e-12), False)
 
 
-@pytest.mark.parametrize("module", [concentration, allowables], ids=lambda m: m.__name__)
+@pytest.mark.parametrize("module", [concentration, allowables, blockwise], ids=lambda m: m.__name__)
 def test_examples_in_the_docstrings_run(module: ModuleType) -> None:
-    # The examples quote the values above (Norton App. C, Pilkey & Pilkey, 1° in 20 diameters).
+    # The examples quote the values above (Norton App. C, Pilkey & Pilkey, 1° in 20 diameters)
+    # and a product of broadcast arrays worked by hand.
     assert doctest.testmod(module, raise_on_error=True).attempted > 0

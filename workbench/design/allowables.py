@@ -40,6 +40,7 @@ from workbench.case.errors import InputError
 from workbench.case.materials import Material
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
+from workbench.design.blockwise import by_blocks
 from workbench.solver.sections import FloatArray
 
 #: Criteria :func:`allowable_shear_stress` accepts.
@@ -261,10 +262,14 @@ def twenty_diameters_twist_rate(diameter: ArrayLike) -> FloatArray:
     >>> twenty_diameters_twist_rate([0.05, 0.1, float("nan")]).round(6).tolist()
     [0.017453, 0.008727, nan]
     """
-    diameters = np.asarray(diameter, dtype=float)
-    positive = np.isfinite(diameters) & (diameters > 0.0)
+    return by_blocks(_twenty_diameters_rate, diameter)
+
+
+def _twenty_diameters_rate(diameter: FloatArray) -> FloatArray:
     with np.errstate(divide="ignore", invalid="ignore"):
-        return np.where(positive, math.radians(1.0) / (20.0 * diameters), np.nan)
+        rate = math.radians(1.0) / (20.0 * diameter)
+    rate[~(np.isfinite(diameter) & (diameter > 0.0))] = np.nan
+    return rate
 
 
 def twenty_diameters_label(diameter: float) -> str:

@@ -46,8 +46,9 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Any
+import functools
+from dataclasses import dataclass, field
+from typing import Any, NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -55,6 +56,7 @@ from numpy.typing import ArrayLike
 from workbench.case.errors import InputError
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
+from workbench.design.blockwise import BLOCK, by_blocks
 from workbench.solver.sections import FloatArray
 
 IntArray = np.ndarray[Any, np.dtype[np.intp]]
@@ -89,6 +91,7 @@ _SHIGLEY_SOURCE = "Shigley's Mechanical Engineering Design, Table 7-1 (first-ite
 
 # The fits' columns as arrays, for the array functions.
 _FIT_RATIOS, _FIT_COEFFICIENTS, _FIT_EXPONENTS = np.array(NORTON_TORSION_FITS).T
+_FIT_GAPS = np.diff(_FIT_RATIOS)
 
 # Ratios within this relative distance of 1 are a plain shaft (no shoulder).
 _NO_SHOULDER = 1e-9
@@ -98,12 +101,9 @@ _NO_SHOULDER = 1e-9
 _EDGE = 1e-9
 
 
-def _snap(ratio: FloatArray, limits: tuple[float, ...] | FloatArray) -> FloatArray:
-    """``ratio`` with each element within :data:`_EDGE` (relative) of a limit set onto it."""
-    snapped = np.array(ratio, dtype=float)  # an array even for one element
-    for limit in limits:
-        np.copyto(snapped, limit, where=np.abs(ratio - limit) <= _EDGE * limit)
-    return snapped
+def _near(ratio: FloatArray, limit: float) -> BoolArray:
+    """Where ``ratio`` lies within :data:`_EDGE` (relative) of ``limit``: on it."""
+    return np.abs(ratio - limit) <= _EDGE * limit
 
 
 def _positive(*values: FloatArray) -> BoolArray:
@@ -112,6 +112,11 @@ def _positive(*values: FloatArray) -> BoolArray:
     for value in values:
         result &= np.isfinite(value) & (value > 0.0)
     return result
+
+
+def _broadcast(*values: ArrayLike) -> list[FloatArray]:
+    """``values`` as float arrays broadcast to one shape (views, no copies)."""
+    return list(np.broadcast_arrays(*(np.asarray(value, dtype=float) for value in values)))
 
 
 @dataclass(frozen=True)
@@ -137,74 +142,176 @@ class ConcentrationFactor:
 
 
 # --- shoulder fillet -----------------------------------------------------------------------------
+class _ShoulderTerms(NamedTuple):
+    """What the shoulder-fillet fit is evaluated from, element by element (see the class below)."""
+
+    diameter_ratio: FloatArray
+    fillet_ratio: FloatArray
+    evaluated_fillet_ratio: FloatArray
+    lower_fit: IntArray
+    weight: FloatArray
+    defined: BoolArray
+
+
+def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> _ShoulderTerms:
+    """D/d, r/d, the r/d evaluated, the fits and their weights, of 1-d arrays of one length."""
+    defined = _positive(big, small, radius) & (big >= small)
+    lowest_r, highest_r = FILLET_RATIO_RANGE
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        diameter_ratio, fillet_ratio = big / small, radius / small
+        # Outside the fitted ratios the nearest fit applies; inside, the two around D/d.
+        held = np.clip(diameter_ratio, _FIT_RATIOS[0], _FIT_RATIOS[-1])
+        lower = np.zeros(held.shape, dtype=np.intp)
+        for ratio in _FIT_RATIOS[1:-1]:  # the inner fitted ratios, not elements
+            lower += held >= ratio
+        below, above = held - _FIT_RATIOS[lower], _FIT_RATIOS[lower + 1] - held
+        weight = below / _FIT_GAPS[lower]
+        # On a fitted ratio (within 1e-9) that ratio's fit alone applies.
+        weight[below <= _EDGE * _FIT_RATIOS[lower]] = 0.0
+        weight[above <= _EDGE * _FIT_RATIOS[lower + 1]] = 1.0
+        evaluated = np.minimum(fillet_ratio, highest_r)
+        evaluated[evaluated >= highest_r * (1.0 - _EDGE)] = highest_r
+        evaluated[_near(evaluated, lowest_r)] = lowest_r
+    return _ShoulderTerms(diameter_ratio, fillet_ratio, evaluated, lower, weight, defined)
+
+
+def _shoulder_value(terms: _ShoulderTerms) -> FloatArray:
+    """Kts of :func:`_shoulder_terms`: the fits A·(r/d)^b, linear in D/d between two of them."""
+    lower, weight = terms.lower_fit, terms.weight
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        # A·(r/d)^b = A·exp(b·ln(r/d)): one logarithm serves both fits.
+        log_ratio = np.log(terms.evaluated_fillet_ratio)
+        value = _FIT_COEFFICIENTS[lower] * np.exp(_FIT_EXPONENTS[lower] * log_ratio)
+        value *= 1.0 - weight
+        # (1 − w)·low + w·high is each fit itself, to the last bit, at w = 0 and w = 1.
+        value += (
+            weight * _FIT_COEFFICIENTS[lower + 1] * np.exp(_FIT_EXPONENTS[lower + 1] * log_ratio)
+        )
+    value[terms.diameter_ratio <= 1.0 + _NO_SHOULDER] = 1.0
+    value[~terms.defined] = np.nan
+    return value
+
+
+def _shoulder_kts(big: FloatArray, small: FloatArray, radius: FloatArray) -> FloatArray:
+    return _shoulder_value(_shoulder_terms(big, small, radius))
+
+
+class _ShoulderFlags(NamedTuple):
+    """Where each shoulder-fillet rule applied (see the properties of the class below)."""
+
+    plain: BoolArray
+    fillet_above: BoolArray
+    fillet_below: BoolArray
+    diameter_above: BoolArray
+    diameter_below: BoolArray
+    in_range: BoolArray
+
+
 @dataclass(frozen=True)
 class ShoulderFilletFactors:
     """Shoulder-fillet factors element by element, and how each was found (arrays of one shape).
+
+    A ratio within 1e-9 (relative) of a fitted D/d or of a limit of the r/d range counts as on
+    it. Everything but ``value`` is found when first asked for, by the formula ``value`` came from.
 
     Attributes
     ----------
     value
         Kts (dimensionless) on the nominal stress 16T/(πd³) of the smaller diameter; NaN where
         the inputs define no factor (see ``defined``).
-    diameter_ratio
-        D/d, set onto a fitted ratio when within 1e-9 (relative) of it.
-    fillet_ratio
-        r/d, set onto a limit of :data:`FILLET_RATIO_RANGE` when within 1e-9 of it.
-    lower_fit
-        Row of :data:`NORTON_TORSION_FITS` below D/d (D/d held inside the fitted ratios).
-    weight
-        Share of the next row's fit, linear in D/d: 0 on the lower row, 1 on the next.
-    defined
-        Where D, d and r are finite and positive and D ≥ d.
+    big_diameter, small_diameter, fillet_radius
+        The inputs D, d and r (m), broadcast to the shape of ``value``.
+    known_terms
+        The terms ``value`` was evaluated from, when they were kept (inputs of one block).
     """
 
     value: FloatArray
-    diameter_ratio: FloatArray
-    fillet_ratio: FloatArray
-    lower_fit: IntArray
-    weight: FloatArray
-    defined: BoolArray
+    big_diameter: FloatArray
+    small_diameter: FloatArray
+    fillet_radius: FloatArray
+    known_terms: _ShoulderTerms | None = field(default=None, repr=False, compare=False)
+
+    @functools.cached_property
+    def _terms(self) -> _ShoulderTerms:
+        if self.known_terms is not None:
+            return self.known_terms
+        inputs = (self.big_diameter, self.small_diameter, self.fillet_radius)
+        terms = _shoulder_terms(*(np.ravel(array) for array in inputs))
+        return _ShoulderTerms._make(np.reshape(array, self.value.shape) for array in terms)
 
     @property
-    def plain(self) -> BoolArray:
-        """No shoulder: D/d = 1 within 1e-9, Kts = 1."""
-        return self.defined & (self.diameter_ratio <= 1.0 + _NO_SHOULDER)
+    def defined(self) -> BoolArray:
+        """Where D, d and r are finite and positive and D ≥ d."""
+        return self._terms.defined
 
     @property
-    def shoulder(self) -> BoolArray:
-        """A shoulder the fits are evaluated for (defined, D/d > 1)."""
-        return self.defined & ~(self.diameter_ratio <= 1.0 + _NO_SHOULDER)
+    def diameter_ratio(self) -> FloatArray:
+        """D/d."""
+        return self._terms.diameter_ratio
 
     @property
-    def fillet_above(self) -> BoolArray:
-        """r/d above the charted range: Kts taken at its upper end (conservative)."""
-        return self.shoulder & (self.fillet_ratio > FILLET_RATIO_RANGE[1])
-
-    @property
-    def fillet_below(self) -> BoolArray:
-        """r/d below the charted range: the fit extrapolated to the actual r/d, flagged."""
-        return self.shoulder & (self.fillet_ratio < FILLET_RATIO_RANGE[0])
-
-    @property
-    def diameter_above(self) -> BoolArray:
-        """D/d above the largest fitted ratio: that ratio's fit, possibly unconservative."""
-        return self.shoulder & (self.diameter_ratio > _FIT_RATIOS[-1])
-
-    @property
-    def diameter_below(self) -> BoolArray:
-        """1 < D/d below the smallest fitted ratio: that ratio's fit (conservative)."""
-        return self.shoulder & (self.diameter_ratio < _FIT_RATIOS[0])
-
-    @property
-    def in_range(self) -> BoolArray:
-        """Where the factor is defined and the geometry lies inside the fits' range."""
-        outside = self.fillet_above | self.fillet_below | self.diameter_above
-        return self.defined & ~(outside | self.diameter_below)
+    def fillet_ratio(self) -> FloatArray:
+        """r/d."""
+        return self._terms.fillet_ratio
 
     @property
     def evaluated_fillet_ratio(self) -> FloatArray:
         """The r/d the fits are evaluated at: r/d, held at the range's upper end above it."""
-        return np.minimum(self.fillet_ratio, FILLET_RATIO_RANGE[1])
+        return self._terms.evaluated_fillet_ratio
+
+    @property
+    def lower_fit(self) -> IntArray:
+        """Row of :data:`NORTON_TORSION_FITS` below D/d (D/d held inside the fitted ratios)."""
+        return self._terms.lower_fit
+
+    @property
+    def weight(self) -> FloatArray:
+        """Share of the next row's fit, linear in D/d: 0 on the lower row, 1 on the next."""
+        return self._terms.weight
+
+    @functools.cached_property
+    def _flags(self) -> _ShoulderFlags:
+        shoulder = self.defined & ~(self.diameter_ratio <= 1.0 + _NO_SHOULDER)
+        lowest_r, highest_r = FILLET_RATIO_RANGE
+        fillet, ratio = self.fillet_ratio, self.diameter_ratio
+        flags = (
+            self.defined & ~shoulder,
+            shoulder & (fillet > highest_r) & ~_near(fillet, highest_r),
+            shoulder & (fillet < lowest_r) & ~_near(fillet, lowest_r),
+            shoulder & (ratio > _FIT_RATIOS[-1]) & ~_near(ratio, _FIT_RATIOS[-1]),
+            shoulder & (ratio < _FIT_RATIOS[0]) & ~_near(ratio, _FIT_RATIOS[0]),
+        )
+        return _ShoulderFlags(*flags, self.defined & ~np.logical_or.reduce(flags[1:]))
+
+    @property
+    def plain(self) -> BoolArray:
+        """No shoulder: D/d = 1 within 1e-9, Kts = 1."""
+        return self._flags.plain
+
+    @property
+    def fillet_above(self) -> BoolArray:
+        """r/d above the charted range: Kts taken at its upper end (conservative)."""
+        return self._flags.fillet_above
+
+    @property
+    def fillet_below(self) -> BoolArray:
+        """r/d below the charted range: the fit extrapolated to the actual r/d, flagged."""
+        return self._flags.fillet_below
+
+    @property
+    def diameter_above(self) -> BoolArray:
+        """D/d above the largest fitted ratio: that ratio's fit, possibly unconservative."""
+        return self._flags.diameter_above
+
+    @property
+    def diameter_below(self) -> BoolArray:
+        """1 < D/d below the smallest fitted ratio: that ratio's fit (conservative)."""
+        return self._flags.diameter_below
+
+    @property
+    def in_range(self) -> BoolArray:
+        """Where the factor is defined and the geometry lies inside the fits' range."""
+        return self._flags.in_range
 
     def note(self, index: Any = ()) -> str:
         """What was computed for one element (``index`` into the arrays), and how."""
@@ -291,28 +398,15 @@ def shoulder_fillet_factors(
     >>> [round(value, 4) for value in factors.value.tolist()], factors.in_range.tolist()
     ([1.5957, 2.196], [True, False])
     """
-    big, small, radius = np.broadcast_arrays(
-        *(np.asarray(value, dtype=float) for value in (big_diameter, small_diameter, fillet_radius))
-    )
-    defined = _positive(big, small, radius) & (big >= small)
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        raw_ratio = big / small
-        diameter_ratio = _snap(raw_ratio, _FIT_RATIOS)
-        fillet_ratio = _snap(radius / small, FILLET_RATIO_RANGE)
-        # Outside the fitted ratios the nearest fit applies; inside, the two around D/d.
-        held = np.clip(diameter_ratio, _FIT_RATIOS[0], _FIT_RATIOS[-1])
-        lower = np.searchsorted(_FIT_RATIOS, held, side="right") - 1
-        lower = np.clip(lower, 0, len(_FIT_RATIOS) - 2)
-        upper = lower + 1
-        weight = (held - _FIT_RATIOS[lower]) / (_FIT_RATIOS[upper] - _FIT_RATIOS[lower])
-        # A·(r/d)^b = A·exp(b·ln(r/d)): one logarithm serves both fits.
-        log_ratio = np.log(np.minimum(fillet_ratio, FILLET_RATIO_RANGE[1]))
-        low_value = _FIT_COEFFICIENTS[lower] * np.exp(_FIT_EXPONENTS[lower] * log_ratio)
-        high_value = _FIT_COEFFICIENTS[upper] * np.exp(_FIT_EXPONENTS[upper] * log_ratio)
-        # (1 − w)·low + w·high is each fit itself, to the last bit, at w = 0 and w = 1.
-        value = (1.0 - weight) * low_value + weight * high_value
-    value = np.where(defined, np.where(raw_ratio <= 1.0 + _NO_SHOULDER, 1.0, value), np.nan)
-    return ShoulderFilletFactors(value, diameter_ratio, fillet_ratio, lower, weight, defined)
+    big, small, radius = _broadcast(big_diameter, small_diameter, fillet_radius)
+    if big.size > BLOCK:
+        value = by_blocks(_shoulder_kts, big, small, radius)
+        return ShoulderFilletFactors(value, big, small, radius)
+    # One block (a model's segments, one shoulder): its terms are kept for the notes.
+    terms = _shoulder_terms(*(np.ravel(array) for array in (big, small, radius)))
+    shaped = _ShoulderTerms._make(np.reshape(array, big.shape) for array in terms)
+    value = np.reshape(_shoulder_value(terms), big.shape)
+    return ShoulderFilletFactors(value, big, small, radius, shaped)
 
 
 def shoulder_fillet_kts(
@@ -386,6 +480,26 @@ def keyseat_kts() -> ConcentrationFactor:
 
 
 # --- transverse hole -----------------------------------------------------------------------------
+def _hole_ratio(hole: FloatArray, shaft: FloatArray) -> FloatArray:
+    """d/D, or NaN where a diameter is not finite and positive or d ≥ D."""
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        ratio = hole / shaft
+    ratio[~(_positive(hole, shaft) & (hole < shaft))] = np.nan
+    return ratio
+
+
+def _hole_ktg(hole: FloatArray, shaft: FloatArray) -> FloatArray:
+    """Pilkey & Pilkey's polynomial at d/D, held at the fit's upper end above it."""
+    highest = HOLE_RATIO_RANGE[1]
+    evaluated = np.minimum(_hole_ratio(hole, shaft), highest)
+    evaluated[evaluated >= highest * (1.0 - _EDGE)] = highest  # on the limit within 1e-9
+    value = np.zeros(evaluated.shape)
+    for coefficient in reversed(HOLE_POLYNOMIAL):  # Horner: four coefficients, not elements
+        value *= evaluated
+        value += coefficient
+    return value
+
+
 @dataclass(frozen=True)
 class TransverseHoleFactors:
     """Transverse-hole factors element by element, and how each was found (arrays of one shape).
@@ -395,22 +509,32 @@ class TransverseHoleFactors:
     value
         Ktg = σ_max/τ_nom (dimensionless) on the gross nominal shear stress 16T/(πD³); NaN where
         the inputs define no factor.
-    hole_ratio
-        d/D, set onto the fit's upper limit when within 1e-9 (relative) of it.
-    defined
-        Where d and D are finite and positive and d < D.
+    hole_diameter, shaft_diameter
+        The inputs d and D (m), broadcast to the shape of ``value``.
     """
 
     value: FloatArray
-    hole_ratio: FloatArray
-    defined: BoolArray
+    hole_diameter: FloatArray
+    shaft_diameter: FloatArray
 
-    @property
+    @functools.cached_property
+    def hole_ratio(self) -> FloatArray:
+        """d/D (NaN where not defined); within 1e-9 (relative) of the fit's end it is on it."""
+        ratio = _hole_ratio(np.ravel(self.hole_diameter), np.ravel(self.shaft_diameter))
+        return np.reshape(ratio, self.value.shape)
+
+    @functools.cached_property
+    def defined(self) -> BoolArray:
+        """Where d and D are finite and positive and d < D."""
+        return ~np.isnan(self.hole_ratio)
+
+    @functools.cached_property
     def above(self) -> BoolArray:
         """d/D above the fit's range: the value at its upper end, NOT conservative."""
-        return self.defined & (self.hole_ratio > HOLE_RATIO_RANGE[1])
+        highest = HOLE_RATIO_RANGE[1]
+        return self.defined & (self.hole_ratio > highest) & ~_near(self.hole_ratio, highest)
 
-    @property
+    @functools.cached_property
     def in_range(self) -> BoolArray:
         """Where the factor is defined and d/D lies inside the fit's range."""
         return self.defined & ~self.above
@@ -468,17 +592,8 @@ def transverse_hole_factors(
     >>> factors.value.round(5).tolist(), factors.in_range.tolist()
     ([3.79292, 4.36712], [True, False])
     """
-    hole, shaft = np.broadcast_arrays(
-        *(np.asarray(value, dtype=float) for value in (hole_diameter, shaft_diameter))
-    )
-    defined = _positive(hole, shaft) & (hole < shaft)
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        hole_ratio = _snap(hole / shaft, HOLE_RATIO_RANGE[1:])
-        evaluated = np.minimum(hole_ratio, HOLE_RATIO_RANGE[1])
-        value = np.zeros(evaluated.shape)
-        for coefficient in reversed(HOLE_POLYNOMIAL):  # Horner: four coefficients, not elements
-            value = value * evaluated + coefficient
-    return TransverseHoleFactors(np.where(defined, value, np.nan), hole_ratio, defined)
+    hole, shaft = _broadcast(hole_diameter, shaft_diameter)
+    return TransverseHoleFactors(by_blocks(_hole_ktg, hole, shaft), hole, shaft)
 
 
 def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> ConcentrationFactor:
