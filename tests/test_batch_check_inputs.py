@@ -28,7 +28,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from workbench.case.errors import InputError
-from workbench.design.check_inputs import batch_check_inputs, check_layout
+from workbench.design.check_inputs import batch_check_inputs
+from workbench.design.check_layout import check_layout
 from workbench.design.checks import model_check_inputs
 from workbench.design.concentration import shoulder_fillet_kts, transverse_hole_kts
 from workbench.design.static_checks import (
@@ -470,3 +471,37 @@ def test_torques_of_another_topology_and_missing_rotations_are_refused() -> None
             layout, results.torque[None], results.mesh.station_stress_per_torque, rigidity
         )
     assert caught.value.field == "angle"
+
+
+@pytest.mark.parametrize("field", ["stress_per_torque", "allowable"])
+def test_a_layered_topology_needs_arrays_per_layer_slot(field: str) -> None:
+    # One value per station or segment cannot say which bonded layer it belongs to: refused, not
+    # spread over both slots.
+    case = stepped_case()
+    case["materials"]["sleeve"] = {"shear_modulus": 40e9, "yield_strength": 250e6}
+    case["shafts"][0]["segments"][0] = {
+        "length": 0.3,
+        "layers": [
+            {"material": "sleeve", "section": {"shape": "tube", "outer_diameter": 0.05,
+                                               "inner_diameter": 0.03}},
+            {"material": "steel", "section": {"shape": "solid", "diameter": 0.03}},
+        ],
+    }  # fmt: skip
+    results = solve(parse_case(case))
+    layout = check_layout(results.model, results.mesh, results.model.design)
+    per_slot = np.repeat(results.mesh.station_stress_per_torque[None, None], 2, axis=1)
+    arguments = {
+        "stress_per_torque": results.mesh.station_stress_per_torque[None],
+        "allowable": None,
+    }
+    if field == "allowable":
+        arguments = {"stress_per_torque": per_slot, "allowable": np.full((1, 2), 100e6)}
+    with pytest.raises(InputError) as caught:
+        batch_check_inputs(
+            layout,
+            results.torque[None],
+            torsional_rigidity=results.mesh.station_rigidity,
+            angle=results.node_angle[None],
+            **arguments,
+        )
+    assert caught.value.field == field

@@ -32,7 +32,8 @@ from workbench.design.allowables import (
     twenty_diameters_twist_rate,
     twist_rate_one_degree_in_twenty_diameters,
 )
-from workbench.design.check_inputs import CheckLayout, batch_check_inputs, check_layout
+from workbench.design.check_inputs import batch_check_inputs
+from workbench.design.check_layout import CheckLayout, check_layout
 from workbench.design.checks import run_checks
 from workbench.design.concentration import (
     shoulder_fillet_factors,

@@ -43,14 +43,13 @@ from workbench.case.design import DesignCriteria
 from workbench.case.errors import InputError
 from workbench.case.units import display_units
 from workbench.design.allowables import TWENTY_DIAMETERS_SOURCE, twenty_diameters_label
-from workbench.design.check_inputs import (
+from workbench.design.check_inputs import BatchCheckInputs, batch_check_inputs
+from workbench.design.check_layout import (
     CROSS_HOLE,
     KEYSEAT,
     NOTCH,
     SHOULDER,
-    BatchCheckInputs,
     CheckLayout,
-    batch_check_inputs,
     check_layout,
 )
 from workbench.design.check_report import (

@@ -142,8 +142,22 @@ class ConcentrationFactor:
 
 
 # --- shoulder fillet -----------------------------------------------------------------------------
-class _ShoulderTerms(NamedTuple):
-    """What the shoulder-fillet fit is evaluated from, element by element (see the class below)."""
+class ShoulderFilletTerms(NamedTuple):
+    """What the shoulder-fillet fits are evaluated from, element by element.
+
+    Attributes
+    ----------
+    diameter_ratio, fillet_ratio
+        D/d and r/d.
+    evaluated_fillet_ratio
+        The r/d the fits are evaluated at: r/d, held at the range's upper end above it.
+    lower_fit
+        Row of :data:`NORTON_TORSION_FITS` below D/d (D/d held inside the fitted ratios).
+    weight
+        Share of the next row's fit, linear in D/d: 0 on the lower row, 1 on the next.
+    defined
+        Where D, d and r are finite and positive and D ≥ d.
+    """
 
     diameter_ratio: FloatArray
     fillet_ratio: FloatArray
@@ -153,7 +167,7 @@ class _ShoulderTerms(NamedTuple):
     defined: BoolArray
 
 
-def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> _ShoulderTerms:
+def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> ShoulderFilletTerms:
     """D/d, r/d, the r/d evaluated, the fits and their weights, of 1-d arrays of one length."""
     defined = _positive(big, small, radius) & (big >= small)
     lowest_r, highest_r = FILLET_RATIO_RANGE
@@ -172,10 +186,10 @@ def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> _
         evaluated = np.minimum(fillet_ratio, highest_r)
         evaluated[evaluated >= highest_r * (1.0 - _EDGE)] = highest_r
         evaluated[_near(evaluated, lowest_r)] = lowest_r
-    return _ShoulderTerms(diameter_ratio, fillet_ratio, evaluated, lower, weight, defined)
+    return ShoulderFilletTerms(diameter_ratio, fillet_ratio, evaluated, lower, weight, defined)
 
 
-def _shoulder_value(terms: _ShoulderTerms) -> FloatArray:
+def _shoulder_value(terms: ShoulderFilletTerms) -> FloatArray:
     """Kts of :func:`_shoulder_terms`: the fits A·(r/d)^b, linear in D/d between two of them."""
     lower, weight = terms.lower_fit, terms.weight
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -196,8 +210,24 @@ def _shoulder_kts(big: FloatArray, small: FloatArray, radius: FloatArray) -> Flo
     return _shoulder_value(_shoulder_terms(big, small, radius))
 
 
-class _ShoulderFlags(NamedTuple):
-    """Where each shoulder-fillet rule applied (see the properties of the class below)."""
+class ShoulderFilletFlags(NamedTuple):
+    """Where each rule of the module text applied, element by element.
+
+    Attributes
+    ----------
+    plain
+        No shoulder: D/d = 1 within 1e-9, Kts = 1.
+    fillet_above
+        r/d above the charted range: Kts taken at its upper end (conservative).
+    fillet_below
+        r/d below the charted range: the fit extrapolated to the actual r/d, flagged.
+    diameter_above
+        D/d above the largest fitted ratio: that ratio's fit, possibly unconservative.
+    diameter_below
+        1 < D/d below the smallest fitted ratio: that ratio's fit (conservative).
+    in_range
+        The factor is defined and the geometry lies inside the fits' range.
+    """
 
     plain: BoolArray
     fillet_above: BoolArray
@@ -222,128 +252,83 @@ class ShoulderFilletFactors:
     big_diameter, small_diameter, fillet_radius
         The inputs D, d and r (m), broadcast to the shape of ``value``.
     known_terms
-        The terms ``value`` was evaluated from, when they were kept (inputs of one block).
+        The terms ``value`` was evaluated from, when they were kept (inputs of one block); see
+        :attr:`terms`.
     """
 
     value: FloatArray
     big_diameter: FloatArray
     small_diameter: FloatArray
     fillet_radius: FloatArray
-    known_terms: _ShoulderTerms | None = field(default=None, repr=False, compare=False)
+    known_terms: ShoulderFilletTerms | None = field(default=None, repr=False, compare=False)
 
     @functools.cached_property
-    def _terms(self) -> _ShoulderTerms:
+    def terms(self) -> ShoulderFilletTerms:
+        """What the fits were evaluated from, element by element."""
         if self.known_terms is not None:
             return self.known_terms
         inputs = (self.big_diameter, self.small_diameter, self.fillet_radius)
         terms = _shoulder_terms(*(np.ravel(array) for array in inputs))
-        return _ShoulderTerms._make(np.reshape(array, self.value.shape) for array in terms)
-
-    @property
-    def defined(self) -> BoolArray:
-        """Where D, d and r are finite and positive and D ≥ d."""
-        return self._terms.defined
-
-    @property
-    def diameter_ratio(self) -> FloatArray:
-        """D/d."""
-        return self._terms.diameter_ratio
-
-    @property
-    def fillet_ratio(self) -> FloatArray:
-        """r/d."""
-        return self._terms.fillet_ratio
-
-    @property
-    def evaluated_fillet_ratio(self) -> FloatArray:
-        """The r/d the fits are evaluated at: r/d, held at the range's upper end above it."""
-        return self._terms.evaluated_fillet_ratio
-
-    @property
-    def lower_fit(self) -> IntArray:
-        """Row of :data:`NORTON_TORSION_FITS` below D/d (D/d held inside the fitted ratios)."""
-        return self._terms.lower_fit
-
-    @property
-    def weight(self) -> FloatArray:
-        """Share of the next row's fit, linear in D/d: 0 on the lower row, 1 on the next."""
-        return self._terms.weight
+        return ShoulderFilletTerms._make(np.reshape(array, self.value.shape) for array in terms)
 
     @functools.cached_property
-    def _flags(self) -> _ShoulderFlags:
-        shoulder = self.defined & ~(self.diameter_ratio <= 1.0 + _NO_SHOULDER)
+    def flags(self) -> ShoulderFilletFlags:
+        """Where each rule applied, element by element."""
+        terms = self.terms
+        shoulder = terms.defined & ~(terms.diameter_ratio <= 1.0 + _NO_SHOULDER)
         lowest_r, highest_r = FILLET_RATIO_RANGE
-        fillet, ratio = self.fillet_ratio, self.diameter_ratio
-        flags = (
-            self.defined & ~shoulder,
+        fillet, ratio = terms.fillet_ratio, terms.diameter_ratio
+        outside = (
             shoulder & (fillet > highest_r) & ~_near(fillet, highest_r),
             shoulder & (fillet < lowest_r) & ~_near(fillet, lowest_r),
             shoulder & (ratio > _FIT_RATIOS[-1]) & ~_near(ratio, _FIT_RATIOS[-1]),
             shoulder & (ratio < _FIT_RATIOS[0]) & ~_near(ratio, _FIT_RATIOS[0]),
         )
-        return _ShoulderFlags(*flags, self.defined & ~np.logical_or.reduce(flags[1:]))
+        in_range = terms.defined & ~np.logical_or.reduce(outside)
+        return ShoulderFilletFlags(terms.defined & ~shoulder, *outside, in_range)
 
     @property
-    def plain(self) -> BoolArray:
-        """No shoulder: D/d = 1 within 1e-9, Kts = 1."""
-        return self._flags.plain
-
-    @property
-    def fillet_above(self) -> BoolArray:
-        """r/d above the charted range: Kts taken at its upper end (conservative)."""
-        return self._flags.fillet_above
-
-    @property
-    def fillet_below(self) -> BoolArray:
-        """r/d below the charted range: the fit extrapolated to the actual r/d, flagged."""
-        return self._flags.fillet_below
-
-    @property
-    def diameter_above(self) -> BoolArray:
-        """D/d above the largest fitted ratio: that ratio's fit, possibly unconservative."""
-        return self._flags.diameter_above
-
-    @property
-    def diameter_below(self) -> BoolArray:
-        """1 < D/d below the smallest fitted ratio: that ratio's fit (conservative)."""
-        return self._flags.diameter_below
+    def defined(self) -> BoolArray:
+        """Where D, d and r are finite and positive and D ≥ d."""
+        return self.terms.defined
 
     @property
     def in_range(self) -> BoolArray:
         """Where the factor is defined and the geometry lies inside the fits' range."""
-        return self._flags.in_range
+        return self.flags.in_range
 
     def note(self, index: Any = ()) -> str:
         """What was computed for one element (``index`` into the arrays), and how."""
         if not self.defined[index]:
             return "no factor: a dimension is not finite and positive, or D < d"
-        if self.plain[index]:
+        terms, flags = self.terms, self.flags
+        if flags.plain[index]:
             return "no shoulder (D/d = 1): Kts = 1"
         lowest_r, highest_r = FILLET_RATIO_RANGE
-        diameter_ratio = float(self.diameter_ratio[index])
-        fillet_ratio = float(self.fillet_ratio[index])
-        evaluated_r = float(self.evaluated_fillet_ratio[index])
+        diameter_ratio = float(terms.diameter_ratio[index])
+        fillet_ratio = float(terms.fillet_ratio[index])
+        evaluated_r = float(terms.evaluated_fillet_ratio[index])
         notes = []
-        if self.fillet_above[index]:
+        if flags.fillet_above[index]:
             notes.append(
                 f"r/d = {fillet_ratio:.3g} is above the charted {highest_r:g}: Kts taken at "
                 f"r/d = {highest_r:g} (conservative, Kts falls as r/d grows)"
             )
-        elif self.fillet_below[index]:
+        elif flags.fillet_below[index]:
             notes.append(
                 f"r/d = {fillet_ratio:.3g} is below the charted {lowest_r:g}: fit extrapolated "
                 "to the actual r/d (Kts rises as the fillet sharpens); enlarge the fillet or "
                 "confirm the factor by test or analysis"
             )
         ratios = _FIT_RATIOS
-        lower, weight = int(self.lower_fit[index]), float(self.weight[index])
-        if self.diameter_above[index]:
+        lower, weight = int(terms.lower_fit[index]), float(terms.weight[index])
+        if flags.diameter_above[index]:
             notes.append(
                 f"D/d = {diameter_ratio:.3g} is above the largest fitted {ratios[-1]:.2f}: the "
                 f"D/d = {ratios[-1]:.2f} fit is used, possibly unconservative (Kts may keep "
                 "rising with D/d beyond the last charted curve)"
             )
-        elif self.diameter_below[index]:
+        elif flags.diameter_below[index]:
             notes.append(
                 f"D/d = {diameter_ratio:.3g} is below the smallest fitted {ratios[0]:.2f}: the "
                 f"D/d = {ratios[0]:.2f} fit is used (conservative, Kts grows with D/d)"
@@ -404,7 +389,7 @@ def shoulder_fillet_factors(
         return ShoulderFilletFactors(value, big, small, radius)
     # One block (a model's segments, one shoulder): its terms are kept for the notes.
     terms = _shoulder_terms(*(np.ravel(array) for array in (big, small, radius)))
-    shaped = _ShoulderTerms._make(np.reshape(array, big.shape) for array in terms)
+    shaped = ShoulderFilletTerms._make(np.reshape(array, big.shape) for array in terms)
     value = np.reshape(_shoulder_value(terms), big.shape)
     return ShoulderFilletFactors(value, big, small, radius, shaped)
 
@@ -428,8 +413,8 @@ def shoulder_fillet_kts(
     Returns
     -------
     ConcentrationFactor
-        Kts = τ_max/τ_nom, with ``in_range`` and a note (see the module docstring for what is
-        done outside 0.02 ≤ r/d ≤ 0.30, 1.09 ≤ D/d ≤ 2.00).
+        Kts = τ_max/τ_nom, with ``in_range``, a note and the source (module text: what is done
+        outside 0.02 ≤ r/d ≤ 0.30, 1.09 ≤ D/d ≤ 2.00).
 
     Raises
     ------
@@ -438,8 +423,7 @@ def shoulder_fillet_kts(
 
     References
     ----------
-    .. [1] Norton, *Machine Design*, App. C, shoulder fillet in torsion: Kts = A(r/d)^b.
-    .. [2] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., ch. 3.
+    .. [1] Norton, *Machine Design*, App. C, as :func:`shoulder_fillet_factors`.
     """
     require_positive("big_diameter", big_diameter)
     require_positive("small_diameter", small_diameter)
@@ -611,9 +595,8 @@ def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> Concentr
     Returns
     -------
     ConcentrationFactor
-        Ktg = σ_max/τ_nom with τ_nom = 16T/(πD³) on the gross section: the largest *normal*
-        stress at the hole edge over the nominal shear stress. Outside 0 ≤ d/D ≤ 0.4 the value
-        at d/D = 0.4 is returned, flagged as not conservative (the factor rises with d/D there).
+        Ktg = σ_max/τ_nom on the gross nominal shear stress 16T/(πD³), with ``in_range``, a note
+        and the source (above d/D = 0.4 the value at 0.4, flagged as not conservative).
 
     Raises
     ------
@@ -622,8 +605,8 @@ def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> Concentr
 
     References
     ----------
-    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., transverse hole
-       in a solid bar in torsion: Ktg = 4 − 6.055(d/D) + 32.764(d/D)² − 38.33(d/D)³.
+    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., as
+       :func:`transverse_hole_factors`.
     """
     require_positive("hole_diameter", hole_diameter)
     require_positive("shaft_diameter", shaft_diameter)
