@@ -27,6 +27,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from tests.test_static_checks import GRID, LOAD_PLACES, ROTATION_PAIRS, section_of
 from workbench.case.errors import InputError
 from workbench.design.check_inputs import batch_check_inputs
 from workbench.design.check_layout import check_layout
@@ -44,7 +45,6 @@ from workbench.solver.sections import polar_moment
 
 SETTINGS = settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 TOLERANCE = 1e-12
-GRID = 8  # rotation limits and loads sit on a grid of the shaft length
 STEEL_MODULUS, SLEEVE_MODULUS = 79e9, 40e9
 SLEEVE_SHARE = 0.8  # the sleeve's yield strength over the steel's
 KINDS = ("solid", "tube", "tapered", "layered", "rectangle")
@@ -74,26 +74,9 @@ def topologies(draw: st.DrawFn) -> dict[str, Any]:
         "criterion": draw(st.sampled_from(["von_mises", "tresca"])),
         "factor_of_safety": draw(st.floats(1.2, 3.0)),
         "twist_limit": draw(st.floats(0.005, 0.05)),
-        "rotations": draw(
-            st.lists(
-                st.tuples(st.integers(0, GRID), st.integers(0, GRID)).filter(
-                    lambda pair: pair[0] != pair[1]
-                ),
-                max_size=2,
-            )
-        ),
-        "load_places": draw(st.lists(st.integers(1, 2 * GRID - 1), min_size=1, max_size=3)),
+        "rotations": draw(ROTATION_PAIRS),
+        "load_places": draw(LOAD_PLACES),
     }
-
-
-def _section(kind: str, diameter: float) -> dict[str, Any]:
-    if kind == "tube":
-        return {"shape": "tube", "outer_diameter": diameter, "inner_diameter": 0.6 * diameter}
-    if kind == "tapered":
-        return {"shape": "tapered", "diameter_start": diameter, "diameter_end": 0.8 * diameter}
-    if kind == "rectangle":
-        return {"shape": "rectangle", "width": diameter, "height": 0.7 * diameter}
-    return {"shape": "solid", "diameter": diameter}
 
 
 @st.composite
@@ -127,12 +110,12 @@ def case_of(topology: dict[str, Any], variant: dict[str, Any]) -> dict[str, Any]
             segment: dict[str, Any] = {"length": spec["length"]}
             if spec["kind"] == "layered":
                 segment["layers"] = [
-                    {"material": "sleeve", "section": _section("tube", diameter)},
-                    {"material": "steel", "section": _section("solid", 0.6 * diameter)},
+                    {"material": "sleeve", "section": section_of("tube", diameter)},
+                    {"material": "steel", "section": section_of("solid", 0.6 * diameter)},
                 ]
             else:
                 segment["material"] = "steel"
-                segment["section"] = _section(spec["kind"], diameter)
+                segment["section"] = section_of(spec["kind"], diameter)
             if spec["fillet"]:
                 segment["fillet_radius"] = size["fillet_ratio"] * diameter
             if spec["keyseat"]:
@@ -490,7 +473,7 @@ def test_a_layered_topology_needs_arrays_per_layer_slot(field: str) -> None:
     results = solve(parse_case(case))
     layout = check_layout(results.model, results.mesh, results.model.design)
     per_slot = np.repeat(results.mesh.station_stress_per_torque[None, None], 2, axis=1)
-    arguments = {
+    arguments: dict[str, Any] = {
         "stress_per_torque": results.mesh.station_stress_per_torque[None],
         "allowable": None,
     }

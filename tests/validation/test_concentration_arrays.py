@@ -16,7 +16,9 @@ from __future__ import annotations
 
 import doctest
 import math
+from collections.abc import Callable
 from types import ModuleType
+from typing import Any
 
 import numpy as np
 import pytest
@@ -129,6 +131,38 @@ def _shapes(data: st.DataObject, arguments: int) -> list[tuple[int, ...]]:
     return [base, extra, *([base] * (arguments - 2))]
 
 
+def _assert_elementwise(
+    factors: Any,
+    inputs: tuple[np.ndarray, ...],
+    reference: Callable[..., tuple[float, bool]],
+    scalar_function: Callable[..., Any],
+) -> None:
+    """Each element of ``factors`` against the reference and the scalar function's answer.
+
+    Where the inputs define no factor (a size not finite and positive, D < d, a hole not smaller
+    than the shaft; the ``reference`` is asked only elsewhere) the array holds NaN and the scalar
+    function refuses the geometry.
+    """
+    shape = np.broadcast_shapes(*(array.shape for array in inputs))
+    assert factors.value.shape == factors.in_range.shape == shape
+    for index in np.ndindex(shape):
+        args = tuple(float(np.broadcast_to(array, shape)[index]) for array in inputs)
+        value = factors.value[index]
+        ordered = args[0] >= args[1] if reference is reference_shoulder else args[0] < args[1]
+        if not (all(math.isfinite(a) and a > 0.0 for a in args) and ordered):
+            assert math.isnan(value) and not factors.in_range[index]
+            with pytest.raises(InputError):
+                scalar_function(*args)
+            continue
+        expected, in_range = reference(*args)
+        assert value == pytest.approx(expected, rel=TOLERANCE, abs=0.0), args
+        assert bool(factors.in_range[index]) == in_range, args
+        scalar = scalar_function(*args)
+        assert scalar.value == pytest.approx(value, rel=TOLERANCE, abs=0.0)
+        assert scalar.in_range == in_range
+        assert scalar.note == factors.note(index)
+
+
 @given(data=st.data())
 @SETTINGS
 def test_shoulder_fillet_array_equals_reference_and_scalar(data: st.DataObject) -> None:
@@ -137,27 +171,7 @@ def test_shoulder_fillet_array_equals_reference_and_scalar(data: st.DataObject) 
     big = _values(data, ratio_shape, DIAMETER_RATIOS) * _scale(small)
     radius = _values(data, fillet_shape, FILLET_RATIOS) * _scale(small)
     factors = shoulder_fillet_factors(big, small, radius)
-    shape = np.broadcast_shapes(big.shape, small.shape, radius.shape)
-    assert factors.value.shape == factors.in_range.shape == shape
-    for index in np.ndindex(shape):
-        args = (
-            float(np.broadcast_to(big, shape)[index]),
-            float(np.broadcast_to(small, shape)[index]),
-            float(np.broadcast_to(radius, shape)[index]),
-        )
-        value = factors.value[index]
-        if not (all(math.isfinite(a) and a > 0.0 for a in args) and args[0] >= args[1]):
-            assert math.isnan(value) and not factors.in_range[index]
-            with pytest.raises(InputError):
-                shoulder_fillet_kts(*args)
-            continue
-        expected, in_range = reference_shoulder(*args)
-        assert value == pytest.approx(expected, rel=TOLERANCE, abs=0.0), args
-        assert bool(factors.in_range[index]) == in_range, args
-        scalar = shoulder_fillet_kts(*args)
-        assert scalar.value == pytest.approx(value, rel=TOLERANCE, abs=0.0)
-        assert scalar.in_range == in_range
-        assert scalar.note == factors.note(index)
+    _assert_elementwise(factors, (big, small, radius), reference_shoulder, shoulder_fillet_kts)
 
 
 @given(data=st.data())
@@ -167,26 +181,7 @@ def test_transverse_hole_array_equals_reference_and_scalar(data: st.DataObject) 
     shaft = _values(data, shaft_shape, st.floats(1e-3, 1.0))
     hole = _values(data, ratio_shape, HOLE_RATIOS) * _scale(shaft)
     factors = transverse_hole_factors(hole, shaft)
-    shape = np.broadcast_shapes(hole.shape, shaft.shape)
-    assert factors.value.shape == factors.in_range.shape == shape
-    for index in np.ndindex(shape):
-        args = (
-            float(np.broadcast_to(hole, shape)[index]),
-            float(np.broadcast_to(shaft, shape)[index]),
-        )
-        value = factors.value[index]
-        if not (all(math.isfinite(a) and a > 0.0 for a in args) and args[0] < args[1]):
-            assert math.isnan(value) and not factors.in_range[index]
-            with pytest.raises(InputError):
-                transverse_hole_kts(*args)
-            continue
-        expected, in_range = reference_hole(*args)
-        assert value == pytest.approx(expected, rel=TOLERANCE, abs=0.0), args
-        assert bool(factors.in_range[index]) == in_range, args
-        scalar = transverse_hole_kts(*args)
-        assert scalar.value == pytest.approx(value, rel=TOLERANCE, abs=0.0)
-        assert scalar.in_range == in_range
-        assert scalar.note == factors.note(index)
+    _assert_elementwise(factors, (hole, shaft), reference_hole, transverse_hole_kts)
 
 
 @given(data=st.data())
