@@ -280,13 +280,14 @@ def check_layout(model: Model, mesh: CheckMesh, design: DesignCriteria) -> Check
             )
             for slot, factor in enumerate(_layer_stress_factors(segment, fractions)):
                 stress[slot, window] = factor
+        section = segment.layers[0].section
         circular[index] = all(layer.section.circular for layer in segment.layers)
         one_round[index] = circular[index] and not layered
         if circular[index]:
-            radii = [layer.section.outer_radius_at(_ENDS) for layer in segment.layers]
-            outer[:, index] = 2.0 * np.max(radii, axis=0)
+            outermost = segment.outer_radius_at if layered else section.outer_radius_at
+            outer[:, index] = 2.0 * outermost(_ENDS)
         if one_round[index]:
-            bore[index] = 2.0 * float(segment.layers[0].section.inner_radius_at(0.5))
+            bore[index] = 2.0 * section.inner_radius
         what = f"{shaft.id} segment {number}"
         if segment.fillet_radius is not None and number > 0:
             shoulder[index] = one_round[index] and one_round[index - 1]
