@@ -165,6 +165,13 @@ def test_array_checks_equal_loops_over_variants_results_and_segments(data: st.Da
 # --- a batch against run_checks one model at a time ------------------------------------------
 
 GRID = 8  # rotation limits and loads sit on a grid of the shaft length
+#: (start, end) grid points of up to two rotation limits.
+ROTATION_PAIRS = st.lists(
+    st.tuples(st.integers(0, GRID), st.integers(0, GRID)).filter(lambda p: p[0] != p[1]),
+    max_size=2,
+)
+#: Grid points (of half the grid's step) where the torques of every load case act.
+LOAD_PLACES = st.lists(st.integers(1, 2 * GRID - 1), min_size=1, max_size=3)
 
 
 @st.composite
@@ -189,23 +196,19 @@ def topologies(draw: st.DrawFn) -> dict[str, Any]:
         "shafts": shafts,
         "far_support": draw(st.booleans()),
         "twist": draw(st.sampled_from([None, "number", "twenty-diameters", "machine-shaft"])),
-        "rotations": draw(
-            st.lists(
-                st.tuples(st.integers(0, GRID), st.integers(0, GRID)).filter(
-                    lambda p: p[0] != p[1]
-                ),
-                max_size=2,
-            )
-        ),
-        "load_places": draw(st.lists(st.integers(1, 2 * GRID - 1), min_size=1, max_size=3)),
+        "rotations": draw(ROTATION_PAIRS),
+        "load_places": draw(LOAD_PLACES),
     }
 
 
-def _section(kind: str, diameter: float) -> dict[str, Any]:
+def section_of(kind: str, diameter: float) -> dict[str, Any]:
+    """The case-file section of a segment kind, its sizes in fixed ratios to ``diameter``."""
     if kind == "tube":
         return {"shape": "tube", "outer_diameter": diameter, "inner_diameter": 0.6 * diameter}
     if kind == "tapered":
         return {"shape": "tapered", "diameter_start": diameter, "diameter_end": 0.8 * diameter}
+    if kind == "rectangle":
+        return {"shape": "rectangle", "width": diameter, "height": 0.7 * diameter}
     return {"shape": "solid", "diameter": diameter}
 
 
@@ -223,12 +226,12 @@ def variants(draw: st.DrawFn, topology: dict[str, Any]) -> dict[str, Any]:
             segment: dict[str, Any] = {"length": spec["length"]}
             if spec["kind"] == "layered":
                 segment["layers"] = [
-                    {"material": "sleeve", "section": _section("tube", diameter)},
-                    {"material": "steel", "section": _section("solid", 0.6 * diameter)},
+                    {"material": "sleeve", "section": section_of("tube", diameter)},
+                    {"material": "steel", "section": section_of("solid", 0.6 * diameter)},
                 ]
             else:
                 segment["material"] = "steel"
-                segment["section"] = _section(spec["kind"], diameter)
+                segment["section"] = section_of(spec["kind"], diameter)
             if spec["fillet"]:
                 segment["fillet_radius"] = 0.04 * diameter
             if spec["keyseat"]:

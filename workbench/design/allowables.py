@@ -32,11 +32,16 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+from numpy.typing import ArrayLike
+
 from workbench.case.design import SHEAR_CRITERIA
 from workbench.case.errors import InputError
 from workbench.case.materials import Material
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
+from workbench.design.blockwise import by_blocks
+from workbench.solver.sections import FloatArray
 
 #: Criteria :func:`allowable_shear_stress` accepts.
 
@@ -230,8 +235,52 @@ TWIST_RATE_PRESETS: dict[str, TwistRateLimit] = {
 }
 
 
+#: Where the "1° in 20 diameters" rule comes from.
+TWENTY_DIAMETERS_SOURCE = "rule of thumb (common practice, no source)"
+
+
+def twenty_diameters_twist_rate(diameter: ArrayLike) -> FloatArray:
+    """The "1° in 20 diameters" rate-of-twist limits of shafts of diameters d, element by element.
+
+    Parameters
+    ----------
+    diameter
+        Shaft diameters d (m), any shape.
+
+    Returns
+    -------
+    numpy.ndarray
+        (π/180)/(20 d) (rad/m), of the shape of ``diameter``; NaN where d is not finite and
+        positive (a segment the rule does not apply to, given as NaN, stays NaN).
+
+    References
+    ----------
+    .. [1] Common practice, no source.
+
+    Examples
+    --------
+    >>> twenty_diameters_twist_rate([0.05, 0.1, float("nan")]).round(6).tolist()
+    [0.017453, 0.008727, nan]
+    """
+    return by_blocks(_twenty_diameters_rate, diameter)
+
+
+def _twenty_diameters_rate(diameter: FloatArray) -> FloatArray:
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rate = math.radians(1.0) / (20.0 * diameter)
+    rate[~(np.isfinite(diameter) & (diameter > 0.0))] = np.nan
+    return rate
+
+
+def twenty_diameters_label(diameter: float) -> str:
+    """The label of the "1° in 20 diameters" limit of a shaft of diameter d (m), for reports."""
+    return f"1° in 20 diameters (d = {quote(diameter, 'length')})"
+
+
 def twist_rate_one_degree_in_twenty_diameters(diameter: float) -> TwistRateLimit:
-    """Return the "1° in 20 diameters" rate-of-twist limit for a shaft of diameter d.
+    """Return the "1° in 20 diameters" rate-of-twist limit for one shaft of diameter d.
+
+    The diameter checked, then :func:`twenty_diameters_twist_rate` evaluates it.
 
     Parameters
     ----------
@@ -254,7 +303,7 @@ def twist_rate_one_degree_in_twenty_diameters(diameter: float) -> TwistRateLimit
     """
     require_positive("diameter", diameter)
     return TwistRateLimit(
-        math.radians(1.0) / (20.0 * diameter),
-        f"1° in 20 diameters (d = {quote(diameter, 'length')})",
-        "rule of thumb (common practice, no source)",
+        float(twenty_diameters_twist_rate(diameter)),
+        twenty_diameters_label(diameter),
+        TWENTY_DIAMETERS_SOURCE,
     )

@@ -35,20 +35,22 @@ licensed professional practice.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from workbench.case.design import DesignCriteria
-from workbench.case.materials import Material
+from workbench.case.errors import InputError
 from workbench.case.units import display_units
-from workbench.case.validate import field_path
-from workbench.design.allowables import (
-    TWIST_RATE_PRESETS,
-    Allowable,
-    allowable_shear_stress,
-    twist_rate_one_degree_in_twenty_diameters,
+from workbench.design.allowables import TWENTY_DIAMETERS_SOURCE, twenty_diameters_label
+from workbench.design.check_inputs import BatchCheckInputs, batch_check_inputs
+from workbench.design.check_layout import (
+    CROSS_HOLE,
+    KEYSEAT,
+    NOTCH,
+    SHOULDER,
+    CheckLayout,
+    check_layout,
 )
 from workbench.design.check_report import (
     CHECK_QUANTITIES,
@@ -60,12 +62,7 @@ from workbench.design.check_report import (
     check_text,
     plastic_reserves,
 )
-from workbench.design.concentration import (
-    ConcentrationFactor,
-    keyseat_kts,
-    shoulder_fillet_kts,
-    transverse_hole_kts,
-)
+from workbench.design.concentration import ConcentrationFactor, keyseat_kts
 from workbench.design.fatigue_check import FatiguePoint, fatigue_checks
 from workbench.design.frequency import frequency_checks, frequency_utilisation_ceiling
 from workbench.design.static_checks import (
@@ -75,8 +72,6 @@ from workbench.design.static_checks import (
     static_utilisations,
 )
 from workbench.solver.analysis import Results
-from workbench.solver.model import Segment
-from workbench.solver.sections import FloatArray, SolidCircle, Tube
 
 __all__ = [
     "CHECK_QUANTITIES",
@@ -92,67 +87,7 @@ __all__ = [
     "model_check_inputs",
     "plastic_reserves",
     "run_checks",
-    "twist_rate_limit",
 ]
-
-_SHOULDER, _KEYSEAT, _NOTCH, _CROSS_HOLE = range(len(CONCENTRATION_KINDS))
-
-
-def twist_rate_limit(design: DesignCriteria, diameter: float | None) -> tuple[float, str] | None:
-    """The twist-rate limit (rad/m) of a segment of outer ``diameter`` (m), with its basis.
-
-    ``None`` when the design sets no limit, or the rule needs a diameter the segment lacks.
-    """
-    if design.twist_rate_preset == "twenty-diameters":
-        if diameter is None:
-            return None
-        rule = twist_rate_one_degree_in_twenty_diameters(diameter)
-        return rule.value, f"{rule.label}: {rule.source}"
-    if design.twist_rate_preset is not None:
-        preset = TWIST_RATE_PRESETS[design.twist_rate_preset]
-        return preset.value, f"{preset.label}: {preset.source}"
-    if design.max_twist_rate is not None:
-        return design.max_twist_rate, "stated limit"
-    return None
-
-
-#: Fractions of a segment's length where the details' diameters are read: start, middle, end.
-_PROFILE_FRACTIONS = np.array([0.0, 0.5, 1.0])
-
-
-def _round_profile(segment: Segment) -> list[tuple[float, float]] | None:
-    """(outer, bore) diameters (m) of a one-layer round segment at its start, middle and end.
-
-    ``None`` for a layered or non-circular segment.
-    """
-    if len(segment.layers) != 1 or not segment.layers[0].section.circular:
-        return None
-    section = segment.layers[0].section
-    outer = 2.0 * section.outer_radius_at(_PROFILE_FRACTIONS)
-    bore = 2.0 * section.inner_radius_at(_PROFILE_FRACTIONS)
-    return list(zip(outer.tolist(), bore.tolist(), strict=True))
-
-
-def _nominal_stress_factor(outer: float, bore: float) -> float:
-    """τ_nom per unit torque of a round section, T·(D/2)/J (1/m³)."""
-    if bore > 0.0:
-        return Tube(outer, bore).shear_stress_per_torque
-    return SolidCircle(outer).shear_stress_per_torque
-
-
-def _layer_stress_factors(segment: Segment, fractions: FloatArray) -> list[FloatArray]:
-    """Peak stress of each bonded layer per unit segment torque (1/m³), at fractions.
-
-    Layer i carries Tᵢ = T·GᵢKᵢ/ΣGK (the layers share the twist).
-    """
-    rigidity = segment.torsional_rigidity_at(fractions)
-    return [
-        layer.material.shear_modulus
-        * layer.section.torsion_constant_at(fractions)
-        * layer.section.shear_stress_per_torque_at(fractions)
-        / rigidity
-        for layer in segment.layers
-    ]
 
 
 @dataclass(frozen=True)
@@ -187,213 +122,67 @@ class ModelCheckInputs:
     report_notes: tuple[str, ...]
 
 
-class _Preparation:
-    """Fills the arrays of :class:`ModelCheckInputs`, segment by segment of the model."""
+def _row_notes(
+    layout: CheckLayout, batch: BatchCheckInputs, shafts: tuple[str, ...]
+) -> tuple[list[list[str]], list[str]]:
+    """(C, G) what each check row of a batch of one says, and the report's notes in order.
 
-    def __init__(self, results: Results, design: DesignCriteria) -> None:
-        self.results, self.design = results, design
-        mesh = results.mesh
-        shafts = results.model.shafts
-        offsets = np.cumsum([0, *(len(shaft.segments) for shaft in shafts)])
-        station_shaft = mesh.element_shaft[mesh.station_element]
-        station_segment = offsets[station_shaft] + mesh.element_segment[mesh.station_element]
-        self.start = np.flatnonzero(np.diff(station_segment, prepend=-1))
-        self.end = np.append(self.start[1:], len(station_segment))
-        self.segments = [
-            (shaft_number, number, segment)
-            for shaft_number, shaft in enumerate(shafts)
-            for number, segment in enumerate(shaft.segments)
-        ]
-        count = len(self.segments)
-        slots = max(len(segment.layers) for *_, segment in self.segments)
-        self.stress = np.zeros((slots, len(station_segment)))
-        self.stress[0] = mesh.station_stress_per_torque
-        self.allowable = np.full((slots, count), np.inf)
-        self.concentration = np.full((len(CONCENTRATION_KINDS), count), np.nan)
-        self.nominal = np.full((len(CONCENTRATION_KINDS), count), np.nan)
-        self.shoulder_station = self.start.copy()
-        self.twist_limit = np.full(count, np.nan)
-        self.notes = [[""] * count for _ in STATIC_KINDS]
-        self.layer_notes: list[tuple[str, ...]] = []
-        self.profiles = [_round_profile(segment) for *_, segment in self.segments]
-        self.report_notes: list[str] = []
-        self._allowables: dict[int, Allowable] = {}
+    The factors are already computed (``batch``); this only words them, segment by segment of
+    the segments that have each detail.
+    """
+    count = layout.segments
+    notes = [[""] * count for _ in STATIC_KINDS]
+    notes[0] = [bases[0] for bases in layout.layer_notes]
+    remarks = list(layout.unchecked)
 
-    def material_allowable(self, material: Material) -> Allowable:
-        key = id(material)
-        if key not in self._allowables:
-            self._allowables[key] = allowable_shear_stress(
-                material,
-                self.design.shear_criterion,
-                self.design.factor_of_safety,
-                keyway=self.design.keyway,
-                stated_allowable=self.design.allowable_shear_stress,
-            )
-        return self._allowables[key]
-
-    def run(self) -> ModelCheckInputs:
-        model, mesh = self.results.model, self.results.mesh
-        for index, (shaft_number, number, segment) in enumerate(self.segments):
-            shaft = model.shafts[shaft_number]
-            self._layers(index, shaft.boundaries[number], segment)
-            with field_path(f"shafts[{shaft_number}].segments[{number}]"):
-                self._shoulder(index, shaft.id, number, shaft.segments[number])
-                self._body_details(index, shaft.id, number, segment)
-            self._twist(index, shaft.id, number, segment)
-        limits = self.design.rotation_limits
-        nodes = [
-            (
-                mesh.node_of(model.shaft_number(limit.shaft), limit.start),
-                mesh.node_of(model.shaft_number(limit.shaft), limit.end),
-            )
-            for limit in limits
-        ]
-        inputs = StaticCheckInputs(
-            segment_start=self.start,
-            torque=self.results.torque[None],
-            station_x=mesh.station_x[None],
-            stress_per_torque=self.stress[None],
-            allowable=self.allowable[None],
-            torsional_rigidity=mesh.station_rigidity[None],
-            twist_rate_limit=self.twist_limit[None],
-            concentration=self.concentration[None],
-            nominal_stress_per_torque=self.nominal[None],
-            shoulder_station=self.shoulder_station[None],
-            angle=self.results.node_angle[None],
-            rotation_start=np.array([start for start, _ in nodes], dtype=np.intp),
-            rotation_end=np.array([end for _, end in nodes], dtype=np.intp),
-            rotation_limit=np.array([[limit.limit for limit in limits]], dtype=float),
-        )
-        return ModelCheckInputs(
-            inputs,
-            tuple(model.shafts[shaft_number].id for shaft_number, *_ in self.segments),
-            tuple(number for _, number, _ in self.segments),
-            tuple(tuple(row) for row in self.notes),
-            tuple(self.layer_notes),
-            tuple(limit.shaft for limit in limits),
-            tuple(limit.end for limit in limits),
-            tuple(self.report_notes),
-        )
-
-    def _layers(self, index: int, boundary: float, segment: Segment) -> None:
-        layered = len(segment.layers) > 1
-        bases = []
-        for slot, layer in enumerate(segment.layers):
-            allowable = self.material_allowable(layer.material)
-            self.allowable[slot, index] = allowable.value
-            bases.append((f"layer {slot}: " if layered else "") + allowable.basis)
-        self.layer_notes.append(tuple(bases))
-        self.notes[0][index] = bases[0]
-        if layered:
-            window = slice(self.start[index], self.end[index])
-            x = self.results.mesh.station_x[window]
-            fractions = np.clip((x - boundary) / segment.length, 0.0, 1.0)
-            for slot, factor in enumerate(_layer_stress_factors(segment, fractions)):
-                self.stress[slot, window] = factor
-
-    def _detail(
-        self,
-        kind: int,
-        index: int,
-        shaft: str,
-        number: int,
-        factor: ConcentrationFactor,
-        nominal: float,
-    ) -> None:
+    def detail(kind: int, index: int, factor: ConcentrationFactor) -> None:
         note = f"K = {factor.value:.3g} ({factor.note}; {factor.source})"
         if not factor.in_range:
             note = "OUTSIDE THE DATA'S RANGE: " + note
-            self.report_notes.append(
-                f"{shaft} segment {number}, {CONCENTRATION_KINDS[kind]}: {note}"
-            )
-        self.concentration[kind, index] = factor.value
-        self.nominal[kind, index] = nominal
-        self.notes[1 + kind][index] = note
+            where = f"{shafts[index]} segment {layout.number[index]}"
+            remarks.append((index, kind, f"{where}, {CONCENTRATION_KINDS[kind]}: {note}"))
+        notes[1 + kind][index] = note
 
-    def _shoulder(self, index: int, shaft: str, number: int, segment: Segment) -> None:
-        if segment.fillet_radius is None or number == 0:
-            return
-        here, before = self.profiles[index], self.profiles[index - 1]
-        if here is None or before is None:
-            self.report_notes.append(
-                f"{shaft} segment {number}: the shoulder check needs one-layer round "
-                "segments on both sides; not checked"
-            )
-            return
-        small, big = sorted((here[0], before[-1]), key=lambda pair: pair[0])
-        factor = shoulder_fillet_kts(big[0], small[0], segment.fillet_radius)
-        # The nominal stress is that of the smaller diameter under its own torque: the previous
-        # segment's last station sits just left of this one's first.
-        if here[0][0] > before[-1][0]:
-            self.shoulder_station[index] = self.start[index] - 1
-        self._detail(_SHOULDER, index, shaft, number, factor, _nominal_stress_factor(*small))
-
-    def _body_details(self, index: int, shaft: str, number: int, segment: Segment) -> None:
-        raisers: list[tuple[int, str, ConcentrationFactor]] = []
-        if segment.keyseat:
-            raisers.append((_KEYSEAT, "keyseat", keyseat_kts()))
-        if segment.notch is not None:
-            notch = segment.notch
-            stated = ConcentrationFactor(
-                notch.kts,
-                True,
-                f"{notch.label}; nominal stress 16T/(πd³)",
-                "Kts stated in the case file",
-            )
-            raisers.append((_NOTCH, notch.label, stated))
-        profile = self.profiles[index]
-        for kind, what, factor in raisers:
-            if profile is None:
-                self.report_notes.append(
-                    f"{shaft} segment {number}: the {what} factor is for one-layer round "
-                    "segments; not checked"
-                )
-                continue
-            # Where along the segment the detail sits is not known: the smallest section's
-            # nominal stress (largest stress per torque) governs.
-            largest = max(_nominal_stress_factor(*diameters) for diameters in profile)
-            self._detail(kind, index, shaft, number, factor, largest)
-        if segment.cross_hole_diameter is None:
-            return
-        if profile is None or profile[1][1] > 0.0:
-            self.report_notes.append(
-                f"{shaft} segment {number}: the cross-hole factor is for solid round "
-                "shafts; not checked"
-            )
-            return
-        middle = profile[1][0]
-        factor = transverse_hole_kts(segment.cross_hole_diameter, middle)
-        # The hole's peak is a normal stress σ in a uniaxial state; its equivalent shear stress
-        # is σ/√3 (von Mises) or σ/2 (Tresca, used for the other criteria).
-        divisor = math.sqrt(3.0) if self.design.shear_criterion == "von_mises" else 2.0
+    for index in np.flatnonzero(layout.shoulder).tolist():
+        detail(SHOULDER, index, batch.shoulder.at((0, index)))
+    keyseat = keyseat_kts()
+    for index in np.flatnonzero(layout.keyseat).tolist():
+        detail(KEYSEAT, index, keyseat)
+    for index in np.flatnonzero(~np.isnan(layout.notch_kts)).tolist():
+        label = layout.notch_labels[index]
+        stated = ConcentrationFactor(
+            float(layout.notch_kts[index]),
+            True,
+            f"{label}; nominal stress 16T/(πd³)",
+            "Kts stated in the case file",
+        )
+        detail(NOTCH, index, stated)
+    divisor = layout.hole_divisor
+    for index in np.flatnonzero(layout.cross_hole).tolist():
+        factor = batch.cross_hole.at((0, index))
         equivalent = ConcentrationFactor(
-            factor.value / divisor,
+            float(batch.inputs.concentration[0, CROSS_HOLE, index]),
             factor.in_range,
             f"Ktg = {factor.value:.3g}, equivalent shear σ_max/{divisor:.4g}; {factor.note}",
             factor.source,
         )
-        self._detail(
-            _CROSS_HOLE, index, shaft, number, equivalent, _nominal_stress_factor(middle, 0.0)
-        )
-
-    def _twist(self, index: int, shaft: str, number: int, segment: Segment) -> None:
-        round_diameter = (
-            2.0 * max(layer.section.outer_radius for layer in segment.layers)
-            if all(layer.section.circular for layer in segment.layers)
-            else None
-        )
-        limit = twist_rate_limit(self.design, round_diameter)
-        if limit is not None:
-            self.twist_limit[index] = limit[0]
-            self.notes[-1][index] = f"|T|/(G·K), largest along the segment; limit: {limit[1]}"
-        elif self.design.twist_rate_preset is not None:
-            self.report_notes.append(
-                f"{shaft} segment {number}: the twist-rate rule needs a round segment; not checked"
-            )
+        detail(CROSS_HOLE, index, equivalent)
+    for index in np.flatnonzero(~np.isnan(batch.inputs.twist_rate_limit[0])).tolist():
+        basis = layout.twist_basis
+        if layout.twist_by_diameter:
+            diameter = float(batch.twist_diameter[0, index])
+            basis = f"{twenty_diameters_label(diameter)}: {TWENTY_DIAMETERS_SOURCE}"
+        notes[-1][index] = f"|T|/(G·K), largest along the segment; limit: {basis}"
+    remarks.sort(key=lambda remark: remark[:2])  # segment by segment, details then the twist
+    return notes, [text for *_, text in remarks]
 
 
 def model_check_inputs(results: Results, design: DesignCriteria) -> ModelCheckInputs:
     """The arrays of one solved model's static checks, with what each check row will say.
+
+    The model is a batch of one variant of its own topology (:func:`check_layout`,
+    :func:`batch_check_inputs`): each stress-concentration fit is evaluated once for all its
+    segments.
 
     Parameters
     ----------
@@ -412,7 +201,7 @@ def model_check_inputs(results: Results, design: DesignCriteria) -> ModelCheckIn
     Raises
     ------
     InputError
-        A detail's factor cannot be found (a zero fillet radius, a hole as wide as the shaft),
+        A detail's factor cannot be found (a cross hole as wide as the shaft where it sits),
         named by the segment's field path.
 
     References
@@ -421,7 +210,30 @@ def model_check_inputs(results: Results, design: DesignCriteria) -> ModelCheckIn
        Norton, *Machine Design*, App. C; Pilkey & Pilkey, *Peterson's Stress Concentration
        Factors*, 3rd ed. (the factors, through :mod:`workbench.design.concentration`).
     """
-    return _Preparation(results, design).run()
+    mesh = results.mesh
+    layout = check_layout(results.model, mesh, design)
+    batch = batch_check_inputs(
+        layout,
+        results.torque[None],
+        layout.stress_per_torque[None],
+        mesh.station_rigidity[None],
+        results.node_angle[None],
+    )
+    problem = batch.problem(0, layout)
+    if problem is not None:
+        raise InputError(*problem)
+    shafts = tuple(layout.shaft_ids[number] for number in layout.shaft_number.tolist())
+    notes, report_notes = _row_notes(layout, batch, shafts)
+    return ModelCheckInputs(
+        batch.inputs,
+        shafts,
+        tuple(layout.number.tolist()),
+        tuple(tuple(row) for row in notes),
+        layout.layer_notes,
+        layout.rotation_shafts,
+        layout.rotation_ends,
+        tuple(report_notes),
+    )
 
 
 def _static_rows(results: Results, prepared: ModelCheckInputs) -> list[Check]:

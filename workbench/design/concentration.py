@@ -1,8 +1,11 @@
 """Stress-concentration factors of shaft details in torsion.
 
-Every function returns a :class:`ConcentrationFactor` that says whether the geometry lies inside
-the range its data cover (``in_range``) and, when it does not, what was done instead
-(``note``). Nothing is extrapolated silently.
+Each fit is one array function, broadcasting over inputs of any shape (a batch of variants ×
+segments at once): :func:`shoulder_fillet_factors` and :func:`transverse_hole_factors` return the
+factors with, element by element, whether the geometry lies inside the range the data cover and
+what was done instead when it does not. Nothing is extrapolated silently. The scalar functions
+(:func:`shoulder_fillet_kts`, :func:`transverse_hole_kts`) validate one geometry, call the array
+function and return a :class:`ConcentrationFactor` with its note and source for a report.
 
 Shoulder fillet
     Norton's power-law fits Kts = A·(r/d)^b to Peterson's charts, for D/d = 1.09, 1.20, 1.33 and
@@ -43,11 +46,21 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import functools
+from dataclasses import dataclass, field
+from typing import Any, NamedTuple
+
+import numpy as np
+from numpy.typing import ArrayLike
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
+from workbench.design.blockwise import BLOCK, by_blocks
+from workbench.solver.sections import FloatArray
+
+IntArray = np.ndarray[Any, np.dtype[np.intp]]
+BoolArray = np.ndarray[Any, np.dtype[np.bool_]]
 
 #: Norton's fits Kts = A·(r/d)^b, as (D/d, A, b), in increasing D/d.
 NORTON_TORSION_FITS: tuple[tuple[float, float, float], ...] = (
@@ -76,6 +89,10 @@ _HOLE_SOURCE = (
 )
 _SHIGLEY_SOURCE = "Shigley's Mechanical Engineering Design, Table 7-1 (first-iteration estimate)"
 
+# The fits' columns as arrays, for the array functions.
+_FIT_RATIOS, _FIT_COEFFICIENTS, _FIT_EXPONENTS = np.array(NORTON_TORSION_FITS).T
+_FIT_GAPS = np.diff(_FIT_RATIOS)
+
 # Ratios within this relative distance of 1 are a plain shaft (no shoulder).
 _NO_SHOULDER = 1e-9
 
@@ -84,11 +101,22 @@ _NO_SHOULDER = 1e-9
 _EDGE = 1e-9
 
 
-def _snap(ratio: float, limits: tuple[float, ...]) -> float:
-    for limit in limits:
-        if abs(ratio - limit) <= _EDGE * limit:
-            return limit
-    return ratio
+def _near(ratio: FloatArray, limit: float) -> BoolArray:
+    """Where ``ratio`` lies within :data:`_EDGE` (relative) of ``limit``: on it."""
+    return np.abs(ratio - limit) <= _EDGE * limit
+
+
+def _positive(*values: FloatArray) -> BoolArray:
+    """Where every one of ``values`` is finite and greater than zero."""
+    result = np.ones(values[0].shape, dtype=bool)
+    for value in values:
+        result &= np.isfinite(value) & (value > 0.0)
+    return result
+
+
+def _broadcast(*values: ArrayLike) -> list[FloatArray]:
+    """``values`` as float arrays broadcast to one shape (views, no copies)."""
+    return list(np.broadcast_arrays(*(np.asarray(value, dtype=float) for value in values)))
 
 
 @dataclass(frozen=True)
@@ -113,15 +141,265 @@ class ConcentrationFactor:
     source: str
 
 
-def _norton(ratio_index: int, fillet_ratio: float) -> float:
-    _, coefficient, exponent = NORTON_TORSION_FITS[ratio_index]
-    return float(coefficient * fillet_ratio**exponent)
+# --- shoulder fillet -----------------------------------------------------------------------------
+class ShoulderFilletTerms(NamedTuple):
+    """What the shoulder-fillet fits are evaluated from, element by element.
+
+    Attributes
+    ----------
+    diameter_ratio, fillet_ratio
+        D/d and r/d.
+    evaluated_fillet_ratio
+        The r/d the fits are evaluated at: r/d, held at the range's upper end above it.
+    lower_fit
+        Row of :data:`NORTON_TORSION_FITS` below D/d (D/d held inside the fitted ratios).
+    weight
+        Share of the next row's fit, linear in D/d: 0 on the lower row, 1 on the next.
+    defined
+        Where D, d and r are finite and positive and D ≥ d.
+    """
+
+    diameter_ratio: FloatArray
+    fillet_ratio: FloatArray
+    evaluated_fillet_ratio: FloatArray
+    lower_fit: IntArray
+    weight: FloatArray
+    defined: BoolArray
+
+
+def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> ShoulderFilletTerms:
+    """D/d, r/d, the r/d evaluated, the fits and their weights, of 1-d arrays of one length."""
+    defined = _positive(big, small, radius) & (big >= small)
+    lowest_r, highest_r = FILLET_RATIO_RANGE
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        diameter_ratio, fillet_ratio = big / small, radius / small
+        # Outside the fitted ratios the nearest fit applies; inside, the two around D/d.
+        held = np.clip(diameter_ratio, _FIT_RATIOS[0], _FIT_RATIOS[-1])
+        lower = np.zeros(held.shape, dtype=np.intp)
+        for ratio in _FIT_RATIOS[1:-1]:  # the inner fitted ratios, not elements
+            lower += held >= ratio
+        below, above = held - _FIT_RATIOS[lower], _FIT_RATIOS[lower + 1] - held
+        weight = below / _FIT_GAPS[lower]
+        # On a fitted ratio (within 1e-9) that ratio's fit alone applies.
+        weight[below <= _EDGE * _FIT_RATIOS[lower]] = 0.0
+        weight[above <= _EDGE * _FIT_RATIOS[lower + 1]] = 1.0
+        evaluated = np.minimum(fillet_ratio, highest_r)
+        evaluated[evaluated >= highest_r * (1.0 - _EDGE)] = highest_r
+        evaluated[_near(evaluated, lowest_r)] = lowest_r
+    return ShoulderFilletTerms(diameter_ratio, fillet_ratio, evaluated, lower, weight, defined)
+
+
+def _shoulder_value(terms: ShoulderFilletTerms) -> FloatArray:
+    """Kts of :func:`_shoulder_terms`: the fits A·(r/d)^b, linear in D/d between two of them."""
+    lower, weight = terms.lower_fit, terms.weight
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        # A·(r/d)^b = A·exp(b·ln(r/d)): one logarithm serves both fits.
+        log_ratio = np.log(terms.evaluated_fillet_ratio)
+        value = _FIT_COEFFICIENTS[lower] * np.exp(_FIT_EXPONENTS[lower] * log_ratio)
+        value *= 1.0 - weight
+        # (1 − w)·low + w·high is each fit itself, to the last bit, at w = 0 and w = 1.
+        value += (
+            weight * _FIT_COEFFICIENTS[lower + 1] * np.exp(_FIT_EXPONENTS[lower + 1] * log_ratio)
+        )
+    value[terms.diameter_ratio <= 1.0 + _NO_SHOULDER] = 1.0
+    value[~terms.defined] = np.nan
+    return value
+
+
+def _shoulder_kts(big: FloatArray, small: FloatArray, radius: FloatArray) -> FloatArray:
+    return _shoulder_value(_shoulder_terms(big, small, radius))
+
+
+class ShoulderFilletFlags(NamedTuple):
+    """Where each rule of the module text applied, element by element.
+
+    Attributes
+    ----------
+    plain
+        No shoulder: D/d = 1 within 1e-9, Kts = 1.
+    fillet_above
+        r/d above the charted range: Kts taken at its upper end (conservative).
+    fillet_below
+        r/d below the charted range: the fit extrapolated to the actual r/d, flagged.
+    diameter_above
+        D/d above the largest fitted ratio: that ratio's fit, possibly unconservative.
+    diameter_below
+        1 < D/d below the smallest fitted ratio: that ratio's fit (conservative).
+    in_range
+        The factor is defined and the geometry lies inside the fits' range.
+    """
+
+    plain: BoolArray
+    fillet_above: BoolArray
+    fillet_below: BoolArray
+    diameter_above: BoolArray
+    diameter_below: BoolArray
+    in_range: BoolArray
+
+
+@dataclass(frozen=True)
+class ShoulderFilletFactors:
+    """Shoulder-fillet factors element by element, and how each was found (arrays of one shape).
+
+    A ratio within 1e-9 (relative) of a fitted D/d or of a limit of the r/d range counts as on
+    it. Everything but ``value`` is found when first asked for, by the formula ``value`` came from.
+
+    Attributes
+    ----------
+    value
+        Kts (dimensionless) on the nominal stress 16T/(πd³) of the smaller diameter; NaN where
+        the inputs define no factor (see ``defined``).
+    big_diameter, small_diameter, fillet_radius
+        The inputs D, d and r (m), broadcast to the shape of ``value``.
+    known_terms
+        The terms ``value`` was evaluated from, when they were kept (inputs of one block); see
+        :attr:`terms`.
+    """
+
+    value: FloatArray
+    big_diameter: FloatArray
+    small_diameter: FloatArray
+    fillet_radius: FloatArray
+    known_terms: ShoulderFilletTerms | None = field(default=None, repr=False, compare=False)
+
+    @functools.cached_property
+    def terms(self) -> ShoulderFilletTerms:
+        """What the fits were evaluated from, element by element."""
+        if self.known_terms is not None:
+            return self.known_terms
+        inputs = (self.big_diameter, self.small_diameter, self.fillet_radius)
+        terms = _shoulder_terms(*(np.ravel(array) for array in inputs))
+        return ShoulderFilletTerms._make(np.reshape(array, self.value.shape) for array in terms)
+
+    @functools.cached_property
+    def flags(self) -> ShoulderFilletFlags:
+        """Where each rule applied, element by element."""
+        terms = self.terms
+        shoulder = terms.defined & ~(terms.diameter_ratio <= 1.0 + _NO_SHOULDER)
+        lowest_r, highest_r = FILLET_RATIO_RANGE
+        fillet, ratio = terms.fillet_ratio, terms.diameter_ratio
+        outside = (
+            shoulder & (fillet > highest_r) & ~_near(fillet, highest_r),
+            shoulder & (fillet < lowest_r) & ~_near(fillet, lowest_r),
+            shoulder & (ratio > _FIT_RATIOS[-1]) & ~_near(ratio, _FIT_RATIOS[-1]),
+            shoulder & (ratio < _FIT_RATIOS[0]) & ~_near(ratio, _FIT_RATIOS[0]),
+        )
+        in_range = terms.defined & ~np.logical_or.reduce(outside)
+        return ShoulderFilletFlags(terms.defined & ~shoulder, *outside, in_range)
+
+    @property
+    def defined(self) -> BoolArray:
+        """Where D, d and r are finite and positive and D ≥ d."""
+        return self.terms.defined
+
+    @property
+    def in_range(self) -> BoolArray:
+        """Where the factor is defined and the geometry lies inside the fits' range."""
+        return self.flags.in_range
+
+    def note(self, index: Any = ()) -> str:
+        """What was computed for one element (``index`` into the arrays), and how."""
+        if not self.defined[index]:
+            return "no factor: a dimension is not finite and positive, or D < d"
+        terms, flags = self.terms, self.flags
+        if flags.plain[index]:
+            return "no shoulder (D/d = 1): Kts = 1"
+        lowest_r, highest_r = FILLET_RATIO_RANGE
+        diameter_ratio = float(terms.diameter_ratio[index])
+        fillet_ratio = float(terms.fillet_ratio[index])
+        evaluated_r = float(terms.evaluated_fillet_ratio[index])
+        notes = []
+        if flags.fillet_above[index]:
+            notes.append(
+                f"r/d = {fillet_ratio:.3g} is above the charted {highest_r:g}: Kts taken at "
+                f"r/d = {highest_r:g} (conservative, Kts falls as r/d grows)"
+            )
+        elif flags.fillet_below[index]:
+            notes.append(
+                f"r/d = {fillet_ratio:.3g} is below the charted {lowest_r:g}: fit extrapolated "
+                "to the actual r/d (Kts rises as the fillet sharpens); enlarge the fillet or "
+                "confirm the factor by test or analysis"
+            )
+        ratios = _FIT_RATIOS
+        lower, weight = int(terms.lower_fit[index]), float(terms.weight[index])
+        if flags.diameter_above[index]:
+            notes.append(
+                f"D/d = {diameter_ratio:.3g} is above the largest fitted {ratios[-1]:.2f}: the "
+                f"D/d = {ratios[-1]:.2f} fit is used, possibly unconservative (Kts may keep "
+                "rising with D/d beyond the last charted curve)"
+            )
+        elif flags.diameter_below[index]:
+            notes.append(
+                f"D/d = {diameter_ratio:.3g} is below the smallest fitted {ratios[0]:.2f}: the "
+                f"D/d = {ratios[0]:.2f} fit is used (conservative, Kts grows with D/d)"
+            )
+        elif weight in (0.0, 1.0):
+            notes.append(f"D/d = {ratios[lower + int(weight)]:.2f} fit at r/d = {evaluated_r:.3g}")
+        else:
+            notes.append(
+                f"D/d = {diameter_ratio:.3g}: linear in D/d between the {ratios[lower]:.2f} and "
+                f"{ratios[lower + 1]:.2f} fits at r/d = {evaluated_r:.3g}"
+            )
+        notes.append("nominal stress 16T/(πd³) on the smaller diameter")
+        return "; ".join(notes)
+
+    def at(self, index: Any = ()) -> ConcentrationFactor:
+        """One element as a :class:`ConcentrationFactor`, with its note and source."""
+        return ConcentrationFactor(
+            float(self.value[index]), bool(self.in_range[index]), self.note(index), _NORTON_SOURCE
+        )
+
+
+def shoulder_fillet_factors(
+    big_diameter: ArrayLike, small_diameter: ArrayLike, fillet_radius: ArrayLike
+) -> ShoulderFilletFactors:
+    """Torsional stress-concentration factors of shoulder fillets, broadcast element by element.
+
+    Parameters
+    ----------
+    big_diameter
+        Larger diameters D (m), any shape broadcasting with the others.
+    small_diameter
+        Smaller diameters d (m); the nominal stress is 16T/(πd³) on them.
+    fillet_radius
+        Fillet radii r (m).
+
+    Returns
+    -------
+    ShoulderFilletFactors
+        Kts = τ_max/τ_nom of the broadcast shape, with where each lies outside the fits' range
+        and what was done there (the module docstring); NaN where an input is not finite and
+        positive or D < d (a missing detail given as NaN stays NaN).
+
+    References
+    ----------
+    .. [1] Norton, *Machine Design*, App. C, shoulder fillet in torsion: Kts = A(r/d)^b, the
+       constants in :data:`NORTON_TORSION_FITS`.
+    .. [2] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., ch. 3.
+
+    Examples
+    --------
+    >>> factors = shoulder_fillet_factors([0.036, 0.1], 0.030, [0.0015, 0.0006])
+    >>> [round(value, 4) for value in factors.value.tolist()], factors.in_range.tolist()
+    ([1.5957, 2.196], [True, False])
+    """
+    big, small, radius = _broadcast(big_diameter, small_diameter, fillet_radius)
+    if big.size > BLOCK:
+        value = by_blocks(_shoulder_kts, big, small, radius)
+        return ShoulderFilletFactors(value, big, small, radius)
+    # One block (a model's segments, one shoulder): its terms are kept for the notes.
+    terms = _shoulder_terms(*(np.ravel(array) for array in (big, small, radius)))
+    shaped = ShoulderFilletTerms._make(np.reshape(array, big.shape) for array in terms)
+    value = np.reshape(_shoulder_value(terms), big.shape)
+    return ShoulderFilletFactors(value, big, small, radius, shaped)
 
 
 def shoulder_fillet_kts(
     big_diameter: float, small_diameter: float, fillet_radius: float
 ) -> ConcentrationFactor:
-    """Torsional stress-concentration factor at a shoulder fillet of a round shaft.
+    """Torsional stress-concentration factor at one shoulder fillet of a round shaft.
+
+    The one geometry checked, then :func:`shoulder_fillet_factors` evaluates it.
 
     Parameters
     ----------
@@ -135,8 +413,8 @@ def shoulder_fillet_kts(
     Returns
     -------
     ConcentrationFactor
-        Kts = τ_max/τ_nom, with ``in_range`` and a note (see the module docstring for what is
-        done outside 0.02 ≤ r/d ≤ 0.30, 1.09 ≤ D/d ≤ 2.00).
+        Kts = τ_max/τ_nom, with ``in_range``, a note and the source (module text: what is done
+        outside 0.02 ≤ r/d ≤ 0.30, 1.09 ≤ D/d ≤ 2.00).
 
     Raises
     ------
@@ -145,8 +423,7 @@ def shoulder_fillet_kts(
 
     References
     ----------
-    .. [1] Norton, *Machine Design*, App. C, shoulder fillet in torsion: Kts = A(r/d)^b.
-    .. [2] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., ch. 3.
+    .. [1] Norton, *Machine Design*, App. C, as :func:`shoulder_fillet_factors`.
     """
     require_positive("big_diameter", big_diameter)
     require_positive("small_diameter", small_diameter)
@@ -160,68 +437,10 @@ def shoulder_fillet_kts(
             f"{quote(small_diameter, 'length')})"
         )
         raise InputError(field="big_diameter", message=msg)
-    diameter_ratio = big_diameter / small_diameter
-    if diameter_ratio <= 1.0 + _NO_SHOULDER:
-        return ConcentrationFactor(1.0, True, "no shoulder (D/d = 1): Kts = 1", _NORTON_SOURCE)
-
-    ratios = [row[0] for row in NORTON_TORSION_FITS]
-    diameter_ratio = _snap(diameter_ratio, tuple(ratios))
-    fillet_ratio = _snap(fillet_radius / small_diameter, FILLET_RATIO_RANGE)
-    lowest_r, highest_r = FILLET_RATIO_RANGE
-    notes: list[str] = []
-    in_range = True
-    if fillet_ratio > highest_r:
-        evaluated_r = highest_r
-        in_range = False
-        notes.append(
-            f"r/d = {fillet_ratio:.3g} is above the charted {highest_r:g}: Kts taken at "
-            f"r/d = {highest_r:g} (conservative, Kts falls as r/d grows)"
-        )
-    elif fillet_ratio < lowest_r:
-        evaluated_r = fillet_ratio
-        in_range = False
-        notes.append(
-            f"r/d = {fillet_ratio:.3g} is below the charted {lowest_r:g}: fit extrapolated to "
-            "the actual r/d (Kts rises as the fillet sharpens); enlarge the fillet or confirm "
-            "the factor by test or analysis"
-        )
-    else:
-        evaluated_r = fillet_ratio
-
-    if diameter_ratio > ratios[-1]:
-        value = _norton(len(ratios) - 1, evaluated_r)
-        in_range = False
-        notes.append(
-            f"D/d = {diameter_ratio:.3g} is above the largest fitted {ratios[-1]:.2f}: the "
-            f"D/d = {ratios[-1]:.2f} fit is used, possibly unconservative (Kts may keep rising "
-            "with D/d beyond the last charted curve)"
-        )
-    elif diameter_ratio < ratios[0]:
-        value = _norton(0, evaluated_r)
-        in_range = False
-        notes.append(
-            f"D/d = {diameter_ratio:.3g} is below the smallest fitted {ratios[0]:.2f}: the "
-            f"D/d = {ratios[0]:.2f} fit is used (conservative, Kts grows with D/d)"
-        )
-    else:
-        upper = next(i for i, ratio in enumerate(ratios) if ratio >= diameter_ratio)
-        if ratios[upper] == diameter_ratio or upper == 0:
-            value = _norton(upper, evaluated_r)
-            notes.append(f"D/d = {ratios[upper]:.2f} fit at r/d = {evaluated_r:.3g}")
-        else:
-            lower = upper - 1
-            weight = (diameter_ratio - ratios[lower]) / (ratios[upper] - ratios[lower])
-            low_value = _norton(lower, evaluated_r)
-            high_value = _norton(upper, evaluated_r)
-            value = low_value + weight * (high_value - low_value)
-            notes.append(
-                f"D/d = {diameter_ratio:.3g}: linear in D/d between the {ratios[lower]:.2f} and "
-                f"{ratios[upper]:.2f} fits at r/d = {evaluated_r:.3g}"
-            )
-    notes.append("nominal stress 16T/(πd³) on the smaller diameter")
-    return ConcentrationFactor(value, in_range, "; ".join(notes), _NORTON_SOURCE)
+    return shoulder_fillet_factors(big_diameter, small_diameter, fillet_radius).at()
 
 
+# --- keyseat -------------------------------------------------------------------------------------
 def keyseat_kts() -> ConcentrationFactor:
     """First-iteration torsional stress-concentration factor of an end-milled keyseat.
 
@@ -244,12 +463,127 @@ def keyseat_kts() -> ConcentrationFactor:
     )
 
 
-def _hole_polynomial(hole_ratio: float) -> float:
-    return float(sum(c * hole_ratio**power for power, c in enumerate(HOLE_POLYNOMIAL)))
+# --- transverse hole -----------------------------------------------------------------------------
+def _hole_ratio(hole: FloatArray, shaft: FloatArray) -> FloatArray:
+    """d/D, or NaN where a diameter is not finite and positive or d ≥ D."""
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        ratio = hole / shaft
+    ratio[~(_positive(hole, shaft) & (hole < shaft))] = np.nan
+    return ratio
+
+
+def _hole_ktg(hole: FloatArray, shaft: FloatArray) -> FloatArray:
+    """Pilkey & Pilkey's polynomial at d/D, held at the fit's upper end above it."""
+    highest = HOLE_RATIO_RANGE[1]
+    evaluated = np.minimum(_hole_ratio(hole, shaft), highest)
+    evaluated[evaluated >= highest * (1.0 - _EDGE)] = highest  # on the limit within 1e-9
+    value = np.zeros(evaluated.shape)
+    for coefficient in reversed(HOLE_POLYNOMIAL):  # Horner: four coefficients, not elements
+        value *= evaluated
+        value += coefficient
+    return value
+
+
+@dataclass(frozen=True)
+class TransverseHoleFactors:
+    """Transverse-hole factors element by element, and how each was found (arrays of one shape).
+
+    Attributes
+    ----------
+    value
+        Ktg = σ_max/τ_nom (dimensionless) on the gross nominal shear stress 16T/(πD³); NaN where
+        the inputs define no factor.
+    hole_diameter, shaft_diameter
+        The inputs d and D (m), broadcast to the shape of ``value``.
+    """
+
+    value: FloatArray
+    hole_diameter: FloatArray
+    shaft_diameter: FloatArray
+
+    @functools.cached_property
+    def hole_ratio(self) -> FloatArray:
+        """d/D (NaN where not defined); within 1e-9 (relative) of the fit's end it is on it."""
+        ratio = _hole_ratio(np.ravel(self.hole_diameter), np.ravel(self.shaft_diameter))
+        return np.reshape(ratio, self.value.shape)
+
+    @functools.cached_property
+    def defined(self) -> BoolArray:
+        """Where d and D are finite and positive and d < D."""
+        return ~np.isnan(self.hole_ratio)
+
+    @functools.cached_property
+    def above(self) -> BoolArray:
+        """d/D above the fit's range: the value at its upper end, NOT conservative."""
+        highest = HOLE_RATIO_RANGE[1]
+        return self.defined & (self.hole_ratio > highest) & ~_near(self.hole_ratio, highest)
+
+    @functools.cached_property
+    def in_range(self) -> BoolArray:
+        """Where the factor is defined and d/D lies inside the fit's range."""
+        return self.defined & ~self.above
+
+    def note(self, index: Any = ()) -> str:
+        """What was computed for one element (``index`` into the arrays), and how."""
+        if not self.defined[index]:
+            return "no factor: a diameter is not finite and positive, or the hole is not smaller"
+        kind = "largest normal stress over the gross nominal shear stress 16T/(πD³)"
+        hole_ratio, highest = float(self.hole_ratio[index]), HOLE_RATIO_RANGE[1]
+        if self.above[index]:
+            return (
+                f"d/D = {hole_ratio:.3g} is above the fit's {highest:g}: value at "
+                f"d/D = {highest:g}, NOT conservative (the factor rises with d/D at the end of the "
+                f"fit); confirm by chart or analysis; {kind}"
+            )
+        return f"d/D = {hole_ratio:.3g}; {kind}"
+
+    def at(self, index: Any = ()) -> ConcentrationFactor:
+        """One element as a :class:`ConcentrationFactor`, with its note and source."""
+        return ConcentrationFactor(
+            float(self.value[index]), bool(self.in_range[index]), self.note(index), _HOLE_SOURCE
+        )
+
+
+def transverse_hole_factors(
+    hole_diameter: ArrayLike, shaft_diameter: ArrayLike
+) -> TransverseHoleFactors:
+    """Factors of transverse (radial, through) holes in solid shafts, broadcast element by element.
+
+    Parameters
+    ----------
+    hole_diameter
+        Hole diameters d (m), any shape broadcasting with ``shaft_diameter``.
+    shaft_diameter
+        Shaft diameters D (m).
+
+    Returns
+    -------
+    TransverseHoleFactors
+        Ktg = σ_max/τ_nom with τ_nom = 16T/(πD³) on the gross section: the largest *normal*
+        stress at the hole edge over the nominal shear stress. Above d/D = 0.4 the value at
+        d/D = 0.4, flagged as not conservative (the factor rises with d/D there). NaN where a
+        diameter is not finite and positive or d ≥ D.
+
+    References
+    ----------
+    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., transverse hole
+       in a solid bar in torsion: Ktg = 4 − 6.055(d/D) + 32.764(d/D)² − 38.33(d/D)³, the
+       coefficients in :data:`HOLE_POLYNOMIAL`.
+
+    Examples
+    --------
+    >>> factors = transverse_hole_factors([0.01, 0.03], 0.05)
+    >>> factors.value.round(5).tolist(), factors.in_range.tolist()
+    ([3.79292, 4.36712], [True, False])
+    """
+    hole, shaft = _broadcast(hole_diameter, shaft_diameter)
+    return TransverseHoleFactors(by_blocks(_hole_ktg, hole, shaft), hole, shaft)
 
 
 def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> ConcentrationFactor:
-    """Stress-concentration factor of a transverse (radial, through) hole in a solid shaft.
+    """Stress-concentration factor of one transverse (radial, through) hole in a solid shaft.
+
+    The one geometry checked, then :func:`transverse_hole_factors` evaluates it.
 
     Parameters
     ----------
@@ -261,9 +595,8 @@ def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> Concentr
     Returns
     -------
     ConcentrationFactor
-        Ktg = σ_max/τ_nom with τ_nom = 16T/(πD³) on the gross section: the largest *normal*
-        stress at the hole edge over the nominal shear stress. Outside 0 ≤ d/D ≤ 0.4 the value
-        at d/D = 0.4 is returned, flagged as not conservative (the factor rises with d/D there).
+        Ktg = σ_max/τ_nom on the gross nominal shear stress 16T/(πD³), with ``in_range``, a note
+        and the source (above d/D = 0.4 the value at 0.4, flagged as not conservative).
 
     Raises
     ------
@@ -272,8 +605,8 @@ def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> Concentr
 
     References
     ----------
-    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., transverse hole
-       in a solid bar in torsion: Ktg = 4 − 6.055(d/D) + 32.764(d/D)² − 38.33(d/D)³.
+    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., as
+       :func:`transverse_hole_factors`.
     """
     require_positive("hole_diameter", hole_diameter)
     require_positive("shaft_diameter", shaft_diameter)
@@ -283,16 +616,4 @@ def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> Concentr
             f"{quote(shaft_diameter, 'length')})"
         )
         raise InputError(field="hole_diameter", message=msg)
-    hole_ratio = _snap(hole_diameter / shaft_diameter, HOLE_RATIO_RANGE[1:])
-    kind = "largest normal stress over the gross nominal shear stress 16T/(πD³)"
-    highest = HOLE_RATIO_RANGE[1]
-    if hole_ratio > highest:
-        value = _hole_polynomial(highest)
-        note = (
-            f"d/D = {hole_ratio:.3g} is above the fit's {highest:g}: value at d/D = {highest:g}, "
-            f"NOT conservative (the factor rises with d/D at the end of the fit); confirm by chart "
-            f"or analysis; {kind}"
-        )
-        return ConcentrationFactor(value, False, note, _HOLE_SOURCE)
-    note = f"d/D = {hole_ratio:.3g}; {kind}"
-    return ConcentrationFactor(_hole_polynomial(hole_ratio), True, note, _HOLE_SOURCE)
+    return transverse_hole_factors(hole_diameter, shaft_diameter).at()
