@@ -42,6 +42,11 @@ def join_path(prefix: str, name: str) -> str:
     return f"{prefix}{name}" if name.startswith("[") else f"{prefix}.{name}"
 
 
+def within(prefix: str, error: InputError) -> InputError:
+    """``error`` with its field put under ``prefix``: ``within("supports[1]", error)``."""
+    return type(error)(join_path(prefix, error.field), error.message)
+
+
 @contextlib.contextmanager
 def field_path(prefix: str) -> Iterator[None]:
     """Prefix the field of any :class:`InputError` raised inside the block with ``prefix``."""
@@ -51,7 +56,7 @@ def field_path(prefix: str) -> Iterator[None]:
         # Readers inside the block already name the full path; prefix only bare field names.
         if error.field == prefix or error.field.startswith((f"{prefix}.", f"{prefix}[")):
             raise
-        raise type(error)(join_path(prefix, error.field), error.message) from None
+        raise within(prefix, error) from None
 
 
 def require_finite(name: str, value: float) -> None:

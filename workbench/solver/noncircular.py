@@ -23,7 +23,7 @@ References
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import ClassVar
 
 import numpy as np
@@ -265,7 +265,7 @@ class ThinWalledClosed(Section):
     .. [3] Isoperimetric inequality 4πA ≤ P² (any text on plane geometry).
     """
 
-    enclosed_area: float = field(metadata={"quantity": "area"})
+    enclosed_area: float
     walls: tuple[Wall, ...]
     shape: ClassVar[str] = "thin_closed"
 
