@@ -25,12 +25,17 @@ import msgspec
 from workbench.case.declaration import MAX_FILE_BYTES, MAX_SEGMENTS, CaseFile
 from workbench.case.errors import InputError
 from workbench.case.messages import translate
-from workbench.case.text import check_depth, check_number_digits, repeated_key, syntax_error
+from workbench.case.text import (
+    check_depth,
+    check_number_digits,
+    out_of_range,
+    repeated_key,
+    syntax_error,
+)
 
 _DECODER = msgspec.json.Decoder(CaseFile)
 _ENCODER = msgspec.json.Encoder()
 _BYTE = re.compile(r"\(byte (\d+)\)")
-_PATH = re.compile(r" - at `\$([^`]*)`$")
 
 
 def read_case_bytes(path: str | os.PathLike[str]) -> bytes:
@@ -101,14 +106,14 @@ def decode_document(data: bytes | str, source: str = "case") -> Any:
     try:
         document = msgspec.json.decode(data)
     except msgspec.DecodeError as error:
+        if "number out of range" in str(error).lower():
+            raise out_of_range(data) or InputError(source, str(error)) from None
         found = _BYTE.search(str(error))
         offset = int(found[1]) if found else len(data)
         reason = str(error).removeprefix("JSON is malformed: ").split(" (byte")[0]
         raise syntax_error(data, offset, reason.lower(), source) from None
     except msgspec.ValidationError as error:  # a number beyond the range of a double
-        found = _PATH.search(str(error))
-        path = found[1].lstrip(".") if found else ""
-        raise InputError(path, "must be a finite number: this one is out of range") from None
+        raise out_of_range(data) or InputError(source, str(error)) from None
     _check_repeated_keys(data, _ENCODER.encode(document))
     return document
 

@@ -9,13 +9,12 @@ from __future__ import annotations
 
 import math
 import re
-import types
 import typing
 from typing import Any
 
 import msgspec
 
-from workbench.case.declaration import CaseFile, Keys
+from workbench.case.declaration import CaseFile, Keys, Unwrapped
 from workbench.case.errors import InputError
 from workbench.case.text import short
 
@@ -24,77 +23,24 @@ _STEP = re.compile(r"\.([A-Za-z_][A-Za-z_0-9]*)|\[(\d+)\]|\[\.\.\.\]")
 _TYPE_ONLY = re.compile(r"Expected `[^`]*`(?:, got `[^`]*`)?")
 
 
-class Declared:
-    """One key's declared type, unwrapped: its base type(s) and merged bounds and metadata."""
-
-    def __init__(self, annotation: Any) -> None:
-        self.metas: list[msgspec.Meta] = []
-        self.bases: list[Any] = []
-        self._unwrap(annotation)
-
-    def _unwrap(self, annotation: Any) -> None:
-        if typing.get_origin(annotation) is typing.Annotated:
-            self.metas.extend(m for m in annotation.__metadata__ if isinstance(m, msgspec.Meta))
-            self._unwrap(typing.get_args(annotation)[0])
-        elif typing.get_origin(annotation) in (typing.Union, types.UnionType):
-            for member in typing.get_args(annotation):
-                self._unwrap(member)
-        elif annotation not in (type(None), msgspec.UnsetType):
-            self.bases.append(annotation)
-
-    def bound(self, name: str) -> Any:
-        """A bound (``gt``, ``max_length``, ...) of the key, or ``None``."""
-        for meta in self.metas:
-            value = getattr(meta, name, None)
-            if value is not None:
-                return value
-        return None
-
-    def extra(self, name: str) -> Any:
-        """An item of the key's ``extra`` metadata, or ``None``."""
-        for meta in self.metas:
-            if meta.extra and name in meta.extra:
-                return meta.extra[name]
-        return None
-
-    def struct_for(self, value: Any) -> type[Keys] | None:
-        """The struct among the bases that describes ``value`` (by its tag, for a union)."""
-        structs = [b for b in self.bases if isinstance(b, type) and issubclass(b, Keys)]
-        if len(structs) == 1:
-            return structs[0]
-        for struct in structs:
-            config = struct.__struct_config__
-            if isinstance(value, dict) and value.get(config.tag_field) == config.tag:
-                return struct
-        return None
-
-    def tags(self, name: str) -> tuple[str, ...]:
-        """The tags of a union of structs told apart by the key ``name`` (empty otherwise)."""
-        configs = [
-            b.__struct_config__ for b in self.bases if isinstance(b, type) and issubclass(b, Keys)
-        ]
-        if len(configs) < 2 or any(config.tag_field != name for config in configs):
-            return ()
-        return tuple(str(config.tag) for config in configs)
-
-    def words(self) -> str:
-        """What the key must be, in words (``"a number"``, ``"one of fixed, spring"``)."""
-        parts = []
-        for base in self.bases:
-            origin = typing.get_origin(base) or base
-            if origin is typing.Literal:
-                parts.append("one of " + ", ".join(str(v) for v in typing.get_args(base)))
-            elif base is bool:
-                parts.append("true or false")
-            elif base in (int, float):
-                parts.append("a number")
-            elif base is str:
-                parts.append("a string")
-            elif origin is list:
-                parts.append("a list")
-            else:
-                parts.append("an object")
-        return " or ".join(dict.fromkeys(parts))
+def _words(declared: Unwrapped) -> str:
+    """What a key must be, in words (``"a number"``, ``"one of fixed, spring"``)."""
+    parts = []
+    for base in declared.bases:
+        origin = typing.get_origin(base) or base
+        if origin is typing.Literal:
+            parts.append("one of " + ", ".join(str(v) for v in typing.get_args(base)))
+        elif base is bool:
+            parts.append("true or false")
+        elif base in (int, float):
+            parts.append("a number")
+        elif base is str:
+            parts.append("a string")
+        elif origin is list:
+            parts.append("a list")
+        else:
+            parts.append("an object")
+    return " or ".join(dict.fromkeys(parts))
 
 
 def kind_of(value: Any) -> str:
@@ -123,7 +69,7 @@ def _number(value: float) -> str:
     return f"{value:g}"
 
 
-def bound_message(declared: Declared, value: Any, document: Any) -> str:
+def bound_message(declared: Unwrapped, value: Any, document: Any) -> str:
     """Why a number is outside its declared bounds (or not finite), in words."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         if not math.isfinite(value):
@@ -166,7 +112,7 @@ class _Walk:
     def __init__(self, document: Any) -> None:
         self.document = document
         self.value: Any = document
-        self.declared = Declared(CaseFile)
+        self.declared = Unwrapped(CaseFile)
         self.parts: list[str] = []
         self.found = True
 
@@ -185,12 +131,12 @@ class _Walk:
         self.parts.append(short(name))
         self.value = self.value.get(name) if isinstance(self.value, dict) else None
         if tags:
-            self.declared = Declared(typing.Literal[tags])
+            self.declared = Unwrapped(typing.Literal[tags])
             return
         if struct is None or name not in struct.__struct_fields__:
             self.found = False
             return
-        self.declared = Declared(typing.get_type_hints(struct, include_extras=True)[name])
+        self.declared = Unwrapped(typing.get_type_hints(struct, include_extras=True)[name])
 
     def step_index(self, index: int) -> None:
         self.parts.append(f"[{index}]")
@@ -218,7 +164,7 @@ class _Walk:
             self.found = False
             return Any
         inner = typing.get_args(containers[0])[position]
-        self.declared = Declared(inner)
+        self.declared = Unwrapped(inner)
         return inner
 
 
@@ -258,15 +204,15 @@ def translate(error: msgspec.ValidationError, document: Any) -> InputError:
 
 def _bad_dict_key(walk: _Walk, what: str) -> InputError:
     names = list(walk.value) if isinstance(walk.value, dict) else []
-    key_type = Declared(typing.get_args(walk.declared.bases[0])[0]) if walk.found else None
+    key_type = Unwrapped(typing.get_args(walk.declared.bases[0])[0]) if walk.found else None
     for name in names:
         if not isinstance(name, str) or (key_type and not _fits(name, key_type)):
-            bad = Declared(str) if key_type is None else key_type
+            bad = Unwrapped(str) if key_type is None else key_type
             return InputError(walk.path(short(str(name))), "name " + bound_message(bad, name, None))
     return InputError(walk.path(), what)
 
 
-def _fits(name: str, declared: Declared) -> bool:
+def _fits(name: str, declared: Unwrapped) -> bool:
     least, most = declared.bound("min_length") or 0, declared.bound("max_length")
     return least <= len(name) and (most is None or len(name) <= most)
 
@@ -293,7 +239,7 @@ def _message(walk: _Walk, what: str, document: Any) -> InputError:
     if what.startswith("Invalid enum value") or what.startswith("Invalid value"):
         return InputError(walk.path(), _unknown_name(walk, value))
     if _TYPE_ONLY.fullmatch(what):
-        return InputError(walk.path(), f"must be {walk.declared.words()}, not {kind_of(value)}")
+        return InputError(walk.path(), f"must be {_words(walk.declared)}, not {kind_of(value)}")
     if what.startswith("Expected") and walk.found:
         return InputError(walk.path(), bound_message(walk.declared, value, document))
     return InputError(walk.path(), what)

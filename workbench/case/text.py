@@ -9,6 +9,7 @@ the bytes outside strings (numpy), so naming a field deep in a 256 MB file stays
 from __future__ import annotations
 
 import json
+import math
 import re
 from typing import Any
 
@@ -30,6 +31,9 @@ _DIGITS = bytes(0x31 if 0x30 <= byte <= 0x39 else 0x30 for byte in range(256))
 _NUMBER_PUNCTUATION = b".eE+-"
 _LONG_RUN = re.compile(rb"[-+.0-9eE]{%d,}" % (MAX_NUMBER_DIGITS + 1))
 _NON_FINITE = (b"NaN", b"Infinity", b"-Infinity")
+#: Numbers with an exponent of three digits or more: the only ones beyond a double's range (their
+#: digits are bounded).
+_EXPONENT = re.compile(rb"-?[0-9]+(?:\.[0-9]*)?[eE][-+]?[0-9]{3,}")
 
 
 def short(text: str, most: int = 60) -> str:
@@ -135,6 +139,19 @@ def check_number_digits(data: bytes) -> None:
             continue
         msg = f"a number of {digits:,} digits; numbers may have at most {MAX_NUMBER_DIGITS}"
         raise InputError(structure.path_at(match.start()), msg)
+
+
+def out_of_range(data: bytes) -> InputError | None:
+    """The error for the first number outside strings too large for a double, if there is one."""
+    structure: Structure | None = None
+    for match in _EXPONENT.finditer(data):
+        if math.isfinite(float(match.group())):
+            continue
+        structure = structure or Structure(data)
+        if not structure.in_string(match.start()):
+            msg = f"must be a finite number: {match.group().decode()} is out of range"
+            return InputError(structure.path_at(match.start()), msg)
+    return None
 
 
 def check_depth(data: bytes) -> None:

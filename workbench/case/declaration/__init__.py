@@ -41,6 +41,7 @@ from workbench.case.declaration.keys import (
     QUANTITIES,
     Alternatives,
     Keys,
+    Unwrapped,
     default_of,
     extra_of,
     field_metas,
@@ -90,15 +91,24 @@ def declared_structs() -> tuple[type[Keys], ...]:
     return tuple(found)
 
 
+@functools.cache
+def declared_numbers() -> tuple[tuple[type[Keys], str], ...]:
+    """(object, key) of every key that holds a number, in declaration order."""
+    return tuple(
+        (cls, name)
+        for cls in declared_structs()
+        for name in cls.__struct_fields__
+        if {float, int} & set(Unwrapped(field_type(cls, name)).bases)
+    )
+
+
 class _KeyQuantities(Mapping[str, str | None]):
     """Key name → quantity over every declared number (read from the declaration each time)."""
 
     def _table(self) -> dict[str, str | None]:
         table: dict[str, str | None] = {}
-        for cls in declared_structs():
-            for name, meta in field_metas(cls).items():
-                if meta is not None and name not in table and "quantity" in (meta.extra or {}):
-                    table[name] = quantity_of(cls, name)
+        for cls, name in declared_numbers():
+            table.setdefault(name, quantity_of(cls, name))
         return table
 
     def __getitem__(self, name: str) -> str | None:
@@ -167,7 +177,9 @@ __all__ = [
     "SupportKind",
     "Torque",
     "Units",
+    "Unwrapped",
     "Wall",
+    "declared_numbers",
     "declared_structs",
     "default_of",
     "extra_of",

@@ -15,6 +15,7 @@ declared ``default``. ``null`` is the same as leaving an optional key out.
 from __future__ import annotations
 
 import functools
+import types
 import typing
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
@@ -273,3 +274,59 @@ def structs_in(annotation: Any) -> Iterator[type]:
         return
     for argument in typing.get_args(annotation):
         yield from structs_in(argument)
+
+
+class Unwrapped:
+    """A declared annotation unwrapped: its base types (no null, no ``UNSET``) and all its metadata."""
+
+    def __init__(self, annotation: Any) -> None:
+        self.metas: list[msgspec.Meta] = []
+        self.bases: list[Any] = []
+        self._unwrap(annotation)
+
+    def _unwrap(self, annotation: Any) -> None:
+        if typing.get_origin(annotation) is typing.Annotated:
+            self.metas.extend(m for m in annotation.__metadata__ if isinstance(m, msgspec.Meta))
+            self._unwrap(typing.get_args(annotation)[0])
+        elif typing.get_origin(annotation) in (typing.Union, types.UnionType):
+            for member in typing.get_args(annotation):
+                self._unwrap(member)
+        elif annotation not in (type(None), msgspec.UnsetType):
+            self.bases.append(annotation)
+
+    def bound(self, name: str) -> Any:
+        """A bound (``gt``, ``max_length``, ...) of the key, or ``None``."""
+        for meta in self.metas:
+            value = getattr(meta, name, None)
+            if value is not None:
+                return value
+        return None
+
+    def extra(self, name: str) -> Any:
+        """An item of the key's ``extra`` metadata, or ``None``."""
+        for meta in self.metas:
+            if meta.extra and name in meta.extra:
+                return meta.extra[name]
+        return None
+
+    def structs(self) -> list[type[Keys]]:
+        """The structs among the bases."""
+        return [b for b in self.bases if isinstance(b, type) and issubclass(b, Keys)]
+
+    def struct_for(self, value: Any) -> type[Keys] | None:
+        """The struct among the bases that describes ``value`` (by its tag, for a union)."""
+        structs = self.structs()
+        if len(structs) == 1:
+            return structs[0]
+        for struct in structs:
+            config = struct.__struct_config__
+            if isinstance(value, dict) and value.get(config.tag_field) == config.tag:
+                return struct
+        return None
+
+    def tags(self, name: str) -> tuple[str, ...]:
+        """The tags of a union of structs told apart by the key ``name`` (empty otherwise)."""
+        configs = [struct.__struct_config__ for struct in self.structs()]
+        if len(configs) < 2 or any(config.tag_field != name for config in configs):
+            return ()
+        return tuple(str(config.tag) for config in configs)
