@@ -69,13 +69,16 @@ def _bounds_words(annotation: Any) -> str:
             value = getattr(meta, name)
             if value is not None:
                 words.append(f"{sign} {_number(value)}")
-        least, most = meta.min_length, meta.max_length
-        if most is not None or least:
-            what = "characters" if str in unwrapped.bases else "entries"
+        least, most = meta.min_length or 0, meta.max_length
+        what = "characters" if str in unwrapped.bases else "entries"
+        if most is None:
+            if least:
+                words.append(f"≥ {_number(least)} {what}")
+        elif least == most:
+            words.append(f"exactly {_number(most)} {what}")
+        else:
             span = f"{_number(least)}–{_number(most)}" if least else f"≤ {_number(most)}"
-            if least is not None and least == most:
-                span = f"exactly {_number(most)}"
-            words.append(f"{span} {what}" if most is not None else f"≥ {_number(least)} {what}")
+            words.append(f"{span} {what}")
     choices = unwrapped.extra("choices")
     if choices:
         words.append("one of " + ", ".join(f"{value:g}" for value in choices))
