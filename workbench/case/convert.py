@@ -10,6 +10,8 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from msgspec import UNSET
+
 from workbench.case.declaration import Keys, default_of, given, quantity_of
 from workbench.case.errors import InputError
 from workbench.case.units import SI, UnitSystem
@@ -34,17 +36,19 @@ class Converter:
 
     def __init__(self, units: UnitSystem) -> None:
         self.units = units
-        self._factors: dict[tuple[type, str], float] = {}
+        self._plans: dict[tuple[type, str], tuple[float, Any]] = {}
+
+    def _plan(self, cls: type, name: str) -> tuple[float, Any]:
+        """(factor to SI, declared default) of a key, read from the declaration once."""
+        quantity = quantity_of(cls, name)
+        plan = (self.units.factor(quantity) if quantity else 1.0, default_of(cls, name))
+        self._plans[cls, name] = plan
+        return plan
 
     def factor(self, cls: type, name: str) -> float:
         """The factor from the file's unit of key ``name`` of ``cls`` to SI (1 without a unit)."""
-        try:
-            return self._factors[cls, name]
-        except KeyError:
-            quantity = quantity_of(cls, name)
-            factor = self.units.factor(quantity) if quantity else 1.0
-            self._factors[cls, name] = factor
-            return factor
+        plan = self._plans.get((cls, name)) or self._plan(cls, name)
+        return plan[0]
 
     def si(self, entry: Any, name: str) -> Any:
         """Key ``name`` of ``entry`` in SI: its declared default when left out, ``None`` if none.
@@ -55,13 +59,15 @@ class Converter:
             On field ``name`` when the number is not finite, before or after the conversion.
         """
         raw = getattr(entry, name)
-        if not given(raw):
-            raw = default_of(type(entry), name)
-            if raw is None:
+        cls = type(entry)
+        factor, default = self._plans.get((cls, name)) or self._plan(cls, name)
+        if raw is UNSET or raw is None:
+            if default is None:
                 return None
-        value = raw * self.factor(type(entry), name)
+            raw = default
+        value = raw * factor
         if not math.isfinite(value):
-            raise InputError(name, self._not_finite(type(entry), name, raw))
+            raise InputError(name, self._not_finite(cls, name, raw))
         return value
 
     def _not_finite(self, cls: type, name: str, raw: float) -> str:
@@ -83,8 +89,6 @@ class Converter:
         Numbers with a quantity are converted from SI; ``None`` leaves a key out; keys the
         source has no attribute for are left out unless given in ``given_values``.
         """
-        from msgspec import UNSET  # noqa: PLC0415 - the sentinel only
-
         values: dict[str, Any] = {}
         for name in cls.__struct_fields__:
             if name in given_values:

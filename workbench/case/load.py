@@ -24,7 +24,6 @@ import msgspec
 
 from workbench.case.declaration import MAX_FILE_BYTES, MAX_SEGMENTS, CaseFile
 from workbench.case.errors import InputError
-from workbench.case.messages import translate
 from workbench.case.text import (
     check_depth,
     check_number_digits,
@@ -131,6 +130,8 @@ def case_file_from_bytes(data: bytes, source: str = "case") -> CaseFile:
     try:
         case = _DECODER.decode(data)
     except msgspec.ValidationError as error:
+        from workbench.case.messages import translate  # noqa: PLC0415 - only for a message
+
         # The plain document quotes the value; decoding it raises the text's own error first.
         raise translate(error, decode_document(data, source)) from None
     except msgspec.DecodeError as error:
@@ -175,6 +176,8 @@ def case_file_from_document(document: Any) -> CaseFile:
     try:
         case = msgspec.convert(document, CaseFile)
     except msgspec.ValidationError as error:
+        from workbench.case.messages import translate  # noqa: PLC0415 - only for a message
+
         if not _holds_other_numbers(document):
             raise translate(error, document) from None
         document = _plain_numbers(document)

@@ -10,6 +10,7 @@ the field by its path in the case file. :func:`case_file_of` goes the other way,
 from __future__ import annotations
 
 import dataclasses
+import gc
 from typing import Any
 
 from msgspec import UNSET
@@ -100,13 +101,13 @@ class _Builder:
         cls = type(entry)
         values: dict[str, Any] = {}
         for name in cls.__struct_fields__:
-            raw = getattr(entry, name)
-            if isinstance(raw, list):
-                values[name] = tuple(self._wall(number, wall) for number, wall in enumerate(raw))
-            else:
-                value = self.convert.si(entry, name)
-                if value is not None:
-                    values[name] = value
+            if name == "walls":
+                walls = entry.walls
+                values[name] = tuple(self._wall(number, wall) for number, wall in enumerate(walls))
+                continue
+            value = self.convert.si(entry, name)
+            if value is not None:
+                values[name] = value
         return SECTIONS[cls](**values)
 
     def _wall(self, number: int, entry: declared.Wall) -> Wall:
@@ -128,17 +129,17 @@ class _Builder:
     def segment(self, entry: declared.Segment) -> Segment:
         """A segment (its errors name fields relative to the segment)."""
         si = self.convert.si
-        if declared.given(entry.layers):
-            layers = tuple(self._layer(n, layer) for n, layer in enumerate(entry.layers))  # type: ignore[arg-type]
-        else:
+        if entry.layers is UNSET or entry.layers is None:
             material = self.material(entry.material)  # type: ignore[arg-type]
             try:
                 section = self.section(entry.section)
             except InputError as error:
                 raise within("section", error) from None
-            layers = (Layer(material, section),)
+            layers: tuple[Layer, ...] = (Layer(material, section),)
+        else:
+            layers = tuple(self._layer(n, layer) for n, layer in enumerate(entry.layers))
         notch = None
-        if declared.given(entry.notch):
+        if entry.notch is not UNSET and entry.notch is not None:
             try:
                 notch = Notch(
                     kts=si(entry.notch, "kts"),
@@ -148,12 +149,15 @@ class _Builder:
                 )
             except InputError as error:
                 raise within("notch", error) from None
+        keyseat, fillet, hole = entry.keyseat, entry.fillet_radius, entry.cross_hole_diameter
+        if not isinstance(keyseat, bool):
+            keyseat = declared.default_of(declared.Segment, "keyseat")
         return Segment(
             si(entry, "length"),
             layers,
-            si(entry, "fillet_radius"),
-            declared.value_of(entry, "keyseat"),
-            si(entry, "cross_hole_diameter"),
+            None if fillet is UNSET or fillet is None else si(entry, "fillet_radius"),
+            keyseat,
+            None if hole is UNSET or hole is None else si(entry, "cross_hole_diameter"),
             notch,
         )
 
@@ -303,6 +307,10 @@ def build_model(case: declared.CaseFile) -> Model:
     """
     units = unit_system(declared.value_of(case, "units"))
     token = display_units.set(units)  # messages quote values in the file's own units
+    collecting = gc.isenabled()
+    # Millions of new objects and no cycles among them: the cyclic collector would only rescan
+    # the growing heap again and again (a third of the building time at 10⁵ segments).
+    gc.disable()
     try:
         converter = Converter(units)
         builder = _Builder(case, converter)
@@ -321,6 +329,8 @@ def build_model(case: declared.CaseFile) -> Model:
             operating_speeds=builder.operating_speeds(),
         )
     finally:
+        if collecting:
+            gc.enable()
         display_units.reset(token)
 
 

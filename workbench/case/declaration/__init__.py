@@ -8,8 +8,6 @@ panel's units (:func:`key_quantities`), the README's key reference
 (:mod:`workbench.case.reference`) and the solver's unit conversions (:mod:`workbench.solver.build`).
 """
 
-from __future__ import annotations
-
 import functools
 from collections.abc import Iterator, Mapping
 

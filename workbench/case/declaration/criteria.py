@@ -5,8 +5,6 @@ rules that use them live in :mod:`workbench.design`, the settings' model in
 :mod:`workbench.case.design`.
 """
 
-from __future__ import annotations
-
 import typing
 from typing import Annotated, ClassVar, Literal
 

@@ -12,8 +12,6 @@ holds exactly the keys its file held; the value the key stands for when it is le
 declared ``default``. ``null`` is the same as leaving an optional key out.
 """
 
-from __future__ import annotations
-
 import functools
 import types
 import typing

@@ -5,8 +5,6 @@ Contract: case file version 1 (``DEVELOPERS.md``, design §2). Numbers are in th
 cases) and positions on shafts are checked when the model is built.
 """
 
-from __future__ import annotations
-
 from typing import Annotated, ClassVar, Literal
 
 from msgspec import UNSET, Meta, UnsetType

@@ -5,15 +5,11 @@ section of the same name from each (:mod:`workbench.solver.build`); what the sha
 formulas are documented there (:mod:`workbench.solver.sections`, :mod:`workbench.solver.noncircular`).
 """
 
-from __future__ import annotations
-
 from typing import Annotated
 
 from msgspec import UNSET, Meta, UnsetType
 
 from workbench.case.declaration.keys import MAX_ITEMS, Keys, key
-
-Walls = Annotated[list["Wall"], Meta(min_length=1, max_length=MAX_ITEMS)]
 
 
 class Wall(Keys):
@@ -23,6 +19,9 @@ class Wall(Keys):
         float, key("Length of the panel along the wall's centre line", "length", gt=0)
     ]
     thickness: Annotated[float, key("Wall thickness, uniform over the panel", "length", gt=0)]
+
+
+Walls = Annotated[list[Wall], Meta(min_length=1, max_length=MAX_ITEMS)]
 
 
 class Solid(Keys, tag_field="shape", tag="solid"):
