@@ -117,8 +117,8 @@ def decode_document(data: bytes | str, source: str = "case") -> Any:
     return document
 
 
-def case_file_from_bytes(data: bytes, source: str = "case") -> CaseFile:
-    """Decode and validate case-file bytes.
+def decode_case_file(data: bytes, source: str = "case") -> CaseFile:
+    """Decode case-file bytes into the declaration: structure, types, bounds, alternatives.
 
     Raises
     ------
@@ -128,7 +128,7 @@ def case_file_from_bytes(data: bytes, source: str = "case") -> CaseFile:
     """
     _check_text(data, source)
     try:
-        case = _DECODER.decode(data)
+        return _DECODER.decode(data)
     except msgspec.ValidationError as error:
         from workbench.case.messages import translate  # noqa: PLC0415 - only for a message
 
@@ -137,9 +137,25 @@ def case_file_from_bytes(data: bytes, source: str = "case") -> CaseFile:
     except msgspec.DecodeError as error:
         decode_document(data, source)  # names the syntax error by line and column
         raise InputError(source, f"not valid JSON: {error}") from None
+
+
+def check_case_bytes(data: bytes, case: CaseFile) -> None:
+    """The checks of a decoded file that its types cannot make: digits, keys twice, totals."""
     check_number_digits(data)
     _check_repeated_keys(data, _ENCODER.encode(case))
     _check_totals(case)
+
+
+def case_file_from_bytes(data: bytes, source: str = "case") -> CaseFile:
+    """Decode and validate case-file bytes (:func:`decode_case_file`, :func:`check_case_bytes`).
+
+    Raises
+    ------
+    InputError
+        On any limit, structure or value the declaration does not allow, naming the field.
+    """
+    case = decode_case_file(data, source)
+    check_case_bytes(data, case)
     return case
 
 
