@@ -32,7 +32,7 @@ from workbench.case.declaration import (
     value_of,
 )
 from workbench.case.errors import InputError
-from workbench.case.validate import require_positive, within
+from workbench.case.validate import build_each, require_positive, within
 
 __all__ = [
     "DEFAULT_FACTOR_OF_SAFETY",
@@ -298,19 +298,16 @@ def design_criteria(entry: declared.Design, converter: Converter) -> DesignCrite
         On a value the settings refuse, naming the field (``design.fatigue.reliability``).
     """
     try:
-        limits = []
-        for number, limit in enumerate(value_of(entry, "rotation_limits") or ()):
-            try:
-                limits.append(
-                    RotationLimit(
-                        limit.shaft,
-                        converter.si(limit, "start"),
-                        converter.si(limit, "end"),
-                        converter.si(limit, "limit"),
-                    )
-                )
-            except InputError as error:
-                raise within(f"rotation_limits[{number}]", error) from None
+        limits = build_each(
+            value_of(entry, "rotation_limits"),
+            "rotation_limits",
+            lambda limit: RotationLimit(
+                limit.shaft,
+                converter.si(limit, "start"),
+                converter.si(limit, "end"),
+                converter.si(limit, "limit"),
+            ),
+        )
         fatigue = None
         if value_of(entry, "fatigue") is not None:
             try:
@@ -326,7 +323,7 @@ def design_criteria(entry: declared.Design, converter: Converter) -> DesignCrite
             allowable_shear_stress=converter.si(entry, "allowable_shear_stress"),
             max_twist_rate=None if preset is not None else converter.si(entry, "max_twist_rate"),
             twist_rate_preset=preset,
-            rotation_limits=tuple(limits),
+            rotation_limits=limits,
             frequency_margin=value_of(entry, "frequency_margin"),
             modal_elements_per_segment=int(value_of(entry, "modal_elements_per_segment")),
             modal_max_element_length=converter.si(entry, "modal_max_element_length"),

@@ -22,7 +22,7 @@ from workbench.case.errors import InputError
 from workbench.case.materials import Material, library_material
 from workbench.case.power import torque_from_power
 from workbench.case.units import SI, UnitSystem, display_units
-from workbench.case.validate import within
+from workbench.case.validate import build_each, within
 from workbench.solver import sections as circular
 from workbench.solver.model import (
     Combination,
@@ -178,23 +178,15 @@ class _Builder:
                 raise within(path, error) from None
         return tuple(shafts)
 
-    def supports(self) -> tuple[Support, ...]:
+    def _support(self, entry: declared.Support) -> Support:
         si = self.convert.si
-        supports = []
-        for number, entry in enumerate(declared.value_of(self.case, "supports") or ()):
-            try:
-                supports.append(
-                    Support(
-                        entry.shaft,
-                        si(entry, "x"),
-                        declared.value_of(entry, "kind"),
-                        si(entry, "stiffness"),
-                        si(entry, "rotation"),
-                    )
-                )
-            except InputError as error:
-                raise within(f"supports[{number}]", error) from None
-        return tuple(supports)
+        return Support(
+            entry.shaft,
+            si(entry, "x"),
+            declared.value_of(entry, "kind"),
+            si(entry, "stiffness"),
+            si(entry, "rotation"),
+        )
 
     def _gear_end(self, end: str, entry: declared.GearEnd) -> GearPosition:
         si = self.convert.si
@@ -203,20 +195,9 @@ class _Builder:
         except InputError as error:
             raise within(end, error) from None
 
-    def gears(self) -> tuple[GearMesh, ...]:
-        gears = []
-        for number, entry in enumerate(declared.value_of(self.case, "gears") or ()):
-            try:
-                gears.append(
-                    GearMesh(
-                        self._gear_end("a", entry.a),
-                        self._gear_end("b", entry.b),
-                        declared.value_of(entry, "mesh"),
-                    )
-                )
-            except InputError as error:
-                raise within(f"gears[{number}]", error) from None
-        return tuple(gears)
+    def _gear(self, entry: declared.Gear) -> GearMesh:
+        a, b = self._gear_end("a", entry.a), self._gear_end("b", entry.b)
+        return GearMesh(a, b, declared.value_of(entry, "mesh"))
 
     def _torque(self, entry: declared.Torque) -> PointTorque:
         si = self.convert.si
@@ -236,55 +217,44 @@ class _Builder:
             si(entry, "intensity_end"),
         )
 
-    def load_cases(self) -> tuple[LoadCase, ...]:
-        cases = []
-        for number, entry in enumerate(self.case.load_cases):
-            path = f"load_cases[{number}]"
-            torques, distributed = [], []
-            for item, torque in enumerate(declared.value_of(entry, "torques") or ()):
-                try:
-                    torques.append(self._torque(torque))
-                except InputError as error:
-                    raise within(f"{path}.torques[{item}]", error) from None
-            for item, load in enumerate(declared.value_of(entry, "distributed") or ()):
-                try:
-                    distributed.append(self._distributed(load))
-                except InputError as error:
-                    raise within(f"{path}.distributed[{item}]", error) from None
-            try:
-                cases.append(LoadCase(entry.name, tuple(torques), tuple(distributed)))
-            except InputError as error:
-                raise within(path, error) from None
-        return tuple(cases)
+    def _load_case(self, entry: declared.LoadCase) -> LoadCase:
+        value_of = declared.value_of
+        torques = build_each(value_of(entry, "torques"), "torques", self._torque)
+        distributed = build_each(value_of(entry, "distributed"), "distributed", self._distributed)
+        return LoadCase(entry.name, torques, distributed)
 
-    def combinations(self) -> tuple[Combination, ...]:
-        combinations = []
-        for number, entry in enumerate(declared.value_of(self.case, "combinations") or ()):
-            try:
-                combinations.append(Combination(entry.name, tuple(entry.factors.items())))
-            except InputError as error:
-                raise within(f"combinations[{number}]", error) from None
-        return tuple(combinations)
+    def _disc(self, entry: declared.Disc) -> Disc:
+        return Disc(entry.shaft, self.convert.si(entry, "x"), self.convert.si(entry, "inertia"))
 
-    def discs(self) -> tuple[Disc, ...]:
-        si = self.convert.si
-        discs = []
-        for number, entry in enumerate(declared.value_of(self.case, "discs") or ()):
-            try:
-                discs.append(Disc(entry.shaft, si(entry, "x"), si(entry, "inertia")))
-            except InputError as error:
-                raise within(f"discs[{number}]", error) from None
-        return tuple(discs)
+    def _speed(self, entry: declared.OperatingSpeed) -> OperatingSpeed:
+        return OperatingSpeed(
+            entry.name, self.convert.si(entry, "min"), self.convert.si(entry, "max")
+        )
 
-    def operating_speeds(self) -> tuple[OperatingSpeed, ...]:
-        si = self.convert.si
-        speeds = []
-        for number, entry in enumerate(declared.value_of(self.case, "operating_speeds") or ()):
-            try:
-                speeds.append(OperatingSpeed(entry.name, si(entry, "min"), si(entry, "max")))
-            except InputError as error:
-                raise within(f"operating_speeds[{number}]", error) from None
-        return tuple(speeds)
+    def model(self) -> Model:
+        """The whole model (its own checks name fields by their paths)."""
+        case, converter = self.case, self.convert
+        value_of = declared.value_of
+        design = value_of(case, "design")
+        return Model(
+            shafts=self.shafts(),
+            supports=build_each(value_of(case, "supports"), "supports", self._support),
+            gears=build_each(value_of(case, "gears"), "gears", self._gear),
+            load_cases=build_each(case.load_cases, "load_cases", self._load_case),
+            combinations=build_each(
+                value_of(case, "combinations"),
+                "combinations",
+                lambda entry: Combination(entry.name, tuple(entry.factors.items())),
+            ),
+            title=value_of(case, "title"),
+            materials=tuple(self.materials.values()),
+            units=converter.units,
+            design=design_criteria(design, converter) if design is not None else None,
+            discs=build_each(value_of(case, "discs"), "discs", self._disc),
+            operating_speeds=build_each(
+                value_of(case, "operating_speeds"), "operating_speeds", self._speed
+            ),
+        )
 
 
 def build_model(case: declared.CaseFile) -> Model:
@@ -312,22 +282,7 @@ def build_model(case: declared.CaseFile) -> Model:
     # the growing heap again and again (a third of the building time at 10⁵ segments).
     gc.disable()
     try:
-        converter = Converter(units)
-        builder = _Builder(case, converter)
-        design = declared.value_of(case, "design")
-        return Model(
-            shafts=builder.shafts(),
-            supports=builder.supports(),
-            gears=builder.gears(),
-            load_cases=builder.load_cases(),
-            combinations=builder.combinations(),
-            title=declared.value_of(case, "title"),
-            materials=tuple(builder.materials.values()),
-            units=units,
-            design=design_criteria(design, converter) if design is not None else None,
-            discs=builder.discs(),
-            operating_speeds=builder.operating_speeds(),
-        )
+        return _Builder(case, Converter(units)).model()
     finally:
         if collecting:
             gc.enable()

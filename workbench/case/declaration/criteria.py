@@ -8,14 +8,15 @@ rules that use them live in :mod:`workbench.design`, the settings' model in
 import typing
 from typing import Annotated, ClassVar, Literal
 
-from msgspec import UNSET, Meta, UnsetType
+from msgspec import UNSET, UnsetType
 
 from workbench.case.declaration.keys import (
     MAX_ITEMS,
     MAX_MODAL_ELEMENTS,
-    MAX_STRING_LENGTH,
     Alternatives,
     Keys,
+    Name,
+    ShaftId,
     key,
 )
 
@@ -49,13 +50,11 @@ DEFAULT_FACTOR_OF_SAFETY = 2.0
 #: Required fatigue factor of safety when a case names none.
 DEFAULT_FATIGUE_FACTOR_OF_SAFETY = 1.5
 
-ResultName = Annotated[str, Meta(min_length=1, max_length=MAX_STRING_LENGTH)]
-
 
 class RotationLimit(Keys):
     """A limit on the relative rotation between two stations of one shaft."""
 
-    shaft: Annotated[ResultName, key("Id of the shaft")]
+    shaft: ShaftId
     start: Annotated[float, key("The first station", "length")]
     end: Annotated[float, key("The second station", "length")]
     limit: Annotated[float, key("Largest |θ(end) − θ(start)|", "angle", gt=0)]
@@ -68,7 +67,7 @@ class Fatigue(Keys):
 
     extremes: (
         Annotated[
-            list[ResultName],
+            list[Name],
             key(
                 "The two results (load cases or combinations) the torque cycles between",
                 expect="a list of exactly two result names",
@@ -80,14 +79,12 @@ class Fatigue(Keys):
         | None
     ) = UNSET
     mean: (
-        Annotated[ResultName, key("Instead of extremes: the result whose torques are the mean")]
+        Annotated[Name, key("Instead of extremes: the result whose torques are the mean")]
         | UnsetType
         | None
     ) = UNSET
     alternating: (
-        Annotated[
-            ResultName, key("With mean: the result whose torques are the alternating amplitude")
-        ]
+        Annotated[Name, key("With mean: the result whose torques are the alternating amplitude")]
         | UnsetType
         | None
     ) = UNSET

@@ -17,7 +17,7 @@ import types
 import typing
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Annotated, Any
 
 import msgspec
 
@@ -57,6 +57,14 @@ QUANTITIES: tuple[str, ...] = (
     "density",
     "inertia",
 )
+
+
+#: A name: of a shaft, a material, a load case, ...
+Name = Annotated[str, msgspec.Meta(min_length=1, max_length=MAX_STRING_LENGTH)]
+#: Free text (a title, a source, a description).
+Text = Annotated[str, msgspec.Meta(max_length=MAX_STRING_LENGTH)]
+#: A unit string, for a parser: shorter.
+UnitText = Annotated[str, msgspec.Meta(max_length=MAX_UNIT_LENGTH)]
 
 
 class Keys(msgspec.Struct, forbid_unknown_fields=True, gc=False):
@@ -123,6 +131,11 @@ def key(
     return msgspec.Meta(
         description=description, extra=extra, extra_json_schema=schema or None, **bounds
     )
+
+
+#: The shaft a support, gear, load or disc sits on, and where along it (x = 0 at its start).
+ShaftId = Annotated[Name, key("Id of the shaft")]
+Position = Annotated[float, key("Position along the shaft", "length")]
 
 
 def given(value: Any) -> bool:

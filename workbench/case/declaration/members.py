@@ -14,10 +14,13 @@ from workbench.case.declaration.keys import (
     MAX_ITEMS,
     MAX_LOAD_CASES,
     MAX_SEGMENTS,
-    MAX_STRING_LENGTH,
-    MAX_UNIT_LENGTH,
     Alternatives,
     Keys,
+    Name,
+    Position,
+    ShaftId,
+    Text,
+    UnitText,
     key,
 )
 from workbench.case.declaration.shapes import Section
@@ -25,10 +28,6 @@ from workbench.case.units import SI_UNITS
 
 SupportKind = Literal["fixed", "spring"]
 MeshKind = Literal["external", "internal"]
-
-Name = Annotated[str, Meta(min_length=1, max_length=MAX_STRING_LENGTH)]
-Text = Annotated[str, Meta(max_length=MAX_STRING_LENGTH)]
-UnitText = Annotated[str, Meta(max_length=MAX_UNIT_LENGTH)]
 
 
 def _items(
@@ -117,8 +116,8 @@ class Shaft(Keys):
 class Support(Keys):
     """A support restraining a shaft's rotation at one point."""
 
-    shaft: Annotated[Name, key("Id of the shaft")]
-    x: Annotated[float, key("Position along the shaft", "length")]
+    shaft: ShaftId
+    x: Position
     kind: Annotated[SupportKind, key("fixed holds the rotation; spring exerts −stiffness·(θ − rotation)", default="fixed", always=True)] | UnsetType | None = UNSET  # fmt: skip
     stiffness: Annotated[float, key("Rotational stiffness of a spring support", "stiffness", gt=0)] | UnsetType | None = UNSET  # fmt: skip
     rotation: Annotated[float, key("Prescribed rotation of the support (misfit, pre-twist)", "angle", default=0.0)] | UnsetType | None = UNSET  # fmt: skip
@@ -127,8 +126,8 @@ class Support(Keys):
 class GearEnd(Keys):
     """Where one gear of a mesh sits."""
 
-    shaft: Annotated[Name, key("Id of the shaft carrying the gear")]
-    x: Annotated[float, key("Position along the shaft", "length")]
+    shaft: ShaftId
+    x: Position
     radius: Annotated[float, key("Pitch radius", "length", gt=0)]
 
 
@@ -145,8 +144,8 @@ class Torque(Keys):
 
     alternatives: ClassVar[Alternatives] = Alternatives((("torque",), ("power", "speed")))
 
-    shaft: Annotated[Name, key("Id of the shaft")]
-    x: Annotated[float, key("Position along the shaft", "length")]
+    shaft: ShaftId
+    x: Position
     torque: Annotated[float, key("Torque, positive along +x", "torque")] | UnsetType | None = UNSET  # fmt: skip
     power: Annotated[float, key("Power; its sign gives the torque's sense", "power")] | UnsetType | None = UNSET  # fmt: skip
     speed: Annotated[float, key("Rotational speed", "speed", gt=0)] | UnsetType | None = UNSET
@@ -158,7 +157,7 @@ class Torque(Keys):
 class DistributedTorque(Keys):
     """A distributed torque varying linearly from start to end."""
 
-    shaft: Annotated[Name, key("Id of the shaft")]
+    shaft: ShaftId
     start: Annotated[float, key("Where the load begins", "length")]
     end: Annotated[float, key("Where the load ends, after start", "length")]
     intensity_start: Annotated[float, key("Torque per length at start", "distributed_torque")]
@@ -186,8 +185,8 @@ class Combination(Keys):
 class Disc(Keys):
     """A rigid disc (rotor, flywheel, hub) on a shaft, for vibration."""
 
-    shaft: Annotated[Name, key("Id of the shaft")]
-    x: Annotated[float, key("Position along the shaft", "length")]
+    shaft: ShaftId
+    x: Position
     inertia: Annotated[float, key("Mass moment of inertia about the shaft's axis", "inertia", gt=0)]
 
 
