@@ -66,6 +66,11 @@ REPEATED = [
         "title",
     ),
     (
+        "hidden by a colon written as an escape",
+        _with(BASE, '"title": "bad-input base case"', '"title": "first", "title": "b\\u003a"'),
+        "title",
+    ),
+    (
         "in a list of loads",
         _with(BASE, '"torque": 400', '"torque": 400, "x": 301'),
         "load_cases[0].torques[0].x",

@@ -14,11 +14,18 @@ from typing import Any
 
 import msgspec
 
-from workbench.case.declaration import CaseFile, Keys, Unwrapped
+from workbench.case.declaration import CaseFile, Keys, Unwrapped, field_type
 from workbench.case.errors import InputError
 from workbench.case.text import short
 
-_REPORT = re.compile(r"^(?P<what>.*?)(?: - at `(?P<key>key)` in `(?P<keyed>[^`]*)`| - at `(?P<path>[^`]*)`)?$", re.S)  # fmt: skip
+#: msgspec's report: what is wrong, then where: `` - at `$.a[0].b``` or, for a dict's key,
+#: `` - at `key` in `$.a```.
+_REPORT = re.compile(
+    r"""^(?P<what>.*?)
+    (?:\ -\ at\ `(?P<key>key)`\ in\ `(?P<keyed>[^`]*)`
+    |\ -\ at\ `(?P<path>[^`]*)`)?$""",
+    re.S | re.X,
+)
 _STEP = re.compile(r"\.([A-Za-z_][A-Za-z_0-9]*)|\[(\d+)\]|\[\.\.\.\]")
 _TYPE_ONLY = re.compile(r"Expected `[^`]*`(?:, got `[^`]*`)?")
 
@@ -136,7 +143,7 @@ class _Walk:
         if struct is None or name not in struct.__struct_fields__:
             self.found = False
             return
-        self.declared = Unwrapped(typing.get_type_hints(struct, include_extras=True)[name])
+        self.declared = Unwrapped(field_type(struct, name))
 
     def step_index(self, index: int) -> None:
         self.parts.append(f"[{index}]")
