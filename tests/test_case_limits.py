@@ -238,6 +238,13 @@ def test_modal_elements_per_segment_are_bounded(
     assert parse_case(case).design.modal_elements_per_segment == declared.MAX_MODAL_ELEMENTS
 
 
+def test_design_settings_made_in_code_are_bounded_too() -> None:
+    from workbench.case.design import DesignCriteria
+
+    with pytest.raises(InputError, match="whole number from 1 to 1,000, not 10000000"):
+        DesignCriteria(modal_elements_per_segment=10_000_000)
+
+
 def test_load_cases_are_bounded(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     cases = [{"name": f"case {n}"} for n in range(declared.MAX_LOAD_CASES + 1)]
     line = _solve_line(

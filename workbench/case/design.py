@@ -23,6 +23,7 @@ from workbench.case.declaration import (
     DEFAULT_FREQUENCY_MARGIN,
     DEFAULT_MODAL_ELEMENTS_PER_SEGMENT,
     FATIGUE_CRITERIA,
+    MAX_MODAL_ELEMENTS,
     MEAN_CONCENTRATIONS,
     RELIABILITIES,
     SHEAR_CRITERIA,
@@ -255,8 +256,12 @@ class DesignCriteria:
             msg = f"must be a fraction from 0 up to (not including) 1, not {margin!r}"
             raise InputError("frequency_margin", msg)
         pieces = self.modal_elements_per_segment
-        if isinstance(pieces, bool) or not isinstance(pieces, int) or pieces < 1:
-            msg = f"must be a whole number of at least 1, not {pieces!r}"
+        if (
+            isinstance(pieces, bool)
+            or not isinstance(pieces, int)
+            or not 1 <= pieces <= MAX_MODAL_ELEMENTS
+        ):
+            msg = f"must be a whole number from 1 to {MAX_MODAL_ELEMENTS:,}, not {pieces!r}"
             raise InputError("modal_elements_per_segment", msg)
         if self.modal_max_element_length is not None:
             require_positive("modal_max_element_length", self.modal_max_element_length)
