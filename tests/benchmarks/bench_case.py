@@ -114,25 +114,41 @@ def _reading(segments: int, repeats: int) -> list[Row]:
 # --- the command's start ----------------------------------------------------------------------
 
 
-def _environment() -> dict[str, str]:
+def _environment(bytecode: str) -> dict[str, str]:
+    """The project on the path; compiled modules cached in ``bytecode`` (as an install has them).
+
+    Without a cache (``PYTHONDONTWRITEBYTECODE``, as CI sets) every start would compile the
+    project's modules from source, which no installed package does.
+    """
     environment = dict(os.environ)
     environment["PYTHONPATH"] = os.pathsep.join(
         part for part in (str(PROJECT_ROOT), environment.get("PYTHONPATH", "")) if part
     )
+    environment.pop("PYTHONDONTWRITEBYTECODE", None)
+    environment["PYTHONPYCACHEPREFIX"] = bytecode
     return environment
 
 
 def _taking_turns(first: list[str], second: list[str], rounds: int) -> tuple[float, float]:
-    """Median wall times (s) of two commands run one after the other, ``rounds`` times each."""
+    """Median wall times (s) of two commands run one after the other, ``rounds`` times each.
+
+    One untimed run of each first fills the bytecode cache of both.
+    """
     times: tuple[list[float], list[float]] = ([], [])
-    environment = _environment()
-    for _ in range(rounds):
-        for command, out in ((first, times[0]), (second, times[1])):
+    with tempfile.TemporaryDirectory() as bytecode:
+        environment = _environment(bytecode)
+
+        def run(command: list[str]) -> float:
             start = time.perf_counter()
             subprocess.run(
                 command, env=environment, cwd=PROJECT_ROOT, stdout=subprocess.DEVNULL, check=True
             )
-            out.append(time.perf_counter() - start)
+            return time.perf_counter() - start
+
+        run(first), run(second)
+        for _ in range(rounds):
+            times[0].append(run(first))
+            times[1].append(run(second))
     return statistics.median(times[0]), statistics.median(times[1])
 
 
@@ -150,11 +166,11 @@ def _cold_start() -> list[Row]:
     base, ours = _taking_turns(
         [sys.executable, "-c", "import numpy, scipy.sparse, scipy.linalg"],
         [sys.executable, "-m", "workbench.cli", "solve", str(DEMO)],
-        rounds=15,
+        rounds=21,
     )
     loaded = run_fresh_python(_LOADED_PROBE.format(case=str(DEMO)))["loaded"]
     notes = (
-        f"medians of 15 runs each, taking turns: bare imports {base * 1e3:.0f} ms, "
+        f"medians of 21 runs each, taking turns (bytecode cached, as installed): bare imports {base * 1e3:.0f} ms, "
         f"`workbench solve` on the demo {ours * 1e3:.0f} ms",
         "also loaded by the solve: "
         + (
@@ -184,6 +200,7 @@ _PHASES_PROBE = """
     results = phase("solve", lambda: solve(model))
     document = phase("results document", lambda: results_document(results))
     text = phase("JSON text", lambda: json.dumps(document, separators=(",", ":"), allow_nan=False))
+    phases["output MB"] = len(text) / 1e6
     print(json.dumps(phases))
 """
 
@@ -198,11 +215,13 @@ def _solve_json() -> list[Row]:
             [*command, str(small), "--json"], [*command, str(large), "--json"], rounds=5
         )
         phases = run_fresh_python(_PHASES_PROBE.format(path=str(large)))
+    size = phases.pop("output MB")
     split = ", ".join(f"{name} {seconds * 1e3:,.0f} ms" for name, seconds in phases.items())
     notes = (
         f"medians of 5 runs each, taking turns: 10 segments {ten * 1e3:.0f} ms, 100,000 "
         f"segments {hundred_thousand * 1e3:,.0f} ms",
-        f"where the 100,000-segment run goes (one run, in process): {split}",
+        f"where the 100,000-segment run goes (one run, in process): {split}; the JSON text is "
+        f"{size:.0f} MB, its time the shortest round-trip text of every float (json.dumps)",
     )
     return [Row("solve --json, 100k / 10 segments", hundred_thousand / ten, "×", 8.0, notes=notes)]
 

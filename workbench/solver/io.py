@@ -14,7 +14,6 @@ import os
 from typing import Any
 
 from workbench.case.load import case_file_from_document, decode_document, load_case_file
-from workbench.case.save import case_document, write_json_atomic
 from workbench.case.units import UnitSystem
 from workbench.solver.build import build_model, case_file_of
 from workbench.solver.model import Model
@@ -25,7 +24,6 @@ __all__ = [
     "load_case",
     "parse_case",
     "save_case",
-    "write_json_atomic",
 ]
 
 
@@ -87,9 +85,13 @@ def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any
     units
         Units to write the numbers in.
     """
+    from workbench.case.save import case_document  # noqa: PLC0415 - only when saving
+
     return case_document(case_file_of(model, units))
 
 
 def save_case(model: Model, path: str | os.PathLike[str], units: UnitSystem | None = None) -> None:
     """Write a model as a case file, atomically (temporary file + rename)."""
+    from workbench.case.save import write_json_atomic  # noqa: PLC0415 - only when saving
+
     write_json_atomic(path, case_to_dict(model, units))

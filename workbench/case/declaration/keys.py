@@ -16,7 +16,6 @@ import functools
 import types
 import typing
 from collections.abc import Iterator, Mapping
-from dataclasses import dataclass, field
 from typing import Annotated, Any
 
 import msgspec
@@ -146,7 +145,6 @@ def given(value: Any) -> bool:
 # --- alternatives: "either these keys or those" ---------------------------------------------
 
 
-@dataclass(frozen=True)
 class Alternatives:
     """Groups of keys of one object of which one group (or at most one) is given.
 
@@ -165,23 +163,20 @@ class Alternatives:
     group at all names the first key of the first group.
     """
 
-    groups: tuple[tuple[str, ...], ...]
-    required: bool = True
-    _names: tuple[str, ...] = field(init=False, repr=False, compare=False)
-    _valid: frozenset[int] = field(init=False, repr=False, compare=False)
+    __slots__ = ("_names", "_valid", "groups", "required")
 
-    def __post_init__(self) -> None:
-        names = tuple(name for group in self.groups for name in group)
-        # Presence of the keys as bits, in the order of `names`; the valid patterns are "one whole
-        # group" (and "none" when no group is required): checked first, for speed.
+    def __init__(self, groups: tuple[tuple[str, ...], ...], required: bool = True) -> None:
+        self.groups, self.required = groups, required
+        self._names = tuple(name for group in groups for name in group)
+        # Presence of the keys as bits, in the order of `_names`; the valid patterns are "one
+        # whole group" (and "none" when no group is required): checked first, for speed.
         valid, bit = set(), 1
-        for group in self.groups:
+        for group in groups:
             valid.add(((1 << len(group)) - 1) * bit)
             bit <<= len(group)
-        if not self.required:
+        if not required:
             valid.add(0)
-        object.__setattr__(self, "_names", names)
-        object.__setattr__(self, "_valid", frozenset(valid))
+        self._valid = frozenset(valid)
 
     def words(self) -> str:
         """``"material and section, or layers"``."""
