@@ -62,12 +62,12 @@ def test_a_refused_write_is_bad_input_not_a_traceback(
     tmp_path: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
 ) -> None:
     """A write the system refuses (here: the file system says it is read-only) is one line."""
-    import workbench.solver.io as case_io
+    import workbench.case.save as case_save
 
     def refuse(*_: object, **__: object) -> None:
         raise OSError(30, os.strerror(30))  # EROFS
 
-    monkeypatch.setattr(case_io, "write_json_atomic", refuse)
+    monkeypatch.setattr(case_save, "write_json_atomic", refuse)
     assert main([*COMMANDS["size"], "-o", str(tmp_path / "sized.json")]) == 2
     line = _one_line(capsys)
     assert line.startswith("-o: cannot write ")

@@ -54,6 +54,7 @@ import pytest
 
 from workbench.case.design import DesignCriteria, FatigueCriteria
 from workbench.case.errors import InputError
+from workbench.case.schema import case_schema
 from workbench.case.units import SI, us_customary
 from workbench.cli import main
 from workbench.design.checks import Check, CheckReport, check_document, run_checks
@@ -66,7 +67,6 @@ from workbench.design.fatigue import (
 from workbench.solver.analysis import solve
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
 from workbench.solver.model import Model
-from workbench.solver.schema import case_schema
 
 PROJECT_ROOT = Path(__file__).resolve().parents[1]
 

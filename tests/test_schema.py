@@ -17,9 +17,9 @@ import jsonschema
 import pytest
 
 from workbench.case.errors import InputError
+from workbench.case.schema import case_schema
 from workbench.cli import main
 from workbench.solver.io import case_to_dict, parse_case
-from workbench.solver.schema import case_schema
 
 DEMO = Path(__file__).resolve().parents[1] / "workbench" / "cases" / "press_drive.json"
 

@@ -45,6 +45,7 @@ from shapely.geometry import Polygon
 
 from workbench import cli
 from workbench.case.errors import InputError
+from workbench.case.schema import case_schema
 from workbench.design.checks import run_checks
 from workbench.solver.analysis import build_mesh, torsion_stiffness_matrix
 from workbench.solver.io import case_to_dict, parse_case
@@ -63,7 +64,6 @@ from workbench.solver.noncircular import (
     ThinWalledOpen,
     Wall,
 )
-from workbench.solver.schema import case_schema
 
 #: Carbon steel, Shigley's *Mechanical Engineering Design*, Table A-5: G = 79.3 GPa; density
 #: 7850 kg/m³ (a typical textbook value, from memory).

@@ -1,8 +1,10 @@
 """The ``design`` section of a case file: what the design must satisfy, in SI.
 
-Plain settings, validated where they are read; the design rules that use them (allowables, twist
-limits, fatigue) live in :mod:`workbench.design`. The names a case file may use for criteria,
-finishes and rules are declared here once.
+Plain settings, validated when built; the design rules that use them (allowables, twist limits,
+fatigue) live in :mod:`workbench.design`. The keys of the section, the names a case may use for
+criteria, finishes and rules, and the defaults are declared once in
+:mod:`workbench.case.declaration.criteria`; :func:`design_criteria` builds the settings from
+the declared section and :func:`design_section` writes them back.
 """
 
 from __future__ import annotations
@@ -11,43 +13,44 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from workbench.case.errors import InputError
-from workbench.case.reader import ObjectReader
-from workbench.case.units import UnitSystem
-from workbench.case.validate import field_path, require_positive
+from msgspec import UNSET
 
-#: Shear criteria a case may name (``design.shear_criterion``).
-SHEAR_CRITERIA: tuple[str, ...] = ("von_mises", "tresca", "shafting_code", "allowable")
-
-#: Named twist-rate limits a case may give instead of a number: rules of thumb (common practice).
-TWIST_RATE_RULES: tuple[str, ...] = ("machine-shaft", "line-shaft", "twenty-diameters")
-
-#: Mean-stress criteria of the fatigue check (``design.fatigue.criterion``).
-FATIGUE_CRITERIA: tuple[str, ...] = ("goodman", "gerber", "asme_elliptic", "soderberg")
-
-#: Surface finishes of the Marin surface factor (``design.fatigue.finish``).
-SURFACE_FINISHES: tuple[str, ...] = (
-    "polished",
-    "ground",
-    "machined",
-    "cold-drawn",
-    "hot-rolled",
-    "as-forged",
+from workbench.case import declaration as declared
+from workbench.case.convert import Converter
+from workbench.case.declaration import (
+    DEFAULT_FACTOR_OF_SAFETY,
+    DEFAULT_FATIGUE_FACTOR_OF_SAFETY,
+    DEFAULT_FREQUENCY_MARGIN,
+    DEFAULT_MODAL_ELEMENTS_PER_SEGMENT,
+    FATIGUE_CRITERIA,
+    MAX_MODAL_ELEMENTS,
+    MEAN_CONCENTRATIONS,
+    RELIABILITIES,
+    SHEAR_CRITERIA,
+    SURFACE_FINISHES,
+    TWIST_RATE_RULES,
+    default_of,
+    value_of,
 )
+from workbench.case.errors import InputError
+from workbench.case.validate import build_each, require_positive, within
 
-#: Reliabilities of the endurance limit a case may name (Shigley Table 6-5 rows).
-RELIABILITIES: tuple[float, ...] = (0.5, 0.9, 0.95, 0.99, 0.999, 0.9999, 0.99999, 0.999999)
-
-#: Relative widening of each running-speed band for the frequency check (±20 %: common practice,
-#: no source).
-DEFAULT_FREQUENCY_MARGIN = 0.2
-
-#: Elements each segment with distributed inertia is cut into for the vibration analysis.
-DEFAULT_MODAL_ELEMENTS_PER_SEGMENT = 8
-
-#: How the mean stress is concentrated: ``"kfs"`` (Kfsm = Kfs, the conservative practice for
-#: shafts) or ``"none"`` (the nominal mean stress, Kfsm = 1).
-MEAN_CONCENTRATIONS: tuple[str, ...] = ("kfs", "none")
+__all__ = [
+    "DEFAULT_FACTOR_OF_SAFETY",
+    "DEFAULT_FREQUENCY_MARGIN",
+    "DEFAULT_MODAL_ELEMENTS_PER_SEGMENT",
+    "FATIGUE_CRITERIA",
+    "MEAN_CONCENTRATIONS",
+    "RELIABILITIES",
+    "SHEAR_CRITERIA",
+    "SURFACE_FINISHES",
+    "TWIST_RATE_RULES",
+    "DesignCriteria",
+    "FatigueCriteria",
+    "RotationLimit",
+    "design_criteria",
+    "design_section",
+]
 
 
 @dataclass(frozen=True)
@@ -86,13 +89,13 @@ class FatigueCriteria:
     extremes: tuple[str, str] | None = None
     mean: str | None = None
     alternating: str | None = None
-    finish: str = "machined"
-    reliability: float = 0.5
+    finish: str = default_of(declared.Fatigue, "finish")
+    reliability: float = default_of(declared.Fatigue, "reliability")
     temperature: float | None = None
-    criterion: str = "goodman"
-    factor_of_safety: float = 1.5
+    criterion: str = default_of(declared.Fatigue, "criterion")
+    factor_of_safety: float = DEFAULT_FATIGUE_FACTOR_OF_SAFETY
     endurance_limit: float | None = None
-    mean_concentration: str = "kfs"
+    mean_concentration: str = default_of(declared.Fatigue, "mean_concentration")
 
     def __post_init__(self) -> None:
         given_pair = self.mean is not None or self.alternating is not None
@@ -151,68 +154,6 @@ class FatigueCriteria:
         return f"fatigue: mean {first}, alternating {second}"
 
 
-_FATIGUE_KEYS = (
-    "extremes",
-    "mean",
-    "alternating",
-    "finish",
-    "reliability",
-    "temperature",
-    "criterion",
-    "factor_of_safety",
-    "endurance_limit",
-    "mean_concentration",
-)
-
-
-def parse_fatigue(data: Any, units: UnitSystem) -> FatigueCriteria:
-    """Read the case file's ``design.fatigue`` object.
-
-    ``endurance_limit`` is in stress units, ``temperature`` in kelvin.
-    """
-    reader = ObjectReader(data, "design.fatigue", _FATIGUE_KEYS, units)
-    extremes = data.get("extremes")
-    if extremes is not None and (
-        not isinstance(extremes, list) or not all(isinstance(name, str) for name in extremes)
-    ):
-        raise InputError("design.fatigue.extremes", "must be a list of two result names")
-    with field_path("design.fatigue"):
-        return FatigueCriteria(
-            extremes=tuple(extremes) if extremes is not None else None,
-            mean=reader.text("mean") if reader.has("mean") else None,
-            alternating=reader.text("alternating") if reader.has("alternating") else None,
-            finish=reader.text("finish", "machined"),
-            reliability=reader.number("reliability", None, 0.5),
-            temperature=reader.optional_number("temperature", None),
-            criterion=reader.text("criterion", "goodman"),
-            factor_of_safety=reader.number("factor_of_safety", None, 1.5),
-            endurance_limit=reader.optional_number("endurance_limit", "stress"),
-            mean_concentration=reader.text("mean_concentration", "kfs"),
-        )
-
-
-def fatigue_to_dict(criteria: FatigueCriteria, units: UnitSystem) -> dict[str, Any]:
-    """The case file's ``design.fatigue`` object."""
-    out: dict[str, Any] = {}
-    if criteria.extremes is not None:
-        out["extremes"] = list(criteria.extremes)
-    else:
-        out["mean"], out["alternating"] = criteria.mean, criteria.alternating
-    out |= {
-        "finish": criteria.finish,
-        "reliability": criteria.reliability,
-        "criterion": criteria.criterion,
-        "factor_of_safety": criteria.factor_of_safety,
-    }
-    if criteria.temperature is not None:
-        out["temperature"] = criteria.temperature
-    if criteria.endurance_limit is not None:
-        out["endurance_limit"] = float(f"{units.from_si(criteria.endurance_limit, 'stress'):.12g}")
-    if criteria.mean_concentration != "kfs":
-        out["mean_concentration"] = criteria.mean_concentration
-    return out
-
-
 @dataclass(frozen=True)
 class RotationLimit:
     """A limit on the relative rotation between two stations of one shaft.
@@ -264,8 +205,8 @@ class DesignCriteria:
         Longest such element (m), or ``None``.
     """
 
-    factor_of_safety: float = 2.0
-    shear_criterion: str = "von_mises"
+    factor_of_safety: float = DEFAULT_FACTOR_OF_SAFETY
+    shear_criterion: str = default_of(declared.Design, "shear_criterion")
     keyway: bool = False
     allowable_shear_stress: float | None = None
     max_twist_rate: float | None = None
@@ -315,8 +256,12 @@ class DesignCriteria:
             msg = f"must be a fraction from 0 up to (not including) 1, not {margin!r}"
             raise InputError("frequency_margin", msg)
         pieces = self.modal_elements_per_segment
-        if isinstance(pieces, bool) or not isinstance(pieces, int) or pieces < 1:
-            msg = f"must be a whole number of at least 1, not {pieces!r}"
+        if (
+            isinstance(pieces, bool)
+            or not isinstance(pieces, int)
+            or not 1 <= pieces <= MAX_MODAL_ELEMENTS
+        ):
+            msg = f"must be a whole number from 1 to {MAX_MODAL_ELEMENTS:,}, not {pieces!r}"
             raise InputError("modal_elements_per_segment", msg)
         if self.modal_max_element_length is not None:
             require_positive("modal_max_element_length", self.modal_max_element_length)
@@ -326,105 +271,92 @@ class DesignCriteria:
         return [(r.shaft, x) for r in self.rotation_limits for x in (r.start, r.end)]
 
 
-_DESIGN_KEYS = {
-    "factor_of_safety",
-    "shear_criterion",
-    "keyway",
-    "allowable_shear_stress",
-    "max_twist_rate",
-    "rotation_limits",
-    "frequency_margin",
-    "modal_elements_per_segment",
-    "modal_max_element_length",
-    "fatigue",
-}
-
-
-def parse_design(data: Any, units: UnitSystem) -> DesignCriteria:
-    """Read a case file's ``design`` object (in the file's units).
-
-    ``max_twist_rate`` is in angle units per length unit; ``allowable_shear_stress`` in stress
-    units; each ``rotation_limits`` entry is ``{"shaft", "start", "end", "limit"}``;
-    ``frequency_margin`` is a fraction, ``modal_max_element_length`` in length units.
-    """
-    reader = ObjectReader(data, "design", _DESIGN_KEYS, units)
-    limits = []
-    for path, item in reader.items("rotation_limits"):
-        entry = ObjectReader(item, path, ["shaft", "start", "end", "limit"], units)
-        with field_path(path):
-            limits.append(
-                RotationLimit(
-                    entry.text("shaft"),
-                    entry.number("start", "length"),
-                    entry.number("end", "length"),
-                    entry.number("limit", "angle"),
-                )
-            )
-    # Read outside field_path: the reader's errors already carry the full path.
-    margin = reader.number("frequency_margin", None, DEFAULT_FREQUENCY_MARGIN)
-    pieces = reader.number(
-        "modal_elements_per_segment", None, float(DEFAULT_MODAL_ELEMENTS_PER_SEGMENT)
+def _fatigue_criteria(entry: declared.Fatigue, converter: Converter) -> FatigueCriteria:
+    extremes = value_of(entry, "extremes")
+    return FatigueCriteria(
+        extremes=tuple(extremes) if extremes is not None else None,
+        mean=value_of(entry, "mean"),
+        alternating=value_of(entry, "alternating"),
+        finish=value_of(entry, "finish"),
+        reliability=value_of(entry, "reliability"),
+        temperature=converter.si(entry, "temperature"),
+        criterion=value_of(entry, "criterion"),
+        factor_of_safety=value_of(entry, "factor_of_safety"),
+        endurance_limit=converter.si(entry, "endurance_limit"),
+        mean_concentration=value_of(entry, "mean_concentration"),
     )
-    if not pieces.is_integer():
-        msg = f"must be a whole number of at least 1, not {pieces:g}"
-        raise InputError(reader.at("modal_elements_per_segment"), msg)
-    longest = reader.optional_number("modal_max_element_length", "length")
-    fatigue = parse_fatigue(data["fatigue"], units) if data.get("fatigue") is not None else None
-    with field_path("design"):
+
+
+def design_criteria(entry: declared.Design, converter: Converter) -> DesignCriteria:
+    """The design settings (SI) of a case file's declared ``design`` section.
+
+    Parameters
+    ----------
+    entry
+        The decoded ``design`` object, in the file's units.
+    converter
+        The case's unit conversions.
+
+    Raises
+    ------
+    InputError
+        On a value the settings refuse, naming the field (``design.fatigue.reliability``).
+    """
+    try:
+        limits = build_each(
+            value_of(entry, "rotation_limits"),
+            "rotation_limits",
+            lambda limit: RotationLimit(
+                limit.shaft,
+                converter.si(limit, "start"),
+                converter.si(limit, "end"),
+                converter.si(limit, "limit"),
+            ),
+        )
+        fatigue = None
+        if value_of(entry, "fatigue") is not None:
+            try:
+                fatigue = _fatigue_criteria(entry.fatigue, converter)  # type: ignore[arg-type]
+            except InputError as error:
+                raise within("fatigue", error) from None
+        twist_rate = value_of(entry, "max_twist_rate")
+        preset = twist_rate if isinstance(twist_rate, str) else None
         return DesignCriteria(
-            factor_of_safety=reader.number("factor_of_safety", None, 2.0),
-            shear_criterion=reader.text("shear_criterion", "von_mises"),
-            keyway=reader.flag("keyway", False),
-            allowable_shear_stress=reader.optional_number("allowable_shear_stress", "stress"),
-            max_twist_rate=None
-            if isinstance(data.get("max_twist_rate"), str)
-            else reader.optional_number("max_twist_rate", "twist_rate"),
-            twist_rate_preset=data["max_twist_rate"]
-            if isinstance(data.get("max_twist_rate"), str)
-            else None,
-            rotation_limits=tuple(limits),
-            frequency_margin=margin,
-            modal_elements_per_segment=int(pieces),
-            modal_max_element_length=longest,
+            factor_of_safety=value_of(entry, "factor_of_safety"),
+            shear_criterion=value_of(entry, "shear_criterion"),
+            keyway=value_of(entry, "keyway"),
+            allowable_shear_stress=converter.si(entry, "allowable_shear_stress"),
+            max_twist_rate=None if preset is not None else converter.si(entry, "max_twist_rate"),
+            twist_rate_preset=preset,
+            rotation_limits=limits,
+            frequency_margin=value_of(entry, "frequency_margin"),
+            modal_elements_per_segment=int(value_of(entry, "modal_elements_per_segment")),
+            modal_max_element_length=converter.si(entry, "modal_max_element_length"),
             fatigue=fatigue,
         )
+    except InputError as error:
+        raise within("design", error) from None
 
 
-def design_to_dict(design: DesignCriteria, units: UnitSystem) -> dict[str, Any]:
-    """The case file's ``design`` object for these criteria, in ``units``."""
-    out: dict[str, Any] = {
-        "factor_of_safety": design.factor_of_safety,
-        "shear_criterion": design.shear_criterion,
-        "keyway": design.keyway,
-    }
-    if design.allowable_shear_stress is not None:
-        out["allowable_shear_stress"] = float(
-            f"{units.from_si(design.allowable_shear_stress, 'stress'):.12g}"
+def design_section(criteria: DesignCriteria, converter: Converter) -> declared.Design:
+    """The declared ``design`` section of these settings, in the converter's units."""
+    fatigue: Any = UNSET
+    if criteria.fatigue is not None:
+        extremes = criteria.fatigue.extremes
+        fatigue = converter.entry(
+            declared.Fatigue,
+            criteria.fatigue,
+            extremes=list(extremes) if extremes is not None else UNSET,
         )
-    if design.twist_rate_preset is not None:
-        out["max_twist_rate"] = design.twist_rate_preset
-    if design.max_twist_rate is not None:
-        out["max_twist_rate"] = float(f"{units.from_si(design.max_twist_rate, 'twist_rate'):.12g}")
-    if design.rotation_limits:
-        out["rotation_limits"] = [
-            {
-                "shaft": r.shaft,
-                "start": float(f"{units.from_si(r.start, 'length'):.12g}"),
-                "end": float(f"{units.from_si(r.end, 'length'):.12g}"),
-                "limit": float(f"{units.from_si(r.limit, 'angle'):.12g}"),
-            }
-            for r in design.rotation_limits
-        ]
-    # Vibration settings are written only when they differ from the defaults.
-    defaults = DesignCriteria()
-    if design.frequency_margin != defaults.frequency_margin:
-        out["frequency_margin"] = design.frequency_margin
-    if design.modal_elements_per_segment != defaults.modal_elements_per_segment:
-        out["modal_elements_per_segment"] = design.modal_elements_per_segment
-    if design.modal_max_element_length is not None:
-        out["modal_max_element_length"] = float(
-            f"{units.from_si(design.modal_max_element_length, 'length'):.12g}"
-        )
-    if design.fatigue is not None:
-        out["fatigue"] = fatigue_to_dict(design.fatigue, units)
-    return out
+    twist_rate: Any = criteria.twist_rate_preset or converter.file_value(
+        declared.Design, "max_twist_rate", criteria.max_twist_rate
+    )
+    return converter.entry(
+        declared.Design,
+        criteria,
+        max_twist_rate=UNSET if twist_rate is None else twist_rate,
+        rotation_limits=[
+            converter.entry(declared.RotationLimit, limit) for limit in criteria.rotation_limits
+        ],
+        fatigue=fatigue,
+    )

@@ -7,10 +7,14 @@ from __future__ import annotations
 
 import contextlib
 import math
-from collections.abc import Iterator
+from collections.abc import Callable, Iterable, Iterator
+from typing import TypeVar
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
+
+Item = TypeVar("Item")
+Built = TypeVar("Built")
 
 
 def require_positive(name: str, value: float, quantity: str = "length") -> None:
@@ -42,6 +46,24 @@ def join_path(prefix: str, name: str) -> str:
     return f"{prefix}{name}" if name.startswith("[") else f"{prefix}.{name}"
 
 
+def within(prefix: str, error: InputError) -> InputError:
+    """``error`` with its field put under ``prefix``: ``within("supports[1]", error)``."""
+    return type(error)(join_path(prefix, error.field), error.message)
+
+
+def build_each(
+    items: Iterable[Item] | None, path: str, make: Callable[[Item], Built]
+) -> tuple[Built, ...]:
+    """``make`` of each item of a list at ``path``, errors named ``path[n].field``."""
+    built = []
+    for number, item in enumerate(items or ()):
+        try:
+            built.append(make(item))
+        except InputError as error:
+            raise within(f"{path}[{number}]", error) from None
+    return tuple(built)
+
+
 @contextlib.contextmanager
 def field_path(prefix: str) -> Iterator[None]:
     """Prefix the field of any :class:`InputError` raised inside the block with ``prefix``."""
@@ -51,7 +73,7 @@ def field_path(prefix: str) -> Iterator[None]:
         # Readers inside the block already name the full path; prefix only bare field names.
         if error.field == prefix or error.field.startswith((f"{prefix}.", f"{prefix}[")):
             raise
-        raise type(error)(join_path(prefix, error.field), error.message) from None
+        raise within(prefix, error) from None
 
 
 def require_finite(name: str, value: float) -> None:

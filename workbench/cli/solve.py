@@ -83,7 +83,7 @@ def _command_size(arguments: argparse.Namespace) -> int:
 
 
 def _command_schema(arguments: argparse.Namespace) -> int:
-    from workbench.solver.schema import case_schema  # noqa: PLC0415
+    from workbench.case.schema import case_schema  # noqa: PLC0415
 
     sys.stdout.write(json.dumps(case_schema(), indent=2, ensure_ascii=False) + "\n")
     return EXIT_OK

@@ -11,9 +11,10 @@ from __future__ import annotations
 
 import copy
 import re
-from collections.abc import Iterator
+from collections.abc import Iterator, Mapping
 from typing import Any
 
+from workbench.case.declaration import key_quantities
 from workbench.case.units import SI_ENGINEERING, UnitSystem, us_customary
 
 Path = tuple[str | int, ...]
@@ -202,39 +203,9 @@ def clone(document: Any) -> Any:
     return copy.deepcopy(document)
 
 
-#: The quantity of each numeric key the panel shows, for its unit label.
-KEY_QUANTITY: dict[str, str | None] = {
-    "length": "length",
-    "diameter": "length",
-    "outer_diameter": "length",
-    "inner_diameter": "length",
-    "diameter_start": "length",
-    "diameter_end": "length",
-    "bore": "length",
-    "fillet_radius": "length",
-    "cross_hole_diameter": "length",
-    "x": "length",
-    "start": "length",
-    "end": "length",
-    "radius": "length",
-    "torque": "torque",
-    "stiffness": "stiffness",
-    "rotation": "angle",
-    "intensity_start": "distributed_torque",
-    "intensity_end": "distributed_torque",
-    "factor_of_safety": None,
-    "allowable_shear_stress": "stress",
-    "max_twist_rate": "twist_rate",
-    "limit": "angle",
-    "width": "length",
-    "height": "length",
-    "thickness": "length",
-    "inertia": "inertia",
-    "min": "speed",
-    "max": "speed",
-    "density": "density",
-    "frequency_margin": None,
-}
+#: The quantity of each numeric key the panel shows, for its unit label: the case-file
+#: declaration's, looked up when asked.
+KEY_QUANTITY: Mapping[str, str | None] = key_quantities()
 
 
 def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:

@@ -7,6 +7,8 @@ widget, nbconvert or matplotlib module is ever imported here.
 >>> results = solve(load_case("case.json"))          # doctest: +SKIP
 """
 
+from typing import TYPE_CHECKING, Any
+
 from workbench.case.errors import InputError, MechanismError, WorkbenchError
 from workbench.case.materials import LIBRARY, Material, library_material
 from workbench.case.units import SI, SI_ENGINEERING, UnitSystem, us_customary
@@ -34,7 +36,21 @@ from workbench.solver.model import (
     Shaft,
     Support,
 )
-from workbench.solver.modes import Modes, natural_modes
+
+if TYPE_CHECKING:
+    from workbench.solver.modes import Modes, natural_modes
+
+
+def __getattr__(name: str) -> Any:
+    # The vibration analysis is loaded when first asked for: statics (`workbench solve`) never
+    # needs it, and it costs a noticeable part of the command's start.
+    if name in ("Modes", "natural_modes"):
+        from workbench.solver import modes  # noqa: PLC0415
+
+        return getattr(modes, name)
+    msg = f"module {__name__!r} has no attribute {name!r}"
+    raise AttributeError(msg)
+
 
 __all__ = [
     "LIBRARY",

@@ -15,10 +15,10 @@ import functools
 import itertools
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Literal
 
 import numpy as np
 
+from workbench.case.declaration import MeshKind, SupportKind
 from workbench.case.design import DesignCriteria
 from workbench.case.errors import InputError
 from workbench.case.materials import Material
@@ -294,9 +294,6 @@ class Shaft:
         return -tolerance <= x <= self.length + tolerance
 
 
-SupportKind = Literal["fixed", "spring"]
-
-
 @dataclass(frozen=True)
 class Support:
     """A support that restrains a shaft's rotation at one point.
@@ -356,9 +353,6 @@ class GearPosition:
     def __post_init__(self) -> None:
         require_finite("x", self.x)
         require_positive("radius", self.radius)
-
-
-MeshKind = Literal["external", "internal"]
 
 
 @dataclass(frozen=True)

@@ -23,11 +23,10 @@ References
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import ClassVar
 
 import numpy as np
-from scipy.special import ellipe, zeta
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
@@ -107,6 +106,8 @@ def rectangle_coefficients(aspect_ratio: float) -> tuple[float, float]:
         msg = f"must be the long side over the short side, at least 1 (not {aspect_ratio})"
         field_name = "aspect_ratio"
         raise InputError(field_name, msg)
+    from scipy.special import zeta  # noqa: PLC0415 - slow to import; few cases need it
+
     ratio = float(aspect_ratio)
     # Terms shrink like e^(−nπr/2): stop where the last is below the tolerance relative to n = 1.
     last = 1.0 + 2.0 * math.log(1.0 / _SERIES_TOLERANCE) / (math.pi * ratio)
@@ -265,7 +266,7 @@ class ThinWalledClosed(Section):
     .. [3] Isoperimetric inequality 4πA ≤ P² (any text on plane geometry).
     """
 
-    enclosed_area: float = field(metadata={"quantity": "area"})
+    enclosed_area: float
     walls: tuple[Wall, ...]
     shape: ClassVar[str] = "thin_closed"
 
@@ -516,6 +517,8 @@ class EllipticalTube(_UniformWallCell):
     def perimeter(self) -> float:
         """Perimeter P = 4·a·E(1 − b²/a²) of the centre-line ellipse (m)."""
         major, minor = self._semi_axes
+        from scipy.special import ellipe  # noqa: PLC0415 - slow to import; few cases need it
+
         return 4.0 * major * float(ellipe(1.0 - (minor / major) ** 2))
 
     @property

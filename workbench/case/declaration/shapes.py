@@ -1,0 +1,107 @@
+"""Cross-sections of a case file: one object per shape, told apart by its ``shape`` key.
+
+Numbers are in the file's length units (``enclosed_area`` in length²). The solver builds its
+section of the same name from each (:mod:`workbench.solver.build`); what the shapes mean and their
+formulas are documented there (:mod:`workbench.solver.sections`, :mod:`workbench.solver.noncircular`).
+"""
+
+from typing import Annotated
+
+from msgspec import UNSET, Meta, UnsetType
+
+from workbench.case.declaration.keys import MAX_ITEMS, Keys, key
+
+
+class Wall(Keys):
+    """One panel of a thin-walled section, measured on its centre line."""
+
+    length: Annotated[
+        float, key("Length of the panel along the wall's centre line", "length", gt=0)
+    ]
+    thickness: Annotated[float, key("Wall thickness, uniform over the panel", "length", gt=0)]
+
+
+Walls = Annotated[list[Wall], Meta(min_length=1, max_length=MAX_ITEMS)]
+
+
+class Solid(Keys, tag_field="shape", tag="solid"):
+    """Solid circle."""
+
+    diameter: Annotated[float, key("Diameter", "length", gt=0)]
+
+
+class Tube(Keys, tag_field="shape", tag="tube"):
+    """Hollow circle of any wall thickness."""
+
+    outer_diameter: Annotated[float, key("Outer diameter", "length", gt=0)]
+    inner_diameter: Annotated[
+        float, key("Inner diameter, smaller than the outer diameter", "length", gt=0)
+    ]
+
+
+class Tapered(Keys, tag_field="shape", tag="tapered"):
+    """Circle whose diameter varies linearly along the segment, with an optional constant bore."""
+
+    diameter_start: Annotated[float, key("Outer diameter at the segment's start", "length", gt=0)]
+    diameter_end: Annotated[float, key("Outer diameter at the segment's end", "length", gt=0)]
+    bore: (
+        Annotated[
+            float,
+            key(
+                "Diameter of a constant central bore, smaller than both end diameters; 0 for none",
+                "length",
+                ge=0,
+                default=0.0,
+            ),
+        ]
+        | UnsetType
+        | None
+    ) = UNSET
+
+
+class Rectangle(Keys, tag_field="shape", tag="rectangle"):
+    """Solid rectangle (exact Saint-Venant series)."""
+
+    width: Annotated[float, key("Overall width", "length", gt=0)]
+    height: Annotated[float, key("Overall height, the depth of the section", "length", gt=0)]
+
+
+class ThinClosed(Keys, tag_field="shape", tag="thin_closed"):
+    """Single-cell thin-walled closed section described by its wall panels (Bredt–Batho)."""
+
+    enclosed_area: Annotated[
+        float, key("Area enclosed by the centre line of the wall", "area", gt=0)
+    ]
+    walls: Annotated[Walls, key("The wall panels round the centre line")]
+
+
+class Box(Keys, tag_field="shape", tag="box"):
+    """Rectangular hollow section of uniform wall thickness (Bredt–Batho)."""
+
+    width: Annotated[float, key("Overall outer width", "length", gt=0)]
+    height: Annotated[float, key("Overall outer height, the depth of the section", "length", gt=0)]
+    thickness: Annotated[float, key("Wall thickness", "length", gt=0)]
+
+
+class EllipticalTube(Keys, tag_field="shape", tag="elliptical_tube"):
+    """Elliptical tube of uniform wall thickness (Bredt–Batho on the centre-line ellipse)."""
+
+    width: Annotated[float, key("Overall outer axis across the width", "length", gt=0)]
+    height: Annotated[float, key("Overall outer axis across the height", "length", gt=0)]
+    thickness: Annotated[float, key("Wall thickness", "length", gt=0)]
+
+
+class ThinOpen(Keys, tag_field="shape", tag="thin_open"):
+    """Thin-walled open section (strip, angle, channel, ...) as a set of thin walls."""
+
+    walls: Annotated[Walls, key("The walls, each with its centre-line length and thickness")]
+
+
+#: Every cross-section a case file may name.
+Section = Solid | Tube | Tapered | Rectangle | ThinClosed | Box | EllipticalTube | ThinOpen
+
+#: The section objects by their ``shape`` key.
+SHAPES: dict[str, type[Keys]] = {
+    str(cls.__struct_config__.tag): cls
+    for cls in (Solid, Tube, Tapered, Rectangle, ThinClosed, Box, EllipticalTube, ThinOpen)
+}

@@ -1,0 +1,380 @@
+"""The SI model of a case from its declared case file, and the case file of a model.
+
+:func:`build_model` converts every number by its key's declared quantity (file units → SI,
+finite after the conversion) and builds the :class:`~workbench.solver.model.Model`, whose
+constructors check what the declaration cannot say (inner diameters smaller than outer ones,
+layers that nest, names that exist, positions on their shafts); their errors come out naming
+the field by its path in the case file. :func:`case_file_of` goes the other way, for saving.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import gc
+from typing import Any
+
+from msgspec import UNSET
+
+from workbench.case import declaration as declared
+from workbench.case.convert import Converter, unit_system
+from workbench.case.design import design_criteria, design_section
+from workbench.case.errors import InputError
+from workbench.case.materials import Material, library_material
+from workbench.case.power import torque_from_power
+from workbench.case.units import SI, UnitSystem, display_units
+from workbench.case.validate import build_each, within
+from workbench.solver import sections as circular
+from workbench.solver.model import (
+    Combination,
+    Disc,
+    DistributedTorque,
+    GearMesh,
+    GearPosition,
+    Layer,
+    LoadCase,
+    Model,
+    Notch,
+    OperatingSpeed,
+    PointTorque,
+    Segment,
+    Shaft,
+    Support,
+)
+from workbench.solver.noncircular import NONCIRCULAR_SHAPES, Wall
+from workbench.solver.sections import Section
+
+_SOLVER_SECTIONS: tuple[type[Section], ...] = (
+    circular.SolidCircle,
+    circular.Tube,
+    circular.TaperedCircle,
+    *NONCIRCULAR_SHAPES.values(),
+)
+#: The solver's section for each declared shape (the same key names, in SI).
+SECTIONS: dict[type[declared.Keys], type[Section]] = {
+    declared.SHAPES[cls.shape]: cls for cls in _SOLVER_SECTIONS
+}
+
+
+class _Builder:
+    """Builds the parts of one model, converting with one case's units."""
+
+    def __init__(self, case: declared.CaseFile, converter: Converter) -> None:
+        self.case = case
+        self.convert = converter
+        self.materials: dict[str, Material] = {}
+        for name, entry in (declared.value_of(case, "materials") or {}).items():
+            try:
+                self.materials[name] = self._material(name, entry)
+            except InputError as error:
+                raise within(f"materials.{name}", error) from None
+        self._library: dict[str, Material] = {}
+
+    def _material(self, name: str, entry: declared.Material) -> Material:
+        si = self.convert.si
+        return Material(
+            name=name,
+            shear_modulus=si(entry, "shear_modulus"),
+            yield_strength=si(entry, "yield_strength"),
+            ultimate_strength=si(entry, "ultimate_strength"),
+            elastic_modulus=si(entry, "elastic_modulus"),
+            poisson_ratio=si(entry, "poisson_ratio"),
+            density=si(entry, "density"),
+            source=declared.value_of(entry, "source"),
+        )
+
+    def material(self, name: str) -> Material:
+        """A material of the case, else of the library (keeping the name the case used)."""
+        found = self.materials.get(name) or self._library.get(name)
+        if found is not None:
+            return found
+        try:
+            found = dataclasses.replace(library_material(name), name=name)
+        except InputError as error:
+            own = ", ".join(sorted(self.materials)) or "none"
+            msg = f"unknown material {name!r}: not defined in materials (defined: {own}); {error.message}"
+            raise InputError("material", msg) from None
+        self._library[name] = found
+        return found
+
+    def section(self, entry: Any) -> Section:
+        """The solver's section of a declared one."""
+        cls = type(entry)
+        values: dict[str, Any] = {}
+        for name in cls.__struct_fields__:
+            if name == "walls":
+                walls = entry.walls
+                values[name] = tuple(self._wall(number, wall) for number, wall in enumerate(walls))
+                continue
+            value = self.convert.si(entry, name)
+            if value is not None:
+                values[name] = value
+        return SECTIONS[cls](**values)
+
+    def _wall(self, number: int, entry: declared.Wall) -> Wall:
+        try:
+            return Wall(self.convert.si(entry, "length"), self.convert.si(entry, "thickness"))
+        except InputError as error:
+            raise within(f"walls[{number}]", error) from None
+
+    def _layer(self, number: int, entry: declared.Layer) -> Layer:
+        try:
+            material = self.material(entry.material)
+            try:
+                return Layer(material, self.section(entry.section))
+            except InputError as error:
+                raise within("section", error) from None
+        except InputError as error:
+            raise within(f"layers[{number}]", error) from None
+
+    def segment(self, entry: declared.Segment) -> Segment:
+        """A segment (its errors name fields relative to the segment)."""
+        si = self.convert.si
+        if entry.layers is UNSET or entry.layers is None:
+            material = self.material(entry.material)  # type: ignore[arg-type]
+            try:
+                section = self.section(entry.section)
+            except InputError as error:
+                raise within("section", error) from None
+            layers: tuple[Layer, ...] = (Layer(material, section),)
+        else:
+            layers = tuple(self._layer(n, layer) for n, layer in enumerate(entry.layers))
+        notch = None
+        if entry.notch is not UNSET and entry.notch is not None:
+            try:
+                notch = Notch(
+                    kts=si(entry.notch, "kts"),
+                    radius=si(entry.notch, "radius"),
+                    notch_sensitivity=si(entry.notch, "notch_sensitivity"),
+                    description=declared.value_of(entry.notch, "description"),
+                )
+            except InputError as error:
+                raise within("notch", error) from None
+        keyseat, fillet, hole = entry.keyseat, entry.fillet_radius, entry.cross_hole_diameter
+        if not isinstance(keyseat, bool):
+            keyseat = declared.default_of(declared.Segment, "keyseat")
+        return Segment(
+            si(entry, "length"),
+            layers,
+            None if fillet is UNSET or fillet is None else si(entry, "fillet_radius"),
+            keyseat,
+            None if hole is UNSET or hole is None else si(entry, "cross_hole_diameter"),
+            notch,
+        )
+
+    def shafts(self) -> tuple[Shaft, ...]:
+        shafts = []
+        for number, entry in enumerate(self.case.shafts):
+            path = f"shafts[{number}]"
+            segments = []
+            segment = self.segment
+            for index, item in enumerate(entry.segments):
+                try:
+                    segments.append(segment(item))
+                except InputError as error:
+                    raise within(f"{path}.segments[{index}]", error) from None
+            try:
+                shafts.append(Shaft(entry.id, tuple(segments)))
+            except InputError as error:
+                raise within(path, error) from None
+        return tuple(shafts)
+
+    def _support(self, entry: declared.Support) -> Support:
+        si = self.convert.si
+        return Support(
+            entry.shaft,
+            si(entry, "x"),
+            declared.value_of(entry, "kind"),
+            si(entry, "stiffness"),
+            si(entry, "rotation"),
+        )
+
+    def _gear_end(self, end: str, entry: declared.GearEnd) -> GearPosition:
+        si = self.convert.si
+        try:
+            return GearPosition(entry.shaft, si(entry, "x"), si(entry, "radius"))
+        except InputError as error:
+            raise within(end, error) from None
+
+    def _gear(self, entry: declared.Gear) -> GearMesh:
+        a, b = self._gear_end("a", entry.a), self._gear_end("b", entry.b)
+        return GearMesh(a, b, declared.value_of(entry, "mesh"))
+
+    def _torque(self, entry: declared.Torque) -> PointTorque:
+        si = self.convert.si
+        if declared.given(entry.torque):
+            torque = si(entry, "torque")
+        else:
+            torque = torque_from_power(si(entry, "power"), si(entry, "speed"))
+        return PointTorque(entry.shaft, si(entry, "x"), torque)
+
+    def _distributed(self, entry: declared.DistributedTorque) -> DistributedTorque:
+        si = self.convert.si
+        return DistributedTorque(
+            entry.shaft,
+            si(entry, "start"),
+            si(entry, "end"),
+            si(entry, "intensity_start"),
+            si(entry, "intensity_end"),
+        )
+
+    def _load_case(self, entry: declared.LoadCase) -> LoadCase:
+        value_of = declared.value_of
+        torques = build_each(value_of(entry, "torques"), "torques", self._torque)
+        distributed = build_each(value_of(entry, "distributed"), "distributed", self._distributed)
+        return LoadCase(entry.name, torques, distributed)
+
+    def _disc(self, entry: declared.Disc) -> Disc:
+        return Disc(entry.shaft, self.convert.si(entry, "x"), self.convert.si(entry, "inertia"))
+
+    def _speed(self, entry: declared.OperatingSpeed) -> OperatingSpeed:
+        return OperatingSpeed(
+            entry.name, self.convert.si(entry, "min"), self.convert.si(entry, "max")
+        )
+
+    def model(self) -> Model:
+        """The whole model (its own checks name fields by their paths)."""
+        case, converter = self.case, self.convert
+        value_of = declared.value_of
+        design = value_of(case, "design")
+        return Model(
+            shafts=self.shafts(),
+            supports=build_each(value_of(case, "supports"), "supports", self._support),
+            gears=build_each(value_of(case, "gears"), "gears", self._gear),
+            load_cases=build_each(case.load_cases, "load_cases", self._load_case),
+            combinations=build_each(
+                value_of(case, "combinations"),
+                "combinations",
+                lambda entry: Combination(entry.name, tuple(entry.factors.items())),
+            ),
+            title=value_of(case, "title"),
+            materials=tuple(self.materials.values()),
+            units=converter.units,
+            design=design_criteria(design, converter) if design is not None else None,
+            discs=build_each(value_of(case, "discs"), "discs", self._disc),
+            operating_speeds=build_each(
+                value_of(case, "operating_speeds"), "operating_speeds", self._speed
+            ),
+        )
+
+
+def build_model(case: declared.CaseFile) -> Model:
+    """The SI model of a validated case file.
+
+    Parameters
+    ----------
+    case
+        The decoded case file, in its own units (:mod:`workbench.case.load`).
+
+    Returns
+    -------
+    Model
+        The model, with ``units`` set to the file's unit system.
+
+    Raises
+    ------
+    InputError
+        On any value, reference or position the model refuses, naming the field.
+    """
+    units = unit_system(declared.value_of(case, "units"))
+    token = display_units.set(units)  # messages quote values in the file's own units
+    collecting = gc.isenabled()
+    # Millions of new objects and no cycles among them: the cyclic collector would only rescan
+    # the growing heap again and again (a third of the building time at 10⁵ segments).
+    gc.disable()
+    try:
+        return _Builder(case, Converter(units)).model()
+    finally:
+        if collecting:
+            gc.enable()
+        display_units.reset(token)
+
+
+# --- the case file of a model --------------------------------------------------------------
+
+
+def _section_entry(section: Section, convert: Converter) -> Any:
+    cls = declared.SHAPES[section.shape]
+    walls = getattr(section, "walls", None)
+    if walls is None:
+        return convert.entry(cls, section)
+    return convert.entry(cls, section, walls=[convert.entry(declared.Wall, w) for w in walls])
+
+
+def _segment_entry(segment: Segment, convert: Converter) -> declared.Segment:
+    layers: Any = [
+        declared.Layer(material=layer.material.name, section=_section_entry(layer.section, convert))
+        for layer in segment.layers
+    ]
+    single = len(layers) == 1
+    notch = segment.notch
+    return convert.entry(
+        declared.Segment,
+        segment,
+        material=layers[0].material if single else UNSET,
+        section=layers[0].section if single else UNSET,
+        layers=UNSET if single else layers,
+        notch=UNSET if notch is None else convert.entry(declared.Notch, notch),
+    )
+
+
+def _speed_entry(speed: OperatingSpeed, convert: Converter) -> declared.OperatingSpeed:
+    # The model names the band's ends minimum and maximum; the case file min and max.
+    file_value = convert.file_value
+    return declared.OperatingSpeed(
+        name=speed.name,
+        min=file_value(declared.OperatingSpeed, "min", speed.minimum),
+        max=file_value(declared.OperatingSpeed, "max", speed.maximum),
+    )
+
+
+def case_file_of(model: Model, units: UnitSystem | None = None) -> declared.CaseFile:
+    """The declared case file of a model, in ``units`` (default: the model's own).
+
+    Parameters
+    ----------
+    model
+        The model.
+    units
+        Units to write the numbers in.
+    """
+    units = units or model.units
+    convert = Converter(units)
+    entry = convert.entry
+    materials = {material.name: entry(declared.Material, material) for material in model.materials}
+    return declared.CaseFile(
+        title=model.title,
+        units=UNSET if units == SI else declared.Units(**units.as_dict()),
+        materials=materials,
+        shafts=[
+            declared.Shaft(
+                id=shaft.id, segments=[_segment_entry(s, convert) for s in shaft.segments]
+            )
+            for shaft in model.shafts
+        ],
+        supports=[entry(declared.Support, support) for support in model.supports],
+        gears=[
+            entry(
+                declared.Gear,
+                gear,
+                a=entry(declared.GearEnd, gear.a),
+                b=entry(declared.GearEnd, gear.b),
+            )
+            for gear in model.gears
+        ],
+        load_cases=[
+            entry(
+                declared.LoadCase,
+                case,
+                torques=[entry(declared.Torque, torque) for torque in case.torques],
+                distributed=[entry(declared.DistributedTorque, load) for load in case.distributed],
+            )
+            for case in model.load_cases
+        ],
+        combinations=[
+            declared.Combination(name=combination.name, factors=dict(combination.factors))
+            for combination in model.combinations
+        ],
+        design=UNSET if model.design is None else design_section(model.design, convert),
+        discs=[entry(declared.Disc, disc) for disc in model.discs],
+        operating_speeds=[_speed_entry(speed, convert) for speed in model.operating_speeds],
+    )
