@@ -414,3 +414,50 @@ def test_the_condition_estimate_of_a_shaft_brackets_the_exact_one(case):
     exact = 1.0 / np.linalg.cond(matrix, 1)
     assert math.isfinite(solution.factor.rcond)
     assert exact * (1.0 - 1e-9) <= solution.factor.rcond <= 10.0 * exact
+
+
+# --- the bundled demo: a taper, bonded layers and a gear pair, diameters varied -----------------
+
+_OUTER_KEYS = ("diameter", "outer_diameter", "diameter_start", "diameter_end")
+
+
+def _scaled_outer(case: dict[str, Any], factor: float) -> dict[str, Any]:
+    scaled = copy.deepcopy(case)
+    for shaft in scaled["shafts"]:
+        for segment in shaft["segments"]:
+            layers = segment.get("layers") or [segment]
+            for layer in layers:
+                section = layer["section"]
+                for key in _OUTER_KEYS:
+                    if key in section:
+                        section[key] *= factor
+    return scaled
+
+
+def test_demo_diameter_sweep_equals_each_variant_alone_and_names_an_overlap() -> None:
+    """Regression: a diameter sweep over a case with a tapered segment failed to broadcast."""
+    import json
+
+    from workbench.cli.solve import DEMO_CASE
+
+    case = json.loads(DEMO_CASE.read_text(encoding="utf-8"))
+    model = parse_case(copy.deepcopy(case))
+    factors = np.array([0.9, 0.95, 1.0, 1.1])
+    segments = case_table(model).segments
+    batch = solve_batch(
+        model,
+        outer_diameter_start=factors[:, None] * segments.outer_diameter_start,
+        outer_diameter_end=factors[:, None] * segments.outer_diameter_end,
+    )
+    # 1.1: the bonded core (50 mm → 55 mm) no longer fits the sleeve's 50 mm bore.
+    assert batch.valid.tolist() == [True, True, True, False]
+    with pytest.raises(InputError) as refused:
+        parse_case(_scaled_outer(case, 1.1))
+    assert batch.reason(3).split(":")[0] == refused.value.field
+    assert "bore (0.05 m) is smaller than that layer's outer diameter (0.055 m)" in batch.reason(3)
+    for number, factor in enumerate(factors[:3]):
+        alone = solve(parse_case(_scaled_outer(case, float(factor))))
+        scale = float(np.abs(alone.reactions).max())
+        np.testing.assert_allclose(batch.reactions[number], alone.reactions, atol=1e-12 * scale)
+        angle = float(np.abs(alone.node_angle).max())
+        np.testing.assert_allclose(batch.node_angle[number], alone.node_angle, atol=1e-12 * angle)

@@ -146,8 +146,8 @@ _RULES = (
     _Rule(
         "outer_diameter_start",
         lambda value, other: (
-            f"overlaps another bonded layer: its radial extent reaches {quote(value, 'length')} "
-            f"where the other's begins at {quote(other, 'length')}"
+            f"overlaps another bonded layer: its bore ({quote(value, 'length')}) is smaller than "
+            f"that layer's outer diameter ({quote(other, 'length')})"
         ),
         _same_key("section"),
     ),
@@ -292,7 +292,8 @@ def _check_nesting(
     outer = start + (end - start) * fractions  # (5, n_variants, n_layers)
     n_layers = len(segments.layer_shape)
     bad = np.zeros(start.shape, dtype=bool)
-    reach = np.full(start.shape, np.nan)
+    own_bore = np.full(start.shape, np.nan)
+    other_outer = np.full(start.shape, np.nan)
     for low in range(int(count.max(initial=1))):  # pairs of bonded layers: a handful
         for high in range(low + 1, int(count.max(initial=1))):
             layered = np.flatnonzero(count > high)
@@ -300,10 +301,20 @@ def _check_nesting(
             a_inside_b = np.all(bore[None, :, b] >= outer[:, :, a] * (1.0 - 1e-9), axis=0)
             b_inside_a = np.all(bore[None, :, a] >= outer[:, :, b] * (1.0 - 1e-9), axis=0)
             overlap = ~(a_inside_b | b_inside_a)
-            bad[:, b] |= overlap
-            reach[:, b] = np.where(overlap, outer[:, :, a].max(axis=0), reach[:, b])
+            # As the case file's reader does: the layer with the larger bore is the outer one,
+            # and it is named, with its bore and the inner layer's outer diameter.
+            b_outside = bore[:, b] >= bore[:, a]
+            for outer_layer, inner_layer, named in ((b, a, b_outside), (a, b, ~b_outside)):
+                hit = overlap & named
+                bad[:, outer_layer] |= hit
+                own_bore[:, outer_layer] = np.where(
+                    hit, bore[:, outer_layer], own_bore[:, outer_layer]
+                )
+                other_outer[:, outer_layer] = np.where(
+                    hit, outer[:, :, inner_layer].max(axis=0), other_outer[:, outer_layer]
+                )
     if n_layers:
-        _check(state, rule, bad, reach, bore)
+        _check(state, rule, bad, own_bore, other_outer)
 
 
 @dataclass(frozen=True)

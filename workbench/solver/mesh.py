@@ -516,7 +516,8 @@ def _size_varying(
     station_rigidity[:, stations] = rigidity
     inside = np.isin(stations, topology.interior, assume_unique=True)
     position = np.searchsorted(topology.interior, stations[inside])
-    interior_u[:, position] = station_u[:, stations[inside]]
+    # Without moved nodes the interior positions are shared by every variant (one row).
+    interior_u[:, position] = station_u[: interior_u.shape[0], stations[inside]]
     interior_moments[:, position] = moments[:, inside]
 
 
