@@ -2,8 +2,9 @@
 
 The fixtures were exported and signed before the record's markup moved into templates:
 
-* ``record_demo_signed.html``: ``workbench export notebooks/demo.ipynb`` (the bundled press-drive
-  case: two shafts, a gear, distributed torque, discs, a running-speed band, fatigue);
+* ``record-before.html``: ``workbench export notebooks/demo.ipynb`` (the bundled press-drive
+  case: two shafts, a gear, distributed torque, discs, a running-speed band, fatigue; see
+  ``fixtures/README.md``);
 * ``record_hostile_names_signed.html``: the feed-drive demo case with markup in the title block,
   a material's name and source, the shaft id, the load-case, combination and speed-band names.
 
@@ -25,13 +26,17 @@ from jwcrypto import jws as jwcrypto_jws
 from workbench.record.verify import verify_record, verify_text
 
 FIXTURES = Path(__file__).resolve().parent / "fixtures"
-PUBLIC_KEY = FIXTURES / "record_signer_public.pem"
-RECORDS = ("record_demo_signed.html", "record_hostile_names_signed.html")
+#: Each record and the public half of the key that signed it.
+SIGNERS = {
+    "record-before.html": FIXTURES / "before-public.pem",
+    "record_hostile_names_signed.html": FIXTURES / "record_signer_public.pem",
+}
+RECORDS = tuple(SIGNERS)
 
 
 @pytest.mark.parametrize("name", RECORDS)
 def test_record_signed_before_the_templates_verifies(name: str) -> None:
-    outcome = verify_record(FIXTURES / name, PUBLIC_KEY)
+    outcome = verify_record(FIXTURES / name, SIGNERS[name])
     assert outcome.ok, outcome.lines()
     assert outcome.problems == []
     assert any(
@@ -43,7 +48,7 @@ def test_record_signed_before_the_templates_verifies(name: str) -> None:
     assert token is not None
     checked = jwcrypto_jws.JWS()
     checked.deserialize(token.group(1))
-    checked.verify(jwcrypto_jwk.JWK.from_pem(PUBLIC_KEY.read_bytes()), alg="EdDSA")
+    checked.verify(jwcrypto_jwk.JWK.from_pem(SIGNERS[name].read_bytes()), alg="EdDSA")
     assert json.loads(checked.payload)["format"] == "workbench-calculation-record"
 
 
@@ -86,7 +91,7 @@ def test_a_digest_differing_in_the_last_digits_alone_is_named(
         return dataclasses.replace(computation, results_digest="sha256:" + "0" * 64)
 
     monkeypatch.setattr(verifier, "compute", last_digits_differ)
-    outcome = verify_record(FIXTURES / "record_demo_signed.html", PUBLIC_KEY)
+    outcome = verify_record(FIXTURES / "record-before.html", SIGNERS["record-before.html"])
     assert outcome.ok, outcome.problems
     assert any("every number the record shows agrees" in fact for fact in outcome.facts)
 
@@ -109,6 +114,6 @@ def test_a_shown_number_that_differs_on_re_solving_fails(monkeypatch: pytest.Mon
 
     monkeypatch.setattr(verifier, "compute", digest_differs)
     monkeypatch.setattr(verifier, "render_sections", one_number_differs)
-    outcome = verify_record(FIXTURES / "record_demo_signed.html", PUBLIC_KEY)
+    outcome = verify_record(FIXTURES / "record-before.html", SIGNERS["record-before.html"])
     assert not outcome.ok
     assert any("results digest mismatch" in problem for problem in outcome.problems)
