@@ -22,8 +22,9 @@ import pytest
 
 from workbench.panel import CASE_MIME_TYPE, Workbench
 from workbench.panel.document import get_at, normal_field, parse_path, plain_words
-from workbench.panel.sweep import SweepRequest, run_sweep
-from workbench.panel.workbench import _clean
+from workbench.panel.form import clean_number
+from workbench.panel.sweep import run_sweep
+from workbench.panel.sweep_request import SweepRequest
 from workbench.solver.analysis import solve
 from workbench.solver.checks import CAUTION, run_checks
 from workbench.solver.io import load_case, parse_case
@@ -55,7 +56,7 @@ def simple_case(diameter: float = 40.0, torque: float = 500.0) -> dict:
 
 
 def field(panel: Workbench, path: str):
-    return panel._fields[path][0]
+    return panel.form.fields[path][0]
 
 
 @pytest.fixture
@@ -139,7 +140,7 @@ def message_beside(panel: Workbench, path: str) -> w.HTML:
 
 
 def shown_messages(panel: Workbench) -> list[str]:
-    return [line.value for lines in panel._messages.values() for line in lines if line.value]
+    return [line.value for lines in panel.form.messages.values() for line in lines if line.value]
 
 
 def chart_data(panel: Workbench) -> dict[str, np.ndarray]:
@@ -195,7 +196,7 @@ def test_bad_value_message_beside_its_field(
     assert "wb-stale" in panel.charts_box._dom_classes
     assert "Not solved" in panel.status.value
     assert same_data(panel, good_data)  # the last good results stay up
-    assert get_at(panel.document, parse_path(path)) == _clean(bad)  # nothing typed is lost
+    assert get_at(panel.document, parse_path(path)) == clean_number(bad)  # nothing typed is lost
     assert entry.value == bad
     entry.value = good
     assert not panel.stale
@@ -211,7 +212,7 @@ def test_bad_value_on_slider_and_entry_of_one_field(panel: Workbench) -> None:
     good_data = chart_data(panel)
     field(panel, path).value = -2.0
     assert "greater than zero (-2 mm)" in message_beside(panel, path).value
-    drag = panel._messages[path][-1]
+    drag = panel.form.messages[path][-1]
     assert drag in panel.dimension_box.children  # the drag slider's own message line
     assert drag.value == message_beside(panel, path).value
     assert panel.diameter_slider.min <= -2.0 and panel.diameter_slider.value == -2.0
@@ -223,7 +224,7 @@ def test_message_lands_on_the_row_when_no_field_shows_the_value(panel: Workbench
     layers = panel.document["shafts"][0]["segments"][3]["layers"]
     layers[1]["section"]["diameter"] = 0
     assert not panel.refresh()
-    row = panel._messages["shafts[0].segments[3]"][0]
+    row = panel.form.messages["shafts[0].segments[3]"][0]
     assert "layer 1" in row.value and "greater than zero" in row.value
     assert shown_messages(panel) == [row.value]
 
@@ -231,7 +232,7 @@ def test_message_lands_on_the_row_when_no_field_shows_the_value(panel: Workbench
 def test_torque_drag_moves_the_jump(panel: Workbench) -> None:
     panel.result.value = "jam"
     panel.case_picker.value = 1
-    x_slider = panel._fields["load_cases[1].torques[0].x"][0]
+    x_slider = panel.form.fields["load_cases[1].torques[0].x"][0]
     x_slider.value = 400.0
     x = np.array(panel.charts.torque.now.x)
     torque = np.array(panel.charts.torque.now.y)
@@ -247,7 +248,7 @@ def test_add_support_and_switch_kind(panel: Workbench) -> None:
     assert not panel.stale
     assert len(panel.results.reactions[0]) == count + 1
     assert len(panel.charts.fixed.x) == 2  # x = 0 and the new one at the end
-    panel._set_support_kind(count, "spring")
+    panel.supports_editor.set_kind(count, "spring")
     assert panel.document["supports"][count]["kind"] == "spring"
     assert len(panel.charts.spring.x) == 2
 
@@ -272,14 +273,14 @@ def test_switch_result_and_units(panel: Workbench) -> None:
 def test_structural_segment_edits(panel: Workbench) -> None:
     segments = panel.document["shafts"][0]["segments"]
     first = json.dumps(segments[0])
-    panel._move_segment(0, 1)
+    panel.segments_editor.move(0, 1)
     assert json.dumps(panel.document["shafts"][0]["segments"][1]) == first
-    panel._add_segment(0)
+    panel.segments_editor.add(0)
     assert len(panel.document["shafts"][0]["segments"]) == 5
     assert len(panel.charts.bars.y) == 5
-    panel._set_shape(("shafts", 0, "segments", 4), "solid")
+    panel.segments_editor.set_shape(("shafts", 0, "segments", 4), "solid")
     assert panel.document["shafts"][0]["segments"][4]["section"]["shape"] == "solid"
-    panel._remove(("shafts", 0, "segments"), 4)
+    panel.form.remove(("shafts", 0, "segments"), 4)
     assert len(panel.charts.bars.y) == 4
 
 
@@ -344,7 +345,7 @@ def test_save_and_reopen(panel: Workbench, tmp_path: Path) -> None:
     assert load_case(panel.path) == panel.model
     # Saving a case with errors is refused and the file is left as it was.
     field(panel, "shafts[0].segments[0].section.diameter").value = -1.0
-    panel._on_save(None)
+    panel.save_button.click()
     assert "errors" in panel.save_message.value
     section = load_case(panel.path).shafts[0].segments[0].layers[0].section
     assert isinstance(section, SolidCircle) and section.diameter == 0.048
@@ -363,9 +364,9 @@ def test_case_output_for_the_record(panel: Workbench) -> None:
 def test_caution_and_mechanism_message(panel: Workbench) -> None:
     assert CAUTION in panel.caution.value
     for _ in range(len(panel.document["supports"])):
-        panel._remove(("supports",), 0)
+        panel.form.remove(("supports",), 0)
     assert panel.stale
-    assert "free to spin" in panel._messages["supports"][0].value
+    assert "free to spin" in panel.form.messages["supports"][0].value
 
 
 def test_burst_in_a_kernel_loop_solves_once_in_the_last_state(panel: Workbench) -> None:
@@ -475,7 +476,7 @@ def test_rotation_limit_editor_closed_form() -> None:
     field(panel, "design.rotation_limits[0].start").value = 400.0
     assert rotation_check().value == pytest.approx(T * 0.6 / (G * J), rel=1e-9)
     assert "rotation" in panel.check_table.value
-    panel._remove_rotation_limit(0)
+    panel.design_editor.remove_rotation_limit(0)
     assert "rotation_limits" not in panel.document["design"]
     assert not [c for c in panel.report.checks if c.kind == "rotation"]
 
@@ -516,7 +517,7 @@ def two_disc_case(inertia_a: float = 0.2, inertia_b: float = 0.05) -> dict:
 
 
 def test_modes_chart_shows_natural_modes_of_the_case(panel: Workbench) -> None:
-    from workbench.panel.charts import MODES_SHOWN, rpm
+    from workbench.panel.modes_section import MODES_SHOWN, rpm
     from workbench.solver.modes import natural_modes
 
     panel.open_modes()
@@ -589,7 +590,7 @@ def test_two_disc_frequency_follows_a_disc_inertia_edit() -> None:
 def test_rigid_body_modes_are_marked() -> None:
     # A free–free two-disc system (statics refuses it, so the chart is drawn directly): one
     # rigid-body mode at 0 Hz, then ω² = k·(J1 + J2)/(J1·J2) (Rao, as above; from memory).
-    from workbench.panel.charts import ModesChart
+    from workbench.panel.modes_section import ModesChart
     from workbench.solver.modes import natural_modes
 
     case = two_disc_case()
@@ -622,7 +623,7 @@ def test_fatigue_diagram_lines_and_operating_point(panel: Workbench) -> None:
     # Design, 9th ed., §6-12, Tables 6-6 and 6-7): modified Goodman through (0, Sse) and
     # (Ssu, 0); Gerber parabola through the same intercepts; ASME ellipse through (0, Sse) and
     # (Ssy, 0); Soderberg through (0, Sse) and (Ssy, 0); Langer through (0, Ssy) and (Ssy, 0).
-    from workbench.panel.workbench import governing_fatigue_points
+    from workbench.panel.fatigue_section import governing_fatigue_points
 
     panel.open_fatigue()
     report = run_checks(solve(load_case(CASE)))
@@ -671,7 +672,7 @@ def test_fatigue_diagram_lines_and_operating_point(panel: Workbench) -> None:
 
 def test_fatigue_switch_and_result_pickers(panel: Workbench) -> None:
     panel.open_fatigue()
-    pickers = panel._fields["design.fatigue.extremes[1]"]
+    pickers = panel.form.fields["design.fatigue.extremes[1]"]
     pickers[0].value = "jam, factored"
     assert panel.model is not None and panel.model.design is not None
     assert panel.model.design.fatigue.extremes == ("pressing", "jam, factored")
@@ -714,18 +715,18 @@ def test_bad_fatigue_pick_shows_beside_the_pickers(panel: Workbench) -> None:
     set_at(panel.document, ("design", "fatigue", "extremes", 1), "nope")
     panel.refresh()
     assert panel.stale
-    labels = panel._messages["design.fatigue.extremes"]
+    labels = panel.form.messages["design.fatigue.extremes"]
     assert any("unknown load case or combination" in label.value for label in labels)
 
 
 def test_add_and_remove_disc_and_speed_band(panel: Workbench) -> None:
-    panel._add_disc()
+    panel.vibration_editor.add_disc()
     assert len(panel.document["discs"]) == 3 and not panel.stale
-    panel._add_speed()
+    panel.vibration_editor.add_speed()
     assert panel.document["operating_speeds"][-1]["name"] == "band 2"
     assert any(c.result == "band 2" for c in panel.report.checks)
-    panel._remove_listed("operating_speeds", 1)
-    panel._remove_listed("discs", 2)
+    panel.form.remove(("operating_speeds",), 1, drop_empty=True)
+    panel.form.remove(("discs",), 2, drop_empty=True)
     assert len(panel.document["discs"]) == 2 and len(panel.document["operating_speeds"]) == 1
 
 
@@ -733,7 +734,7 @@ def test_mean_stress_choice_moves_the_operating_point(panel: Workbench) -> None:
     # "nominal" leaves Kfs off the mean stress (Kfsm = 1): the operating point's τm falls by the
     # factor Kfs, τa stays (Shigley's Mechanical Engineering Design, 9th ed., eq. 6-36 with
     # Kfsm = Kfs or 1). The demo's governing segment carries a keyseat, Kfs = 3.0.
-    from workbench.panel.workbench import governing_fatigue_points
+    from workbench.panel.fatigue_section import governing_fatigue_points
 
     panel.open_fatigue()
     before = governing_fatigue_points(panel.report, "auger")[0]

@@ -24,7 +24,8 @@ import pytest
 
 from workbench.panel.document import Path as DocumentPath
 from workbench.panel.document import clone, set_at
-from workbench.panel.sweep import SweepRequest, _solo_metric, run_sweep
+from workbench.panel.sweep import _solo_metric, run_sweep
+from workbench.panel.sweep_request import SweepRequest
 from workbench.solver.analysis import solve
 from workbench.solver.checks import (
     DesignCriteria,
