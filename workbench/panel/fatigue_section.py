@@ -7,13 +7,13 @@ draws them.
 
 from __future__ import annotations
 
-import html
 from typing import Any
 
 import ipywidgets as w
 import numpy as np
 
 from workbench.panel.document import unit_label
+from workbench.panel.markup import render
 from workbench.panel.plotting import (
     BASELINE,
     LIMIT,
@@ -230,46 +230,43 @@ class FatigueSection:
         fatigue = report.design.fatigue
         points = governing_fatigue_points(report, model.shafts[shaft_number].id)
         if fatigue is None or not points:
-            self.message.value = (
-                "<i>No fatigue check: switch it on in the Design tab (two results the torque "
-                "cycles between, or a mean and an alternating one).</i>"
+            self.message.value = render(
+                "italic",
+                "No fatigue check: switch it on in the Design tab (two results the torque "
+                "cycles between, or a mean and an alternating one)."
                 if fatigue is None
-                else "<i>No segment could be checked for fatigue (see the notes below the "
-                "checks).</i>"
+                else "No segment could be checked for fatigue (see the notes below the checks).",
             )
             self.figures.layout.display = "none"
             return
         self.message.value = ""
         self.figures.layout.display = None
         self.chart.draw(points, units, fatigue.criterion)
-        length, stress = unit_label(units, "length"), unit_label(units, "stress")
         rows = []
         for point in points:
             factors = point.factors
-            rows.append(
-                f"<tr><td>{html.escape(point.shaft)}</td><td>{point.segment}</td>"
-                f"<td>{units.from_si(point.x, 'length'):.4g}</td>"
-                + "".join(
-                    f"<td>{units.from_si(value, 'stress'):.4g}</td>"
-                    for value in (
-                        factors.mean_shear,
-                        factors.alternating_shear,
-                        factors.endurance_shear,
-                        factors.ultimate_shear,
-                        factors.yield_shear,
-                    )
-                )
-                + f"<td>{point.concentration:.3g}</td>"
-                f"<td>{factors.factor_of_safety(fatigue.criterion):.3g}</td>"
-                f"<td>{factors.first_cycle_yield:.3g}</td></tr>"
+            stresses = (
+                factors.mean_shear,
+                factors.alternating_shear,
+                factors.endurance_shear,
+                factors.ultimate_shear,
+                factors.yield_shear,
             )
-        head = (
-            f"<tr><th>shaft</th><th>segment</th><th>x [{length}]</th>"
-            + "".join(f"<th>{name} [{stress}]</th>" for name in ("τm", "τa", "Sse", "Ssu", "Ssy"))
-            + f"<th>Kfs</th><th>n {html.escape(CRITERION_NAMES[fatigue.criterion])}</th>"
-            "<th>n Langer</th></tr>"
-        )
-        self.table.value = (
-            "The lines are drawn for the governing segment's strengths (first row); the other "
-            f"segments' points are grey.<table class='wb-table'>{head}{''.join(rows)}</table>"
+            rows.append(
+                [
+                    point.shaft,
+                    point.segment,
+                    f"{units.from_si(point.x, 'length'):.4g}",
+                    *(f"{units.from_si(value, 'stress'):.4g}" for value in stresses),
+                    f"{point.concentration:.3g}",
+                    f"{factors.factor_of_safety(fatigue.criterion):.3g}",
+                    f"{factors.first_cycle_yield:.3g}",
+                ]
+            )
+        self.table.value = render(
+            "fatigue_points",
+            unit_label(units, "length"),
+            unit_label(units, "stress"),
+            CRITERION_NAMES[fatigue.criterion],
+            rows,
         )

@@ -10,7 +10,6 @@ else its list), and the field is marked. :class:`Editor` is the base of each edi
 
 from __future__ import annotations
 
-import html
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import Any
@@ -32,6 +31,7 @@ from workbench.panel.document import (
     unit_label,
 )
 from workbench.panel.keys import quantity_of
+from workbench.panel.markup import render
 from workbench.panel.state import CaseState
 from workbench.solver.errors import InputError
 
@@ -309,7 +309,7 @@ class Form:
             labels = self.messages.get(path_text(path[:size]))
             if labels:
                 rest = field_words(path[size:])
-                text = html.escape(f"{rest}: {message}" if rest else message)
+                text = render("text", f"{rest}: {message}" if rest else message)
                 for label in labels:
                     label.value = text
                 self._shown += labels

@@ -7,7 +7,6 @@ modes are a dense eigenproblem, too dear for every edit.
 
 from __future__ import annotations
 
-import html
 from typing import Any
 
 import ipywidgets as w
@@ -15,6 +14,7 @@ import numpy as np
 from ipywidgets import Layout
 
 from workbench.panel.document import unit_label
+from workbench.panel.markup import render
 from workbench.panel.plotting import LOAD, SHAFT, SUPPORT, bq, held, set_tooltip, xy_figure
 from workbench.solver.modes import Modes
 from workbench.solver.units import UnitSystem
@@ -223,7 +223,7 @@ class ModesSection:
             The panel's units.
         """
         if modes is None:
-            self.message.value = f"<i>{html.escape(why_none)}</i>"
+            self.message.value = render("italic", why_none)
             self.figures.layout.display = "none"
             self.table.value = ""
             return
@@ -234,28 +234,19 @@ class ModesSection:
 
 
 def _frequencies_html(modes: Modes, units: UnitSystem) -> str:
-    length = unit_label(units, "length")
     rows = []
     for mode in range(len(modes)):
         where, x = modes.antinode(mode)
-        if modes.rigid_body[mode]:
-            values = "<td>0</td><td>0</td><td>rigid body (free to spin)</td>"
-        else:
-            values = (
-                f"<td>{modes.frequency[mode]:.4g}</td>"
-                f"<td>{float(rpm(modes.angular_frequency[mode])):.4g}</td><td></td>"
-            )
         rows.append(
-            f"<tr><td>{mode + 1}</td>{values}<td>{html.escape(where)}</td>"
-            f"<td>{units.from_si(x, 'length'):.4g}</td></tr>"
+            {
+                "mode": mode + 1,
+                "rigid": bool(modes.rigid_body[mode]),
+                "hertz": f"{modes.frequency[mode]:.4g}",
+                "rpm": f"{float(rpm(modes.angular_frequency[mode])):.4g}",
+                "where": where,
+                "x": f"{units.from_si(x, 'length'):.4g}",
+            }
         )
-    head = (
-        "<tr><th>mode</th><th>f [Hz]</th><th>[rpm]</th><th></th><th>largest angle on</th>"
-        f"<th>x [{length}]</th></tr>"
-    )
-    notes = "".join(f"<br>• {html.escape(note)}" for note in modes.notes)
-    return (
-        f"<b>Natural frequencies</b> (lowest {len(modes)}; "
-        f"{modes.elements_per_segment} elements per segment with inertia)"
-        f"<table class='wb-table'>{head}{''.join(rows)}</table>{notes}"
-    )
+    length = unit_label(units, "length")
+    count, elements = len(modes), modes.elements_per_segment
+    return render("frequencies", count, elements, length, rows, modes.notes)

@@ -1,19 +1,19 @@
 """The summary, the check table, the caution and the baseline comparison, from the solver's results.
 
-Plain HTML tables of what :func:`~workbench.solver.analysis.solve` and
-:func:`~workbench.solver.checks.run_checks` gave, converted to the panel's units; nothing here
-computes mechanics.
+Tables of what :func:`~workbench.solver.analysis.solve` and
+:func:`~workbench.solver.checks.run_checks` gave, converted to the panel's units (HTML from
+:mod:`workbench.panel.markup`); nothing here computes mechanics.
 """
 
 from __future__ import annotations
 
-import html
 from typing import Any
 
 import ipywidgets as w
 import numpy as np
 
 from workbench.panel.document import unit_label
+from workbench.panel.markup import render
 from workbench.solver.analysis import Results
 from workbench.solver.checks import CAUTION, CHECK_QUANTITIES, CheckReport
 from workbench.solver.units import UnitSystem
@@ -57,22 +57,17 @@ def key_values(
 def summary_html(values: dict[str, float], report: CheckReport, result: str) -> str:
     """The verdict, where it governs, and the headline ``values`` of the result shown."""
     governing = report.governing
-    verdict = "all checks pass" if report.passes else "SOME CHECKS FAIL"
-    where = ""
+    where = None
     if governing is not None:
-        where = (
-            f" ({governing.kind.replace('_', ' ')}, {governing.shaft} segment "
-            f"{governing.segment}, {html.escape(governing.result)})"
-        )
-    cells = "".join(
-        f"<tr><th>{html.escape(k)}</th><td class='wb-value' data-key='{html.escape(k)}'>"
-        f"{v:.4g}</td></tr>"
-        for k, v in values.items()
-    )
-    return (
-        f"<b>{verdict}</b>{where} — showing <i>{html.escape(result)}</i>"
-        f"<table class='wb-table'>{cells}</table>"
-    )
+        where = {
+            "kind": governing.kind.replace("_", " "),
+            "shaft": governing.shaft,
+            "segment": governing.segment,
+            "result": governing.result,
+        }
+    verdict = "all checks pass" if report.passes else "SOME CHECKS FAIL"
+    cells = [(key, f"{value:.4g}") for key, value in values.items()]
+    return render("summary", verdict, where, result, cells)
 
 
 def checks_html(report: CheckReport, units: UnitSystem) -> str:
@@ -82,49 +77,37 @@ def checks_html(report: CheckReport, units: UnitSystem) -> str:
         key = (check.shaft, check.segment, check.kind)
         if key not in governing or check.utilisation > governing[key].utilisation:
             governing[key] = check
-    head = (
-        "<tr><th>shaft</th><th>segment</th><th>check</th><th>governing result</th>"
-        "<th>value</th><th>limit</th><th>unit</th><th>utilisation</th><th>verdict</th>"
-        f"<th>x [{unit_label(units, 'length')}]</th></tr>"
-    )
     rows = []
     for check in governing.values():
         quantity = CHECK_QUANTITIES[check.kind]
-        verdict = "pass" if check.passes else "<span class='wb-fail'>FAIL</span>"
-        unit = unit_label(units, quantity) if quantity else ""
         rows.append(
-            f"<tr><td>{html.escape(check.shaft)}</td>"
-            f"<td>{'-' if check.segment is None else check.segment}</td>"
-            f"<td>{check.kind.replace('_', ' ')}</td><td>{html.escape(check.result)}</td>"
-            f"<td>{units.from_si(check.value, quantity):.4g}</td>"
-            f"<td>{units.from_si(check.limit, quantity):.4g}</td>"
-            f"<td>{unit}</td><td>{check.utilisation:.3f}</td>"
-            f"<td>{verdict}</td><td>{units.from_si(check.x, 'length'):.4g}</td></tr>"
+            {
+                "shaft": check.shaft,
+                "segment": "-" if check.segment is None else check.segment,
+                "kind": check.kind.replace("_", " "),
+                "result": check.result,
+                "value": f"{units.from_si(check.value, quantity):.4g}",
+                "limit": f"{units.from_si(check.limit, quantity):.4g}",
+                "unit": unit_label(units, quantity) if quantity else "",
+                "utilisation": f"{check.utilisation:.3f}",
+                "passes": check.passes,
+                "x": f"{units.from_si(check.x, 'length'):.4g}",
+            }
         )
-    return f"<table class='wb-table'>{head}{''.join(rows)}</table>"
-
-
-def caution_html(report: CheckReport) -> str:
-    """The standing caution, with the notes of the checks."""
-    notes = "".join(f"<br>• {html.escape(n)}" for n in report.notes)
-    return f"<div class='wb-caution'><b>Caution.</b> {CAUTION}{notes}</div>"
+    return render("checks", unit_label(units, "length"), rows)
 
 
 def difference_html(now: dict[str, float], before: dict[str, float] | None) -> str:
     """The headline values now against the baseline's (``None``: no baseline pinned)."""
     if before is None:
-        return "<i>No baseline pinned: pin one, then edit, to compare.</i>"
+        return render("difference", None)
     rows = []
     for key, value in now.items():
         old = before.get(key, float("nan"))
         change = value - old
         share = f"{change / old:+.1%}" if old else "-"
-        rows.append(
-            f"<tr><th>{html.escape(key)}</th><td>{old:.4g}</td><td>{value:.4g}</td>"
-            f"<td>{change:+.4g}</td><td>{share}</td></tr>"
-        )
-    head = "<tr><th></th><th>baseline</th><th>now</th><th>change</th><th>%</th></tr>"
-    return f"<table class='wb-table'>{head}{''.join(rows)}</table>"
+        rows.append((key, [f"{old:.4g}", f"{value:.4g}", f"{change:+.4g}", share]))
+    return render("difference", rows)
 
 
 class ResultTables:
@@ -143,4 +126,4 @@ class ResultTables:
         """Fill the three from the checks and the headline values (:func:`key_values`)."""
         self.summary.value = summary_html(values, report, result)
         self.check_table.value = checks_html(report, units)
-        self.caution.value = caution_html(report)
+        self.caution.value = render("caution", CAUTION, report.notes)

@@ -8,7 +8,6 @@ and computed by :func:`workbench.panel.sweep.sweep_chunks`, chunk by chunk so Ca
 from __future__ import annotations
 
 import asyncio
-import html
 from collections.abc import Callable, Iterator
 from typing import Any
 
@@ -18,6 +17,7 @@ import numpy as np
 from workbench.panel.document import Path, clone, get_at, unit_label
 from workbench.panel.form import Form, sized
 from workbench.panel.keys import quantity_of
+from workbench.panel.markup import render
 from workbench.panel.plotting import CURRENT, LOAD, bq
 from workbench.panel.sweep import sweep_chunks
 from workbench.panel.sweep_request import METRICS, SweepRequest
@@ -106,7 +106,7 @@ class WhatIf:
             [
                 w.HBox([pin_button, clear_button]),
                 self.difference,
-                w.HTML("<b>Sweep</b> one input over a range"),
+                w.HTML(render("heading", "Sweep", " one input over a range")),
                 self.sweep_input,
                 w.HBox([self.sweep_from, self.sweep_to, self.sweep_points]),
                 w.HBox([self.sweep_metric, self.sweep_support]),
@@ -157,7 +157,7 @@ class WhatIf:
             )
             chunks = sweep_chunks(clone(self._document), request)
         except InputError as error:
-            self.sweep_message.value = html.escape(str(error))
+            self.sweep_message.value = render("text", str(error))
             return
         self._cancelled = False
         self.sweep_progress.max, self.sweep_progress.value = len(values), 0
@@ -190,7 +190,7 @@ class WhatIf:
                 if self._cancelled:
                     break
         except InputError as error:
-            self.sweep_message.value = html.escape(str(error))
+            self.sweep_message.value = render("text", str(error))
         finally:
             self._sweep_done()
 

@@ -17,7 +17,6 @@ once, when it ends (see :mod:`workbench.panel.state`).
 
 from __future__ import annotations
 
-import html
 from pathlib import Path as FilePath
 from typing import Any
 
@@ -37,6 +36,7 @@ from workbench.panel.editors import (
 )
 from workbench.panel.fatigue_section import FatigueSection
 from workbench.panel.form import Editor, Form, sized
+from workbench.panel.markup import render
 from workbench.panel.modes_section import ModesSection
 from workbench.panel.state import CaseState
 from workbench.panel.summary import ResultTables, difference_html, key_values
@@ -45,16 +45,6 @@ from workbench.solver.analysis import Results
 from workbench.solver.checks import CheckReport
 from workbench.solver.errors import InputError
 from workbench.solver.io import decode_case_text
-
-_STYLE = """<style>
-.wb-msg {color:#9e2a2b; font-size:12px; padding-left:6px}
-.wb-bad input {background:#fbe3e2 !important}
-.wb-stale .bqplot.figure {opacity:0.45}
-.wb-table {border-collapse:collapse; font-size:12px}
-.wb-table td, .wb-table th {border-bottom:1px solid #d5d9e0; padding:2px 8px; text-align:right}
-.wb-fail {color:#9e2a2b; font-weight:bold}
-.wb-caution {border-left:4px solid #e09f3e; padding:4px 8px; font-size:12px; background:#fdf5e8}
-</style>"""
 
 
 class _Part:
@@ -261,7 +251,7 @@ class Workbench:
         self.charts_box.add_class("wb-charts")
         self.root = w.VBox(
             [
-                w.HTML(_STYLE),
+                w.HTML(render("style")),
                 self.title,
                 w.HBox([self.units, self.shaft, self.result]),
                 w.HBox([self.save_button, self.save_message]),
@@ -269,7 +259,9 @@ class Workbench:
                 self.editors,
                 self.summary,
                 self.charts_box,
-                w.HTML("<b>Checks</b> (governing result of each segment and check)"),
+                w.HTML(
+                    render("heading", "Checks", " (governing result of each segment and check)")
+                ),
                 self.check_table,
                 self.caution,
             ]
@@ -282,7 +274,7 @@ class Workbench:
         self.form.reset()
         with self.form.quiet():
             doc = self.document
-            self.title.value = f"<h3>{html.escape(doc.get('title') or 'Untitled case')}</h3>"
+            self.title.value = render("title", doc.get("title") or "Untitled case")
             shaft_ids = [s.get("id", "?") for s in doc.get("shafts", [])]
             keep = self.shaft.value if self.shaft.value in range(len(shaft_ids)) else 0
             self.shaft.options = [(name, n) for n, name in enumerate(shaft_ids)]
@@ -299,7 +291,7 @@ class Workbench:
 
     def _on_solved(self) -> None:
         self.form.clear_errors()
-        self.status.value = "<span style='color:#3d5a80'>Solved.</span>"
+        self.status.value = render("solved")
         self.charts_box.remove_class("wb-stale")
         self._redraw()
         if self._handle is not None:  # the case output the calculation record reads
@@ -308,11 +300,7 @@ class Workbench:
     def _on_error(self, error: InputError) -> None:
         """The message beside the field the error names, in the status line; charts dimmed."""
         words = self.form.show_error(error)
-        self.status.value = (
-            "<span class='wb-msg'><b>Not solved:</b> "
-            f"{html.escape(words)}</span> "
-            "<i>(charts show the last valid case, dimmed)</i>"
-        )
+        self.status.value = render("not_solved", words)
         self.charts_box.add_class("wb-stale")
 
     # --- the panel's own controls -----------------------------------------------------------
@@ -330,8 +318,8 @@ class Workbench:
         if not self.state.change_units(change["new"]):
             with self.form.quiet():
                 self.units.value = change["old"]
-            self.status.value = (
-                "<span class='wb-msg'>Fix the fields marked in red before changing units.</span>"
+            self.status.value = render(
+                "warning", "Fix the fields marked in red before changing units."
             )
             return
         self._rebuild()
@@ -341,9 +329,9 @@ class Workbench:
         try:
             target = self.save()
         except (InputError, OSError) as error:
-            self.save_message.value = f"<span class='wb-msg'>{html.escape(str(error))}</span>"
+            self.save_message.value = render("warning", str(error))
             return
-        self.save_message.value = f"saved to {html.escape(str(target))}"
+        self.save_message.value = render("text", f"saved to {target}")
 
     def open_modes(self) -> None:
         """Open the Modes section (its charts then follow every edit)."""

@@ -9,6 +9,7 @@ import ipywidgets as w
 from workbench.panel.document import Path, get_at, shaft_length
 from workbench.panel.editors.fatigue import FatigueEditor
 from workbench.panel.form import Editor, Form, button, clean_number, row, sized
+from workbench.panel.markup import render
 from workbench.solver.allowables import SHEAR_CRITERIA
 
 
@@ -46,7 +47,13 @@ class DesignEditor(Editor):
                 optional=True,
                 width="300px",
             ),
-            w.HTML("<b>Rotation limits</b>: largest |θ(end) − θ(start)| between two stations"),
+            w.HTML(
+                render(
+                    "heading",
+                    "Rotation limits",
+                    ": largest |θ(end) − θ(start)| between two stations",
+                )
+            ),
             *self._rotation_limit_rows(),
             w.HBox(
                 [

@@ -6,6 +6,7 @@ import ipywidgets as w
 
 from workbench.panel.document import Path, get_at, result_names
 from workbench.panel.form import Form, row, sized
+from workbench.panel.markup import render
 from workbench.solver.fatigue import FATIGUE_CRITERIA, RELIABILITY_FACTORS, SURFACE_FINISHES
 
 #: How the two torque states are given.
@@ -26,7 +27,9 @@ class FatigueEditor:
         switch = w.Checkbox(value=isinstance(fatigue, dict), description="fatigue check")
         switch.observe(lambda c: self.switch(c["new"]), "value")
         rows: list[w.Widget] = [
-            w.HTML("<b>Fatigue</b> under a torque that fluctuates between two results"),
+            w.HTML(
+                render("heading", "Fatigue", " under a torque that fluctuates between two results")
+            ),
             w.HBox([switch, form.message(("design", "fatigue"))]),
         ]
         if not isinstance(fatigue, dict):

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import html
 from collections.abc import Callable
 from typing import Any
 
@@ -10,6 +9,7 @@ import ipywidgets as w
 
 from workbench.panel.document import Path, clone, get_at, set_at
 from workbench.panel.form import Editor, Form, button, row, sized
+from workbench.panel.markup import render
 
 #: The section shapes edited in a row, with their size keys (other shapes: in the case file).
 SHAPE_KEYS = {
@@ -67,7 +67,7 @@ class SegmentsEditor(Editor):
                         dims.append((f"segment {k} · {words}", path))
             else:
                 kind = "layers" if "layers" in segment else str((section or {}).get("shape"))
-                parts.append(w.HTML(f"<i>{html.escape(kind)} section: edit in the case file</i>"))
+                parts.append(w.HTML(render("italic", f"{kind} section: edit in the case file")))
             if "material" in segment:
                 options = sorted({*materials, segment["material"]})
                 parts.append(form.choice((*base, "material"), "", options, width="130px"))

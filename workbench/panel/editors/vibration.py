@@ -6,6 +6,7 @@ import ipywidgets as w
 
 from workbench.panel.document import Path, shaft_length
 from workbench.panel.form import Editor, button, clean_number, row, sized
+from workbench.panel.markup import render
 from workbench.solver.modes import DEFAULT_FREQUENCY_MARGIN
 
 
@@ -17,7 +18,9 @@ class VibrationEditor(Editor):
     def build(self) -> None:
         form = self.form
         doc = self.document
-        rows: list[w.Widget] = [w.HTML("<b>Discs</b> (rigid rotors, flywheels, hubs)")]
+        rows: list[w.Widget] = [
+            w.HTML(render("heading", "Discs", " (rigid rotors, flywheels, hubs)"))
+        ]
         for n, _disc in enumerate(doc.get("discs") or []):
             base: Path = ("discs", n)
             parts = [
@@ -32,7 +35,7 @@ class VibrationEditor(Editor):
         rows.append(
             w.HBox([button("add disc", self.add_disc, width="110px"), form.message("discs")])
         )
-        rows.append(w.HTML("<b>Running-speed bands</b>"))
+        rows.append(w.HTML(render("heading", "Running-speed bands")))
         for n, _speed in enumerate(doc.get("operating_speeds") or []):
             base = ("operating_speeds", n)
             parts = [
@@ -60,7 +63,13 @@ class VibrationEditor(Editor):
                 default=DEFAULT_FREQUENCY_MARGIN,
             )
         )
-        rows.append(w.HTML("<b>Material density</b> (0 = massless; the segments then only spring)"))
+        rows.append(
+            w.HTML(
+                render(
+                    "heading", "Material density", " (0 = massless; the segments then only spring)"
+                )
+            )
+        )
         for name in sorted((doc.get("materials") or {}).keys()):
             if isinstance(doc["materials"][name], dict):
                 rows.append(
