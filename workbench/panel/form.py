@@ -139,9 +139,21 @@ class Form:
         width: str = "150px",
         default: float = 0.0,
     ) -> w.HBox:
-        """A numeric entry bound to ``path``, with its unit shown (optional: 0 removes the key).
+        """A numeric entry bound to ``path``, with its unit shown beside it.
 
-        ``default`` is shown while the document has no value there (the solver's own default).
+        Parameters
+        ----------
+        path
+            The field; its unit comes from :func:`~workbench.panel.keys.quantity_of`.
+        description
+            The words before the entry.
+        optional
+            Whether 0 removes the key (the solver then takes its own default or none).
+        width
+            CSS width of the entry.
+        default
+            Shown while the document has no value there (the solver's own default), in the
+            document's units.
         """
         value = get_at(self.document, path)
         field = w.FloatText(
@@ -163,7 +175,19 @@ class Form:
     def slider(
         self, path: Path, description: str, low: float, high: float, width: str = "360px"
     ) -> w.FloatSlider:
-        """A slider bound to ``path`` (for the values worth dragging)."""
+        """A slider bound to ``path`` (for the values worth dragging).
+
+        Parameters
+        ----------
+        path
+            The field; its unit comes from :func:`~workbench.panel.keys.quantity_of`.
+        description
+            The words before the slider (its unit follows in brackets).
+        low, high
+            The slider's range in the document's units (widened to hold the present value).
+        width
+            CSS width of the slider.
+        """
         value = float(get_at(self.document, path) or 0.0)
         low, high = min(low, value), max(high, value)
         field = w.FloatSlider(
