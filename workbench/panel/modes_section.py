@@ -238,14 +238,14 @@ def _frequencies_html(modes: Modes, units: UnitSystem) -> str:
     for mode in range(len(modes)):
         where, x = modes.antinode(mode)
         rows.append(
-            {
-                "mode": mode + 1,
-                "rigid": bool(modes.rigid_body[mode]),
-                "hertz": f"{modes.frequency[mode]:.4g}",
-                "rpm": f"{float(rpm(modes.angular_frequency[mode])):.4g}",
-                "where": where,
-                "x": f"{units.from_si(x, 'length'):.4g}",
-            }
+            (
+                mode + 1,
+                bool(modes.rigid_body[mode]),
+                f"{modes.frequency[mode]:.4g}",
+                f"{float(rpm(modes.angular_frequency[mode])):.4g}",
+                where,
+                f"{units.from_si(x, 'length'):.4g}",
+            )
         )
     length = unit_label(units, "length")
     count, elements = len(modes), modes.elements_per_segment

@@ -59,12 +59,8 @@ def summary_html(values: dict[str, float], report: CheckReport, result: str) -> 
     governing = report.governing
     where = None
     if governing is not None:
-        where = {
-            "kind": governing.kind.replace("_", " "),
-            "shaft": governing.shaft,
-            "segment": governing.segment,
-            "result": governing.result,
-        }
+        kind = governing.kind.replace("_", " ")
+        where = (kind, governing.shaft, governing.segment, governing.result)
     verdict = "all checks pass" if report.passes else "SOME CHECKS FAIL"
     cells = [(key, f"{value:.4g}") for key, value in values.items()]
     return render("summary", verdict, where, result, cells)
@@ -77,23 +73,22 @@ def checks_html(report: CheckReport, units: UnitSystem) -> str:
         key = (check.shaft, check.segment, check.kind)
         if key not in governing or check.utilisation > governing[key].utilisation:
             governing[key] = check
-    rows = []
-    for check in governing.values():
-        quantity = CHECK_QUANTITIES[check.kind]
-        rows.append(
-            {
-                "shaft": check.shaft,
-                "segment": "-" if check.segment is None else check.segment,
-                "kind": check.kind.replace("_", " "),
-                "result": check.result,
-                "value": f"{units.from_si(check.value, quantity):.4g}",
-                "limit": f"{units.from_si(check.limit, quantity):.4g}",
-                "unit": unit_label(units, quantity) if quantity else "",
-                "utilisation": f"{check.utilisation:.3f}",
-                "passes": check.passes,
-                "x": f"{units.from_si(check.x, 'length'):.4g}",
-            }
+    unit_of = {quantity: unit_label(units, quantity) for quantity in set(CHECK_QUANTITIES.values())}
+    rows = [
+        (
+            check.shaft,
+            "-" if check.segment is None else check.segment,
+            check.kind.replace("_", " "),
+            check.result,
+            f"{units.from_si(check.value, CHECK_QUANTITIES[check.kind]):.4g}",
+            f"{units.from_si(check.limit, CHECK_QUANTITIES[check.kind]):.4g}",
+            unit_of[CHECK_QUANTITIES[check.kind]],
+            f"{check.utilisation:.3f}",
+            check.passes,
+            f"{units.from_si(check.x, 'length'):.4g}",
         )
+        for check in governing.values()
+    ]
     return render("checks", unit_label(units, "length"), rows)
 
 
