@@ -29,7 +29,8 @@ from workbench.case.reference import markdown, readme_section
 from workbench.case.save import case_document
 from workbench.case.schema import case_schema
 from workbench.case.units import SI_UNITS
-from workbench.panel.document import KEY_QUANTITY, numeric_inputs
+from workbench.panel.keys import quantity_of
+from workbench.panel.whatif import numeric_inputs
 from workbench.solver.build import SECTIONS as SOLVER_SECTIONS
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
 
@@ -66,7 +67,7 @@ def test_a_quantity_changed_in_the_declaration_reaches_schema_parser_panel_and_r
     described = case_schema()["$defs"]["Segment"]["properties"]["fillet_radius"]["description"]
     assert described.endswith("[angle units]")
     # the panel's unit table says so, and labels the input in degrees
-    assert KEY_QUANTITY["fillet_radius"] == "angle"
+    assert quantity_of(("shafts", 0, "segments", 0, "fillet_radius")) == "angle"
     labels = dict(numeric_inputs(case))
     assert labels[("shafts", 0, "segments", 0, "fillet_radius")].endswith("fillet radius [deg]")
     # the README's key reference would say so

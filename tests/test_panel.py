@@ -13,57 +13,37 @@ import asyncio
 import html
 import json
 import math
-import shutil
 from pathlib import Path
 
 import ipywidgets as w
 import numpy as np
 import pytest
 
+from tests.panel_cases import (
+    box_of,
+    field,
+    message_beside,
+    open_demo,
+    shown_messages,
+    simple_case,
+)
+from workbench.case.errors import InputError
 from workbench.design.caution import CAUTION
 from workbench.design.checks import run_checks
 from workbench.panel import CASE_MIME_TYPE, Workbench
 from workbench.panel.document import get_at, normal_field, parse_path, plain_words
-from workbench.panel.sweep import SweepRequest, run_sweep
-from workbench.panel.workbench import _clean
+from workbench.panel.form import clean_number
+from workbench.panel.state import CaseState
+from workbench.panel.sweep import run_sweep
+from workbench.panel.sweep_request import SweepRequest
 from workbench.solver.analysis import solve
 from workbench.solver.io import load_case, parse_case
 from workbench.solver.sections import SolidCircle
 
-ROOT = Path(__file__).resolve().parents[1]
-CASE = ROOT / "notebooks" / "press_drive.json"
-
-
-def simple_case(diameter: float = 40.0, torque: float = 500.0) -> dict:
-    return {
-        "units": {"length": "mm", "torque": "N*m", "stress": "MPa", "angle": "deg"},
-        "materials": {"steel": {"shear_modulus": 80000, "yield_strength": 400}},
-        "shafts": [
-            {
-                "id": "s",
-                "segments": [
-                    {
-                        "length": 1000,
-                        "material": "steel",
-                        "section": {"shape": "solid", "diameter": diameter},
-                    }
-                ],
-            }
-        ],
-        "supports": [{"shaft": "s", "x": 0, "kind": "fixed"}],
-        "load_cases": [{"name": "drive", "torques": [{"shaft": "s", "x": 1000, "torque": torque}]}],
-    }
-
-
-def field(panel: Workbench, path: str):
-    return panel._fields[path][0]
-
 
 @pytest.fixture
 def panel(tmp_path: Path) -> Workbench:
-    target = tmp_path / "press_drive.json"
-    shutil.copy(CASE, target)
-    return Workbench.open(target, show=False)
+    return open_demo(tmp_path)
 
 
 def test_closed_form_end_torque() -> None:
@@ -114,33 +94,6 @@ def test_slider_and_text_stay_in_step(panel: Workbench) -> None:
     panel.diameter_slider.value = 52.0
     assert field(panel, path).value == 52.0
     assert panel.document["shafts"][0]["segments"][0]["section"]["diameter"] == 52
-
-
-def box_of(root: w.Widget, widget: w.Widget) -> w.Box | None:
-    """The box whose children hold ``widget`` (depth-first through boxes and tabs)."""
-    children = getattr(root, "children", ())
-    if widget in children:
-        return root
-    for child in children:
-        found = box_of(child, widget)
-        if found is not None:
-            return found
-    return None
-
-
-def message_beside(panel: Workbench, path: str) -> w.HTML:
-    """The one message line in the same box as the field at ``path``, after the field."""
-    entry = field(panel, path)
-    box = box_of(panel.root, entry)
-    assert box is not None, f"{path} is not shown in the panel"
-    after = list(box.children)[list(box.children).index(entry) + 1 :]
-    lines = [c for c in after if isinstance(c, w.HTML) and "wb-msg" in c._dom_classes]
-    assert len(lines) == 1
-    return lines[0]
-
-
-def shown_messages(panel: Workbench) -> list[str]:
-    return [line.value for lines in panel._messages.values() for line in lines if line.value]
 
 
 def chart_data(panel: Workbench) -> dict[str, np.ndarray]:
@@ -196,7 +149,7 @@ def test_bad_value_message_beside_its_field(
     assert "wb-stale" in panel.charts_box._dom_classes
     assert "Not solved" in panel.status.value
     assert same_data(panel, good_data)  # the last good results stay up
-    assert get_at(panel.document, parse_path(path)) == _clean(bad)  # nothing typed is lost
+    assert get_at(panel.document, parse_path(path)) == clean_number(bad)  # nothing typed is lost
     assert entry.value == bad
     entry.value = good
     assert not panel.stale
@@ -212,7 +165,7 @@ def test_bad_value_on_slider_and_entry_of_one_field(panel: Workbench) -> None:
     good_data = chart_data(panel)
     field(panel, path).value = -2.0
     assert "greater than zero (-2 mm)" in message_beside(panel, path).value
-    drag = panel._messages[path][-1]
+    drag = panel.form.messages[path][-1]
     assert drag in panel.dimension_box.children  # the drag slider's own message line
     assert drag.value == message_beside(panel, path).value
     assert panel.diameter_slider.min <= -2.0 and panel.diameter_slider.value == -2.0
@@ -224,7 +177,7 @@ def test_message_lands_on_the_row_when_no_field_shows_the_value(panel: Workbench
     layers = panel.document["shafts"][0]["segments"][3]["layers"]
     layers[1]["section"]["diameter"] = 0
     assert not panel.refresh()
-    row = panel._messages["shafts[0].segments[3]"][0]
+    row = panel.form.messages["shafts[0].segments[3]"][0]
     assert "layer 1" in row.value and "greater than zero" in row.value
     assert shown_messages(panel) == [row.value]
 
@@ -232,7 +185,7 @@ def test_message_lands_on_the_row_when_no_field_shows_the_value(panel: Workbench
 def test_torque_drag_moves_the_jump(panel: Workbench) -> None:
     panel.result.value = "jam"
     panel.case_picker.value = 1
-    x_slider = panel._fields["load_cases[1].torques[0].x"][0]
+    x_slider = panel.form.fields["load_cases[1].torques[0].x"][0]
     x_slider.value = 400.0
     x = np.array(panel.charts.torque.now.x)
     torque = np.array(panel.charts.torque.now.y)
@@ -248,7 +201,7 @@ def test_add_support_and_switch_kind(panel: Workbench) -> None:
     assert not panel.stale
     assert len(panel.results.reactions[0]) == count + 1
     assert len(panel.charts.fixed.x) == 2  # x = 0 and the new one at the end
-    panel._set_support_kind(count, "spring")
+    panel.supports_editor.set_kind(count, "spring")
     assert panel.document["supports"][count]["kind"] == "spring"
     assert len(panel.charts.spring.x) == 2
 
@@ -273,14 +226,14 @@ def test_switch_result_and_units(panel: Workbench) -> None:
 def test_structural_segment_edits(panel: Workbench) -> None:
     segments = panel.document["shafts"][0]["segments"]
     first = json.dumps(segments[0])
-    panel._move_segment(0, 1)
+    panel.segments_editor.move(0, 1)
     assert json.dumps(panel.document["shafts"][0]["segments"][1]) == first
-    panel._add_segment(0)
+    panel.segments_editor.add(0)
     assert len(panel.document["shafts"][0]["segments"]) == 5
     assert len(panel.charts.bars.y) == 5
-    panel._set_shape(("shafts", 0, "segments", 4), "solid")
+    panel.segments_editor.set_shape(("shafts", 0, "segments", 4), "solid")
     assert panel.document["shafts"][0]["segments"][4]["section"]["shape"] == "solid"
-    panel._remove(("shafts", 0, "segments"), 4)
+    panel.form.remove(("shafts", 0, "segments"), 4)
     assert len(panel.charts.bars.y) == 4
 
 
@@ -345,7 +298,7 @@ def test_save_and_reopen(panel: Workbench, tmp_path: Path) -> None:
     assert load_case(panel.path) == panel.model
     # Saving a case with errors is refused and the file is left as it was.
     field(panel, "shafts[0].segments[0].section.diameter").value = -1.0
-    panel._on_save(None)
+    panel.save_button.click()
     assert "errors" in panel.save_message.value
     section = load_case(panel.path).shafts[0].segments[0].layers[0].section
     assert isinstance(section, SolidCircle) and section.diameter == 0.048
@@ -364,9 +317,9 @@ def test_case_output_for_the_record(panel: Workbench) -> None:
 def test_caution_and_mechanism_message(panel: Workbench) -> None:
     assert CAUTION in panel.caution.value
     for _ in range(len(panel.document["supports"])):
-        panel._remove(("supports",), 0)
+        panel.form.remove(("supports",), 0)
     assert panel.stale
-    assert "free to spin" in panel._messages["supports"][0].value
+    assert "free to spin" in panel.form.messages["supports"][0].value
 
 
 def test_burst_in_a_kernel_loop_solves_once_in_the_last_state(panel: Workbench) -> None:
@@ -476,7 +429,7 @@ def test_rotation_limit_editor_closed_form() -> None:
     field(panel, "design.rotation_limits[0].start").value = 400.0
     assert rotation_check().value == pytest.approx(T * 0.6 / (G * J), rel=1e-9)
     assert "rotation" in panel.check_table.value
-    panel._remove_rotation_limit(0)
+    panel.design_editor.remove_rotation_limit(0)
     assert "rotation_limits" not in panel.document["design"]
     assert not [c for c in panel.report.checks if c.kind == "rotation"]
 
@@ -494,265 +447,6 @@ def test_plain_words_and_field_paths() -> None:
     assert normal_field("gears[0].gears[0].a.radius") == "gears[0].a.radius"
     assert normal_field("shafts[0].segments[1].length") == "shafts[0].segments[1].length"
     assert parse_path("design.rotation_limits[0].end") == ("design", "rotation_limits", 0, "end")
-
-
-# --- vibration and fatigue ------------------------------------------------------------------
-
-
-#: A spring support so soft (N·m/deg) that the two-disc system is free–free to 3e-6 of k.
-SOFT = 1e-3
-
-
-def two_disc_case(inertia_a: float = 0.2, inertia_b: float = 0.05) -> dict:
-    """A massless solid shaft between two discs on a very soft spring (statics needs one)."""
-    case = simple_case()
-    case["units"]["inertia"] = "kg*m**2"
-    case["supports"] = [{"shaft": "s", "x": 0, "kind": "spring", "stiffness": SOFT}]
-    case["load_cases"] = [{"name": "none"}]
-    case["discs"] = [
-        {"shaft": "s", "x": 0, "inertia": inertia_a},
-        {"shaft": "s", "x": 1000, "inertia": inertia_b},
-    ]
-    return case
-
-
-def test_modes_chart_shows_natural_modes_of_the_case(panel: Workbench) -> None:
-    from workbench.panel.charts import MODES_SHOWN, rpm
-    from workbench.solver.modes import natural_modes
-
-    panel.open_modes()
-    expected = natural_modes(load_case(CASE))
-    modes = panel.modes
-    assert modes is not None
-    np.testing.assert_array_equal(modes.angular_frequency, expected.angular_frequency)
-    shown = min(MODES_SHOWN, len(expected))
-    x_mm = expected.shape(0, "auger")[0] * 1e3
-    lines = np.asarray(panel.charts_box and panel.modes_chart.flexible.y)
-    for mode in range(shown):
-        np.testing.assert_allclose(lines[mode], expected.shape(mode, "auger")[1], rtol=1e-12)
-    np.testing.assert_allclose(panel.modes_chart.flexible.x[0], x_mm, rtol=1e-12)
-    assert panel.modes_chart.flexible.labels[0] == f"mode 1: {expected.frequency[0]:.4g} Hz"
-    np.testing.assert_allclose(
-        panel.modes_chart.frequency_marks.x, rpm(expected.angular_frequency), rtol=1e-12
-    )
-    # The running-speed band 20–45 rpm of the case, and widened by the ±20 % margin.
-    bands = np.atleast_2d(panel.modes_chart.bands.x)
-    widened = np.atleast_2d(panel.modes_chart.widened.x)
-    np.testing.assert_allclose(bands[0][:2], [20.0, 45.0], rtol=1e-12)
-    np.testing.assert_allclose(widened[0][:2], [16.0, 54.0], rtol=1e-12)
-    assert f"{expected.frequency[0]:.4g}" in panel.frequency_table.value
-    # Live: a diameter edit changes the frequencies drawn.
-    before = panel.modes_chart.frequency_marks.x.copy()
-    field(panel, "shafts[0].segments[1].section.outer_diameter").value = 90.0
-    assert not np.allclose(panel.modes_chart.frequency_marks.x, before)
-    again = natural_modes(parse_case(panel.document))
-    np.testing.assert_allclose(panel.modes_chart.frequency_marks.x, rpm(again.angular_frequency))
-
-
-def test_two_disc_frequency_follows_a_disc_inertia_edit() -> None:
-    # Two discs on a massless shaft of stiffness k = G·J/L, free at both ends:
-    # ω² = k·(J1 + J2)/(J1·J2) (Rao, Mechanical Vibrations, two-rotor torsional system; from
-    # memory). With the soft spring ks at disc 1 the exact roots solve
-    # J1·J2·ω⁴ − (J1·k + J2·(k + ks))·ω² + k·ks = 0 (two-degree-of-freedom system, same source).
-    panel = Workbench(two_disc_case())
-    panel.open_modes()
-    stiffness = 80e9 * math.pi * 0.040**4 / 32 / 1.0
-    spring = SOFT * 180 / math.pi
-
-    def free_free(inertia_a: float, inertia_b: float) -> float:
-        omega = math.sqrt(stiffness * (inertia_a + inertia_b) / (inertia_a * inertia_b))
-        return omega / (2 * math.pi)
-
-    def on_spring(inertia_a: float, inertia_b: float) -> float:
-        roots = np.roots(
-            [
-                inertia_a * inertia_b,
-                -(inertia_a * stiffness + inertia_b * (stiffness + spring)),
-                stiffness * spring,
-            ]
-        )
-        return math.sqrt(max(roots)) / (2 * math.pi)
-
-    modes = panel.modes
-    assert modes is not None and len(modes) == 2
-    assert modes.frequency[1] == pytest.approx(on_spring(0.2, 0.05), rel=1e-9)
-    assert modes.frequency[1] == pytest.approx(free_free(0.2, 0.05), rel=1e-5)
-    field(panel, "discs[1].inertia").value = 0.1
-    modes = panel.modes
-    assert modes is not None
-    assert modes.frequency[1] == pytest.approx(on_spring(0.2, 0.1), rel=1e-9)
-    assert modes.frequency[1] == pytest.approx(free_free(0.2, 0.1), rel=1e-5)
-    listed = f"{modes.frequency[1]:.4g}"
-    assert f"<td>{listed}</td>" in panel.frequency_table.value
-    assert panel.modes_chart.flexible.labels[1] == f"mode 2: {listed} Hz"
-
-
-def test_rigid_body_modes_are_marked() -> None:
-    # A free–free two-disc system (statics refuses it, so the chart is drawn directly): one
-    # rigid-body mode at 0 Hz, then ω² = k·(J1 + J2)/(J1·J2) (Rao, as above; from memory).
-    from workbench.panel.charts import ModesChart
-    from workbench.solver.modes import natural_modes
-
-    case = two_disc_case()
-    case["supports"] = []
-    modes = natural_modes(parse_case(case))
-    chart = ModesChart()
-    chart.draw(modes, 0, (), 0.2)
-    assert bool(modes.rigid_body[0]) and chart.rigid.visible
-    assert chart.rigid.labels == ["mode 1: rigid body (0 Hz)"]
-    np.testing.assert_allclose(chart.rigid.y, [1.0, 1.0])  # one rotation all along
-    stiffness = 80e9 * math.pi * 0.040**4 / 32
-    omega = math.sqrt(stiffness * 0.25 / (0.2 * 0.05))
-    assert chart.flexible.labels == [f"mode 2: {omega / (2 * math.pi):.4g} Hz"]
-
-
-def test_case_without_inertia_says_so() -> None:
-    panel = Workbench(simple_case())
-    panel.open_modes()
-    assert panel.modes is None
-    assert "no inertia" in panel.modes_message.value
-    assert panel.modes_figures.layout.display == "none"
-    # A density for the material gives the shaft inertia: the charts appear.
-    field(panel, "materials.steel.density").value = 7850.0
-    assert panel.modes is not None and panel.modes_message.value == ""
-    assert panel.modes_figures.layout.display is None
-
-
-def test_fatigue_diagram_lines_and_operating_point(panel: Workbench) -> None:
-    # Failure lines in the τm–τa plane (Budynas & Nisbett, Shigley's Mechanical Engineering
-    # Design, 9th ed., §6-12, Tables 6-6 and 6-7): modified Goodman through (0, Sse) and
-    # (Ssu, 0); Gerber parabola through the same intercepts; ASME ellipse through (0, Sse) and
-    # (Ssy, 0); Soderberg through (0, Sse) and (Ssy, 0); Langer through (0, Ssy) and (Ssy, 0).
-    from workbench.panel.workbench import governing_fatigue_points
-
-    panel.open_fatigue()
-    report = run_checks(solve(load_case(CASE)))
-    points = governing_fatigue_points(report, "auger")
-    governing = points[0]
-    factors = governing.factors
-    sse, ssu, ssy = (
-        factors.endurance_shear / 1e6,
-        factors.ultimate_shear / 1e6,
-        factors.yield_shear / 1e6,
-    )
-    xs, ys = panel.fatigue_chart.lines.x, panel.fatigue_chart.lines.y
-    intercepts = {
-        0: ((0, sse), (ssu, 0)),  # Goodman
-        1: ((0, sse), (ssu, 0)),  # Gerber
-        2: ((0, sse), (ssy, 0)),  # ASME elliptic
-        3: ((0, sse), (ssy, 0)),  # Soderberg
-        4: ((0, ssy), (ssy, 0)),  # Langer
-    }
-    for line, (start, end) in intercepts.items():
-        assert (xs[line][0], ys[line][0]) == pytest.approx(start, abs=1e-9)
-        assert (xs[line][-1], ys[line][-1]) == pytest.approx(end, abs=1e-9)
-    # Shape between the ends: Goodman straight, Gerber parabola, ASME quarter ellipse.
-    tm, ta = xs[0], ys[0]
-    np.testing.assert_allclose(ta / sse + tm / ssu, 1.0, rtol=1e-12)
-    np.testing.assert_allclose(ys[1], sse * (1 - (xs[1] / ssu) ** 2), rtol=1e-12, atol=1e-9)
-    np.testing.assert_allclose((ys[2] / sse) ** 2 + (xs[2] / ssy) ** 2, 1.0, rtol=1e-9)
-    # The operating point is the governing segment's FatiguePoint, in MPa.
-    assert panel.fatigue_chart.point.x[0] == pytest.approx(factors.mean_shear / 1e6, rel=1e-12)
-    assert panel.fatigue_chart.point.y[0] == pytest.approx(
-        factors.alternating_shear / 1e6, rel=1e-12
-    )
-    assert (governing.shaft, governing.segment) == ("auger", 0)
-    # The modified Goodman factor of the point is where the load line meets the line:
-    # n = 1/(τa/Sse + τm/Ssu) (Shigley, 9th ed., eq. 6-41).
-    n = 1 / (
-        factors.alternating_shear / factors.endurance_shear
-        + factors.mean_shear / factors.ultimate_shear
-    )
-    assert factors.goodman == pytest.approx(n, rel=1e-12)
-    assert len(panel.fatigue_chart.others.x) == len(points) - 1
-    # The criterion picked in the Design tab is the one drawn thick.
-    field(panel, "design.fatigue.criterion").value = "soderberg"
-    np.testing.assert_allclose(panel.fatigue_chart.chosen.x, xs[3])
-
-
-def test_fatigue_switch_and_result_pickers(panel: Workbench) -> None:
-    panel.open_fatigue()
-    pickers = panel._fields["design.fatigue.extremes[1]"]
-    pickers[0].value = "jam, factored"
-    assert panel.model is not None and panel.model.design is not None
-    assert panel.model.design.fatigue.extremes == ("pressing", "jam, factored")
-    switch = next(
-        x
-        for x in panel.design_box.children[-10:]
-        if isinstance(x, w.HBox)
-        and any(isinstance(c, w.Checkbox) and c.description == "fatigue check" for c in x.children)
-    )
-    box = next(c for c in switch.children if isinstance(c, w.Checkbox))
-    box.value = False
-    assert "fatigue" not in panel.document["design"]
-    assert "No fatigue check" in panel.fatigue_message.value
-    assert not any(c.kind == "fatigue" for c in panel.report.checks)
-
-
-@pytest.mark.parametrize(
-    ("path", "value", "words"),
-    [
-        ("discs[0].inertia", -1.0, "greater than zero"),
-        ("operating_speeds[0].max", 10.0, "must not be less than min"),
-        ("materials.auger-steel.density", -5.0, "greater than zero"),
-        ("design.frequency_margin", 1.5, "fraction from 0"),
-        ("design.fatigue.factor_of_safety", 0.5, "at least 1"),
-    ],
-)
-def test_bad_value_in_the_new_editors(
-    panel: Workbench, path: str, value: float, words: str
-) -> None:
-    field(panel, path).value = value
-    assert panel.stale
-    assert words in message_beside(panel, path).value
-    assert field(panel, path).value == value  # what was typed stays
-    assert "wb-bad" in field(panel, path)._dom_classes
-
-
-def test_bad_fatigue_pick_shows_beside_the_pickers(panel: Workbench) -> None:
-    from workbench.panel.document import set_at
-
-    set_at(panel.document, ("design", "fatigue", "extremes", 1), "nope")
-    panel.refresh()
-    assert panel.stale
-    labels = panel._messages["design.fatigue.extremes"]
-    assert any("unknown load case or combination" in label.value for label in labels)
-
-
-def test_add_and_remove_disc_and_speed_band(panel: Workbench) -> None:
-    panel._add_disc()
-    assert len(panel.document["discs"]) == 3 and not panel.stale
-    panel._add_speed()
-    assert panel.document["operating_speeds"][-1]["name"] == "band 2"
-    assert any(c.result == "band 2" for c in panel.report.checks)
-    panel._remove_listed("operating_speeds", 1)
-    panel._remove_listed("discs", 2)
-    assert len(panel.document["discs"]) == 2 and len(panel.document["operating_speeds"]) == 1
-
-
-def test_mean_stress_choice_moves_the_operating_point(panel: Workbench) -> None:
-    # "nominal" leaves Kfs off the mean stress (Kfsm = 1): the operating point's τm falls by the
-    # factor Kfs, τa stays (Shigley's Mechanical Engineering Design, 9th ed., eq. 6-36 with
-    # Kfsm = Kfs or 1). The demo's governing segment carries a keyseat, Kfs = 3.0.
-    from workbench.panel.workbench import governing_fatigue_points
-
-    panel.open_fatigue()
-    before = governing_fatigue_points(panel.report, "auger")[0]
-    chooser = field(panel, "design.fatigue.mean_concentration")
-    assert chooser.value == "kfs"
-    chooser.value = "none"
-    assert panel.document["design"]["fatigue"]["mean_concentration"] == "none"
-    after = governing_fatigue_points(panel.report, "auger")[0]
-    assert (after.shaft, after.segment) == (before.shaft, before.segment)
-    assert after.factors.mean_shear == pytest.approx(
-        before.factors.mean_shear / before.concentration, rel=1e-12
-    )
-    assert after.factors.alternating_shear == pytest.approx(
-        before.factors.alternating_shear, rel=1e-12
-    )
-    assert panel.fatigue_chart.point.x[0] == pytest.approx(
-        after.factors.mean_shear / 1e6, rel=1e-12
-    )
 
 
 def test_keyseat_and_notch_from_the_segment_row() -> None:
@@ -785,3 +479,75 @@ def test_keyseat_and_notch_from_the_segment_row() -> None:
     assert "notch" not in panel.document["shafts"][0]["segments"][0]
     assert not panel.stale
     assert largest("notch_stress") is None
+
+
+def html_shown(root: w.Widget) -> list[str]:
+    """The value of every HTML widget in the panel (depth-first through boxes and tabs)."""
+    found = [root.value] if isinstance(root, w.HTML) else []
+    for child in getattr(root, "children", ()):
+        found += html_shown(child)
+    return found
+
+
+def test_names_from_the_case_cannot_inject_markup() -> None:
+    # Untrusted text placed in HTML element content or attributes is escaped (OWASP Cross Site
+    # Scripting Prevention Cheat Sheet, output encoding for HTML contexts): names typed in a
+    # case file show as text and never become elements.
+    attack = "<img src=x onerror=alert(1)>"
+    case = simple_case()
+    case["title"] = f"title {attack}"
+    case["shafts"][0]["id"] = f"s{attack}"
+    case["supports"][0]["shaft"] = f"s{attack}"
+    case["load_cases"][0] = {
+        "name": f"drive{attack}",
+        "torques": [{"shaft": f"s{attack}", "x": 1000, "torque": 500}],
+    }
+    panel = Workbench(case)
+    field(panel, "shafts[0].segments[0].section.diameter").value = -1.0  # a message naming them
+    shown = html_shown(panel.root)
+    assert not [value for value in shown if "<img" in value]
+    escaped = "&lt;img src=x onerror=alert(1)&gt;"
+    assert escaped in panel.title.value
+    assert escaped in panel.status.value  # the field is named by its shaft's id
+    assert f"drive{escaped}" in panel.summary.value
+    assert f"s{escaped}" in panel.check_table.value
+
+
+def test_a_combination_factor_has_no_unit_whatever_its_case_is_called() -> None:
+    # A combination's factors are plain numbers (case-file contract: "factors": {"service": 1.5});
+    # a length is in the case's length unit. Common practice, no source.
+    case = simple_case()
+    case["load_cases"][0]["name"] = "length"
+    case["combinations"] = [{"name": "factored", "factors": {"length": 1.5}}]
+    panel = Workbench(case)
+
+    def units_beside(path: str) -> list[str]:
+        box = box_of(panel.root, field(panel, path))
+        assert box is not None
+        return [child.value for child in box.children if isinstance(child, w.Label)]
+
+    assert units_beside("combinations[0].factors.length") == []
+    assert units_beside("shafts[0].segments[0].length") == ["mm"]
+
+
+def test_case_state_alone_solves_keeps_the_last_good_results_and_names_the_field() -> None:
+    # The state needs no widget. τ_max = 16·T/(π·d³) (Gere & Goodno, 8th ed., eq. 3-13);
+    # 1 in = 25.4 mm exactly (NIST SP 811, 2008, appendix B.8).
+    solved: list[int] = []
+    errors: list[InputError] = []
+    state = CaseState(simple_case(), None, lambda: solved.append(state.solve_count), errors.append)
+    tau = 16 * 500.0 / (math.pi * 0.040**3)
+    assert state.refresh() and solved == [1]
+    assert state.results is not None
+    assert state.results.shear_stress.max() == pytest.approx(tau, rel=1e-9)
+    state.document["shafts"][0]["segments"][0]["section"]["diameter"] = -1
+    assert not state.refresh()
+    assert state.stale and solved == [1]
+    assert errors[-1].field == "shafts[0].segments[0].section.diameter"
+    assert state.results.shear_stress.max() == pytest.approx(tau, rel=1e-9)
+    assert not state.change_units("us")  # refused while the document has an error
+    state.document["shafts"][0]["segments"][0]["section"]["diameter"] = 40
+    assert state.refresh() and not state.stale
+    assert state.change_units("us")
+    diameter = state.document["shafts"][0]["segments"][0]["section"]["diameter"]
+    assert diameter == pytest.approx(40 / 25.4, rel=1e-11)  # the case file keeps 12 digits

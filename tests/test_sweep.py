@@ -27,7 +27,8 @@ from workbench.case.errors import InputError
 from workbench.design.checks import frequency_checks, frequency_utilisation_ceiling, run_checks
 from workbench.panel.document import Path as DocumentPath
 from workbench.panel.document import clone, set_at
-from workbench.panel.sweep import SweepRequest, _solo_metric, run_sweep
+from workbench.panel.sweep import _solo_metric, run_sweep
+from workbench.panel.sweep_request import SweepRequest
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 from workbench.solver.modes import DEFAULT_MODE_COUNT, natural_modes

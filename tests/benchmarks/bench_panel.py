@@ -60,11 +60,12 @@ def twenty_segment_case() -> dict[str, Any]:
 
 def run() -> list[Row]:
     from workbench.panel import Workbench
-    from workbench.panel.sweep import SweepRequest, run_sweep
+    from workbench.panel.sweep import run_sweep
+    from workbench.panel.sweep_request import SweepRequest
 
     document = twenty_segment_case()
     panel = Workbench(document)
-    field = panel._fields["shafts[0].segments[4].section.diameter"][0]
+    field = panel.form.fields["shafts[0].segments[4].section.diameter"][0]
     sizes = iter(np.tile(np.linspace(40.0, 60.0, 97), 50))
 
     def edit() -> None:
@@ -118,7 +119,8 @@ def run() -> list[Row]:
 
 def demo_sweep_rows() -> list[Row]:
     """Governing-utilisation sweeps of the demo case as the panel runs them (default chunks)."""
-    from workbench.panel.sweep import SweepRequest, run_sweep
+    from workbench.panel.sweep import run_sweep
+    from workbench.panel.sweep_request import SweepRequest
 
     document = json.loads(CASE.read_text(encoding="utf-8"))
     diameter = ("shafts", 0, "segments", 0, "section", "diameter")
@@ -159,7 +161,7 @@ def _burst(panel: Any, field: Any) -> Row:
         start = time.perf_counter()
         for value in values:
             field.value = float(value)
-        while panel._pending:  # the burst has ended: let the loop run the flush
+        while panel.state.pending:  # the burst has ended: let the loop run the flush
             await asyncio.sleep(0)
         return time.perf_counter() - start
 

@@ -4,6 +4,18 @@
 a notebook. :data:`CASE_MIME_TYPE` names the output that carries the case the engineer saw; the
 calculation record reads the last output of that type. Importing this package stays light: the
 widgets load on first use of :class:`Workbench`.
+
+The modules, from the document up (the panel calls the solver and never computes mechanics):
+
+- ``document``: the case document's paths, units and plain words; ``keys``: the quantity (so
+  the unit) of each case-file key, one lookup;
+- ``state``: the case being edited, its solve, the coalescing of edit bursts (no widgets);
+- ``form``: fields bound to document paths and the messages beside them; ``editors/``: one tab
+  per group of keys; ``whatif``: baseline and the sweep's widgets;
+- ``sweep_request`` and ``sweep``: what a sweep asks for, and its computation;
+- ``plotting``, ``charts``, ``modes_section``, ``fatigue_section``, ``summary``: what is drawn;
+  ``markup`` and ``templates/``: all the panel's HTML, autoescaped;
+- ``workbench``: the :class:`Workbench` widget composing them.
 """
 
 from __future__ import annotations

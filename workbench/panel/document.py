@@ -11,10 +11,8 @@ from __future__ import annotations
 
 import copy
 import re
-from collections.abc import Iterator, Mapping
 from typing import Any
 
-from workbench.case.declaration import key_quantities
 from workbench.case.units import SI_ENGINEERING, UnitSystem, us_customary
 
 Path = tuple[str | int, ...]
@@ -203,65 +201,32 @@ def clone(document: Any) -> Any:
     return copy.deepcopy(document)
 
 
-#: The quantity of each numeric key the panel shows, for its unit label: the case-file
-#: declaration's, looked up when asked.
-KEY_QUANTITY: Mapping[str, str | None] = key_quantities()
+def remove_item(document: Any, path: Path, index: int, *, drop_empty: bool = False) -> None:
+    """Remove item ``index`` of the list at ``path`` (and, with ``drop_empty``, a list left empty)."""
+    items = get_at(document, path)
+    items.pop(index)
+    if drop_empty and not items:
+        get_at(document, path[:-1]).pop(path[-1])
 
 
-def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:
-    """Every numeric input of a case document a sweep may vary, as (path, readable label)."""
-    units = document.get("units")
-    system = UnitSystem(**units) if units else UnitSystem()
+def rename(document: dict[str, Any], path: Path, name: str) -> None:
+    """Set the name at ``path``; a load case's new name follows into the combinations' factors."""
+    old = get_at(document, path)
+    set_at(document, path, name)
+    if path[0] == "load_cases":
+        for combination in document.get("combinations", []):
+            factors = combination.get("factors", {})
+            if old in factors:
+                factors[name] = factors.pop(old)
 
-    def label(key: str) -> str:
-        quantity = KEY_QUANTITY.get(key)
-        unit = f" [{unit_label(system, quantity)}]" if quantity else ""
-        return key.replace("_", " ") + unit
 
-    for s, shaft in enumerate(document.get("shafts", [])):
-        for k, segment in enumerate(shaft.get("segments", [])):
-            where = f"{shaft.get('id')} segment {k}"
-            base: Path = ("shafts", s, "segments", k)
-            for key in ("length", "fillet_radius"):
-                if isinstance(segment.get(key), (int, float)):
-                    yield (*base, key), f"{where} · {label(key)}"
-            section = segment.get("section")
-            if isinstance(section, dict):
-                for key, value in section.items():
-                    if isinstance(value, (int, float)) and not isinstance(value, bool):
-                        yield (*base, "section", key), f"{where} · {label(key)}"
-    for n, support in enumerate(document.get("supports", [])):
-        for key in ("x", "stiffness", "rotation"):
-            if isinstance(support.get(key), (int, float)):
-                yield ("supports", n, key), f"support {n} · {label(key)}"
-    for n, gear in enumerate(document.get("gears", [])):
-        for end in ("a", "b"):
-            for key in ("x", "radius"):
-                if isinstance(gear.get(end, {}).get(key), (int, float)):
-                    yield ("gears", n, end, key), f"gear {n}{end} · {label(key)}"
-    for c, case in enumerate(document.get("load_cases", [])):
-        for n, torque in enumerate(case.get("torques", [])):
-            for key in ("torque", "x"):
-                if isinstance(torque.get(key), (int, float)):
-                    yield (
-                        ("load_cases", c, "torques", n, key),
-                        f"{case.get('name')} torque {n} · {label(key)}",
-                    )
-        for n, load in enumerate(case.get("distributed", [])):
-            for key in ("intensity_start", "intensity_end", "start", "end"):
-                if isinstance(load.get(key), (int, float)):
-                    yield (
-                        ("load_cases", c, "distributed", n, key),
-                        f"{case.get('name')} distributed {n} · {label(key)}",
-                    )
-    for n, disc in enumerate(document.get("discs") or []):
-        for key in ("inertia", "x"):
-            if isinstance(disc.get(key), (int, float)):
-                yield ("discs", n, key), f"disc {n} · {label(key)}"
-    for name, material in (document.get("materials") or {}).items():
-        if isinstance(material, dict) and isinstance(material.get("density"), (int, float)):
-            yield ("materials", name, "density"), f"{name} · {label('density')}"
-    design = document.get("design") or {}
-    for key in ("factor_of_safety", "allowable_shear_stress", "max_twist_rate"):
-        if isinstance(design.get(key), (int, float)):
-            yield ("design", key), f"design · {label(key)}"
+def result_names(document: dict[str, Any]) -> list[Any]:
+    """The names of the load cases, then of the combinations (the results, in file order)."""
+    return [c.get("name") for c in document.get("load_cases", [])] + [
+        c.get("name") for c in document.get("combinations", [])
+    ]
+
+
+def shaft_length(shaft: dict[str, Any]) -> float:
+    """The length of a shaft of the document: its segments' lengths added (document units)."""
+    return sum(float(segment.get("length", 0)) for segment in shaft.get("segments", []))

@@ -1,4 +1,9 @@
-"""Sweeps: vary one input of a case over a range and follow one result.
+"""Sweeps: vary one input of a case over a range and follow one result (the computation).
+
+The What-if tab (:mod:`workbench.panel.whatif`) asks for a sweep with a
+:class:`~workbench.panel.sweep_request.SweepRequest` and reads :func:`sweep_chunks`; nothing else
+of this module is used by the panel, so moving the computation onto another solver entry point
+changes this module only.
 
 No mechanics here: every point is solved by :func:`workbench.solver.analysis.solve` and checked by
 :func:`workbench.design.checks.run_checks`. What this module adds is batching, so a sweep costs a
@@ -27,7 +32,6 @@ from __future__ import annotations
 import dataclasses
 import math
 from collections.abc import Callable, Iterator, Sequence
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -41,57 +45,19 @@ from workbench.design.checks import (
     run_checks,
 )
 from workbench.design.fatigue_check import fatigue_checks
-from workbench.panel.document import KEY_QUANTITY, Path, clone, get_at, path_text, set_at
+from workbench.panel.document import Path, clone, get_at, path_text, set_at
+from workbench.panel.keys import quantity_of
+from workbench.panel.sweep_request import SweepRequest
 from workbench.solver.analysis import Results, solve
 from workbench.solver.io import parse_case
 from workbench.solver.model import Combination, LoadCase, Model, Shaft
 
-#: Results a sweep can follow, by key: (label, quantity of the value).
-METRICS: dict[str, tuple[str, str | None]] = {
-    "max_shear_stress": ("largest shear stress", "stress"),
-    "max_angle": ("largest |angle of twist|", "angle"),
-    "governing_utilisation": ("governing utilisation (all results)", None),
-    "reaction": ("reaction of a support", "torque"),
-}
-
 _LINEAR_KEYS = {"torque", "intensity_start", "intensity_end"}
 
 
-@dataclass(frozen=True)
-class SweepRequest:
-    """One sweep.
-
-    Parameters
-    ----------
-    path
-        The input varied (a path into the case document).
-    values
-        Its values, in the document's units.
-    metric
-        A :data:`METRICS` key.
-    result
-        The load case or combination followed (the governing utilisation covers all results).
-    support
-        The support whose reaction is followed, for ``metric="reaction"``.
-    """
-
-    path: Path
-    values: tuple[float, ...]
-    metric: str
-    result: str
-    support: int = 0
-
-    def __post_init__(self) -> None:
-        if self.metric not in METRICS:
-            msg = f"unknown result {self.metric!r}; choose one of {', '.join(METRICS)}"
-            raise InputError("metric", msg)
-        if not self.values:
-            raise InputError("values", "a sweep needs at least one value")
-
-    @property
-    def linear(self) -> bool:
-        """Whether the input is a load magnitude (the points superpose)."""
-        return self.path[0] == "load_cases" and self.path[-1] in _LINEAR_KEYS
+def _is_linear(request: SweepRequest) -> bool:
+    """Whether the input is a load magnitude (the points superpose)."""
+    return request.path[0] == "load_cases" and request.path[-1] in _LINEAR_KEYS
 
 
 def sweep_chunks(
@@ -111,7 +77,7 @@ def sweep_chunks(
     values = np.full(len(request.values), np.nan)
     for start in range(0, len(request.values), chunk):
         part = request.values[start : start + chunk]
-        if request.linear:
+        if _is_linear(request):
             values[start : start + len(part)] = _linear_chunk(base, request, part)
         else:
             values[start : start + len(part)] = _copies_chunk(document, base, request, part)
@@ -219,7 +185,7 @@ def _load_variant(
     Raises :class:`InputError` when the value is not a valid load.
     """
     kind, item, key = path[2], int(path[3]), str(path[4])
-    si = float(to_si(value, KEY_QUANTITY[key] or "torque"))
+    si = float(to_si(value, quantity_of(path) or "torque"))
     name = _variant(swept.name, number)
     if kind == "torques":
         torques = list(swept.torques)

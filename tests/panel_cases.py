@@ -1,0 +1,72 @@
+"""Cases and widget look-ups shared by the panel's tests (invented data)."""
+
+from __future__ import annotations
+
+import shutil
+from pathlib import Path
+
+import ipywidgets as w
+
+from workbench.panel import Workbench
+
+ROOT = Path(__file__).resolve().parents[1]
+CASE = ROOT / "notebooks" / "press_drive.json"
+
+
+def simple_case(diameter: float = 40.0, torque: float = 500.0) -> dict:
+    return {
+        "units": {"length": "mm", "torque": "N*m", "stress": "MPa", "angle": "deg"},
+        "materials": {"steel": {"shear_modulus": 80000, "yield_strength": 400}},
+        "shafts": [
+            {
+                "id": "s",
+                "segments": [
+                    {
+                        "length": 1000,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": diameter},
+                    }
+                ],
+            }
+        ],
+        "supports": [{"shaft": "s", "x": 0, "kind": "fixed"}],
+        "load_cases": [{"name": "drive", "torques": [{"shaft": "s", "x": 1000, "torque": torque}]}],
+    }
+
+
+def field(panel: Workbench, path: str):
+    return panel.form.fields[path][0]
+
+
+def open_demo(folder: Path) -> Workbench:
+    """The demo case, copied into ``folder``, open in a panel (not displayed)."""
+    target = folder / "press_drive.json"
+    shutil.copy(CASE, target)
+    return Workbench.open(target, show=False)
+
+
+def box_of(root: w.Widget, widget: w.Widget) -> w.Box | None:
+    """The box whose children hold ``widget`` (depth-first through boxes and tabs)."""
+    children = getattr(root, "children", ())
+    if widget in children:
+        return root
+    for child in children:
+        found = box_of(child, widget)
+        if found is not None:
+            return found
+    return None
+
+
+def message_beside(panel: Workbench, path: str) -> w.HTML:
+    """The one message line in the same box as the field at ``path``, after the field."""
+    entry = field(panel, path)
+    box = box_of(panel.root, entry)
+    assert box is not None, f"{path} is not shown in the panel"
+    after = list(box.children)[list(box.children).index(entry) + 1 :]
+    lines = [c for c in after if isinstance(c, w.HTML) and "wb-msg" in c._dom_classes]
+    assert len(lines) == 1
+    return lines[0]
+
+
+def shown_messages(panel: Workbench) -> list[str]:
+    return [line.value for lines in panel.form.messages.values() for line in lines if line.value]

@@ -1,0 +1,396 @@
+"""Fields bound to the case document: entries, sliders, pickers, their message lines and marks.
+
+A :class:`Form` makes the widgets every editor is built from. Each widget is bound to a path of
+the case document: an edit is written there, mirrored into the other widgets of the same field
+(a slider and its entry), and handed to the :class:`~workbench.panel.state.CaseState`. An error is
+shown in plain words on the message line nearest to the field it names (the field, else its row,
+else its list), and the field is marked. :class:`Editor` is the base of each editor tab
+(:mod:`workbench.panel.editors`).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from typing import Any
+
+import ipywidgets as w
+
+from workbench.case.errors import InputError
+from workbench.panel.document import (
+    Path,
+    css_name,
+    field_words,
+    get_at,
+    normal_field,
+    parse_path,
+    path_text,
+    plain_words,
+    remove_item,
+    rename,
+    set_at,
+    unit_label,
+)
+from workbench.panel.keys import quantity_of
+from workbench.panel.markup import render
+from workbench.panel.state import CaseState
+
+#: Message lines whose key starts so are not an editor's: they outlive a rebuild of the editors.
+_KEPT_MESSAGES = "whatif"
+
+
+def sized(width: str) -> w.Layout:
+    """A widget layout of the given CSS width."""
+    return w.Layout(width=width)
+
+
+def clean_number(value: float) -> float | int:
+    """Drop float noise from widget values (12 significant digits; whole numbers as int)."""
+    rounded = float(f"{value:.12g}")
+    return int(rounded) if rounded.is_integer() and abs(rounded) < 1e15 else rounded
+
+
+def button(text: str, action: Callable[..., Any], width: str = "34px") -> w.Button:
+    """A button that runs ``action`` when clicked."""
+    widget = w.Button(description=text, layout=sized(width))
+    widget.on_click(lambda _: action())
+    return widget
+
+
+class Form:
+    """The fields of the editors, bound to the case document of ``state``.
+
+    Parameters
+    ----------
+    state
+        The case being edited.
+    rebuild
+        Rebuilds every editor from the document (after a structural change).
+    """
+
+    def __init__(self, state: CaseState, rebuild: Callable[[], None]) -> None:
+        self.state = state
+        self._rebuild = rebuild
+        #: The widgets of each field, by path text (``shafts[0].segments[1].length``).
+        self.fields: dict[str, list[w.Widget]] = {}
+        #: The message lines of each field, row or list, by path text.
+        self.messages: dict[str, list[w.HTML]] = {}
+        self._shown: list[w.HTML] = []
+        self._bad: list[w.Widget] = []
+        #: While set, widget changes are the panel's own (a rebuild, a mirror), not edits.
+        self.muted = False
+
+    @property
+    def document(self) -> dict[str, Any]:
+        """The case document edited."""
+        return self.state.document
+
+    def unit(self, quantity: str | None) -> str:
+        """The pretty unit of a quantity in the panel's units (empty for a plain number)."""
+        return unit_label(self.state.units, quantity) if quantity else ""
+
+    @contextmanager
+    def quiet(self) -> Iterator[None]:
+        """Widget changes inside the block are not edits."""
+        self.muted = True
+        try:
+            yield
+        finally:
+            self.muted = False
+
+    def reset(self) -> None:
+        """Forget the editors' fields and message lines (they are about to be rebuilt)."""
+        self.fields.clear()
+        self.messages = {k: v for k, v in self.messages.items() if k.startswith(_KEPT_MESSAGES)}
+        self._shown, self._bad = [], []
+
+    # --- building fields ------------------------------------------------------------------------
+
+    def register(self, path: Path, widget: w.Widget) -> None:
+        """Bind ``widget`` to the field at ``path`` (its errors mark it; its edits mirror)."""
+        self.fields.setdefault(path_text(path), []).append(widget)
+        widget.add_class(f"wb-at-{css_name(path)}")  # lets a page find the field by its path
+
+    def forget(self, path: Path, widget: w.Widget, label: w.HTML) -> None:
+        """Unbind a widget and its message line from a field (a replaced drag slider)."""
+        key = path_text(path)
+        self.fields[key] = [x for x in self.fields.get(key, []) if x is not widget]
+        self.messages[key] = [x for x in self.messages.get(key, []) if x is not label]
+
+    def message(self, prefix: Path | str) -> w.HTML:
+        """An (empty) message line for errors of a field, or of a row or list named by a prefix."""
+        key = prefix if isinstance(prefix, str) else path_text(prefix)
+        label = w.HTML(layout=w.Layout(min_width="0"))
+        label.add_class("wb-msg")
+        label.add_class(f"wb-msg-{css_name(parse_path(key))}")
+        self.messages.setdefault(key, []).append(label)
+        return label
+
+    def beside(self, widget: w.Widget, path: Path, *extra: w.Widget) -> w.HBox:
+        """``widget`` (and its unit) with the message line of ``path`` right after it."""
+        return w.HBox([widget, *extra, self.message(path)], layout=w.Layout(align_items="center"))
+
+    def number(
+        self,
+        path: Path,
+        description: str,
+        *,
+        optional: bool = False,
+        width: str = "150px",
+        default: float = 0.0,
+    ) -> w.HBox:
+        """A numeric entry bound to ``path``, with its unit shown beside it.
+
+        Parameters
+        ----------
+        path
+            The field; its unit comes from :func:`~workbench.panel.keys.quantity_of`.
+        description
+            The words before the entry.
+        optional
+            Whether 0 removes the key (the solver then takes its own default or none).
+        width
+            CSS width of the entry.
+        default
+            Shown while the document has no value there (the solver's own default), in the
+            document's units.
+        """
+        value = get_at(self.document, path)
+        field = w.FloatText(
+            value=float(value) if isinstance(value, (int, float)) else default,
+            description=description,
+            layout=sized(width),
+            style={"description_width": "initial"},
+        )
+        self.register(path, field)
+
+        def changed(change: dict[str, Any]) -> None:
+            new = change["new"]
+            self.write(path, None if optional and new == 0 else clean_number(new), field)
+
+        field.observe(changed, "value")
+        unit = self.unit(quantity_of(path))
+        return self.beside(field, path, *([w.Label(unit)] if unit else []))
+
+    def slider(
+        self, path: Path, description: str, low: float, high: float, width: str = "360px"
+    ) -> w.FloatSlider:
+        """A slider bound to ``path`` (for the values worth dragging).
+
+        Parameters
+        ----------
+        path
+            The field; its unit comes from :func:`~workbench.panel.keys.quantity_of`.
+        description
+            The words before the slider (its unit follows in brackets).
+        low, high
+            The slider's range in the document's units (widened to hold the present value).
+        width
+            CSS width of the slider.
+        """
+        value = float(get_at(self.document, path) or 0.0)
+        low, high = min(low, value), max(high, value)
+        field = w.FloatSlider(
+            value=value,
+            min=low,
+            max=high,
+            step=None,  # any value: a snapped slider must not rewrite a typed value
+            description=f"{description} [{self.unit(quantity_of(path))}]",
+            continuous_update=True,
+            readout_format=".4g",
+            layout=sized(width),
+            style={"description_width": "initial"},
+        )
+        self.register(path, field)
+        field.observe(lambda change: self.write(path, clean_number(change["new"]), field), "value")
+        return field
+
+    def flag(self, path: Path, description: str) -> w.HBox:
+        """A check box bound to a true-or-absent key of the case (unticked removes the key)."""
+        box = w.Checkbox(
+            value=bool(get_at(self.document, path)),
+            description=description,
+            indent=False,
+            layout=sized("90px"),
+        )
+        self.register(path, box)
+        box.observe(lambda change: self.write(path, True if change["new"] else None, box), "value")
+        return self.beside(box, path)
+
+    def notch(self, base: Path) -> w.HBox:
+        """Kts of a segment's stated notch (a groove, a spline run-out); 0 removes the notch.
+
+        Its radius, notch sensitivity and description are kept as the case file gives them.
+        """
+        path = (*base, "notch", "kts")
+        value = get_at(self.document, path)
+        field = w.FloatText(
+            value=float(value) if isinstance(value, (int, float)) else 0.0,
+            description="notch Kts",
+            layout=sized("130px"),
+            style={"description_width": "initial"},
+        )
+        self.register(path, field)
+
+        def changed(change: dict[str, Any]) -> None:
+            if self.muted:
+                return
+            if change["new"] == 0:
+                get_at(self.document, base).pop("notch", None)
+                self.state.edited()
+            else:
+                self.write(path, clean_number(change["new"]), field)
+
+        field.observe(changed, "value")
+        return self.beside(field, path)
+
+    def choice(
+        self,
+        path: Path,
+        description: str,
+        options: list[Any],
+        on_change: Callable[..., Any] | None = None,
+        width: str = "180px",
+    ) -> w.HBox:
+        """A drop-down bound to ``path`` (or to ``on_change``), with its message line.
+
+        ``options`` are values, or (label, value) pairs.
+        """
+        value = get_at(self.document, path)
+        values = [option[1] if isinstance(option, tuple) else option for option in options]
+        field = w.Dropdown(
+            options=options,
+            value=value if value in values else values[0],
+            description=description,
+            layout=sized(width),
+            style={"description_width": "initial"},
+        )
+        self.register(path, field)
+
+        def changed(change: dict[str, Any]) -> None:
+            if on_change is not None:
+                on_change(change["new"])
+            else:
+                self.write(path, change["new"], field)
+
+        field.observe(changed, "value")
+        return self.beside(field, path)
+
+    def text(self, path: Path, description: str) -> w.HBox:
+        """A name entry (a load case's new name follows into the combinations)."""
+        field = w.Text(
+            value=str(get_at(self.document, path) or ""),
+            description=description,
+            continuous_update=False,
+        )
+        self.register(path, field)
+        field.observe(
+            lambda c: self.structural(lambda: rename(self.document, path, c["new"])), "value"
+        )
+        return w.HBox([field, self.message(path)])
+
+    # --- edits ------------------------------------------------------------------------------
+
+    def write(self, path: Path, value: Any, source: w.Widget | None = None) -> None:
+        """Store an edit in the document, mirror it in other widgets of the field, re-solve."""
+        if self.muted:
+            return
+        set_at(self.document, path, value)
+        with self.quiet():
+            for other in self.fields.get(path_text(path), []):
+                if other is not source and value is not None:
+                    if isinstance(other, w.FloatSlider):
+                        other.min, other.max = min(other.min, value), max(other.max, value)
+                    other.value = value
+        self.state.edited()
+
+    def structural(self, change: Callable[[], Any]) -> None:
+        """Make a change of the document's structure, rebuild the editors, solve."""
+        change()
+        self._rebuild()
+        self.state.refresh()
+
+    def remove(self, path: Path, index: int, *, drop_empty: bool = False) -> None:
+        """Remove item ``index`` of the list at ``path`` (``drop_empty``: and a list left empty)."""
+        self.structural(lambda: remove_item(self.document, path, index, drop_empty=drop_empty))
+
+    # --- errors -----------------------------------------------------------------------------
+
+    def show_error(self, error: InputError) -> str:
+        """Put the message beside the field the error names (else its row or list); mark it.
+
+        Returns
+        -------
+        str
+            The error in plain words, led by where it is (for the panel's status line).
+        """
+        self.clear_errors()
+        field = normal_field(error.field)
+        path = parse_path(field)
+        message = plain_words(error.message)
+        # The nearest enclosing thing shown: the field itself, else its row, else its list.
+        for size in range(len(path), 0, -1):
+            labels = self.messages.get(path_text(path[:size]))
+            if labels:
+                rest = field_words(path[size:])
+                text = render("text", f"{rest}: {message}" if rest else message)
+                for label in labels:
+                    label.value = text
+                self._shown += labels
+                break
+        for widget in self.fields.get(field, []):
+            widget.add_class("wb-bad")
+            self._bad.append(widget)
+        where = field_words(path, self.document)
+        return f"{where}: {message}" if where else message
+
+    def clear_errors(self) -> None:
+        """Empty the message lines and unmark the fields an error was shown on."""
+        for label in self._shown:
+            label.value = ""
+        for widget in self._bad:
+            widget.remove_class("wb-bad")
+        self._shown, self._bad = [], []
+
+
+class Editor:
+    """One editor tab: a box rebuilt from the document after every structural change.
+
+    Parameters
+    ----------
+    form
+        The fields' factory, bound to the case document.
+    shown_shaft
+        The number of the shaft the panel shows (the segment rows and new items follow it).
+    """
+
+    #: The tab's title.
+    title = ""
+
+    def __init__(self, form: Form, shown_shaft: Callable[[], int]) -> None:
+        self.form = form
+        self.shown_shaft = shown_shaft
+        self.box = w.VBox()
+
+    @property
+    def document(self) -> dict[str, Any]:
+        """The case document edited."""
+        return self.form.document
+
+    def shaft_ids(self) -> list[str]:
+        """The ids of the document's shafts, in order."""
+        return [s.get("id", "?") for s in self.document.get("shafts", [])]
+
+    def build(self) -> None:
+        """Rebuild the box's rows from the document."""
+        raise NotImplementedError
+
+
+def row(parts: list[w.Widget], *, wrap: bool = True) -> w.HBox:
+    """One editor row: its widgets centred on a line (wrapping when ``wrap``)."""
+    layout = (
+        w.Layout(align_items="center", flex_flow="row wrap")
+        if wrap
+        else w.Layout(align_items="center")
+    )
+    return w.HBox(parts, layout=layout)

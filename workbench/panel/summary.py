@@ -1,0 +1,125 @@
+"""The summary, the check table, the caution and the baseline comparison, from the solver's results.
+
+Tables of what :func:`~workbench.solver.analysis.solve` and
+:func:`~workbench.design.checks.run_checks` gave, converted to the panel's units (HTML from
+:mod:`workbench.panel.markup`); nothing here computes mechanics.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import ipywidgets as w
+import numpy as np
+
+from workbench.case.units import UnitSystem
+from workbench.design.caution import CAUTION
+from workbench.design.checks import CHECK_QUANTITIES, CheckReport
+from workbench.panel.document import unit_label
+from workbench.panel.markup import render
+from workbench.solver.analysis import Results
+
+
+def key_values(
+    results: Results, report: CheckReport, result: str, units: UnitSystem
+) -> dict[str, float]:
+    """Headline values of a result in the panel's units (for the summary and the comparison).
+
+    Parameters
+    ----------
+    results, report
+        A solve and its checks.
+    result
+        The load case or combination (the first result when the name is unknown).
+    units
+        The panel's units.
+    """
+    row = results.index(result) if result in results.names else 0
+    governing = report.governing
+    values = {
+        "governing utilisation": governing.utilisation if governing else float("nan"),
+        f"largest shear stress [{unit_label(units, 'stress')}]": float(
+            units.from_si(results.shear_stress[row].max(), "stress")
+        ),
+        f"largest |angle of twist| [{unit_label(units, 'angle')}]": float(
+            units.from_si(np.abs(results.angle[row]).max(), "angle")
+        ),
+        f"largest |internal torque| [{unit_label(units, 'torque')}]": float(
+            units.from_si(np.abs(results.torque[row]).max(), "torque")
+        ),
+    }
+    for n, reaction in enumerate(results.reactions[row]):
+        values[f"reaction {n} [{unit_label(units, 'torque')}]"] = float(
+            units.from_si(reaction, "torque")
+        )
+    return values
+
+
+def summary_html(values: dict[str, float], report: CheckReport, result: str) -> str:
+    """The verdict, where it governs, and the headline ``values`` of the result shown."""
+    governing = report.governing
+    where = None
+    if governing is not None:
+        kind = governing.kind.replace("_", " ")
+        where = (kind, governing.shaft, governing.segment, governing.result)
+    verdict = "all checks pass" if report.passes else "SOME CHECKS FAIL"
+    cells = [(key, f"{value:.4g}") for key, value in values.items()]
+    return render("summary", verdict, where, result, cells)
+
+
+def checks_html(report: CheckReport, units: UnitSystem) -> str:
+    """The governing result of each segment and check, one row each."""
+    governing: dict[tuple[str, Any, str], Any] = {}
+    for check in report.checks:
+        key = (check.shaft, check.segment, check.kind)
+        if key not in governing or check.utilisation > governing[key].utilisation:
+            governing[key] = check
+    unit_of = {quantity: unit_label(units, quantity) for quantity in set(CHECK_QUANTITIES.values())}
+    rows = [
+        (
+            check.shaft,
+            "-" if check.segment is None else check.segment,
+            check.kind.replace("_", " "),
+            check.result,
+            f"{units.from_si(check.value, CHECK_QUANTITIES[check.kind]):.4g}",
+            f"{units.from_si(check.limit, CHECK_QUANTITIES[check.kind]):.4g}",
+            unit_of[CHECK_QUANTITIES[check.kind]],
+            f"{check.utilisation:.3f}",
+            check.passes,
+            f"{units.from_si(check.x, 'length'):.4g}",
+        )
+        for check in governing.values()
+    ]
+    return render("checks", unit_label(units, "length"), rows)
+
+
+def difference_html(now: dict[str, float], before: dict[str, float] | None) -> str:
+    """The headline values now against the baseline's (``None``: no baseline pinned)."""
+    if before is None:
+        return render("difference", None)
+    rows = []
+    for key, value in now.items():
+        old = before.get(key, float("nan"))
+        change = value - old
+        share = f"{change / old:+.1%}" if old else "-"
+        rows.append((key, [f"{old:.4g}", f"{value:.4g}", f"{change:+.4g}", share]))
+    return render("difference", rows)
+
+
+class ResultTables:
+    """The summary above the charts, the check table and the caution below them."""
+
+    def __init__(self) -> None:
+        self.summary = w.HTML()
+        self.summary.add_class("wb-summary")
+        self.check_table = w.HTML()
+        self.check_table.add_class("wb-checks")
+        self.caution = w.HTML()
+
+    def draw(
+        self, values: dict[str, float], report: CheckReport, result: str, units: UnitSystem
+    ) -> None:
+        """Fill the three from the checks and the headline values (:func:`key_values`)."""
+        self.summary.value = summary_html(values, report, result)
+        self.check_table.value = checks_html(report, units)
+        self.caution.value = render("caution", CAUTION, report.notes)

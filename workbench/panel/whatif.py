@@ -1,0 +1,275 @@
+"""The What-if tab: pin a baseline to compare against, and sweep one input over a range.
+
+Widgets only: a sweep is asked for with a :class:`~workbench.panel.sweep_request.SweepRequest`
+and computed by :func:`workbench.panel.sweep.sweep_chunks`, chunk by chunk so Cancel can stop it
+(in a kernel the chunks run as a task, giving the loop a turn between them).
+"""
+
+from __future__ import annotations
+
+import asyncio
+from collections.abc import Callable, Iterator
+from typing import Any
+
+import ipywidgets as w
+import numpy as np
+
+from workbench.case.errors import InputError
+from workbench.case.units import UnitSystem
+from workbench.panel.document import Path, clone, get_at, unit_label
+from workbench.panel.form import Form, sized
+from workbench.panel.keys import quantity_of
+from workbench.panel.markup import render
+from workbench.panel.plotting import CURRENT, LOAD, bq
+from workbench.panel.sweep import sweep_chunks
+from workbench.panel.sweep_request import METRICS, SweepRequest
+
+
+class WhatIf:
+    """Baseline buttons, the comparison table, and the sweep's inputs, progress and chart.
+
+    Parameters
+    ----------
+    form
+        The panel's fields (the sweep's message line is one of its lines).
+    result_shown
+        The name of the result the panel shows (the sweep follows it).
+    pin, clear
+        Pin the current results as the baseline; clear the baseline.
+    """
+
+    title = "What-if"
+
+    def __init__(
+        self,
+        form: Form,
+        result_shown: Callable[[], Any],
+        pin: Callable[[], None],
+        clear: Callable[[], None],
+    ) -> None:
+        self.form = form
+        self._result_shown = result_shown
+        self._cancelled = False
+        #: The values of the last sweep so far (document units; NaN where a point is invalid).
+        self.sweep_values: np.ndarray | None = None
+        pin_button = w.Button(description="Pin baseline", icon="thumb-tack")
+        pin_button.on_click(lambda _: pin())
+        clear_button = w.Button(description="Clear baseline")
+        clear_button.on_click(lambda _: clear())
+        self.difference = w.HTML()
+        self.difference.add_class("wb-difference")
+        self.sweep_input = w.Dropdown(description="vary", layout=sized("420px"))
+        self.sweep_input.observe(lambda _: self._sweep_defaults(), "value")
+        self.sweep_from = w.FloatText(description="from", layout=sized("160px"))
+        self.sweep_to = w.FloatText(description="to", layout=sized("160px"))
+        self.sweep_points = w.BoundedIntText(
+            value=50, min=2, max=5000, description="points", layout=sized("160px")
+        )
+        self.sweep_metric = w.Dropdown(
+            options=[(label, key) for key, (label, _) in METRICS.items()],
+            description="follow",
+            layout=sized("360px"),
+        )
+        self.sweep_support = w.BoundedIntText(
+            value=0, min=0, max=99, description="support", layout=sized("140px")
+        )
+        self.sweep_run = w.Button(description="Run sweep", icon="play", button_style="info")
+        self.sweep_run.on_click(lambda _: self.start_sweep())
+        self.sweep_cancel = w.Button(description="Cancel", icon="stop", disabled=True)
+        self.sweep_cancel.on_click(lambda _: self.cancel_sweep())
+        self.sweep_progress = w.IntProgress(value=0, min=0, max=1, description="progress")
+        self.sweep_message = form.message("whatif.sweep")
+        self.sweep_x, self.sweep_y = bq.LinearScale(), bq.LinearScale()
+        scales = {"x": self.sweep_x, "y": self.sweep_y}
+        self.sweep_line = bq.Lines(
+            x=[],
+            y=[],
+            scales=scales,
+            colors=[CURRENT],
+            stroke_width=2,
+            tooltip=bq.Tooltip(fields=["x", "y"], formats=[".4g", ".4g"]),
+        )
+        self.sweep_now = bq.Scatter(x=[], y=[], scales=scales, colors=[LOAD], default_size=80)
+        self.sweep_figure = bq.Figure(
+            marks=[self.sweep_line, self.sweep_now],
+            axes=[
+                bq.Axis(scale=self.sweep_x, label="input"),
+                bq.Axis(scale=self.sweep_y, side="left", label="result", label_offset="45px"),
+            ],
+            title="Sweep",
+            animation_duration=0,
+            layout=w.Layout(width="620px", height="260px"),
+            fig_margin={"top": 30, "bottom": 40, "left": 70, "right": 15},
+        )
+        self.sweep_figure.add_class("wb-chart-sweep")
+        self.box = w.VBox(
+            [
+                w.HBox([pin_button, clear_button]),
+                self.difference,
+                w.HTML(render("heading", "Sweep", " one input over a range")),
+                self.sweep_input,
+                w.HBox([self.sweep_from, self.sweep_to, self.sweep_points]),
+                w.HBox([self.sweep_metric, self.sweep_support]),
+                w.HBox(
+                    [self.sweep_run, self.sweep_cancel, self.sweep_progress, self.sweep_message]
+                ),
+                self.sweep_figure,
+            ]
+        )
+
+    @property
+    def _document(self) -> dict[str, Any]:
+        return self.form.document
+
+    def refresh_inputs(self) -> None:
+        """Offer the document's numeric inputs (keeping the one picked while it exists)."""
+        options = [(label, path) for path, label in numeric_inputs(self._document)]
+        current = self.sweep_input.value
+        self.sweep_input.options = options
+        paths = [path for _, path in options]
+        self.sweep_input.value = current if current in paths else (paths[0] if paths else None)
+        self._sweep_defaults()
+
+    def _sweep_defaults(self) -> None:
+        path = self.sweep_input.value
+        if path is None:
+            return
+        value = float(get_at(self._document, path) or 0.0)
+        self.sweep_from.value = round(0.5 * value, 6) if value else -1.0
+        self.sweep_to.value = round(1.5 * value, 6) if value else 1.0
+
+    def start_sweep(self) -> None:
+        """Run the sweep set up in the tab (in chunks, so Cancel can stop it)."""
+        path = self.sweep_input.value
+        self.sweep_message.value = ""
+        try:
+            if path is None:
+                raise InputError("sweep", "there is no numeric input to vary")
+            values = tuple(
+                np.linspace(self.sweep_from.value, self.sweep_to.value, self.sweep_points.value)
+            )
+            request = SweepRequest(
+                path,
+                values,
+                self.sweep_metric.value,
+                self._result_shown(),
+                self.sweep_support.value,
+            )
+            chunks = sweep_chunks(clone(self._document), request)
+        except InputError as error:
+            self.sweep_message.value = render("text", str(error))
+            return
+        self._cancelled = False
+        self.sweep_progress.max, self.sweep_progress.value = len(values), 0
+        self.sweep_run.disabled, self.sweep_cancel.disabled = True, False
+        label, quantity = METRICS[request.metric]
+        unit = f" [{self.form.unit(quantity)}]" if quantity else ""
+        input_label = dict((p, lbl) for lbl, p in self.sweep_input.options).get(path, "input")
+        self.sweep_figure.axes[0].label = input_label
+        self.sweep_figure.axes[1].label = label + unit
+        try:
+            loop = asyncio.get_running_loop()
+        except RuntimeError:
+            loop = None
+        if loop is None:
+            for done, result in chunks:
+                self._sweep_step(values, done, result)
+                if self._cancelled:
+                    break
+            self._sweep_done()
+        else:
+            loop.create_task(self._sweep_async(chunks, values))
+
+    async def _sweep_async(
+        self, chunks: Iterator[tuple[int, np.ndarray]], values: tuple[float, ...]
+    ) -> None:
+        try:
+            for done, result in chunks:
+                self._sweep_step(values, done, result)
+                await asyncio.sleep(0)  # lets the kernel take a Cancel click
+                if self._cancelled:
+                    break
+        except InputError as error:
+            self.sweep_message.value = render("text", str(error))
+        finally:
+            self._sweep_done()
+
+    def _sweep_step(self, values: tuple[float, ...], done: int, result: np.ndarray) -> None:
+        self.sweep_values = result[:done]
+        with self.sweep_figure.hold_sync():
+            self.sweep_line.x, self.sweep_line.y = np.array(values[:done]), result[:done]
+            current = get_at(self._document, self.sweep_input.value)
+            if isinstance(current, (int, float)) and done:
+                self.sweep_now.x = np.array([float(current)])
+                self.sweep_now.y = np.array([np.interp(current, values[:done], result[:done])])
+        self.sweep_progress.value = done
+
+    def _sweep_done(self) -> None:
+        self.sweep_run.disabled, self.sweep_cancel.disabled = False, True
+        if self._cancelled:
+            self.sweep_message.value = f"cancelled after {self.sweep_progress.value} points"
+        elif self.sweep_values is not None and np.isnan(self.sweep_values).any():
+            bad = int(np.isnan(self.sweep_values).sum())
+            self.sweep_message.value = f"{bad} points are not valid cases and are left out"
+
+    def cancel_sweep(self) -> None:
+        """Stop the sweep running after the chunk it is on."""
+        self._cancelled = True
+
+
+def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:
+    """Every numeric input of a case document a sweep may vary, as (path, readable label)."""
+    units = document.get("units")
+    system = UnitSystem(**units) if units else UnitSystem()
+
+    def label(path: Path) -> str:
+        quantity = quantity_of(path)
+        unit = f" [{unit_label(system, quantity)}]" if quantity else ""
+        return str(path[-1]).replace("_", " ") + unit
+
+    for s, shaft in enumerate(document.get("shafts", [])):
+        for k, segment in enumerate(shaft.get("segments", [])):
+            where = f"{shaft.get('id')} segment {k}"
+            base: Path = ("shafts", s, "segments", k)
+            for key in ("length", "fillet_radius"):
+                if isinstance(segment.get(key), (int, float)):
+                    yield (*base, key), f"{where} · {label((*base, key))}"
+            section = segment.get("section")
+            if isinstance(section, dict):
+                for key, value in section.items():
+                    if isinstance(value, (int, float)) and not isinstance(value, bool):
+                        path = (*base, "section", key)
+                        yield path, f"{where} · {label(path)}"
+    for n, support in enumerate(document.get("supports", [])):
+        for key in ("x", "stiffness", "rotation"):
+            if isinstance(support.get(key), (int, float)):
+                yield ("supports", n, key), f"support {n} · {label(('supports', n, key))}"
+    for n, gear in enumerate(document.get("gears", [])):
+        for end in ("a", "b"):
+            for key in ("x", "radius"):
+                if isinstance(gear.get(end, {}).get(key), (int, float)):
+                    path = ("gears", n, end, key)
+                    yield path, f"gear {n}{end} · {label(path)}"
+    for c, case in enumerate(document.get("load_cases", [])):
+        for n, torque in enumerate(case.get("torques", [])):
+            for key in ("torque", "x"):
+                if isinstance(torque.get(key), (int, float)):
+                    path = ("load_cases", c, "torques", n, key)
+                    yield path, f"{case.get('name')} torque {n} · {label(path)}"
+        for n, load in enumerate(case.get("distributed", [])):
+            for key in ("intensity_start", "intensity_end", "start", "end"):
+                if isinstance(load.get(key), (int, float)):
+                    path = ("load_cases", c, "distributed", n, key)
+                    yield path, f"{case.get('name')} distributed {n} · {label(path)}"
+    for n, disc in enumerate(document.get("discs") or []):
+        for key in ("inertia", "x"):
+            if isinstance(disc.get(key), (int, float)):
+                yield ("discs", n, key), f"disc {n} · {label(('discs', n, key))}"
+    for name, material in (document.get("materials") or {}).items():
+        if isinstance(material, dict) and isinstance(material.get("density"), (int, float)):
+            path = ("materials", name, "density")
+            yield path, f"{name} · {label(path)}"
+    design = document.get("design") or {}
+    for key in ("factor_of_safety", "allowable_shear_stress", "max_twist_rate"):
+        if isinstance(design.get(key), (int, float)):
+            yield ("design", key), f"design · {label(('design', key))}"
