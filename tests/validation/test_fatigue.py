@@ -781,3 +781,29 @@ def test_bad_input_names_the_field(call, field):
         call()
     assert info.value.field == field
     assert info.value.message
+
+
+def test_failure_lines_of_the_fatigue_diagram_follow_the_published_criteria() -> None:
+    """Shigley's *Mechanical Engineering Design*, 9th ed., Tables 6-6 and 6-7 (in shear, §7-4):
+    Goodman τa/Sse + τm/Ssu = 1, Gerber τa/Sse + (τm/Ssu)² = 1, ASME-elliptic
+    (τa/Sse)² + (τm/Ssy)² = 1, Soderberg τa/Sse + τm/Ssy = 1, Langer τa + τm = Ssy.
+    """
+    from workbench.design.fatigue.criteria import failure_lines
+
+    endurance, ultimate, shear_yield = 150.0, 420.0, 260.0
+    lines = failure_lines(endurance, ultimate, shear_yield, points=41)
+    assert list(lines) == ["goodman", "gerber", "asme_elliptic", "soderberg", "langer"]
+    mean, alternating = lines["goodman"]
+    np.testing.assert_allclose(alternating / endurance + mean / ultimate, 1.0, rtol=1e-12)
+    mean, alternating = lines["gerber"]
+    np.testing.assert_allclose(alternating / endurance + (mean / ultimate) ** 2, 1.0, rtol=1e-12)
+    mean, alternating = lines["asme_elliptic"]
+    np.testing.assert_allclose(
+        (alternating / endurance) ** 2 + (mean / shear_yield) ** 2, 1.0, rtol=1e-12
+    )
+    mean, alternating = lines["soderberg"]
+    np.testing.assert_allclose(alternating / endurance + mean / shear_yield, 1.0, rtol=1e-12)
+    mean, alternating = lines["langer"]
+    np.testing.assert_allclose(alternating + mean, shear_yield, rtol=1e-12)
+    for mean, alternating in lines.values():  # each line runs from its τa intercept to τa = 0
+        assert mean[0] == 0.0 and abs(alternating[-1]) < 1e-9 * endurance

@@ -14,6 +14,7 @@ import numpy as np
 
 from workbench.case.units import UnitSystem
 from workbench.design.checks import CheckReport
+from workbench.design.fatigue.criteria import failure_lines
 from workbench.design.fatigue_check import FatiguePoint
 from workbench.panel.document import unit_label
 from workbench.panel.markup import render
@@ -45,42 +46,6 @@ CRITERION_NAMES = {
     "langer": "Langer (first-cycle yield)",
 }
 _CURVE_POINTS = 61
-
-
-def criteria_lines(
-    endurance_shear: float, ultimate_shear: float, yield_shear: float
-) -> dict[str, tuple[np.ndarray, np.ndarray]]:
-    """(τm, τa) of each failure line of the fatigue diagram, in the units of the strengths given.
-
-    Parameters
-    ----------
-    endurance_shear, ultimate_shear, yield_shear
-        Sse, Ssu, Ssy (any one stress unit).
-
-    Returns
-    -------
-    dict
-        ``goodman``: Sse–Ssu line; ``gerber``: τa = Sse·(1 − (τm/Ssu)²); ``asme_elliptic``:
-        (τa/Sse)² + (τm/Ssy)² = 1; ``soderberg``: Sse–Ssy line; ``langer``: Ssy–Ssy line.
-
-    References
-    ----------
-    .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
-       §6-12, Table 6-6 and 6-7 (the failure criteria for fluctuating stress, written here for
-       shear strengths as in §7-4).
-    """
-    # Every line has the same number of points, so that one mark can hold them all.
-    mean = np.linspace(0.0, 1.0, _CURVE_POINTS)
-    return {
-        "goodman": (mean * ultimate_shear, endurance_shear * (1.0 - mean)),
-        "gerber": (mean * ultimate_shear, endurance_shear * (1.0 - mean**2)),
-        "asme_elliptic": (
-            mean * yield_shear,
-            endurance_shear * np.sqrt(np.clip(1.0 - mean**2, 0.0, None)),
-        ),
-        "soderberg": (mean * yield_shear, endurance_shear * (1.0 - mean)),
-        "langer": (mean * yield_shear, yield_shear * (1.0 - mean)),
-    }
 
 
 class FatigueChart:
@@ -150,10 +115,11 @@ class FatigueChart:
         def stress(value: Any) -> Any:
             return units.from_si(value, "stress")
 
-        lines = criteria_lines(
+        lines = failure_lines(
             float(stress(factors.endurance_shear)),
             float(stress(factors.ultimate_shear)),
             float(stress(factors.yield_shear)),
+            points=_CURVE_POINTS,
         )
         x_label, y_label = f"τm [{stress_unit}]", f"τa [{stress_unit}]"
         with held(self.figure):

@@ -10,12 +10,12 @@ the same bytes, so a record can be rebuilt and compared. The elevation is laid o
 
 from __future__ import annotations
 
-import math
 from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
 
+from workbench.design.fatigue.criteria import failure_lines
 from workbench.record.drawing import FONT_FAMILY, data_uri, nice, points
 from workbench.record.elevation import elevation_svg
 from workbench.record.templating import render
@@ -255,18 +255,8 @@ def fatigue_diagram_svg(
     def to_y(value: Any) -> Any:
         return bottom - value / y_max * plot_height
 
-    fractions = np.linspace(0.0, 1.0, 41)
     # In the order of the template's legend: Goodman, Gerber, ASME-elliptic, Soderberg, Langer.
-    curves = (
-        (fractions * ultimate, endurance * (1.0 - fractions)),
-        (fractions * ultimate, endurance * (1.0 - fractions**2)),
-        (
-            shear_yield * np.sin(fractions * math.pi / 2.0),
-            endurance * np.cos(fractions * math.pi / 2.0),
-        ),
-        (fractions * shear_yield, endurance * (1.0 - fractions)),
-        (fractions * shear_yield, shear_yield * (1.0 - fractions)),
-    )
+    curves = tuple(failure_lines(endurance, ultimate, shear_yield, points=41).values())
     # The load line: the cycle grows in proportion from the origin (radial load line).
     reaches = [limit / value for limit, value in ((x_max, mean), (y_max, alternating)) if value]
     load_line = None

@@ -247,3 +247,45 @@ def fatigue_factors(
         yield_shear=float(yield_shear),
         notes=tuple(notes),
     )
+
+
+def failure_lines(
+    endurance_shear: float, ultimate_shear: float, yield_shear: float, points: int = 41
+) -> dict[str, tuple[FloatArray, FloatArray]]:
+    """(τm, τa) of each failure line of the fatigue diagram, in the unit of the strengths given.
+
+    Every line has ``points`` points, so one chart mark or one drawing can hold them all.
+
+    Parameters
+    ----------
+    endurance_shear, ultimate_shear, yield_shear
+        Sse, Ssu and Ssy (any one stress unit).
+    points
+        Points along each line.
+
+    Returns
+    -------
+    dict
+        In the order goodman, gerber, asme_elliptic, soderberg, langer: the modified Goodman
+        line τa = Sse·(1 − τm/Ssu), the Gerber parabola τa = Sse·(1 − (τm/Ssu)²), the
+        ASME-elliptic quadrant (τa/Sse)² + (τm/Ssy)² = 1 (by its angle, so the points are
+        spread evenly round it), the Soderberg line τa = Sse·(1 − τm/Ssy) and the Langer
+        first-cycle yield line τa + τm = Ssy.
+
+    References
+    ----------
+    .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
+       §6-12, Tables 6-6 and 6-7 (the failure criteria for fluctuating stress, written here for
+       shear strengths as in §7-4).
+    """
+    fraction = np.linspace(0.0, 1.0, points)
+    return {
+        "goodman": (fraction * ultimate_shear, endurance_shear * (1.0 - fraction)),
+        "gerber": (fraction * ultimate_shear, endurance_shear * (1.0 - fraction**2)),
+        "asme_elliptic": (
+            yield_shear * np.sin(fraction * math.pi / 2.0),
+            endurance_shear * np.cos(fraction * math.pi / 2.0),
+        ),
+        "soderberg": (fraction * yield_shear, endurance_shear * (1.0 - fraction)),
+        "langer": (fraction * yield_shear, yield_shear * (1.0 - fraction)),
+    }
