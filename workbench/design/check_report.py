@@ -118,6 +118,15 @@ class CheckReport:
         rows = [check_row(check, units) | {"note": check.note} for check in self.checks]
         return pd.DataFrame(rows, columns=[*_ROW_KEYS, "note"])
 
+    def governing_by_kind(self) -> list[Check]:
+        """The governing check of each segment and kind over all results, in first-seen order."""
+        governing: dict[tuple[str, int | None, str], Check] = {}
+        for check in self.checks:
+            key = (check.shaft, check.segment, check.kind)
+            if key not in governing or check.utilisation > governing[key].utilisation:
+                governing[key] = check
+        return list(governing.values())
+
     def segment_utilisation(self) -> dict[tuple[str, int], Check]:
         """The governing check of each (shaft, segment) over all results and kinds."""
         governing: dict[tuple[str, int], Check] = {}
@@ -234,13 +243,8 @@ def check_text(report: CheckReport, units: UnitSystem | None = None) -> str:
     from workbench.solver.tables import format_table  # noqa: PLC0415
 
     units = units or report.results.model.units
-    governing: dict[tuple[str, int | None, str], Check] = {}
-    for check in report.checks:
-        key = (check.shaft, check.segment, check.kind)
-        if key not in governing or check.utilisation > governing[key].utilisation:
-            governing[key] = check
     rows = []
-    for check in governing.values():
+    for check in report.governing_by_kind():
         quantity = CHECK_QUANTITIES[check.kind]
         rows.append(
             [

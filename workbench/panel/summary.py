@@ -7,8 +7,6 @@ Tables of what :func:`~workbench.solver.analysis.solve` and
 
 from __future__ import annotations
 
-from typing import Any
-
 import ipywidgets as w
 import numpy as np
 
@@ -69,11 +67,6 @@ def summary_html(values: dict[str, float], report: CheckReport, result: str) -> 
 
 def checks_html(report: CheckReport, units: UnitSystem) -> str:
     """The governing result of each segment and check, one row each."""
-    governing: dict[tuple[str, Any, str], Any] = {}
-    for check in report.checks:
-        key = (check.shaft, check.segment, check.kind)
-        if key not in governing or check.utilisation > governing[key].utilisation:
-            governing[key] = check
     unit_of = {quantity: unit_label(units, quantity) for quantity in set(CHECK_QUANTITIES.values())}
     rows = [
         (
@@ -88,7 +81,7 @@ def checks_html(report: CheckReport, units: UnitSystem) -> str:
             check.passes,
             f"{units.from_si(check.x, 'length'):.4g}",
         )
-        for check in governing.values()
+        for check in report.governing_by_kind()
     ]
     return render("checks", unit_label(units, "length"), rows)
 
