@@ -286,14 +286,12 @@ def governing_utilisations(
             "case: those are made on each variant's own model, which keeps every position"
         )
         raise InputError("length", msg)
-    count = max((len(np.asarray(values)) for values in variants.values()), default=1)
-    if "length" not in variants and count > 1 and _sized_inside(model):
-        # A batch of fixed lengths whose tapered or layered elements have stations inside them
-        # sizes those stations for one variant only (solver.mesh.size_mesh): giving the base's
-        # lengths to every variant takes the batch's path of lengths that vary, at the same
-        # positions (each node at the same fraction of its segment).
-        variants["length"] = np.repeat(base_length, count, axis=0)
     details = {"fillet_radius": fillet_radius, "cross_hole_diameter": cross_hole_diameter}
+    checked = max((len(values) for values in details.values() if values is not None), default=1)
+    solved = max((len(np.asarray(values)) for values in variants.values()), default=1)
+    if checked > solved and "shear_modulus" not in variants:
+        # Sizes only the checks read: every variant solves the base's system.
+        variants["shear_modulus"] = np.repeat(case_table(model).segments.shear_modulus, checked, 0)
     token = display_units.set(model.units)
     try:
         return _judge(model, design, checks_frequency, one_by_one, details, variants)
@@ -317,6 +315,20 @@ class _Unbatched:
     antinode: str | None = None
 
 
+def solve_variants(model: Any, **variants: Any) -> BatchResults:
+    """:func:`~workbench.solver.batch.solve_batch` of the variants (same columns and results).
+
+    A batch of fixed lengths whose tapered or layered elements have stations inside them sizes
+    those stations for one variant only (``workbench.solver.mesh.size_mesh``): every variant is
+    then given the base's lengths, which takes the batch's path of lengths that vary at the same
+    positions (each node at the same fraction of its segment).
+    """
+    count = max((len(np.asarray(values)) for values in variants.values()), default=1)
+    if "length" not in variants and count > 1 and _sized_inside(model):
+        variants["length"] = np.repeat(case_table(model).segments.length, count, axis=0)
+    return solve_batch(model, **variants)
+
+
 def _sized_inside(model: Any) -> bool:
     """Whether the model's mesh has tapered or layered elements with stations inside them."""
     mesh = build_mesh(model)
@@ -331,7 +343,7 @@ def _judge(
     details: dict[str, Any],
     variants: dict[str, Any],
 ) -> BatchVerdicts:
-    batch = solve_batch(model, **variants)
+    batch = solve_variants(model, **variants)
     layout = check_layout(model, batch.mesh, design)
     count = len(batch)
     sizes = {
