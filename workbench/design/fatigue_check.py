@@ -27,8 +27,10 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from workbench.case.design import FatigueCriteria
+from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem, display_units
 from workbench.case.validate import field_path
+from workbench.design.check_layout import CheckMesh
 from workbench.design.concentration import keyseat_kts, shoulder_fillet_kts
 from workbench.design.fatigue import (
     EnduranceLimit,
@@ -43,7 +45,8 @@ from workbench.design.fatigue import (
     ultimate_shear_strength,
     yield_shear_strength,
 )
-from workbench.solver.model import Segment
+from workbench.solver.model import Model, Segment
+from workbench.solver.sections import FloatArray
 
 if TYPE_CHECKING:
     from workbench.solver.analysis import Results
@@ -87,23 +90,68 @@ def _round_outer_diameter(segment: Segment) -> float | None:
     return 2.0 * segment.layers[0].section.outer_radius
 
 
+FatigueRow = tuple[str, str, int, str, float, float, float, str]
+
+
+@dataclass(frozen=True)
+class SolvedState:
+    """What the fatigue check reads of one solved variant: its arrays on a mesh's stations.
+
+    Attributes
+    ----------
+    model
+        The variant's model (SI): diameters, materials and details of its segments.
+    mesh
+        A mesh of its topology: which shaft, segment and element each station belongs to.
+    station_x
+        (S,) station positions (m).
+    stress_per_torque
+        (S,) peak shear stress per unit torque (1/m³).
+    torque
+        (R, S) internal torque of every result (N·m).
+    names
+        The results' names, in row order.
+    """
+
+    model: Model
+    mesh: CheckMesh
+    station_x: FloatArray
+    stress_per_torque: FloatArray
+    torque: FloatArray
+    names: tuple[str, ...]
+
+    @classmethod
+    def of(cls, results: Results) -> SolvedState:
+        """The state of one solved model."""
+        mesh = results.mesh
+        return cls(
+            results.model,
+            mesh,
+            mesh.station_x,
+            mesh.station_stress_per_torque,
+            results.torque,
+            results.names,
+        )
+
+
 def fatigue_checks(
-    results: Results, criteria: FatigueCriteria, notes: list[str]
-) -> tuple[list[tuple[str, str, int, str, float, float, float, str]], list[FatiguePoint]]:
+    results: Results | SolvedState, criteria: FatigueCriteria, notes: list[str]
+) -> tuple[list[FatigueRow], list[FatiguePoint]]:
     """Rows ``(result, shaft, segment, kind, value, limit, x, note)`` and the governing cycles.
 
     Parameters
     ----------
     results
-        Solved results holding both named results.
+        Solved results holding both named results, or one variant's arrays of a batched solve.
     criteria
         The fatigue criteria.
     notes
         Remarks are appended here (segments not checked, factors outside their data).
     """
-    model, mesh = results.model, results.mesh
-    first, second = (results.index(name) for name in criteria.result_names)
-    rows: list[tuple[str, str, int, str, float, float, float, str]] = []
+    state = results if isinstance(results, SolvedState) else SolvedState.of(results)
+    model, mesh = state.model, state.mesh
+    first, second = (_row(state.names, name) for name in criteria.result_names)
+    rows: list[FatigueRow] = []
     points: list[FatiguePoint] = []
     station_shaft = mesh.element_shaft[mesh.station_element]
     station_segment = mesh.element_segment[mesh.station_element]
@@ -140,11 +188,11 @@ def fatigue_checks(
                     if side is not None:
                         station = int(stations[0]) if this_side else int(stations[0]) - 1
                         places.append((station, kfs, how, side))
-            place = _governing_place(places, results, first, second, criteria)
+            place = _governing_place(places, state, first, second, criteria)
             station, kfs, how, (limit, ultimate, shear_yield) = places[place]
-            factor = float(mesh.station_stress_per_torque[station])
-            torque_a = float(results.torque[first, station])
-            torque_b = float(results.torque[second, station])
+            factor = float(state.stress_per_torque[station])
+            torque_a = float(state.torque[first, station])
+            torque_b = float(state.torque[second, station])
             kfsm = kfs if criteria.mean_concentration == "kfs" else 1.0
             if criteria.extremes is not None:
                 stresses = stresses_from_extremes(torque_a, torque_b, factor, kfs, kfsm)
@@ -155,7 +203,7 @@ def fatigue_checks(
             outcome = fatigue_factors(
                 stresses.mean_shear, stresses.alternating_shear, limit.value, ultimate, shear_yield
             )
-            x = float(mesh.station_x[station])
+            x = float(state.station_x[station])
             mean_note = "" if criteria.mean_concentration == "kfs" else ", nominal mean stress"
             basis = f"Kfs = {kfs:.3g} ({how}{mean_note}); {limit.basis}"
             if not limit.in_range:
@@ -181,6 +229,15 @@ def fatigue_checks(
                     )
                 )
     return rows, points
+
+
+def _row(names: tuple[str, ...], name: str) -> int:
+    """Row of the named load case or combination."""
+    try:
+        return names.index(name)
+    except ValueError:
+        msg = f"unknown load case or combination {name!r}; known: {', '.join(names)}"
+        raise InputError("result", msg) from None
 
 
 def _body_factor(segment: Segment) -> tuple[float, str]:
@@ -210,7 +267,7 @@ def _body_factor(segment: Segment) -> tuple[float, str]:
 
 def _governing_place(
     places: list[tuple[int, float, str, Any]],
-    results: Results,
+    state: SolvedState,
     first: int,
     second: int,
     criteria: FatigueCriteria,
@@ -223,9 +280,9 @@ def _governing_place(
     kfs = np.array([place[1] for place in places])
     kfsm = kfs if criteria.mean_concentration == "kfs" else np.ones_like(kfs)
     strengths = np.array([(s[0].value, s[1], s[2]) for *_, s in places]).T
-    per_torque = results.mesh.station_stress_per_torque[stations]
-    nominal_a = results.torque[first, stations] * per_torque
-    nominal_b = results.torque[second, stations] * per_torque
+    per_torque = state.stress_per_torque[stations]
+    nominal_a = state.torque[first, stations] * per_torque
+    nominal_b = state.torque[second, stations] * per_torque
     if criteria.extremes is not None:
         mean = kfsm * (nominal_a + nominal_b) / 2.0
         alternating = kfs * np.abs(nominal_a - nominal_b) / 2.0

@@ -22,14 +22,20 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
+import numpy as np
+
+from workbench.case.design import DesignCriteria
 from workbench.case.errors import InputError
 from workbench.case.units import display_units
+from workbench.design.batch_checks import VERDICT_KINDS, BatchVerdicts, governing_utilisations
 from workbench.design.caution import CAUTION
 from workbench.design.checks import Check, CheckReport, run_checks
 from workbench.design.preferred import RENARD_SERIES, next_smaller_preferred, round_up_preferred
+from workbench.design.resize import outer_diameter, resized, resized_dimensions
 from workbench.solver.analysis import solve
+from workbench.solver.columns import case_table
 from workbench.solver.model import Layer, Model, Segment
-from workbench.solver.sections import Section, SolidCircle, TaperedCircle, Tube
+from workbench.solver.sections import SolidCircle, TaperedCircle, Tube
 
 _MAX_ROUNDS = 40
 
@@ -118,33 +124,6 @@ def _sizable(segment: Segment) -> bool:
     )
 
 
-def outer_diameter(section: Section) -> float:
-    """The diameter sizing works on: outer diameter, the larger end of a taper (m)."""
-    return 2.0 * section.outer_radius
-
-
-def resized(section: Section, diameter: float, keep: str) -> Section:
-    """The section with outer diameter ``diameter`` (m), keeping bore ratio or wall.
-
-    Raises
-    ------
-    InputError
-        When keeping the wall leaves no bore (the diameter is at most twice the wall).
-    """
-    if isinstance(section, SolidCircle):
-        return SolidCircle(diameter)
-    if isinstance(section, Tube):
-        if keep == "ratio":
-            return Tube(diameter, diameter * section.inner_diameter / section.outer_diameter)
-        wall = 0.5 * (section.outer_diameter - section.inner_diameter)
-        return Tube(diameter, diameter - 2.0 * wall)
-    if isinstance(section, TaperedCircle):
-        scale = diameter / outer_diameter(section)
-        bore = section.bore * scale if keep == "ratio" else section.bore
-        return TaperedCircle(section.diameter_start * scale, section.diameter_end * scale, bore)
-    raise InputError("section", f"shape {section.shape!r} cannot be sized by diameter")
-
-
 @dataclass(frozen=True)
 class SizedSegment:
     """The outcome for one segment.
@@ -200,12 +179,27 @@ class SizingOutcome:
         return sizing_passes(self.report)
 
 
+@dataclass(frozen=True)
+class _Verdict:
+    """One set of sizes judged.
+
+    Whether every check sized for passes, and per sized segment the governing utilisation with
+    the exponent that scales its diameter (1/3 for a stress, 1/4 for a twist or rotation).
+    """
+
+    passes: bool
+    utilisation: list[tuple[float, float]]
+
+
 class _Search:
     def __init__(self, model: Model, request: SizingRequest) -> None:
         self.model, self.request = model, request
         self.length_factor = model.units.factor("length")
+        #: Distinct sets of sizes the search has judged (sets judged ahead in a batch are
+        #: counted when the search reaches them, not before).
         self.evaluations = 0
-        self.cache: dict[tuple[float, ...], CheckReport | None] = {}
+        self.reached: set[tuple[float, ...]] = set()
+        self.verdicts: dict[tuple[float, ...], _Verdict | None] = {}
         for shaft_id, number in request.segments:
             path = f"segments[{shaft_id}:{number}]"
             if shaft_id not in {shaft.id for shaft in model.shafts}:
@@ -260,42 +254,106 @@ class _Search:
             shafts[index] = dataclasses.replace(shafts[index], segments=tuple(segments))
         return dataclasses.replace(self.model, shafts=tuple(shafts))
 
-    def evaluate(self, sizes: tuple[float, ...]) -> CheckReport | None:
-        """Checks at these sizes; ``None`` when the sizes make an impossible section."""
-        key = tuple(float(f"{size:.10g}") for size in sizes)
-        if key not in self.cache:
-            self.evaluations += 1
-            try:
-                self.cache[key] = run_checks(solve(self.build(sizes)))
-            except InputError:
-                self.cache[key] = None
-        return self.cache[key]
+    def prepare_columns(self) -> None:
+        """Read the base model's columns and, per sized segment, its layer row.
 
-    def utilisation(self, report: CheckReport) -> list[tuple[float, float]]:
-        """(utilisation, exponent) governing each sized segment."""
-        governing = report.segment_utilisation()
-        out = []
-        for shaft_id, number in self.request.segments:
-            check = governing.get((shaft_id, number))
-            value, exponent = (check.utilisation, _exponent(check.kind)) if check else (0.0, 0.25)
+        Also the rotation limits whose span each sized segment lies in, matched to their rows as
+        the check report's rotation rows are (by their end).
+        """
+        table = case_table(self.model).segments
+        rows = [
+            table.shaft_segment_start[self.model.shaft_number(shaft_id)] + number
+            for shaft_id, number in self.request.segments
+        ]
+        self.segment_rows = np.array(rows, dtype=np.intp)
+        self.layer_rows = table.segment_layer_start[self.segment_rows]
+        self.base = {
+            name: getattr(table, name)
+            for name in ("outer_diameter_start", "outer_diameter_end", "inner_diameter")
+        }
+        self.shapes = table.layer_shape[self.layer_rows]
+        design = self.model.design
+        limits = design.rotation_limits if isinstance(design, DesignCriteria) else ()
+        self.rotation_spans = np.zeros((len(rows), len(limits)), dtype=bool)
+        for place, (shaft_id, number) in enumerate(self.request.segments):
             boundaries = self.model.shaft(shaft_id).boundaries
-            for rotation in (
-                c for c in report.checks if c.kind == "rotation" and c.shaft == shaft_id
-            ):
-                limit = next(
-                    r
-                    for r in report.design.rotation_limits
-                    if r.shaft == shaft_id and abs(r.end - rotation.x) < 1e-12 + 1e-9 * abs(r.end)
+            for row, limit in enumerate(limits):  # a rotation check's row names its end only
+                if limit.shaft != shaft_id:
+                    continue
+                named = next(
+                    other
+                    for other in limits
+                    if other.shaft == shaft_id
+                    and abs(other.end - limit.end) < 1e-12 + 1e-9 * abs(other.end)
                 )
-                low, high = sorted((limit.start, limit.end))
-                if (
-                    boundaries[number] < high
-                    and boundaries[number + 1] > low
-                    and rotation.utilisation > value
-                ):
-                    value, exponent = rotation.utilisation, 0.25
-            out.append((value, exponent))
-        return out
+                low, high = sorted((named.start, named.end))
+                inside = boundaries[number] < high and boundaries[number + 1] > low
+                self.rotation_spans[place, row] = inside
+
+    @staticmethod
+    def key(sizes: tuple[float, ...]) -> tuple[float, ...]:
+        return tuple(float(f"{size:.10g}") for size in sizes)
+
+    def judge(self, candidates: Sequence[tuple[float, ...]]) -> None:
+        """Judge the sets of sizes not judged yet, all in one batch."""
+        pending = list(
+            {
+                self.key(sizes): sizes
+                for sizes in candidates
+                if self.key(sizes) not in self.verdicts
+            }.items()
+        )
+        if not pending:
+            return
+        diameters = np.array([sizes for _, sizes in pending])
+        columns = {
+            name: np.repeat(values, len(pending), axis=0) for name, values in self.base.items()
+        }
+        base_start, base_end, base_bore = (
+            values[0, self.layer_rows] for values in self.base.values()
+        )
+        start, end, bore = resized_dimensions(
+            self.shapes, base_start, base_end, base_bore, diameters, self.request.keep
+        )
+        for name, values in zip(columns, (start, end, bore), strict=True):
+            columns[name][:, self.layer_rows] = values
+        verdicts = governing_utilisations(self.model, frequency=False, **columns)
+        utilisations = self.utilisations(verdicts)
+        for number, (key, _) in enumerate(pending):
+            if not verdicts.valid[number]:
+                self.verdicts[key] = None
+                continue
+            self.verdicts[key] = _Verdict(bool(verdicts.passes[number]), utilisations[number])
+
+    def evaluate(self, sizes: tuple[float, ...]) -> _Verdict | None:
+        """The verdict at these sizes; ``None`` when the sizes make an impossible section."""
+        key = self.key(sizes)
+        if key not in self.reached:
+            self.reached.add(key)
+            self.evaluations += 1
+        self.judge([sizes])
+        return self.verdicts[key]
+
+    def utilisations(self, verdicts: BatchVerdicts) -> list[list[tuple[float, float]]]:
+        """(utilisation, exponent) governing each sized segment, variant by variant.
+
+        A segment's own rows (every kind and result, fatigue included), or a rotation limit
+        whose span it lies in when that is used more (exponent 1/4).
+        """
+        best, kind = verdicts.segment_governing
+        value = best[:, self.segment_rows]
+        kinds = kind[:, self.segment_rows]
+        exponent = np.where(_TWIST_KINDS[kinds] & (kinds >= 0), 0.25, 1.0 / 3.0)
+        value, exponent = np.where(kinds >= 0, value, 0.0), np.where(kinds >= 0, exponent, 0.25)
+        rotation = verdicts.judged.rotation_utilisation.max(axis=1, initial=-np.inf)  # (V, L)
+        spanned = np.where(self.rotation_spans[None], rotation[:, None, :], -np.inf)
+        over = spanned.max(axis=2, initial=-np.inf)
+        exponent = np.where(over > value, 0.25, exponent)
+        value = np.maximum(over, value)
+        return [
+            list(zip(row, powers, strict=True))
+            for row, powers in zip(value.tolist(), exponent.tolist(), strict=True)
+        ]
 
 
 #: Checks a diameter search does not aim at: a natural frequency moves with every size, up or
@@ -308,8 +366,9 @@ def sizing_passes(report: CheckReport) -> bool:
     return all(check.passes for check in report.checks if check.kind not in NOT_SIZED_FOR)
 
 
-def _exponent(kind: str) -> float:
-    return 0.25 if kind in ("twist_rate", "rotation") else 1.0 / 3.0
+#: Kinds whose utilisation scales with 1/d⁴ (a rate of twist or a rotation), the others with
+#: 1/d³ (a stress); indexed by :data:`VERDICT_KINDS` number.
+_TWIST_KINDS = np.array([kind in ("twist_rate", "rotation") for kind in VERDICT_KINDS])
 
 
 def size_shafts(model: Model, request: SizingRequest) -> SizingOutcome:
@@ -342,6 +401,7 @@ def size_shafts(model: Model, request: SizingRequest) -> SizingOutcome:
 
 def _size(model: Model, request: SizingRequest) -> SizingOutcome:
     search = _Search(model, request)
+    search.prepare_columns()
     before = tuple(
         outer_diameter(model.shaft(shaft_id).segments[number].layers[0].section)
         for shaft_id, number in request.segments
@@ -357,17 +417,17 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
         sizes = tuple(
             max(search.up(size * max(value, 1e-6) ** exponent), floor)
             for size, floor, (value, exponent) in zip(
-                sizes, floors, search.utilisation(report), strict=True
+                sizes, floors, report.utilisation, strict=True
             )
         )
     report = search.evaluate(sizes)
     for _ in range(_MAX_ROUNDS * 4):  # repair
-        if report is not None and sizing_passes(report):
+        if report is not None and report.passes:
             break
         if report is None:
             failing = [True] * len(sizes)
         else:
-            failing = [value > 1.0 for value, _ in search.utilisation(report)]
+            failing = [value > 1.0 for value, _ in report.utilisation]
             if not any(failing):
                 failing = [True] * len(sizes)
         stepped = tuple(
@@ -378,23 +438,28 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
             break  # the largest sizes still fail
         sizes = stepped
         report = search.evaluate(sizes)
-    if report is not None and sizing_passes(report):
+    if report is not None and report.passes:
         changed = True
         while changed:  # descent
             changed = False
             for index in range(len(sizes)):
-                smaller = search.down(sizes[index])
-                if smaller is None or smaller < floors[index] * (1.0 - 1e-9):
+                trial = _smaller(search, sizes, floors, index)
+                if trial is None:
                     continue
-                trial = (*sizes[:index], smaller, *sizes[index + 1 :])
+                if search.key(trial) not in search.verdicts:
+                    # Every later segment's next smaller size, judged in one batch: the search
+                    # reaches them in turn unless one is kept first (then the rest are judged
+                    # again at the new sizes).
+                    later = (_smaller(search, sizes, floors, k) for k in range(index, len(sizes)))
+                    search.judge([candidate for candidate in later if candidate is not None])
                 trial_report = search.evaluate(trial)
-                if trial_report is not None and sizing_passes(trial_report):
+                if trial_report is not None and trial_report.passes:
                     sizes, report, changed = trial, trial_report, True
     final_model = search.build(sizes)
-    final_report = search.evaluate(sizes)
-    if final_report is None:
+    if search.evaluate(sizes) is None:
         msg = "no allowed size gives a valid section (check the wall thickness and the size list)"
         raise InputError("sizes", msg)
+    final_report = run_checks(solve(final_model))
     governing = final_report.segment_utilisation()
     rows = tuple(
         SizedSegment(
@@ -413,6 +478,16 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
     return SizingOutcome(
         final_model, final_report, rows, search.evaluations, request.minimum_fraction
     )
+
+
+def _smaller(
+    search: _Search, sizes: tuple[float, ...], floors: tuple[float, ...], index: int
+) -> tuple[float, ...] | None:
+    """The sizes with segment ``index`` one allowed size down, or ``None`` at its floor."""
+    smaller = search.down(sizes[index])
+    if smaller is None or smaller < floors[index] * (1.0 - 1e-9):
+        return None
+    return (*sizes[:index], smaller, *sizes[index + 1 :])
 
 
 def sizing_document(outcome: SizingOutcome) -> dict[str, Any]:

@@ -464,6 +464,12 @@ def size_mesh(
         )
         station_stress = np.array(np.broadcast_to(element_stress[:, element], shape))
         station_rigidity = np.array(np.broadcast_to(element_rigidity[:, element], shape))
+        # A row per variant: a varied section changes the interior moments even where the
+        # lengths (so the interior positions) are shared.
+        interior_u = np.array(np.broadcast_to(interior_u, (n_variants, interior_u.shape[1])))
+        interior_moments = np.array(
+            np.broadcast_to(interior_moments, (n_variants, *interior_moments.shape[1:]))
+        )
         if len(topology.varying.element):
             _size_varying(
                 topology,
@@ -516,8 +522,7 @@ def _size_varying(
     station_rigidity[:, stations] = rigidity
     inside = np.isin(stations, topology.interior, assume_unique=True)
     position = np.searchsorted(topology.interior, stations[inside])
-    # Without moved nodes the interior positions are shared by every variant (one row).
-    interior_u[:, position] = station_u[: interior_u.shape[0], stations[inside]]
+    interior_u[:, position] = station_u[:, stations[inside]]
     interior_moments[:, position] = moments[:, inside]
 
 
