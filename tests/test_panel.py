@@ -30,12 +30,11 @@ from tests.panel_cases import (
 from workbench.case.errors import InputError
 from workbench.design.caution import CAUTION
 from workbench.design.checks import run_checks
+from workbench.design.sweep import SweepRequest, run_sweep
 from workbench.panel import CASE_MIME_TYPE, Workbench
 from workbench.panel.document import get_at, normal_field, parse_path, plain_words
 from workbench.panel.form import clean_number
 from workbench.panel.state import CaseState
-from workbench.panel.sweep import run_sweep
-from workbench.panel.sweep_request import SweepRequest
 from workbench.solver.analysis import solve
 from workbench.solver.io import load_case, parse_case
 from workbench.solver.sections import SolidCircle

@@ -59,9 +59,8 @@ def twenty_segment_case() -> dict[str, Any]:
 
 
 def run() -> list[Row]:
+    from workbench.design.sweep import SweepRequest, run_sweep
     from workbench.panel import Workbench
-    from workbench.panel.sweep import run_sweep
-    from workbench.panel.sweep_request import SweepRequest
 
     document = twenty_segment_case()
     panel = Workbench(document)
@@ -119,8 +118,7 @@ def run() -> list[Row]:
 
 def demo_sweep_rows() -> list[Row]:
     """Governing-utilisation sweeps of the demo case as the panel runs them (default chunks)."""
-    from workbench.panel.sweep import run_sweep
-    from workbench.panel.sweep_request import SweepRequest
+    from workbench.design.sweep import SweepRequest, run_sweep
 
     document = json.loads(CASE.read_text(encoding="utf-8"))
     diameter = ("shafts", 0, "segments", 0, "section", "diameter")

@@ -12,7 +12,7 @@ The modules, from the document up (the panel calls the solver and never computes
 - ``state``: the case being edited, its solve, the coalescing of edit bursts (no widgets);
 - ``form``: fields bound to document paths and the messages beside them; ``editors/``: one tab
   per group of keys; ``whatif``: baseline and the sweep's widgets;
-- ``sweep_request`` and ``sweep``: what a sweep asks for, and its computation;
+- sweeps are computed in the design layer (:mod:`workbench.design.sweep`, the batch path);
 - ``plotting``, ``charts``, ``modes_section``, ``fatigue_section``, ``summary``: what is drawn;
   ``markup`` and ``templates/``: all the panel's HTML, autoescaped;
 - ``workbench``: the :class:`Workbench` widget composing them.

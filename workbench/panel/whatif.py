@@ -1,7 +1,8 @@
 """The What-if tab: pin a baseline to compare against, and sweep one input over a range.
 
-Widgets only: a sweep is asked for with a :class:`~workbench.panel.sweep_request.SweepRequest`
-and computed by :func:`workbench.panel.sweep.sweep_chunks`, chunk by chunk so Cancel can stop it
+Widgets only: a sweep is asked for with a :class:`~workbench.design.sweep.SweepRequest` and
+computed on the batch path by :func:`workbench.design.sweep.sweep_chunks`, chunk by chunk so
+Cancel can stop it
 (in a kernel the chunks run as a task, giving the loop a turn between them).
 """
 
@@ -16,13 +17,12 @@ import numpy as np
 
 from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem
+from workbench.design.sweep import METRICS, SweepRequest, sweep_chunks
 from workbench.panel.document import Path, clone, get_at, unit_label
 from workbench.panel.form import Form, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
 from workbench.panel.plotting import CURRENT, LOAD, bq
-from workbench.panel.sweep import sweep_chunks
-from workbench.panel.sweep_request import METRICS, SweepRequest
 
 
 class WhatIf:
