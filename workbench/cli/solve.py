@@ -29,18 +29,29 @@ def _print_json(document: Any) -> None:
 
 
 def _command_solve(arguments: argparse.Namespace) -> int:
-    from workbench.solver.analysis import solve  # noqa: PLC0415 - keep `--help` fast
-    from workbench.solver.io import load_case  # noqa: PLC0415
-    from workbench.solver.tables import results_document, results_text  # noqa: PLC0415
+    # Straight from the file's columns: no object per segment (keep `--help` fast: lazy imports).
+    from workbench.case.load import load_case_file  # noqa: PLC0415
+    from workbench.solver.analysis import solve_case  # noqa: PLC0415
+    from workbench.solver.tables import results_json, results_text  # noqa: PLC0415
 
-    model = load_case(arguments.case)
-    results = solve(model)
+    results = solve_case(load_case_file(arguments.case))
     if arguments.json:
-        _print_json(results_document(results))
+        _write_bytes(results_json(results) + b"\n")
     else:
         sys.stdout.write(results_text(results))
         sys.stdout.write(f"\nCaution: {CAUTION}\n")
     return EXIT_OK
+
+
+def _write_bytes(text: bytes) -> None:
+    """UTF-8 text to stdout as it is (a stream without a byte buffer gets it decoded)."""
+    buffer = getattr(sys.stdout, "buffer", None)
+    if buffer is None:
+        sys.stdout.write(text.decode("utf-8"))
+        return
+    sys.stdout.flush()
+    buffer.write(text)
+    buffer.flush()
 
 
 def _command_check(arguments: argparse.Namespace) -> int:

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import functools
 import itertools
-from collections.abc import Mapping
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -273,10 +273,15 @@ class Shaft:
     segments: tuple[Segment, ...]
 
     def __post_init__(self) -> None:
-        if not isinstance(self.id, str) or not self.id.strip():
-            raise InputError("id", f"must be a non-empty name, not {self.id!r}")
+        self.check_id(self.id)
         if not self.segments:
             raise InputError("segments", "a shaft needs at least one segment")
+
+    @staticmethod
+    def check_id(shaft_id: str) -> None:
+        """Raise :class:`InputError` on field ``id`` unless the id is a name (not blank)."""
+        if not isinstance(shaft_id, str) or not shaft_id.strip():
+            raise InputError("id", f"must be a non-empty name, not {shaft_id!r}")
 
     @functools.cached_property
     def length(self) -> float:
@@ -619,85 +624,18 @@ class Model:
     def __post_init__(self) -> None:
         if not self.shafts:
             raise InputError("shafts", "the model needs at least one shaft")
-        index: dict[str, int] = {}
-        for number, shaft in enumerate(self.shafts):
-            if shaft.id in index:
-                raise InputError(f"shafts[{number}].id", f"duplicate shaft id {shaft.id!r}")
-            index[shaft.id] = number
+        index = shaft_index(shaft.id for shaft in self.shafts)
         object.__setattr__(self, "_shaft_index", index)
-        for number, support in enumerate(self.supports):
-            self._check_point(f"supports[{number}]", support.shaft, support.x, "x")
-        for number, gear in enumerate(self.gears):
-            self._check_point(f"gears[{number}].a", gear.a.shaft, gear.a.x, "x")
-            self._check_point(f"gears[{number}].b", gear.b.shaft, gear.b.x, "x")
-            if gear.a.shaft == gear.b.shaft:
-                raise InputError(
-                    f"gears[{number}].b.shaft", "a gear cannot mesh with its own shaft"
-                )
-        if not self.load_cases:
-            raise InputError("load_cases", "the model needs at least one load case")
-        names: set[str] = set()
-        for number, case in enumerate(self.load_cases):
-            if case.name in names:
-                raise InputError(f"load_cases[{number}].name", f"duplicate name {case.name!r}")
-            names.add(case.name)
-            for item, torque in enumerate(case.torques):
-                self._check_point(
-                    f"load_cases[{number}].torques[{item}]", torque.shaft, torque.x, "x"
-                )
-            for item, load in enumerate(case.distributed):
-                path = f"load_cases[{number}].distributed[{item}]"
-                self._check_point(path, load.shaft, load.start, "start")
-                self._check_point(path, load.shaft, load.end, "end")
-        case_names = set(names)
-        for number, combination in enumerate(self.combinations):
-            if combination.name in names:
-                msg = f"duplicate name {combination.name!r} (names are shared with load cases)"
-                raise InputError(f"combinations[{number}].name", msg)
-            names.add(combination.name)
-            for case_name, _ in combination.factors:
-                if case_name not in case_names:
-                    msg = f"unknown load case {case_name!r}; known: {', '.join(sorted(case_names))}"
-                    raise InputError(f"combinations[{number}].factors.{case_name}", msg)
-        self._check_vibration(names)
-
-        if self.design is not None:
-            self._check_design(self.design)
-
-    def _check_design(self, design: DesignCriteria) -> None:
-        """Raise :class:`InputError` when a rotation limit or a fatigue result is off the model."""
-        for number, limit in enumerate(design.rotation_limits):
-            path = f"design.rotation_limits[{number}]"
-            self._check_point(path, limit.shaft, limit.start, "start")
-            self._check_point(path, limit.shaft, limit.end, "end")
-        fatigue = design.fatigue
-        if fatigue is None:
-            return
-        known = self.result_names
-        keys = ("extremes", "extremes") if fatigue.extremes is not None else ("mean", "alternating")
-        for key, name in zip(keys, fatigue.result_names, strict=True):
-            if name not in known:
-                msg = f"unknown load case or combination {name!r}; known: {', '.join(known)}"
-                raise InputError(f"design.fatigue.{key}", msg)
-
-    def _check_vibration(self, result_names: set[str]) -> None:
-        for number, disc in enumerate(self.discs):
-            self._check_point(f"discs[{number}]", disc.shaft, disc.x, "x")
-        speed_names: set[str] = set()
-        for number, speed in enumerate(self.operating_speeds):
-            if speed.name in result_names or speed.name in speed_names:
-                msg = (
-                    f"duplicate name {speed.name!r} (names are shared with load cases and "
-                    "combinations)"
-                )
-                raise InputError(f"operating_speeds[{number}].name", msg)
-            speed_names.add(speed.name)
-        if self.operating_speeds and not self.discs and not self._has_density():
-            msg = (
-                "a frequency check needs inertia: give discs, or a density for the shafts' "
-                "materials"
-            )
-            raise InputError("operating_speeds", msg)
+        References(index, [shaft.length for shaft in self.shafts]).check(
+            supports=self.supports,
+            gears=self.gears,
+            load_cases=self.load_cases,
+            combinations=self.combinations,
+            design=self.design,
+            discs=self.discs,
+            operating_speeds=self.operating_speeds,
+            has_density=self._has_density,
+        )
 
     def _has_density(self) -> bool:
         return any(
@@ -709,19 +647,9 @@ class Model:
 
     def check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
         """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
-        self._check_point(path, shaft_id, x, key)
-
-    def _check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
-        if shaft_id not in self._shaft_index:
-            known = ", ".join(repr(name) for name in self._shaft_index)
-            raise InputError(f"{path}.shaft", f"unknown shaft {shaft_id!r}; known: {known}")
-        shaft = self.shaft(shaft_id)
-        if not shaft.contains(x):
-            msg = (
-                f"{quote(x, 'length')} is off shaft {shaft_id!r}, which runs from 0 to "
-                f"{quote(shaft.length, 'length')}"
-            )
-            raise InputError(f"{path}.{key}", msg)
+        References(self._shaft_index, [shaft.length for shaft in self.shafts]).point(
+            path, shaft_id, x, key
+        )
 
     def shaft(self, shaft_id: str) -> Shaft:
         """Return the shaft with this id."""
@@ -734,6 +662,153 @@ class Model:
     @property
     def result_names(self) -> tuple[str, ...]:
         """Load cases, then combinations, in file order."""
-        return tuple(case.name for case in self.load_cases) + tuple(
-            combination.name for combination in self.combinations
-        )
+        return result_names(self.load_cases, self.combinations)
+
+
+def result_names(
+    load_cases: tuple[LoadCase, ...], combinations: tuple[Combination, ...]
+) -> tuple[str, ...]:
+    """Load cases, then combinations, in file order."""
+    return tuple(case.name for case in load_cases) + tuple(
+        combination.name for combination in combinations
+    )
+
+
+def shaft_index(shaft_ids: Iterable[str]) -> dict[str, int]:
+    """Each shaft id and its number; :class:`InputError` on an id given twice."""
+    index: dict[str, int] = {}
+    for number, shaft_id in enumerate(shaft_ids):
+        if shaft_id in index:
+            raise InputError(f"shafts[{number}].id", f"duplicate shaft id {shaft_id!r}")
+        index[shaft_id] = number
+    return index
+
+
+class References:
+    """The checks of a model's names and positions, which need only each shaft's length.
+
+    A model checks itself with them; a case solved straight from its columns
+    (:mod:`workbench.solver.case_columns`) runs the same checks without building its shafts.
+
+    Parameters
+    ----------
+    index
+        Shaft id → shaft number (:func:`shaft_index`).
+    lengths
+        Length of each shaft (m), in number order.
+    """
+
+    def __init__(self, index: Mapping[str, int], lengths: Sequence[float]) -> None:
+        self.index, self.lengths = index, lengths
+
+    def point(self, path: str, shaft_id: str, x: float, key: str) -> None:
+        """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
+        if shaft_id not in self.index:
+            known = ", ".join(repr(name) for name in self.index)
+            raise InputError(f"{path}.shaft", f"unknown shaft {shaft_id!r}; known: {known}")
+        length = self.lengths[self.index[shaft_id]]
+        tolerance = POSITION_TOLERANCE * length
+        if not -tolerance <= x <= length + tolerance:
+            msg = (
+                f"{quote(x, 'length')} is off shaft {shaft_id!r}, which runs from 0 to "
+                f"{quote(length, 'length')}"
+            )
+            raise InputError(f"{path}.{key}", msg)
+
+    def check(
+        self,
+        *,
+        supports: tuple[Support, ...],
+        gears: tuple[GearMesh, ...],
+        load_cases: tuple[LoadCase, ...],
+        combinations: tuple[Combination, ...],
+        design: DesignCriteria | None,
+        discs: tuple[Disc, ...],
+        operating_speeds: tuple[OperatingSpeed, ...],
+        has_density: Callable[[], bool],
+    ) -> None:
+        """Raise :class:`InputError` on the first name or position that does not fit the shafts.
+
+        Parameters
+        ----------
+        supports, gears, load_cases, combinations, design, discs, operating_speeds
+            The model's parts other than its shafts.
+        has_density
+            Whether any segment's material has a density (asked only when needed).
+        """
+        point = self.point
+        for number, support in enumerate(supports):
+            point(f"supports[{number}]", support.shaft, support.x, "x")
+        for number, gear in enumerate(gears):
+            point(f"gears[{number}].a", gear.a.shaft, gear.a.x, "x")
+            point(f"gears[{number}].b", gear.b.shaft, gear.b.x, "x")
+            if gear.a.shaft == gear.b.shaft:
+                raise InputError(
+                    f"gears[{number}].b.shaft", "a gear cannot mesh with its own shaft"
+                )
+        if not load_cases:
+            raise InputError("load_cases", "the model needs at least one load case")
+        names: set[str] = set()
+        for number, case in enumerate(load_cases):
+            if case.name in names:
+                raise InputError(f"load_cases[{number}].name", f"duplicate name {case.name!r}")
+            names.add(case.name)
+            for item, torque in enumerate(case.torques):
+                point(f"load_cases[{number}].torques[{item}]", torque.shaft, torque.x, "x")
+            for item, load in enumerate(case.distributed):
+                path = f"load_cases[{number}].distributed[{item}]"
+                point(path, load.shaft, load.start, "start")
+                point(path, load.shaft, load.end, "end")
+        case_names = set(names)
+        for number, combination in enumerate(combinations):
+            if combination.name in names:
+                msg = f"duplicate name {combination.name!r} (names are shared with load cases)"
+                raise InputError(f"combinations[{number}].name", msg)
+            names.add(combination.name)
+            for case_name, _ in combination.factors:
+                if case_name not in case_names:
+                    msg = f"unknown load case {case_name!r}; known: {', '.join(sorted(case_names))}"
+                    raise InputError(f"combinations[{number}].factors.{case_name}", msg)
+        self._check_vibration(names, discs, operating_speeds, has_density)
+        if design is not None:
+            self._check_design(design, result_names(load_cases, combinations))
+
+    def _check_design(self, design: DesignCriteria, known: tuple[str, ...]) -> None:
+        """Raise :class:`InputError` when a rotation limit or a fatigue result is off the model."""
+        for number, limit in enumerate(design.rotation_limits):
+            path = f"design.rotation_limits[{number}]"
+            self.point(path, limit.shaft, limit.start, "start")
+            self.point(path, limit.shaft, limit.end, "end")
+        fatigue = design.fatigue
+        if fatigue is None:
+            return
+        keys = ("extremes", "extremes") if fatigue.extremes is not None else ("mean", "alternating")
+        for key, name in zip(keys, fatigue.result_names, strict=True):
+            if name not in known:
+                msg = f"unknown load case or combination {name!r}; known: {', '.join(known)}"
+                raise InputError(f"design.fatigue.{key}", msg)
+
+    def _check_vibration(
+        self,
+        result_names: set[str],
+        discs: tuple[Disc, ...],
+        operating_speeds: tuple[OperatingSpeed, ...],
+        has_density: Callable[[], bool],
+    ) -> None:
+        for number, disc in enumerate(discs):
+            self.point(f"discs[{number}]", disc.shaft, disc.x, "x")
+        speed_names: set[str] = set()
+        for number, speed in enumerate(operating_speeds):
+            if speed.name in result_names or speed.name in speed_names:
+                msg = (
+                    f"duplicate name {speed.name!r} (names are shared with load cases and "
+                    "combinations)"
+                )
+                raise InputError(f"operating_speeds[{number}].name", msg)
+            speed_names.add(speed.name)
+        if operating_speeds and not discs and not has_density():
+            msg = (
+                "a frequency check needs inertia: give discs, or a density for the shafts' "
+                "materials"
+            )
+            raise InputError("operating_speeds", msg)

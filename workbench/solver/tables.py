@@ -6,23 +6,55 @@ mechanics.
 
 from __future__ import annotations
 
+import itertools
 from typing import Any
 
 import numpy as np
 
+from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem
-from workbench.solver.analysis import Results
+from workbench.solver.results import Results, support_labels
 
 #: The base quantities a results document reports, with their unit keys.
 REPORTED_UNITS = ("length", "torque", "stress", "angle")
+#: The station values of each shaft in the document: (key, the quantity of its unit).
+STATION_VALUES = (("torque", "torque"), ("angle", "angle"), ("shear_stress", "stress"))
 
 
-def _floats(values: Any) -> list[float]:
-    return [float(v) for v in np.asarray(values, dtype=float)]
+def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity: str) -> None:
+    """Raise :class:`InputError` naming the result and the quantity of a value JSON cannot hold.
+
+    JSON has no infinity or NaN; a value that is not finite in the reader's units (an overflow
+    of a huge load, or of a tiny unit) is refused with its place instead of being written.
+    """
+    finite = np.isfinite(values)
+    if finite.all():
+        return
+    row, column = (int(index[0]) for index in np.nonzero(~finite.reshape(len(values), -1)))
+    name = results.names[row]
+    kind = "combination" if row >= results.table.n_cases else "load case"
+    value = float(values.reshape(len(values), -1)[row, column])
+    if key == "reactions":
+        where, path = f"support {column}", f"results[{row}].reactions[{column}]"
+    else:
+        shaft = int(np.searchsorted(results.mesh.shaft_station_start, column, side="right")) - 1
+        shaft_id = results.shaft_ids[shaft]
+        x = units.from_si(float(results.mesh.station_x[column]), "length")
+        where = f"shaft {shaft_id!r} at x = {x:g} {units.label('length')}"
+        path = f"results[{row}].shafts.{shaft_id}.{key}"
+    msg = (
+        f"the {key.replace('_', ' ')} of {kind} {name!r} at {where} is {value} in "
+        f"{units.label(quantity)}: JSON cannot hold it (no document is written)"
+    )
+    raise InputError(path, msg)
 
 
 def results_document(results: Results, units: UnitSystem | None = None) -> dict[str, Any]:
     """The ``workbench solve --json`` document, in the given units (default: the case's).
+
+    Every array is converted once, as a whole (the same division by the unit's factor as
+    :meth:`~workbench.case.units.UnitSystem.from_si`, so each value is the one a value-by-value
+    conversion gives), and cut into the document's lists per result and shaft.
 
     Parameters
     ----------
@@ -36,27 +68,50 @@ def results_document(results: Results, units: UnitSystem | None = None) -> dict[
     dict
         ``{"units": {...}, "results": [{"name", "reactions", "shafts": {id: {"x", "torque",
         "angle", "shear_stress"}}}]}``, load cases then combinations, in file order.
+
+    Raises
+    ------
+    InputError
+        When a value is not finite in these units (JSON has no infinity), naming the result,
+        the shaft and the quantity.
     """
-    units = units or results.model.units
+    units = units or results.units
+    reactions = units.from_si(results.reactions, "torque")
+    _finite(results, "reactions", reactions, units, "torque")
+    station_x = units.from_si(results.mesh.station_x, "length")
+    _finite(results, "x", station_x[None], units, "length")
+    columns = {}
+    for key, quantity in STATION_VALUES:
+        values = units.from_si(getattr(results, key), quantity)
+        _finite(results, key, values, units, quantity)
+        columns[key] = values
+    windows = list(itertools.pairwise(results.mesh.shaft_station_start.tolist()))
+    shaft_x = [station_x[start:end].tolist() for start, end in windows]
     entries = []
-    for result in results:
+    for row, name in enumerate(results.names):
+        rows = {key: values[row] for key, values in columns.items()}
         shafts = {
             shaft_id: {
-                "x": _floats(units.from_si(values.x, "length")),
-                "torque": _floats(units.from_si(values.torque, "torque")),
-                "angle": _floats(units.from_si(values.angle, "angle")),
-                "shear_stress": _floats(units.from_si(values.shear_stress, "stress")),
+                "x": x,
+                **{key: values[start:end].tolist() for key, values in rows.items()},
             }
-            for shaft_id, values in result.shafts.items()
+            for shaft_id, x, (start, end) in zip(results.shaft_ids, shaft_x, windows, strict=True)
         }
-        entries.append(
-            {
-                "name": result.name,
-                "reactions": _floats(units.from_si(result.reactions, "torque")),
-                "shafts": shafts,
-            }
-        )
+        entries.append({"name": name, "reactions": reactions[row].tolist(), "shafts": shafts})
     return {"units": {key: getattr(units, key) for key in REPORTED_UNITS}, "results": entries}
+
+
+def results_json(results: Results, units: UnitSystem | None = None) -> bytes:
+    """The ``workbench solve --json`` document as compact UTF-8 JSON text.
+
+    Encoded by msgspec, which writes each float as the shortest text that reads back as the
+    same value (as ``json.dumps`` does, though not always the same text: ``1e-05`` for
+    ``0.00001``). msgspec would write a non-finite float as ``null``:
+    :func:`results_document` refuses those first.
+    """
+    import msgspec  # noqa: PLC0415 - the case loader has loaded it already
+
+    return msgspec.json.encode(results_document(results, units))
 
 
 def format_table(headers: list[str], rows: list[list[str]]) -> str:
@@ -82,26 +137,28 @@ def _g(value: float) -> str:
 
 def results_text(results: Results, units: UnitSystem | None = None) -> str:
     """Readable tables: reactions and, per shaft, the values at every node (left and right)."""
-    units = units or results.model.units
-    model = results.model
+    units = units or results.units
+    table = results.table
     out = []
-    if model.title:
-        out.append(model.title)
-        out.append("=" * len(model.title))
+    if results.title:
+        out.append(results.title)
+        out.append("=" * len(results.title))
     mesh = results.mesh
     for result in results:
         kind = "combination" if result.is_combination else "load case"
         out.append(f"\n{kind} {result.name!r}")
         rows = [
             [
-                f"{support.shaft} x={_g(units.from_si(support.x, 'length'))}",
-                support.kind,
+                f"{shaft_id} x={_g(units.from_si(x, 'length'))}",
+                kind,
                 _g(units.from_si(reaction, "torque")),
             ]
-            for support, reaction in zip(model.supports, result.reactions, strict=True)
+            for (shaft_id, x, kind), reaction in zip(
+                support_labels(table), result.reactions, strict=True
+            )
         ]
         out.append(format_table(["support", "kind", f"reaction [{units.label('torque')}]"], rows))
-        if model.gears:
+        if len(table.gear_x):
             rows = [
                 [
                     f"gears[{number}]",
