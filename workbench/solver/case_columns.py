@@ -21,7 +21,7 @@ from __future__ import annotations
 import functools
 import itertools
 import operator
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -49,10 +49,11 @@ from workbench.solver.columns import (
 from workbench.solver.model import References, Shaft, shaft_index
 from workbench.solver.sections import FloatArray
 
-_SOLID, _TUBE, _TAPERED = (declared.SHAPES[shape] for shape in ("solid", "tube", "tapered"))
+_CIRCULAR = {SOLID: declared.SHAPES["solid"], TUBE: declared.SHAPES["tube"]}
+_CIRCULAR[TAPERED] = declared.SHAPES["tapered"]
 #: The shape code of each declared section (non-circular shapes are described by their class).
 SHAPE_CODES: dict[type, int] = {
-    cls: {_SOLID: SOLID, _TUBE: TUBE, _TAPERED: TAPERED}.get(cls, GIVEN)
+    cls: next((code for code, known in _CIRCULAR.items() if known is cls), GIVEN)
     for cls in declared.SHAPES.values()
 }
 #: Layers of one segment overlap when a bore is smaller than this fraction of the outer
@@ -204,6 +205,23 @@ def _unnested(
     return refused
 
 
+@dataclass(frozen=True)
+class _Picked:
+    """The entries of a list a mask picks (all of them without a mask), iterated in C."""
+
+    source: Sequence[Any]
+    pick: list[bool] | None
+    count: int
+
+    def __iter__(self) -> Iterator[Any]:
+        return (
+            iter(self.source) if self.pick is None else itertools.compress(self.source, self.pick)
+        )
+
+    def __len__(self) -> int:
+        return self.count
+
+
 class _ShaftReader:
     """Reads one declared shaft into columns; flags the segments a check refuses."""
 
@@ -212,7 +230,7 @@ class _ShaftReader:
         self.segments: Sequence[declared.Segment] = entry.segments
         self.flagged = np.zeros(len(entry.segments), dtype=bool)
 
-    def si(self, entries: Sequence[Any], cls: type, name: str) -> FloatArray:
+    def si(self, entries: Sequence[Any] | _Picked, cls: type, name: str) -> FloatArray:
         """Key ``name`` of every entry in SI: its declared default where left out, else NaN.
 
         One pass over the entries and one multiplication by the key's factor, the product
@@ -257,22 +275,24 @@ class _ShaftReader:
             materials=materials,
         )
 
-    def _layers(self) -> tuple[list[Any], IntArray]:
+    def _layers(self) -> tuple[Sequence[Any], IntArray]:
         """Every layer (a one-layer segment stands for its own layer) and each segment's count."""
         segments = self.segments
         if not any(map(_LAYERS, segments)):
-            return list(segments), np.ones(len(segments), dtype=np.intp)
+            return segments, np.ones(len(segments), dtype=np.intp)
         groups = [segment.layers or (segment,) for segment in segments]
         per_segment = np.fromiter(map(len, groups), np.intp, len(groups))
         return list(itertools.chain.from_iterable(groups)), per_segment
 
     def _moduli(
-        self, layers: list[Any], per_segment: IntArray
+        self, layers: Sequence[Any], per_segment: IntArray
     ) -> tuple[tuple[Material, ...], FloatArray]:
         """The distinct materials and each layer's shear modulus (Pa); unknown names flagged."""
         names = list(map(_MATERIAL, layers))
+        # One material throughout is the common case, and counting is cheaper than hashing.
+        same = names.count(names[0]) == len(names)
         found: dict[str, Material | None] = {}
-        for name in dict.fromkeys(names):  # a loop over the distinct names
+        for name in [names[0]] if same else dict.fromkeys(names):  # the distinct names
             try:
                 found[name] = self.builder.material(name)
             except InputError:
@@ -287,7 +307,7 @@ class _ShaftReader:
         return tuple(m for m in found.values() if m is not None), modulus
 
     def _sections(
-        self, layers: list[Any], per_segment: IntArray
+        self, layers: Sequence[Any], per_segment: IntArray
     ) -> tuple[np.ndarray[Any, np.dtype[np.int8]], FloatArray, FloatArray]:
         """Shape codes, (5, n_layers) d_start, d_end, bore, K, τ/T, and outer diameters (m)."""
         sections = list(map(_SECTION, layers))
@@ -296,9 +316,11 @@ class _ShaftReader:
         dimensions = np.full((5, count), np.nan)
         outer = np.full(count, np.nan)
         refused = np.zeros(count, dtype=bool)
-        for code in np.unique(shape).tolist():  # a loop over the shapes present
-            rows = np.flatnonzero(shape == code)
-            members = sections if len(rows) == count else list(map(sections.__getitem__, rows))
+        codes = np.unique(shape).tolist()
+        for code in codes:  # a loop over the shapes present
+            rows = shape == code
+            picked = None if len(codes) == 1 else rows.tolist()
+            members = _Picked(sections, picked, int(np.count_nonzero(rows)))
             read = self._described if code == GIVEN else self._circular
             dimensions[:, rows], outer[rows], refused[rows] = read(code, members)
         self.flagged |= _any_layer(refused, per_segment)
@@ -306,13 +328,13 @@ class _ShaftReader:
             self.flagged |= _unnested(shape, dimensions, per_segment)
         return shape, dimensions, outer
 
-    def _circular(self, code: int, members: list[Any]) -> tuple[FloatArray, FloatArray, BoolArray]:
+    def _circular(self, code: int, members: _Picked) -> tuple[FloatArray, FloatArray, BoolArray]:
         """Columns of circular sections of one shape.
 
         Returns (5, n) d_start, d_end, bore, K, τ/T (m, m⁴, 1/m³), the outer diameters (m) and
         which sections the model refuses (:mod:`workbench.solver.sections`).
         """
-        cls = type(members[0])
+        cls = _CIRCULAR[code]
         if code == SOLID:
             start = end = self.si(members, cls, "diameter")
             bore = np.zeros(len(members))
@@ -337,9 +359,10 @@ class _ShaftReader:
         nan = np.full(len(members), np.nan)
         return np.vstack([start, end, bore, nan, nan]), outer, refused
 
-    def _described(self, code: int, members: list[Any]) -> tuple[FloatArray, FloatArray, BoolArray]:
+    def _described(self, code: int, picked: _Picked) -> tuple[FloatArray, FloatArray, BoolArray]:
         """The same for non-circular sections: each distinct one described by its class."""
         del code
+        members = list(picked)
         keys = list(map(msgspec.json.encode, members))
         first = dict(zip(reversed(keys), range(len(keys) - 1, -1, -1), strict=True))
         described: dict[bytes, tuple[float, ...]] = {}
@@ -365,8 +388,8 @@ class _ShaftReader:
         if any(map(operator.attrgetter("cross_hole_diameter"), segments)):
             hole = self.si(segments, cls, "cross_hole_diameter")
             self.flagged |= ~np.isnan(hole) & (_not_positive(hole) | ~(hole < outer))
-        notches = list(map(operator.attrgetter("notch"), segments))
-        if any(notches):
+        if any(map(operator.attrgetter("notch"), segments)):
+            notches = list(map(operator.attrgetter("notch"), segments))
             rows = np.flatnonzero(np.fromiter(map(declared.given, notches), bool, len(notches)))
             members = list(map(notches.__getitem__, rows))
             kts = self.si(members, declared.Notch, "kts")
