@@ -8,8 +8,10 @@ command as one line).
 from __future__ import annotations
 
 import argparse
+import itertools
 import json
 import sys
+from collections.abc import Iterable
 from pathlib import Path
 from typing import Any
 
@@ -36,22 +38,24 @@ def _command_solve(arguments: argparse.Namespace) -> int:
 
     results = solve_case(load_case_file(arguments.case))
     if arguments.json:
-        _write_bytes(results_json(results) + b"\n")
+        # Written piece by piece; the document checks every value before its first piece.
+        _write_bytes(itertools.chain(results_json(results), [b"\n"]))
     else:
         sys.stdout.write(results_text(results))
         sys.stdout.write(f"\nCaution: {CAUTION}\n")
     return EXIT_OK
 
 
-def _write_bytes(text: bytes) -> None:
+def _write_bytes(pieces: Iterable[bytes]) -> None:
     """UTF-8 text to stdout as it is (a stream without a byte buffer gets it decoded)."""
     buffer = getattr(sys.stdout, "buffer", None)
-    if buffer is None:
-        sys.stdout.write(text.decode("utf-8"))
-        return
     sys.stdout.flush()
-    buffer.write(text)
-    buffer.flush()
+    for piece in pieces:
+        if buffer is None:
+            sys.stdout.write(piece.decode("utf-8"))
+        else:
+            buffer.write(piece)
+    sys.stdout.flush()
 
 
 def _command_check(arguments: argparse.Namespace) -> int:

@@ -7,6 +7,7 @@ mechanics.
 from __future__ import annotations
 
 import itertools
+from collections.abc import Iterator
 from typing import Any
 
 import numpy as np
@@ -49,69 +50,83 @@ def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity
     raise InputError(path, msg)
 
 
-def results_document(results: Results, units: UnitSystem | None = None) -> dict[str, Any]:
-    """The ``workbench solve --json`` document, in the given units (default: the case's).
+def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[bytes]:
+    """The ``workbench solve --json`` document as compact UTF-8 JSON text, in pieces.
 
     Every array is converted once, as a whole (the same division by the unit's factor as
     :meth:`~workbench.case.units.UnitSystem.from_si`, so each value is the one a value-by-value
-    conversion gives), and cut into the document's lists per result and shaft.
+    conversion gives), checked finite, and written one list at a time, so that the text of a
+    million-segment shaft is never held as Python numbers all at once. msgspec writes each float
+    as the shortest text that reads back as the same value (as ``json.dumps`` does, though not
+    always the same text: ``1e-05`` for ``0.00001``).
 
     Parameters
     ----------
     results
         Solved results.
     units
-        Units for every number.
+        Units for every number (default: the case's).
 
-    Returns
-    -------
-    dict
-        ``{"units": {...}, "results": [{"name", "reactions", "shafts": {id: {"x", "torque",
-        "angle", "shear_stress"}}}]}``, load cases then combinations, in file order.
+    Yields
+    ------
+    bytes
+        Consecutive pieces of the document ``{"units": {...}, "results": [{"name",
+        "reactions", "shafts": {id: {"x", "torque", "angle", "shear_stress"}}}]}``, load cases
+        then combinations, in file order.
 
     Raises
     ------
     InputError
-        When a value is not finite in these units (JSON has no infinity), naming the result,
-        the shaft and the quantity.
+        Before the first piece, when a value is not finite in these units (JSON has no
+        infinity; msgspec would write ``null``), naming the result, the shaft and the quantity.
     """
+    import msgspec  # noqa: PLC0415 - the case loader has loaded it already
+
+    encode = msgspec.json.encode
     units = units or results.units
     reactions = units.from_si(results.reactions, "torque")
     _finite(results, "reactions", reactions, units, "torque")
     station_x = units.from_si(results.mesh.station_x, "length")
     _finite(results, "x", station_x[None], units, "length")
-    columns = {}
+    columns: dict[bytes, Any] = {}
     for key, quantity in STATION_VALUES:
         values = units.from_si(getattr(results, key), quantity)
         _finite(results, key, values, units, quantity)
-        columns[key] = values
+        columns[encode(key)] = values
     windows = list(itertools.pairwise(results.mesh.shaft_station_start.tolist()))
-    shaft_x = [station_x[start:end].tolist() for start, end in windows]
-    entries = []
+    # Each shaft's opening and its x, written once for every result.
+    openings = [
+        encode(shaft_id) + b':{"x":' + encode(station_x[start:end].tolist())
+        for shaft_id, (start, end) in zip(results.shaft_ids, windows, strict=True)
+    ]
+    yield b'{"units":' + encode({key: getattr(units, key) for key in REPORTED_UNITS})
+    yield b',"results":['
     for row, name in enumerate(results.names):
-        rows = {key: values[row] for key, values in columns.items()}
-        shafts = {
-            shaft_id: {
-                "x": x,
-                **{key: values[start:end].tolist() for key, values in rows.items()},
-            }
-            for shaft_id, x, (start, end) in zip(results.shaft_ids, shaft_x, windows, strict=True)
-        }
-        entries.append({"name": name, "reactions": reactions[row].tolist(), "shafts": shafts})
-    return {"units": {key: getattr(units, key) for key in REPORTED_UNITS}, "results": entries}
+        yield b"," if row else b""
+        yield b'{"name":' + encode(name) + b',"reactions":' + encode(reactions[row].tolist())
+        yield b',"shafts":{'
+        for number, (start, end) in enumerate(windows):
+            yield (b"," if number else b"") + openings[number]
+            for quoted, values in columns.items():
+                yield b"," + quoted + b":" + encode(values[row, start:end].tolist())
+            yield b"}"
+        yield b"}}"
+    yield b"]}"
 
 
-def results_json(results: Results, units: UnitSystem | None = None) -> bytes:
-    """The ``workbench solve --json`` document as compact UTF-8 JSON text.
+def results_document(results: Results, units: UnitSystem | None = None) -> dict[str, Any]:
+    """The ``workbench solve --json`` document as plain values (:func:`results_json`, read back).
 
-    Encoded by msgspec, which writes each float as the shortest text that reads back as the
-    same value (as ``json.dumps`` does, though not always the same text: ``1e-05`` for
-    ``0.00001``). msgspec would write a non-finite float as ``null``:
-    :func:`results_document` refuses those first.
+    Raises
+    ------
+    InputError
+        When a value is not finite in these units, naming the result, the shaft and the
+        quantity.
     """
-    import msgspec  # noqa: PLC0415 - the case loader has loaded it already
+    import msgspec  # noqa: PLC0415
 
-    return msgspec.json.encode(results_document(results, units))
+    document: dict[str, Any] = msgspec.json.decode(b"".join(results_json(results, units)))
+    return document
 
 
 def format_table(headers: list[str], rows: list[list[str]]) -> str:
