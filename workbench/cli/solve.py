@@ -32,11 +32,10 @@ def _print_json(document: Any) -> None:
 
 def _command_solve(arguments: argparse.Namespace) -> int:
     # Straight from the file's columns: no object per segment (keep `--help` fast: lazy imports).
-    from workbench.case.load import load_case_file  # noqa: PLC0415
-    from workbench.solver.analysis import solve_case  # noqa: PLC0415
+    from workbench.solver.analysis import solve_file  # noqa: PLC0415
     from workbench.solver.tables import results_json, results_text  # noqa: PLC0415
 
-    results = solve_case(load_case_file(arguments.case))
+    results = solve_file(arguments.case)
     if arguments.json:
         # Written piece by piece; the document checks every value before its first piece.
         _write_bytes(itertools.chain(results_json(results), [b"\n"]))

@@ -7,7 +7,7 @@ mechanics.
 from __future__ import annotations
 
 import itertools
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from typing import Any
 
 import numpy as np
@@ -20,45 +20,65 @@ from workbench.solver.results import Results, support_labels
 REPORTED_UNITS = ("length", "torque", "stress", "angle")
 #: The station values of each shaft in the document: (key, the quantity of its unit).
 STATION_VALUES = (("torque", "torque"), ("angle", "angle"), ("shear_stress", "stress"))
+#: Values written to JSON text at once (bounds the Python floats held while writing).
+TEXT_BLOCK = 1 << 16
 
 
 def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity: str) -> None:
-    """Raise :class:`InputError` naming the result and the quantity of a value JSON cannot hold.
+    """Raise :class:`InputError` naming the result and quantity of a value JSON cannot hold.
 
     JSON has no infinity or NaN; a value that is not finite in the reader's units (an overflow
-    of a huge load, or of a tiny unit) is refused with its place instead of being written.
+    of a huge load, or of a tiny unit) is refused with its place instead of being written. The
+    values are converted a result at a time (a whole converted copy of a million-segment
+    result would cost as much memory as the results themselves).
     """
-    finite = np.isfinite(values)
-    if finite.all():
+    rows = values.reshape(len(values), -1)
+    for row in range(len(rows)):  # a loop over results
+        converted = units.from_si(rows[row], quantity)
+        finite = np.isfinite(converted)
+        if finite.all():
+            continue
+        column = int(np.argmin(finite))
+        name = results.names[row]
+        kind = "combination" if row >= results.table.n_cases else "load case"
+        if key == "reactions":
+            where, path = f"support {column}", f"results[{row}].reactions[{column}]"
+        else:
+            shaft = int(np.searchsorted(results.mesh.shaft_station_start, column, "right")) - 1
+            shaft_id = results.shaft_ids[shaft]
+            x = units.from_si(float(results.mesh.station_x[column]), "length")
+            where = f"shaft {shaft_id!r} at x = {x:g} {units.label('length')}"
+            path = f"results[{row}].shafts.{shaft_id}.{key}"
+        msg = (
+            f"the {key.replace('_', ' ')} of {kind} {name!r} at {where} is "
+            f"{float(converted[column])} {units.label(quantity)}: JSON cannot hold it (no "
+            "document is written)"
+        )
+        raise InputError(path, msg)
+
+
+def _array_text(values: Any, encode: Callable[[Any], bytes]) -> Iterator[bytes]:
+    """A JSON array of floats, written a block at a time (Python floats for a block only)."""
+    if len(values) <= TEXT_BLOCK:
+        yield encode(values.tolist())
         return
-    row, column = (int(index[0]) for index in np.nonzero(~finite.reshape(len(values), -1)))
-    name = results.names[row]
-    kind = "combination" if row >= results.table.n_cases else "load case"
-    value = float(values.reshape(len(values), -1)[row, column])
-    if key == "reactions":
-        where, path = f"support {column}", f"results[{row}].reactions[{column}]"
-    else:
-        shaft = int(np.searchsorted(results.mesh.shaft_station_start, column, side="right")) - 1
-        shaft_id = results.shaft_ids[shaft]
-        x = units.from_si(float(results.mesh.station_x[column]), "length")
-        where = f"shaft {shaft_id!r} at x = {x:g} {units.label('length')}"
-        path = f"results[{row}].shafts.{shaft_id}.{key}"
-    msg = (
-        f"the {key.replace('_', ' ')} of {kind} {name!r} at {where} is {value} in "
-        f"{units.label(quantity)}: JSON cannot hold it (no document is written)"
-    )
-    raise InputError(path, msg)
+    yield b"["
+    for start in range(0, len(values), TEXT_BLOCK):  # a loop over blocks of values
+        text = encode(values[start : start + TEXT_BLOCK].tolist())
+        yield (b"," if start else b"") + text[1:-1]
+    yield b"]"
 
 
 def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[bytes]:
     """The ``workbench solve --json`` document as compact UTF-8 JSON text, in pieces.
 
-    Every array is converted once, as a whole (the same division by the unit's factor as
+    Every value is checked finite in the reader's units first, then converted and written a
+    block at a time (the same division by the unit's factor as
     :meth:`~workbench.case.units.UnitSystem.from_si`, so each value is the one a value-by-value
-    conversion gives), checked finite, and written one list at a time, so that the text of a
-    million-segment shaft is never held as Python numbers all at once. msgspec writes each float
-    as the shortest text that reads back as the same value (as ``json.dumps`` does, though not
-    always the same text: ``1e-05`` for ``0.00001``).
+    conversion gives), so that a million-segment shaft is never held as Python numbers, nor as
+    a converted copy, all at once. msgspec writes each float as the shortest text that reads
+    back as the same value (as ``json.dumps`` does, though not always the same text: ``1e-05``
+    for ``0.00001``).
 
     Parameters
     ----------
@@ -84,31 +104,28 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
 
     encode = msgspec.json.encode
     units = units or results.units
-    reactions = units.from_si(results.reactions, "torque")
-    _finite(results, "reactions", reactions, units, "torque")
-    station_x = units.from_si(results.mesh.station_x, "length")
-    _finite(results, "x", station_x[None], units, "length")
-    columns: dict[bytes, Any] = {}
+    _finite(results, "reactions", results.reactions, units, "torque")
+    _finite(results, "x", results.mesh.station_x[None], units, "length")
     for key, quantity in STATION_VALUES:
-        values = units.from_si(getattr(results, key), quantity)
-        _finite(results, key, values, units, quantity)
-        columns[encode(key)] = values
+        _finite(results, key, getattr(results, key), units, quantity)
     windows = list(itertools.pairwise(results.mesh.shaft_station_start.tolist()))
-    # Each shaft's opening and its x, written once for every result.
-    openings = [
-        encode(shaft_id) + b':{"x":' + encode(station_x[start:end].tolist())
-        for shaft_id, (start, end) in zip(results.shaft_ids, windows, strict=True)
-    ]
+    station_x = results.mesh.station_x
     yield b'{"units":' + encode({key: getattr(units, key) for key in REPORTED_UNITS})
     yield b',"results":['
     for row, name in enumerate(results.names):
+        reactions = units.from_si(results.reactions[row], "torque")
         yield b"," if row else b""
-        yield b'{"name":' + encode(name) + b',"reactions":' + encode(reactions[row].tolist())
+        yield b'{"name":' + encode(name) + b',"reactions":' + encode(reactions.tolist())
         yield b',"shafts":{'
-        for number, (start, end) in enumerate(windows):
-            yield (b"," if number else b"") + openings[number]
-            for quoted, values in columns.items():
-                yield b"," + quoted + b":" + encode(values[row, start:end].tolist())
+        for number, (shaft_id, (start, end)) in enumerate(
+            zip(results.shaft_ids, windows, strict=True)
+        ):
+            yield (b"," if number else b"") + encode(shaft_id) + b':{"x":'
+            yield from _array_text(units.from_si(station_x[start:end], "length"), encode)
+            for key, quantity in STATION_VALUES:
+                yield b',"' + key.encode() + b'":'
+                values = getattr(results, key)[row, start:end]
+                yield from _array_text(units.from_si(values, quantity), encode)
             yield b"}"
         yield b"}}"
     yield b"]}"
