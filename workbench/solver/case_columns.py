@@ -247,7 +247,8 @@ class _ShaftReader:
             fill = np.nan if default is None else float(default)
             given = declared.given
             raw = np.fromiter((v if given(v) else fill for v in values), float, count)
-        return raw * self.builder.convert.factor(cls, name)
+        with np.errstate(over="ignore"):  # an overflow is flagged as not finite
+            return raw * self.builder.convert.factor(cls, name)
 
     def read(self) -> _ShaftColumns:
         """The shaft's columns; raises the model's error of the first segment it refuses."""

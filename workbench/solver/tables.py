@@ -20,6 +20,8 @@ from workbench.solver.results import Results, support_labels
 REPORTED_UNITS = ("length", "torque", "stress", "angle")
 #: The station values of each shaft in the document: (key, the quantity of its unit).
 STATION_VALUES = (("torque", "torque"), ("angle", "angle"), ("shear_stress", "stress"))
+#: How a message names each array of the document.
+_WORDS = {"reactions": "reaction", "shear_stress": "shear stress", "x": "station position"}
 #: Values written to JSON text at once (bounds the Python floats held while writing).
 TEXT_BLOCK = 1 << 16
 
@@ -50,7 +52,7 @@ def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity
             where = f"shaft {shaft_id!r} at x = {x:g} {units.label('length')}"
             path = f"results[{row}].shafts.{shaft_id}.{key}"
         msg = (
-            f"the {key.replace('_', ' ')} of {kind} {name!r} at {where} is "
+            f"the {_WORDS.get(key, key)} of {kind} {name!r} at {where} is "
             f"{float(converted[column])} {units.label(quantity)}: JSON cannot hold it (no "
             "document is written)"
         )
