@@ -51,10 +51,10 @@ from workbench.solver.sections import FloatArray
 
 _CIRCULAR = {SOLID: declared.SHAPES["solid"], TUBE: declared.SHAPES["tube"]}
 _CIRCULAR[TAPERED] = declared.SHAPES["tapered"]
+_CIRCULAR_CODES = {cls: code for code, cls in _CIRCULAR.items()}
 #: The shape code of each declared section (non-circular shapes are described by their class).
 SHAPE_CODES: dict[type, int] = {
-    cls: next((code for code, known in _CIRCULAR.items() if known is cls), GIVEN)
-    for cls in declared.SHAPES.values()
+    cls: _CIRCULAR_CODES.get(cls, GIVEN) for cls in declared.SHAPES.values()
 }
 #: Layers of one segment overlap when a bore is smaller than this fraction of the outer
 #: diameter of the layer inside it (the model's own tolerance, made a little wider so that the
@@ -165,6 +165,10 @@ class _ShaftColumns:
         return float(np.cumsum(self.length)[-1])
 
 
+#: The d_start, d_end, bore, K and τ/T of a group of sections (``None``: not applicable).
+_Columns = tuple[FloatArray | None, ...]
+
+
 @functools.cache
 def _required(cls: type) -> frozenset[str]:
     """The keys of a declared object that are never left out."""
@@ -256,8 +260,10 @@ class _ShaftReader:
         length = self.si(segments, declared.Segment, "length")
         self.flagged |= _not_positive(length)
         layers, per_segment = self._layers()
-        materials, modulus = self._moduli(layers, per_segment)
-        shape, dimensions, outer = self._sections(layers, per_segment)
+        # Rows: shear modulus, d_start, d_end, bore, K, τ/T of every layer.
+        values = np.full((6, len(layers)), np.nan)
+        materials = self._moduli(layers, per_segment, values[0])
+        shape, outer = self._sections(layers, per_segment, values)
         self._details(outer[np.cumsum(per_segment) - 1])
         for row in np.flatnonzero(self.flagged).tolist():  # a loop over refused segments only
             try:
@@ -272,7 +278,7 @@ class _ShaftReader:
             length=length,
             layers_per_segment=per_segment,
             layer_shape=shape,
-            layer_values=np.vstack([modulus[None], dimensions]),
+            layer_values=values,
             materials=materials,
         )
 
@@ -286,54 +292,69 @@ class _ShaftReader:
         return list(itertools.chain.from_iterable(groups)), per_segment
 
     def _moduli(
-        self, layers: Sequence[Any], per_segment: IntArray
-    ) -> tuple[tuple[Material, ...], FloatArray]:
-        """The distinct materials and each layer's shear modulus (Pa); unknown names flagged."""
-        names = list(map(_MATERIAL, layers))
+        self, layers: Sequence[Any], per_segment: IntArray, modulus: FloatArray
+    ) -> tuple[Material, ...]:
+        """The distinct materials; each layer's shear modulus (Pa) written to ``modulus``.
+
+        Layers of unknown materials are flagged.
+        """
         # One material throughout is the common case, and counting is cheaper than hashing.
-        same = names.count(names[0]) == len(names)
+        first = layers[0].material
+        same = operator.countOf(map(_MATERIAL, layers), first) == len(layers)
+        names = [first] if same else list(map(_MATERIAL, layers))
         found: dict[str, Material | None] = {}
-        for name in [names[0]] if same else dict.fromkeys(names):  # the distinct names
+        for name in dict.fromkeys(names):  # a loop over the distinct names
             try:
                 found[name] = self.builder.material(name)
             except InputError:
                 found[name] = None
         moduli = np.array([np.nan if m is None else m.shear_modulus for m in found.values()])
         if len(found) == 1:
-            modulus = np.full(len(names), moduli[0])
+            modulus[:] = moduli[0]
         else:
             position = {name: number for number, name in enumerate(found)}
-            modulus = moduli[np.fromiter(map(position.__getitem__, names), np.intp, len(names))]
+            modulus[:] = moduli[np.fromiter(map(position.__getitem__, names), np.intp, len(names))]
         self.flagged |= _any_layer(np.isnan(modulus), per_segment)
-        return tuple(m for m in found.values() if m is not None), modulus
+        return tuple(m for m in found.values() if m is not None)
 
     def _sections(
-        self, layers: Sequence[Any], per_segment: IntArray
-    ) -> tuple[np.ndarray[Any, np.dtype[np.int8]], FloatArray, FloatArray]:
-        """Shape codes, (5, n_layers) d_start, d_end, bore, K, τ/T, and outer diameters (m)."""
+        self, layers: Sequence[Any], per_segment: IntArray, values: FloatArray
+    ) -> tuple[np.ndarray[Any, np.dtype[np.int8]], FloatArray]:
+        """Shape codes and outer diameters (m) of the layers.
+
+        Their d_start, d_end, bore, K and τ/T are written to ``values[1:]`` (m, m⁴, 1/m³).
+        """
         sections = list(map(_SECTION, layers))
         count = len(sections)
-        shape = np.fromiter(map(SHAPE_CODES.__getitem__, map(type, sections)), np.int8, count)
-        dimensions = np.full((5, count), np.nan)
+        kinds = np.fromiter(map(type, sections), object, count)
+        shape = np.full(count, GIVEN, dtype=np.int8)
+        for kind, code in _CIRCULAR_CODES.items():  # a loop over the circular shapes
+            shape[kinds == kind] = code
+        del kinds
         outer = np.full(count, np.nan)
         refused = np.zeros(count, dtype=bool)
         codes = np.unique(shape).tolist()
         for code in codes:  # a loop over the shapes present
-            rows = shape == code
-            picked = None if len(codes) == 1 else rows.tolist()
-            members = _Picked(sections, picked, int(np.count_nonzero(rows)))
+            mask = shape == code
+            picked = None if len(codes) == 1 else mask.tolist()
+            members = _Picked(sections, picked, int(np.count_nonzero(mask)))
             read = self._described if code == GIVEN else self._circular
-            dimensions[:, rows], outer[rows], refused[rows] = read(code, members)
+            columns, outer_of, refused_of = read(code, members)
+            rows: Any = slice(None) if picked is None else mask
+            for number, column in enumerate(columns, start=1):
+                if column is not None:
+                    values[number, rows] = column
+            outer[rows], refused[rows] = outer_of, refused_of
         self.flagged |= _any_layer(refused, per_segment)
         if np.any(per_segment > 1):
-            self.flagged |= _unnested(shape, dimensions, per_segment)
-        return shape, dimensions, outer
+            self.flagged |= _unnested(shape, values[1:], per_segment)
+        return shape, outer
 
-    def _circular(self, code: int, members: _Picked) -> tuple[FloatArray, FloatArray, BoolArray]:
+    def _circular(self, code: int, members: _Picked) -> tuple[_Columns, FloatArray, BoolArray]:
         """Columns of circular sections of one shape.
 
-        Returns (5, n) d_start, d_end, bore, K, τ/T (m, m⁴, 1/m³), the outer diameters (m) and
-        which sections the model refuses (:mod:`workbench.solver.sections`).
+        Returns d_start, d_end, bore (m; K and τ/T follow from them: ``None``), the outer
+        diameters (m) and which sections the model refuses (:mod:`workbench.solver.sections`).
         """
         cls = _CIRCULAR[code]
         if code == SOLID:
@@ -357,10 +378,9 @@ class _ShaftReader:
             )
         # The model's outer radius is half the largest diameter; the hole check doubles it.
         outer = 2.0 * (np.fmax(start, end) / 2.0)
-        nan = np.full(len(members), np.nan)
-        return np.vstack([start, end, bore, nan, nan]), outer, refused
+        return (start, end, bore, None, None), outer, refused
 
-    def _described(self, code: int, picked: _Picked) -> tuple[FloatArray, FloatArray, BoolArray]:
+    def _described(self, code: int, picked: _Picked) -> tuple[_Columns, FloatArray, BoolArray]:
         """The same for non-circular sections: each distinct one described by its class."""
         del code
         members = list(picked)
@@ -375,7 +395,7 @@ class _ShaftReader:
                 continue
             described[key] = (*section_row(section)[1:], 2.0 * section.outer_radius)
         values = np.array(list(map(described.__getitem__, keys)), dtype=float).T.reshape(6, -1)
-        return values[:5], values[5], np.isnan(values[3])
+        return (None, None, None, values[3], values[4]), values[5], np.isnan(values[3])
 
     def _details(self, outer: FloatArray) -> None:
         """Flag the fillets, cross holes and notches the model refuses.
