@@ -13,7 +13,7 @@ checked on whole columns. A segment a check flags is then built the model's way,
 its error is the very message, field path included, that building the model gives; the
 column checks only have to flag every such segment (they may flag a few more, which then pass).
 Supports, gears, loads and the design section are few: they are built as the model builds them
-and checked against the shafts' lengths by the model's own :class:`~workbench.solver.model.References`.
+and checked against the shafts' lengths by the model's own :class:`~workbench.solver.parts.References`.
 """
 
 from __future__ import annotations
@@ -46,7 +46,8 @@ from workbench.solver.columns import (
     section_row,
     system_columns,
 )
-from workbench.solver.model import References, Shaft, shaft_index
+from workbench.solver.model import Shaft
+from workbench.solver.parts import References, shaft_index
 from workbench.solver.sections import FloatArray
 
 _CIRCULAR = {SOLID: declared.SHAPES["solid"], TUBE: declared.SHAPES["tube"]}
