@@ -383,3 +383,19 @@ def test_a_value_json_cannot_hold_is_one_line_naming_result_and_quantity(tmp_pat
     assert captured.err.startswith("results[1].reactions[0]: the reaction of combination 'tenfold'")
     assert "JSON cannot hold it" in captured.err
     assert "null" not in captured.err and "Traceback" not in captured.err
+
+
+@pytest.mark.parametrize("gap", [k * 1e-10 for k in range(-3, 25)])
+def test_layers_at_the_edge_of_the_nesting_tolerance_are_judged_alike(gap):
+    """A sleeve whose bore is the core's diameter less a few parts in 10¹⁰: the model's
+    tolerance is 1e-9 of the diameter; both paths must accept and refuse the same sleeves."""
+    case = copy.deepcopy(VALID)
+    core = 40.0
+    case["shafts"][0]["segments"][3]["layers"] = [
+        {"material": "steel", "section": {"shape": "solid", "diameter": core}},
+        {
+            "material": "steel",
+            "section": {"shape": "tube", "outer_diameter": 60, "inner_diameter": core * (1 - gap)},
+        },
+    ]
+    assert_same_outcome(case)

@@ -57,10 +57,11 @@ _CIRCULAR_CODES = {cls: code for code, cls in _CIRCULAR.items()}
 SHAPE_CODES: dict[type, int] = {
     cls: _CIRCULAR_CODES.get(cls, GIVEN) for cls in declared.SHAPES.values()
 }
-#: Layers of one segment overlap when a bore is smaller than this fraction of the outer
-#: diameter of the layer inside it (the model's own tolerance, made a little wider so that the
-#: columns flag every segment the model refuses).
-_NEST_TOLERANCE = 1e-9 * (1.0 + 1e-6)
+#: Layers of one segment overlap when a bore is smaller than (1 − this) times the outer
+#: diameter of the layer inside it: the model's own tolerance, 1e-9, made a thousandth smaller
+#: so that the columns flag every segment the model refuses (its outer diameters, interpolated
+#: along the segment, may exceed the end diameters by an ulp).
+_NEST_TOLERANCE = 1e-9 * (1.0 - 1e-3)
 
 _LENGTH = operator.attrgetter("length")
 _LAYERS = operator.attrgetter("layers")
