@@ -50,8 +50,11 @@ from workbench.solver.model import Shaft
 from workbench.solver.parts import References, shaft_index
 from workbench.solver.sections import FloatArray
 
-_CIRCULAR = {SOLID: declared.SHAPES["solid"], TUBE: declared.SHAPES["tube"]}
-_CIRCULAR[TAPERED] = declared.SHAPES["tapered"]
+#: The declared circular sections by their shape code.
+_CIRCULAR: dict[int, type] = {
+    code: declared.SHAPES[shape]
+    for code, shape in ((SOLID, "solid"), (TUBE, "tube"), (TAPERED, "tapered"))
+}
 _CIRCULAR_CODES = {cls: code for code, cls in _CIRCULAR.items()}
 #: The shape code of each declared section (non-circular shapes are described by their class).
 SHAPE_CODES: dict[type, int] = {
