@@ -334,7 +334,7 @@ def test_an_unexpected_error_is_one_line_with_exit_status_3(
     def broken(*_: object, **__: object) -> None:
         raise RuntimeError("a defect\nspread over lines " + "x" * 500)
 
-    monkeypatch.setattr(analysis, "solve", broken)
+    monkeypatch.setattr(analysis, "solve_file", broken)
     status = main(["solve", str(DEMO_CASE)])
     captured = capsys.readouterr()
     assert status == 3
@@ -353,7 +353,7 @@ def test_debug_shows_the_traceback_of_an_internal_error(
     def broken(*_: object, **__: object) -> None:
         raise RuntimeError("a defect")
 
-    monkeypatch.setattr(analysis, "solve", broken)
+    monkeypatch.setattr(analysis, "solve_file", broken)
     assert main(["--debug", "solve", str(DEMO_CASE)]) == 3
     assert "Traceback" in capsys.readouterr().err
 

@@ -15,7 +15,7 @@ import numpy as np
 import scipy.linalg
 
 from workbench.solver import analysis, statics
-from workbench.solver.columns import case_table
+from workbench.solver.columns import CaseTable, case_table
 from workbench.solver.sections import FloatArray
 
 
@@ -35,9 +35,9 @@ class PlainSystem:
     n_cases: int
 
 
-def plain_system(model: Any) -> PlainSystem:
-    """The columns of a demo model: one shaft, one layer per segment, fixed at both ends."""
-    table = case_table(model)
+def plain_system(source: Any) -> PlainSystem:
+    """The columns of a demo model or table: one shaft, one layer per segment, fixed at both ends."""
+    table = source if isinstance(source, CaseTable) else case_table(source)
     segments = table.segments
     if len(segments.shaft_ids) != 1 or len(segments.layer_shape) != segments.n_segments:
         msg = "the bare reference takes one shaft of one-layer segments"
@@ -90,17 +90,20 @@ def bare_solve(plain: PlainSystem) -> FloatArray:
     return np.asarray(scipy.linalg.solve_banded((1, 1), band, rhs[1:-1]))
 
 
-def agreement(model: Any, bare: FloatArray) -> str:
+def agreement(model: Any, bare: FloatArray, results: Any = None) -> str:
     """How closely ``solve`` reproduces the bare solution (free node rotations).
+
+    ``results``: the results to compare, when already solved (by default ``solve(model)``).
 
     The two sides build their stiffnesses in different orders of rounding (G·J/L against
     1/∫dx/(G·J)), so they solve matrices a few ulps apart: their solutions may differ by up to
     the condition number times the unit roundoff (forward error bound, Higham, *Accuracy and
     Stability of Numerical Algorithms*, 2nd ed., §7.1; from memory).
     """
-    ours = analysis.solve(model).node_angle[: bare.shape[1], 1:-1].T
+    results = results if results is not None else analysis.solve(model)
+    ours = results.node_angle[: bare.shape[1], 1:-1].T
     error = float(np.max(np.abs(ours - bare)) / np.max(np.abs(bare)))
-    rcond = statics.solve_table(case_table(model)).factor.rcond
+    rcond = statics.solve_table(results.table).factor.rcond
     bound = 10.0 * float(np.finfo(float).eps) / rcond
     if error > bound:
         msg = f"solve() disagrees with the bare solution: {error:.1e} > κ·ε bound {bound:.1e}"

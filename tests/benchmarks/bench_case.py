@@ -10,6 +10,8 @@ Targets (on the 2-core reference machine):
   scipy.linalg"`` (the two commands taking turns), with neither pint nor pandas loaded.
 * ``workbench solve CASE --json`` with 100,000 segments: ≤ 8 × the same command on 10 segments
   (taking turns); where the time goes is in the notes.
+* ``workbench solve CASE --json`` of a 10⁶-segment file: ≤ 1 GB peak memory (``ru_maxrss`` of
+  the command, measured from a small process that runs it).
 
 The case files are invented line shafts (solid and tube segments whose diameters vary from one
 segment to the next, so that no two sections are alike), written to a temporary folder.
@@ -80,6 +82,7 @@ def case_text(segments: int) -> bytes:
 def _reading(segments: int, repeats: int) -> list[Row]:
     from workbench.case.load import case_file_from_bytes, check_case_bytes, decode_case_file
     from workbench.solver.build import build_model
+    from workbench.solver.case_columns import case_system
 
     data = case_text(segments)
     label = f"{segments:,} segments"
@@ -99,11 +102,20 @@ def _reading(segments: int, repeats: int) -> list[Row]:
         Row(f"{label}: validate", checking.median * per, "µs/segment"),
         Row(f"{label}: decode + validate", both.median * per, "µs/segment", 5.0, notes=notes),
     ]
+    tabling = time_calls(lambda: case_system(case), repeats=repeats, collect_between=True)
+    note = (
+        "declared case → the solver's SI columns (what `workbench solve` does): each key read "
+        "as one array, converted by one multiplication, checked on whole columns",
+    )
+    rows.append(
+        Row(f"{label}: table from the decoded file", tabling.median * per, "µs/segment", notes=note)
+    )
     if segments <= 100_000:
         building = time_calls(lambda: build_model(case), repeats=repeats, collect_between=True)
         note = (
             "declared case → SI Model: unit conversion by each key's quantity, the model's "
-            "objects and checks (a Python object per segment: the model's present API)",
+            "objects and checks (a Python object per segment: what the checks, the panel and "
+            "the record use)",
         )
         rows.append(
             Row(f"{label}: build the SI model", building.median * per, "µs/segment", notes=note)
@@ -184,22 +196,22 @@ def _cold_start() -> list[Row]:
 _PHASES_PROBE = """
     import json, time
     start = time.perf_counter()
-    from workbench.cli.solve import _print_json
-    from workbench.case.load import load_case_file
-    from workbench.solver.analysis import solve
-    from workbench.solver.build import build_model
-    from workbench.solver.tables import results_document
+    from workbench.case.load import check_case_bytes, decode_case_file, read_case_bytes
+    from workbench.solver.analysis import solve_case
+    from workbench.solver.case_columns import case_system
+    from workbench.solver.tables import results_json
     phases = {{"imports": time.perf_counter() - start}}
     def phase(name, call):
         begin = time.perf_counter()
         value = call()
         phases[name] = time.perf_counter() - begin
         return value
-    case = phase("read and validate", lambda: load_case_file({path!r}))
-    model = phase("build the model", lambda: build_model(case))
-    results = phase("solve", lambda: solve(model))
-    document = phase("results document", lambda: results_document(results))
-    text = phase("JSON text", lambda: json.dumps(document, separators=(",", ":"), allow_nan=False))
+    data = phase("read", lambda: read_case_bytes({path!r}))
+    case = phase("decode", lambda: decode_case_file(data))
+    phase("validate", lambda: check_case_bytes(data, case))
+    phase("table (apart)", lambda: case_system(case))
+    results = phase("table and solve", lambda: solve_case(case))
+    text = phase("JSON text", lambda: b"".join(results_json(results)))
     phases["output MB"] = len(text) / 1e6
     print(json.dumps(phases))
 """
@@ -221,9 +233,46 @@ def _solve_json() -> list[Row]:
         f"medians of 5 runs each, taking turns: 10 segments {ten * 1e3:.0f} ms, 100,000 "
         f"segments {hundred_thousand * 1e3:,.0f} ms",
         f"where the 100,000-segment run goes (one run, in process): {split}; the JSON text is "
-        f"{size:.0f} MB, its time the shortest round-trip text of every float (json.dumps)",
+        f"{size:.0f} MB, the shortest round-trip text of every float (msgspec), a block at a "
+        "time",
     )
     return [Row("solve --json, 100k / 10 segments", hundred_thousand / ten, "×", 8.0, notes=notes)]
+
+
+_MEMORY_PROBE = """
+    import json, resource, subprocess, sys, time
+    start = time.perf_counter()
+    subprocess.run(
+        [sys.executable, "-m", "workbench.cli", "solve", {path!r}, "--json"],
+        stdout=subprocess.DEVNULL, check=True,
+    )
+    wall = time.perf_counter() - start
+    peak = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss * 1024
+    print(json.dumps({{"wall": wall, "peak": peak}}))
+"""
+
+
+def _solve_memory() -> list[Row]:
+    """Peak memory of ``workbench solve FILE --json`` on a 10⁶-segment file, in a subprocess."""
+    with tempfile.TemporaryDirectory() as folder:
+        path = Path(folder) / "million.json"
+        data = case_text(1_000_000)
+        path.write_bytes(data)
+        probe = run_fresh_python(_MEMORY_PROBE.format(path=str(path)), timeout=600.0)
+    notes = (
+        f"ru_maxrss of the command (RUSAGE_CHILDREN of a small probe process that ran it): the "
+        f"whole command, interpreter, {len(data) / 1e6:.0f} MB file, decoded case, columns, "
+        f"mesh, solve and the JSON text written to /dev/null; it took {probe['wall']:.1f} s",
+    )
+    return [
+        Row(
+            "1M-segment file: solve --json peak memory",
+            probe["peak"] / 1e6,
+            "MB",
+            1000.0,
+            notes=notes,
+        )
+    ]
 
 
 def run() -> list[Row]:
@@ -233,4 +282,5 @@ def run() -> list[Row]:
         *_reading(1_000_000, repeats=3),
         *_cold_start(),
         *_solve_json(),
+        *_solve_memory(),
     ]

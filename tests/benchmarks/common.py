@@ -359,6 +359,56 @@ def demo_shaft_model(segments: int, *, distributed: bool = True) -> Any:
     )
 
 
+def demo_case_text(segments: int, *, distributed: bool = True) -> bytes:
+    """The system of :func:`demo_shaft_model` written as a case file (SI units), as bytes.
+
+    The same segments, supports and loads, each number written as the shortest text of the
+    float the model holds (``repr``), so that the file decodes to the same SI values and solving
+    it gives the model's results exactly.
+    """
+    lengths = np.resize(np.array(_SEGMENT_LENGTHS), segments)
+    joints = np.concatenate([[0.0], np.cumsum(lengths)])
+
+    def joint_near(fraction: float) -> float:
+        return float(joints[max(1, min(segments - 1, round(fraction * segments)))])
+
+    length = float(joints[-1])
+    sections = (
+        '{"shape": "solid", "diameter": 0.04}',
+        '{"shape": "tube", "outer_diameter": 0.05, "inner_diameter": 0.03}',
+    )
+    # The segments repeat every six (three lengths, two sections): write six, repeat the text.
+    cycle = [
+        f'{{"length": {_SEGMENT_LENGTHS[number % 3]!r}, "material": "steel", '
+        f'"section": {sections[number % 2]}}}'
+        for number in range(6)
+    ]
+    parts = (cycle * (segments // 6 + 1))[:segments]
+    if distributed:
+        third = (
+            f'"distributed": [{{"shaft": "line", "start": {0.6 * length!r}, "end": '
+            f'{0.7 * length!r}, "intensity_start": -40.0, "intensity_end": -80.0}}]'
+        )
+    else:
+        third = f'"torques": [{{"shaft": "line", "x": {joint_near(0.65)!r}, "torque": -60.0}}]'
+    steel = demo_steel()
+    head = (
+        f'{{"title": "demo line shaft", "materials": {{"steel": {{"shear_modulus": '
+        f'{steel.shear_modulus!r}, "yield_strength": {steel.yield_strength!r}, '
+        f'"ultimate_strength": {steel.ultimate_strength!r}}}}}, "shafts": [{{"id": "line", '
+        '"segments": ['
+    )
+    tail = (
+        f']}}], "supports": [{{"shaft": "line", "x": 0.0}}, {{"shaft": "line", "x": {length!r}}}, '
+        f'{{"shaft": "line", "x": {joint_near(0.5)!r}, "kind": "spring", "stiffness": 50000.0}}], '
+        f'"load_cases": [{{"name": "drive", "torques": [{{"shaft": "line", "x": '
+        f'{joint_near(1 / 3)!r}, "torque": 250.0}}]}}, {{"name": "reversal", "torques": [{{'
+        f'"shaft": "line", "x": {joint_near(0.25)!r}, "torque": 180.0}}, {{"shaft": "line", '
+        f'"x": {joint_near(0.75)!r}, "torque": -180.0}}]}}, {{"name": "conveyor drag", {third}}}]}}'
+    )
+    return (head + ", ".join(parts) + tail).encode("utf-8")
+
+
 def many_case_model(
     segments: int, cases: int, *, on_joints: bool = True, random_state: int = 7
 ) -> Any:

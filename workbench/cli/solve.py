@@ -8,8 +8,10 @@ command as one line).
 from __future__ import annotations
 
 import argparse
+import itertools
 import json
 import sys
+from collections.abc import Iterable
 from pathlib import Path
 from typing import Any
 
@@ -29,18 +31,35 @@ def _print_json(document: Any) -> None:
 
 
 def _command_solve(arguments: argparse.Namespace) -> int:
-    from workbench.solver.analysis import solve  # noqa: PLC0415 - keep `--help` fast
-    from workbench.solver.io import load_case  # noqa: PLC0415
-    from workbench.solver.tables import results_document, results_text  # noqa: PLC0415
+    # Straight from the file's columns: no object per segment (keep `--help` fast: lazy imports).
+    import numpy as np  # noqa: PLC0415
 
-    model = load_case(arguments.case)
-    results = solve(model)
+    from workbench.solver.analysis import solve_file  # noqa: PLC0415
+    from workbench.solver.tables import results_json, results_text  # noqa: PLC0415
+
+    # A load beyond the range of floats overflows to inf: the results carry it, the JSON writer
+    # refuses it by name, and numpy's warnings would add lines of their own to the one message.
+    with np.errstate(over="ignore", invalid="ignore"):
+        results = solve_file(arguments.case)
     if arguments.json:
-        _print_json(results_document(results))
+        # Written piece by piece; the document checks every value before its first piece.
+        _write_bytes(itertools.chain(results_json(results), [b"\n"]))
     else:
         sys.stdout.write(results_text(results))
         sys.stdout.write(f"\nCaution: {CAUTION}\n")
     return EXIT_OK
+
+
+def _write_bytes(pieces: Iterable[bytes]) -> None:
+    """UTF-8 text to stdout as it is (a stream without a byte buffer gets it decoded)."""
+    buffer = getattr(sys.stdout, "buffer", None)
+    sys.stdout.flush()
+    for piece in pieces:
+        if buffer is None:
+            sys.stdout.write(piece.decode("utf-8"))
+        else:
+            buffer.write(piece)
+    sys.stdout.flush()
 
 
 def _command_check(arguments: argparse.Namespace) -> int:

@@ -33,16 +33,26 @@ References
 
 from __future__ import annotations
 
-import numpy as np
-import scipy.sparse as sp
+import functools
+import os
+from collections.abc import Callable
+from typing import TYPE_CHECKING
 
+import numpy as np
+
+from workbench.case.units import UnitSystem
 from workbench.solver.assembly import add_diagonal, assemble_band, band_to_sparse
-from workbench.solver.columns import case_table
+from workbench.solver.columns import CaseTable, case_table
 from workbench.solver.elements import CURVE_PIECES, SaintVenantElements
 from workbench.solver.mesh import Mesh, build_mesh, build_mesh_from_table
 from workbench.solver.model import Model
 from workbench.solver.results import Envelope, LoadResult, Results, ShaftResult
 from workbench.solver.statics import solve_table
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
+
+    from workbench.case.declaration import CaseFile
 
 
 def solve(model: Model, mesh: Mesh | None = None) -> Results:
@@ -73,7 +83,78 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     ----------
     .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 2-3, 12.
     """
-    table = case_table(model)
+    return _results(case_table(model), mesh, model.units, model.title, model)
+
+
+def solve_case(case: CaseFile) -> Results:
+    """Solve a decoded case file straight from its columns: no Python object per segment.
+
+    The same results as ``solve(build_model(case))`` (the same columns, mesh and arithmetic),
+    and the same error for bad input, field path and message; the model is built only if a
+    reader of the results asks for :attr:`Results.model`.
+
+    Parameters
+    ----------
+    case
+        The decoded case file, in its own units (:mod:`workbench.case.load`).
+
+    Raises
+    ------
+    InputError
+        On anything building the model refuses, or supports and gears that contradict each
+        other.
+    MechanismError
+        When part of the system is free to spin.
+    """
+    from workbench.solver.build import build_model  # noqa: PLC0415 - only for solving files
+    from workbench.solver.case_columns import case_system  # noqa: PLC0415
+
+    system = case_system(case)
+    return _results(
+        system.table, None, system.units, system.title, functools.partial(build_model, case)
+    )
+
+
+def solve_file(path: str | os.PathLike[str]) -> Results:
+    """Read, check and solve a case file, as :func:`solve_case` does.
+
+    The decoded file is let go once its columns are taken, before the solve (at 10⁶ segments
+    it holds a quarter of a gigabyte); :attr:`Results.model`, when asked for, reads the file
+    again.
+
+    Raises
+    ------
+    InputError
+        When the file cannot be read, is not a valid case, or its supports and gears
+        contradict each other.
+    MechanismError
+        When part of the system is free to spin.
+    """
+    from workbench.case.load import load_case_file  # noqa: PLC0415 - only for solving files
+    from workbench.solver.build import build_model  # noqa: PLC0415
+    from workbench.solver.case_columns import case_system  # noqa: PLC0415
+
+    system = case_system(load_case_file(path))
+    source = functools.partial(_model_of_file, path, build_model, load_case_file)
+    return _results(system.table, None, system.units, system.title, source)
+
+
+def _model_of_file(
+    path: str | os.PathLike[str],
+    build: Callable[[CaseFile], Model],
+    load: Callable[[str | os.PathLike[str]], CaseFile],
+) -> Model:
+    return build(load(path))
+
+
+def _results(
+    table: CaseTable,
+    mesh: Mesh | None,
+    units: UnitSystem,
+    title: str,
+    source: Model | Callable[[], Model],
+) -> Results:
+    """Solve a table (one variant) and wrap its arrays as :class:`Results`."""
     mesh = mesh if mesh is not None else build_mesh_from_table(table)
     solution = solve_table(table, mesh)
     arrays = {
@@ -82,7 +163,15 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
     }
     for array in arrays.values():
         array.setflags(write=False)
-    return Results(model=model, mesh=mesh, names=solution.names, **arrays)
+    return Results(
+        table=table,
+        mesh=mesh,
+        names=solution.names,
+        **arrays,
+        units=units,
+        title=title,
+        source=source,
+    )
 
 
 def torsion_stiffness_matrix(model: Model, mesh: Mesh | None = None) -> sp.csr_matrix:
@@ -100,6 +189,8 @@ def torsion_stiffness_matrix(model: Model, mesh: Mesh | None = None) -> sp.csr_m
         mesh.nodes_of(table.support_shaft[springs], table.support_x[springs]),
         table.support_stiffness[:, springs],
     )
+    import scipy.sparse as sp  # noqa: PLC0415 - statics without gears needs no sparse matrix
+
     return sp.csr_matrix(band_to_sparse(band))
 
 
@@ -112,5 +203,7 @@ __all__ = [
     "ShaftResult",
     "build_mesh",
     "solve",
+    "solve_case",
+    "solve_file",
     "torsion_stiffness_matrix",
 ]

@@ -9,8 +9,10 @@ the field by its path in the case file. :func:`case_file_of` goes the other way,
 
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import gc
+from collections.abc import Iterator
 from typing import Any
 
 from msgspec import UNSET
@@ -55,8 +57,11 @@ SECTIONS: dict[type[declared.Keys], type[Section]] = {
 }
 
 
-class _Builder:
-    """Builds the parts of one model, converting with one case's units."""
+class ModelBuilder:
+    """Builds the parts of one model, converting with one case's units.
+
+    Made by :func:`building`; its errors name fields relative to the part it builds.
+    """
 
     def __init__(self, case: declared.CaseFile, converter: Converter) -> None:
         self.case = case
@@ -231,30 +236,51 @@ class _Builder:
             entry.name, self.convert.si(entry, "min"), self.convert.si(entry, "max")
         )
 
-    def model(self) -> Model:
-        """The whole model (its own checks name fields by their paths)."""
+    def parts(self) -> dict[str, Any]:
+        """Every part of the model but its shafts, as :class:`Model` takes them."""
         case, converter = self.case, self.convert
         value_of = declared.value_of
         design = value_of(case, "design")
-        return Model(
-            shafts=self.shafts(),
-            supports=build_each(value_of(case, "supports"), "supports", self._support),
-            gears=build_each(value_of(case, "gears"), "gears", self._gear),
-            load_cases=build_each(case.load_cases, "load_cases", self._load_case),
-            combinations=build_each(
+        return {
+            "supports": build_each(value_of(case, "supports"), "supports", self._support),
+            "gears": build_each(value_of(case, "gears"), "gears", self._gear),
+            "load_cases": build_each(case.load_cases, "load_cases", self._load_case),
+            "combinations": build_each(
                 value_of(case, "combinations"),
                 "combinations",
                 lambda entry: Combination(entry.name, tuple(entry.factors.items())),
             ),
-            title=value_of(case, "title"),
-            materials=tuple(self.materials.values()),
-            units=converter.units,
-            design=design_criteria(design, converter) if design is not None else None,
-            discs=build_each(value_of(case, "discs"), "discs", self._disc),
-            operating_speeds=build_each(
+            "title": value_of(case, "title"),
+            "materials": tuple(self.materials.values()),
+            "units": converter.units,
+            "design": design_criteria(design, converter) if design is not None else None,
+            "discs": build_each(value_of(case, "discs"), "discs", self._disc),
+            "operating_speeds": build_each(
                 value_of(case, "operating_speeds"), "operating_speeds", self._speed
             ),
-        )
+        }
+
+    def model(self) -> Model:
+        """The whole model (its own checks name fields by their paths)."""
+        shafts = self.shafts()
+        return Model(shafts=shafts, **self.parts())
+
+
+@contextlib.contextmanager
+def building(case: declared.CaseFile) -> Iterator[ModelBuilder]:
+    """A builder for the parts of a case, with messages quoting values in the file's units.
+
+    Raises
+    ------
+    InputError
+        On a unit or a material of the case the model refuses, naming the field.
+    """
+    units = unit_system(declared.value_of(case, "units"))
+    token = display_units.set(units)  # messages quote values in the file's own units
+    try:
+        yield ModelBuilder(case, Converter(units))
+    finally:
+        display_units.reset(token)
 
 
 def build_model(case: declared.CaseFile) -> Model:
@@ -275,18 +301,16 @@ def build_model(case: declared.CaseFile) -> Model:
     InputError
         On any value, reference or position the model refuses, naming the field.
     """
-    units = unit_system(declared.value_of(case, "units"))
-    token = display_units.set(units)  # messages quote values in the file's own units
     collecting = gc.isenabled()
     # Millions of new objects and no cycles among them: the cyclic collector would only rescan
     # the growing heap again and again (a third of the building time at 10⁵ segments).
     gc.disable()
     try:
-        return _Builder(case, Converter(units)).model()
+        with building(case) as builder:
+            return builder.model()
     finally:
         if collecting:
             gc.enable()
-        display_units.reset(token)
 
 
 # --- the case file of a model --------------------------------------------------------------

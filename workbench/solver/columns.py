@@ -25,12 +25,20 @@ from __future__ import annotations
 import itertools
 import operator
 import weakref
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
-from workbench.solver.model import Model, Shaft
+from workbench.solver.model import (
+    Combination,
+    GearMesh,
+    LoadCase,
+    Model,
+    Shaft,
+    Support,
+)
 from workbench.solver.sections import FloatArray, Section, SolidCircle, TaperedCircle, Tube
 
 IntArray = np.ndarray[Any, np.dtype[np.intp]]
@@ -264,7 +272,7 @@ _MODULUS = operator.attrgetter("material.shear_modulus")
 _FIRST = operator.itemgetter(0)
 
 
-def _section_row(section: Section) -> tuple[float, ...]:
+def section_row(section: Section) -> tuple[float, ...]:
     """(shape code, d_start, d_end, bore, K, τ/T) of one section object."""
     nan = np.nan
     if isinstance(section, SolidCircle):
@@ -339,7 +347,7 @@ def _take_shaft_columns(shaft: Shaft) -> _ShaftColumns:
     distinct = np.fromiter(first_seen.values(), np.intp, len(first_seen))
     row_of = np.empty(len(flat), dtype=np.intp)
     row_of[distinct] = np.arange(len(distinct))
-    described = np.array([_section_row(sections[index]) for index in distinct], dtype=float)
+    described = np.array([section_row(sections[index]) for index in distinct], dtype=float)
     columns = _ShaftColumns(lengths, per_segment, moduli, row_of[position], described)
     for array in (lengths, per_segment, moduli, columns.section, described):
         array.setflags(write=False)
@@ -424,48 +432,77 @@ def case_table(model: Model) -> CaseTable:
 
 
 def _take_case_table(model: Model) -> CaseTable:
-    number = model.shaft_number
-    supports = model.supports
-    points = [(row, torque) for row, case in enumerate(model.load_cases) for torque in case.torques]
-    spans = [(row, load) for row, case in enumerate(model.load_cases) for load in case.distributed]
-    case_row = {case.name: row for row, case in enumerate(model.load_cases)}
-    factors = np.zeros((len(model.combinations), len(model.load_cases)))
-    for row, combination in enumerate(model.combinations):
-        for case_name, factor in combination.factors:
-            factors[row, case_row[case_name]] += factor
     design_points = model.design.key_points() if model.design is not None else []
-    key_points = [*design_points, *model.extra_nodes]
     return CaseTable(
         segments=segment_table(model.shafts),
-        support_shaft=np.array([number(item.shaft) for item in supports], dtype=np.intp),
-        support_x=np.array([item.x for item in supports], dtype=float),
-        support_fixed=np.array([item.kind == "fixed" for item in supports], dtype=bool),
-        support_stiffness=np.array(
+        **system_columns(
+            model.shaft_number,
+            supports=model.supports,
+            gears=model.gears,
+            load_cases=model.load_cases,
+            combinations=model.combinations,
+            key_points=[*design_points, *model.extra_nodes],
+        ),
+    )
+
+
+def system_columns(
+    number: Callable[[str], int],
+    *,
+    supports: tuple[Support, ...],
+    gears: tuple[GearMesh, ...],
+    load_cases: tuple[LoadCase, ...],
+    combinations: tuple[Combination, ...],
+    key_points: list[tuple[str, float]],
+) -> dict[str, Any]:
+    """Every column of a :class:`CaseTable` but its segments, from the model's parts (SI).
+
+    Parameters
+    ----------
+    number
+        Shaft id → shaft number.
+    supports, gears, load_cases, combinations
+        The validated parts (one object each: there are few of them).
+    key_points
+        (shaft id, x in m) of further points the mesh must make nodes of.
+    """
+    points = [(row, torque) for row, case in enumerate(load_cases) for torque in case.torques]
+    spans = [(row, load) for row, case in enumerate(load_cases) for load in case.distributed]
+    case_row = {case.name: row for row, case in enumerate(load_cases)}
+    factors = np.zeros((len(combinations), len(load_cases)))
+    for row, combination in enumerate(combinations):
+        for case_name, factor in combination.factors:
+            factors[row, case_row[case_name]] += factor
+    return {
+        "support_shaft": np.array([number(item.shaft) for item in supports], dtype=np.intp),
+        "support_x": np.array([item.x for item in supports], dtype=float),
+        "support_fixed": np.array([item.kind == "fixed" for item in supports], dtype=bool),
+        "support_stiffness": np.array(
             [item.stiffness if item.stiffness is not None else np.nan for item in supports]
         ),
-        support_rotation=np.array([item.rotation for item in supports], dtype=float),
-        gear_shaft=np.array(
-            [(number(gear.a.shaft), number(gear.b.shaft)) for gear in model.gears], dtype=np.intp
+        "support_rotation": np.array([item.rotation for item in supports], dtype=float),
+        "gear_shaft": np.array(
+            [(number(gear.a.shaft), number(gear.b.shaft)) for gear in gears], dtype=np.intp
         ).reshape(-1, 2),
-        gear_x=np.array([(gear.a.x, gear.b.x) for gear in model.gears], dtype=float).reshape(-1, 2),
-        gear_coefficient=np.array([gear.coefficients for gear in model.gears], dtype=float),
-        torque_case=np.array([row for row, _ in points], dtype=np.intp),
-        torque_shaft=np.array([number(torque.shaft) for _, torque in points], dtype=np.intp),
-        torque_x=np.array([torque.x for _, torque in points], dtype=float),
-        torque=np.array([torque.torque for _, torque in points], dtype=float),
-        load_case=np.array([row for row, _ in spans], dtype=np.intp),
-        load_shaft=np.array([number(load.shaft) for _, load in spans], dtype=np.intp),
-        load_start=np.array([load.start for _, load in spans], dtype=float),
-        load_end=np.array([load.end for _, load in spans], dtype=float),
-        load_intensity=np.array(
+        "gear_x": np.array([(gear.a.x, gear.b.x) for gear in gears], dtype=float).reshape(-1, 2),
+        "gear_coefficient": np.array([gear.coefficients for gear in gears], dtype=float),
+        "torque_case": np.array([row for row, _ in points], dtype=np.intp),
+        "torque_shaft": np.array([number(torque.shaft) for _, torque in points], dtype=np.intp),
+        "torque_x": np.array([torque.x for _, torque in points], dtype=float),
+        "torque": np.array([torque.torque for _, torque in points], dtype=float),
+        "load_case": np.array([row for row, _ in spans], dtype=np.intp),
+        "load_shaft": np.array([number(load.shaft) for _, load in spans], dtype=np.intp),
+        "load_start": np.array([load.start for _, load in spans], dtype=float),
+        "load_end": np.array([load.end for _, load in spans], dtype=float),
+        "load_intensity": np.array(
             [(load.intensity_start, load.intensity_end) for _, load in spans], dtype=float
         ),
-        case_names=tuple(case.name for case in model.load_cases),
-        combination_names=tuple(combination.name for combination in model.combinations),
-        combination_factors=factors,
-        key_shaft=np.array([number(shaft_id) for shaft_id, _ in key_points], dtype=np.intp),
-        key_x=np.array([x for _, x in key_points], dtype=float),
-    )
+        "case_names": tuple(case.name for case in load_cases),
+        "combination_names": tuple(combination.name for combination in combinations),
+        "combination_factors": factors,
+        "key_shaft": np.array([number(shaft_id) for shaft_id, _ in key_points], dtype=np.intp),
+        "key_x": np.array([x for _, x in key_points], dtype=float),
+    }
 
 
 __all__ = [
@@ -479,4 +516,5 @@ __all__ = [
     "SegmentTable",
     "case_table",
     "segment_table",
+    "system_columns",
 ]

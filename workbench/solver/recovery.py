@@ -134,6 +134,10 @@ def start_torques(
     return start
 
 
+#: Stations inside elements recovered at once (bounds the temporaries of the formulas).
+STATION_BLOCK = 1 << 16
+
+
 def station_values(
     mesh: Mesh,
     geometry: Geometry,
@@ -175,20 +179,25 @@ def station_values(
     torque[..., first], torque[..., last] = start, end
     # An element's ends are its nodes: take the nodal values themselves, free of rounding.
     angle[..., first], angle[..., last] = angle_a, angle_b
-    inside = mesh.interior
-    element = mesh.station_element[inside]
-    u = geometry.station_u[:, inside]
-    moments = geometry.interior_moments
-    intensity = loads.full(loads.start, n_elements)[..., element]
-    slope = loads.full(loads.slope, n_elements)[..., element]
-    element_start = start[..., element]
-    torque[..., inside] = element_start - intensity * u - slope * u**2
-    angle[..., inside] = (
-        angle_a[..., element]
-        + element_start * moments[..., 0]
-        - intensity * moments[..., 1]
-        - slope * moments[..., 2]
-    )
+    all_intensity = loads.full(loads.start, n_elements)
+    all_slope = loads.full(loads.slope, n_elements)
+    # A block of stations at a time: the formulas' temporaries stay small (at 10⁶ elements
+    # whole-array temporaries would double the solve's peak memory).
+    for block in range(0, len(mesh.interior), STATION_BLOCK):  # a loop over blocks of stations
+        inside = mesh.interior[block : block + STATION_BLOCK]
+        element = mesh.station_element[inside]
+        u = geometry.station_u[:, inside]
+        moments = geometry.interior_moments[:, block : block + STATION_BLOCK]
+        intensity = all_intensity[..., element]
+        slope = all_slope[..., element]
+        element_start = start[..., element]
+        torque[..., inside] = element_start - intensity * u - slope * u**2
+        angle[..., inside] = (
+            angle_a[..., element]
+            + element_start * moments[..., 0]
+            - intensity * moments[..., 1]
+            - slope * moments[..., 2]
+        )
 
 
 def fixed_reactions(

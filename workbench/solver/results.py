@@ -2,21 +2,29 @@
 
 Arrays have one row per result (load cases first, in model order, then combinations) and one
 column per mesh station; the per-shaft, per-result views and the tables users take away are
-built from them on demand.
+built from them on demand. Results describe their case by its columns (the solved
+:class:`~workbench.solver.columns.CaseTable`), so a case solved straight from its file never
+builds one object per segment; the :class:`~workbench.solver.model.Model` is built only when a
+reader asks for it.
 """
 
 from __future__ import annotations
 
-from collections.abc import Iterator, Mapping
-from dataclasses import dataclass
-from typing import Any
+import functools
+from collections.abc import Callable, Iterator, Mapping
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from workbench.case.errors import InputError
+from workbench.case.units import SI, UnitSystem
+from workbench.solver.columns import CaseTable
 from workbench.solver.mesh import Mesh
-from workbench.solver.model import Model
 from workbench.solver.sections import FloatArray
+
+if TYPE_CHECKING:
+    from workbench.solver.model import Model
 
 
 @dataclass(frozen=True)
@@ -102,8 +110,8 @@ class Results:
 
     Attributes
     ----------
-    model
-        The model solved.
+    table
+        The system solved, as columns (shaft ids, supports, gears, load-case names).
     mesh
         Its mesh.
     names
@@ -116,9 +124,16 @@ class Results:
         (n_results, n_stations) internal torque (N·m), rotation (rad), peak shear stress (Pa).
     node_angle
         (n_results, n_nodes) rotation at the mesh nodes (rad).
+    units
+        The units the case was written in, to report it back.
+    title
+        The case's title.
+    source
+        The model solved, or a function that builds it (called once, when :attr:`model` is
+        first read).
     """
 
-    model: Model
+    table: CaseTable
     mesh: Mesh
     names: tuple[str, ...]
     reactions: FloatArray
@@ -127,6 +142,27 @@ class Results:
     angle: FloatArray
     shear_stress: FloatArray
     node_angle: FloatArray
+    units: UnitSystem = SI
+    title: str = ""
+    source: Model | Callable[[], Model] | None = field(default=None, repr=False, compare=False)
+
+    @functools.cached_property
+    def model(self) -> Model:
+        """The model solved (built from the case file on first use when solved from columns)."""
+        source = self.source
+        if source is None:
+            msg = "these results were made without a model"
+            raise TypeError(msg)
+        return source() if callable(source) else source
+
+    @property
+    def shaft_ids(self) -> tuple[str, ...]:
+        """The shafts' ids, in order."""
+        return self.table.segments.shaft_ids
+
+    def shaft_number(self, shaft_id: str) -> int:
+        """The index of the shaft with this id."""
+        return self.shaft_ids.index(shaft_id)
 
     def index(self, name: str) -> int:
         """Row of the named load case or combination."""
@@ -139,9 +175,9 @@ class Results:
     def __getitem__(self, name: str) -> LoadResult:
         row = self.index(name)
         shafts = {}
-        for number, shaft in enumerate(self.model.shafts):
+        for number, shaft_id in enumerate(self.shaft_ids):
             window = self._window(number)
-            shafts[shaft.id] = ShaftResult(
+            shafts[shaft_id] = ShaftResult(
                 x=self.mesh.station_x[window],
                 torque=self.torque[row, window],
                 angle=self.angle[row, window],
@@ -149,7 +185,7 @@ class Results:
             )
         return LoadResult(
             name=name,
-            is_combination=row >= len(self.model.load_cases),
+            is_combination=row >= self.table.n_cases,
             reactions=self.reactions[row],
             gear_torques=self.gear_torques[row],
             shafts=shafts,
@@ -167,7 +203,7 @@ class Results:
 
     def envelope(self, shaft_id: str) -> Envelope:
         """Bounds over all results along one shaft."""
-        window = self._window(self.model.shaft_number(shaft_id))
+        window = self._window(self.shaft_number(shaft_id))
         return Envelope(
             x=self.mesh.station_x[window],
             torque_min=self.torque[:, window].min(axis=0),
@@ -185,7 +221,7 @@ class Results:
         import pandas as pd  # noqa: PLC0415 - tables are an edge; the solver core stays light
 
         shaft_of_station = self.mesh.element_shaft[self.mesh.station_element]
-        shaft_ids = np.array([shaft.id for shaft in self.model.shafts], dtype=object)
+        shaft_ids = np.array(self.shaft_ids, dtype=object)
         rows = len(self.names)
         return pd.DataFrame(
             {
@@ -203,9 +239,23 @@ class Results:
         import pandas as pd  # noqa: PLC0415
 
         columns = [
-            f"{support.shaft}@{support.x:g} m ({support.kind})" for support in self.model.supports
+            f"{shaft_id}@{x:g} m ({kind})" for shaft_id, x, kind in support_labels(self.table)
         ]
         return pd.DataFrame(self.reactions, index=list(self.names), columns=columns)
 
 
-__all__ = ["Envelope", "LoadResult", "Results", "ShaftResult"]
+def support_labels(table: CaseTable) -> list[tuple[str, float, str]]:
+    """(shaft id, x (m), kind) of every support of a table, in order."""
+    shaft_ids = table.segments.shaft_ids
+    return [
+        (shaft_ids[shaft], x, "fixed" if fixed else "spring")
+        for shaft, x, fixed in zip(
+            table.support_shaft.tolist(),
+            table.support_x.tolist(),
+            table.support_fixed.tolist(),
+            strict=True,
+        )
+    ]
+
+
+__all__ = ["Envelope", "LoadResult", "Results", "ShaftResult", "support_labels"]

@@ -6,57 +6,146 @@ mechanics.
 
 from __future__ import annotations
 
+import itertools
+from collections.abc import Callable, Iterator
 from typing import Any
 
 import numpy as np
 
+from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem
-from workbench.solver.analysis import Results
+from workbench.solver.results import Results, support_labels
 
 #: The base quantities a results document reports, with their unit keys.
 REPORTED_UNITS = ("length", "torque", "stress", "angle")
+#: The station values of each shaft in the document: (key, the quantity of its unit).
+STATION_VALUES = (("torque", "torque"), ("angle", "angle"), ("shear_stress", "stress"))
+#: How a message names each array of the document.
+_WORDS = {"reactions": "reaction", "shear_stress": "shear stress", "x": "station position"}
+#: Values written to JSON text at once (bounds the Python floats held while writing).
+TEXT_BLOCK = 1 << 16
 
 
-def _floats(values: Any) -> list[float]:
-    return [float(v) for v in np.asarray(values, dtype=float)]
+def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity: str) -> None:
+    """Raise :class:`InputError` naming the result and quantity of a value JSON cannot hold.
+
+    JSON has no infinity or NaN; a value that is not finite in the reader's units (an overflow
+    of a huge load, or of a tiny unit) is refused with its place instead of being written. The
+    values are converted a result at a time (a whole converted copy of a million-segment
+    result would cost as much memory as the results themselves).
+    """
+    rows = values.reshape(len(values), -1)
+    for row in range(len(rows)):  # a loop over results
+        converted = units.from_si(rows[row], quantity)
+        finite = np.isfinite(converted)
+        if finite.all():
+            continue
+        column = int(np.argmin(finite))
+        name = results.names[row]
+        kind = "combination" if row >= results.table.n_cases else "load case"
+        if key == "reactions":
+            where, path = f"support {column}", f"results[{row}].reactions[{column}]"
+        else:
+            shaft = int(np.searchsorted(results.mesh.shaft_station_start, column, "right")) - 1
+            shaft_id = results.shaft_ids[shaft]
+            x = units.from_si(float(results.mesh.station_x[column]), "length")
+            where = f"shaft {shaft_id!r} at x = {x:g} {units.label('length')}"
+            path = f"results[{row}].shafts.{shaft_id}.{key}"
+        msg = (
+            f"the {_WORDS.get(key, key)} of {kind} {name!r} at {where} is "
+            f"{float(converted[column])} {units.label(quantity)}: JSON cannot hold it (no "
+            "document is written)"
+        )
+        raise InputError(path, msg)
 
 
-def results_document(results: Results, units: UnitSystem | None = None) -> dict[str, Any]:
-    """The ``workbench solve --json`` document, in the given units (default: the case's).
+def _array_text(values: Any, encode: Callable[[Any], bytes]) -> Iterator[bytes]:
+    """A JSON array of floats, written a block at a time (Python floats for a block only)."""
+    if len(values) <= TEXT_BLOCK:
+        yield encode(values.tolist())
+        return
+    yield b"["
+    for start in range(0, len(values), TEXT_BLOCK):  # a loop over blocks of values
+        text = encode(values[start : start + TEXT_BLOCK].tolist())
+        yield (b"," if start else b"") + text[1:-1]
+    yield b"]"
+
+
+def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[bytes]:
+    """The ``workbench solve --json`` document as compact UTF-8 JSON text, in pieces.
+
+    Every value is checked finite in the reader's units first, then converted and written a
+    block at a time (the same division by the unit's factor as
+    :meth:`~workbench.case.units.UnitSystem.from_si`, so each value is the one a value-by-value
+    conversion gives), so that a million-segment shaft is never held as Python numbers, nor as
+    a converted copy, all at once. msgspec writes each float as the shortest text that reads
+    back as the same value (as ``json.dumps`` does, though not always the same text: ``1e-05``
+    for ``0.00001``).
 
     Parameters
     ----------
     results
         Solved results.
     units
-        Units for every number.
+        Units for every number (default: the case's).
 
-    Returns
-    -------
-    dict
-        ``{"units": {...}, "results": [{"name", "reactions", "shafts": {id: {"x", "torque",
-        "angle", "shear_stress"}}}]}``, load cases then combinations, in file order.
+    Yields
+    ------
+    bytes
+        Consecutive pieces of the document ``{"units": {...}, "results": [{"name",
+        "reactions", "shafts": {id: {"x", "torque", "angle", "shear_stress"}}}]}``, load cases
+        then combinations, in file order.
+
+    Raises
+    ------
+    InputError
+        Before the first piece, when a value is not finite in these units (JSON has no
+        infinity; msgspec would write ``null``), naming the result, the shaft and the quantity.
     """
-    units = units or results.model.units
-    entries = []
-    for result in results:
-        shafts = {
-            shaft_id: {
-                "x": _floats(units.from_si(values.x, "length")),
-                "torque": _floats(units.from_si(values.torque, "torque")),
-                "angle": _floats(units.from_si(values.angle, "angle")),
-                "shear_stress": _floats(units.from_si(values.shear_stress, "stress")),
-            }
-            for shaft_id, values in result.shafts.items()
-        }
-        entries.append(
-            {
-                "name": result.name,
-                "reactions": _floats(units.from_si(result.reactions, "torque")),
-                "shafts": shafts,
-            }
-        )
-    return {"units": {key: getattr(units, key) for key in REPORTED_UNITS}, "results": entries}
+    import msgspec  # noqa: PLC0415 - the case loader has loaded it already
+
+    encode = msgspec.json.encode
+    units = units or results.units
+    _finite(results, "reactions", results.reactions, units, "torque")
+    _finite(results, "x", results.mesh.station_x[None], units, "length")
+    for key, quantity in STATION_VALUES:
+        _finite(results, key, getattr(results, key), units, quantity)
+    windows = list(itertools.pairwise(results.mesh.shaft_station_start.tolist()))
+    station_x = results.mesh.station_x
+    yield b'{"units":' + encode({key: getattr(units, key) for key in REPORTED_UNITS})
+    yield b',"results":['
+    for row, name in enumerate(results.names):
+        reactions = units.from_si(results.reactions[row], "torque")
+        yield b"," if row else b""
+        yield b'{"name":' + encode(name) + b',"reactions":' + encode(reactions.tolist())
+        yield b',"shafts":{'
+        for number, (shaft_id, (start, end)) in enumerate(
+            zip(results.shaft_ids, windows, strict=True)
+        ):
+            yield (b"," if number else b"") + encode(shaft_id) + b':{"x":'
+            yield from _array_text(units.from_si(station_x[start:end], "length"), encode)
+            for key, quantity in STATION_VALUES:
+                yield b',"' + key.encode() + b'":'
+                values = getattr(results, key)[row, start:end]
+                yield from _array_text(units.from_si(values, quantity), encode)
+            yield b"}"
+        yield b"}}"
+    yield b"]}"
+
+
+def results_document(results: Results, units: UnitSystem | None = None) -> dict[str, Any]:
+    """The ``workbench solve --json`` document as plain values (:func:`results_json`, read back).
+
+    Raises
+    ------
+    InputError
+        When a value is not finite in these units, naming the result, the shaft and the
+        quantity.
+    """
+    import msgspec  # noqa: PLC0415
+
+    document: dict[str, Any] = msgspec.json.decode(b"".join(results_json(results, units)))
+    return document
 
 
 def format_table(headers: list[str], rows: list[list[str]]) -> str:
@@ -82,26 +171,28 @@ def _g(value: float) -> str:
 
 def results_text(results: Results, units: UnitSystem | None = None) -> str:
     """Readable tables: reactions and, per shaft, the values at every node (left and right)."""
-    units = units or results.model.units
-    model = results.model
+    units = units or results.units
+    table = results.table
     out = []
-    if model.title:
-        out.append(model.title)
-        out.append("=" * len(model.title))
+    if results.title:
+        out.append(results.title)
+        out.append("=" * len(results.title))
     mesh = results.mesh
     for result in results:
         kind = "combination" if result.is_combination else "load case"
         out.append(f"\n{kind} {result.name!r}")
         rows = [
             [
-                f"{support.shaft} x={_g(units.from_si(support.x, 'length'))}",
-                support.kind,
+                f"{shaft_id} x={_g(units.from_si(x, 'length'))}",
+                kind,
                 _g(units.from_si(reaction, "torque")),
             ]
-            for support, reaction in zip(model.supports, result.reactions, strict=True)
+            for (shaft_id, x, kind), reaction in zip(
+                support_labels(table), result.reactions, strict=True
+            )
         ]
         out.append(format_table(["support", "kind", f"reaction [{units.label('torque')}]"], rows))
-        if model.gears:
+        if len(table.gear_x):
             rows = [
                 [
                     f"gears[{number}]",
