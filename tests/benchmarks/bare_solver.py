@@ -81,7 +81,7 @@ def bare_solve(plain: PlainSystem) -> FloatArray:
     diagonal[:-1] += stiffness
     diagonal[1:] += stiffness
     np.add.at(diagonal, plain.spring_node, plain.spring_stiffness)
-    band = np.empty((3, n_nodes - 2))  # the two fixed end nodes removed
+    band = np.zeros((3, n_nodes - 2))  # the two fixed end nodes removed; corners unused
     band[0, 1:] = -stiffness[1:-1]
     band[1] = diagonal[1:-1]
     band[2, :-1] = -stiffness[1:-1]
