@@ -399,3 +399,25 @@ def test_layers_at_the_edge_of_the_nesting_tolerance_are_judged_alike(gap):
         },
     ]
     assert_same_outcome(case)
+
+
+def test_a_value_that_overflows_only_in_the_files_units_is_refused_by_name(tmp_path, capsys):
+    """Stresses written in millipascals: about 1e306 Pa is finite in SI but not in mPa."""
+    case = copy.deepcopy(VALID)
+    case["units"]["stress"] = "mPa"
+    case["materials"]["steel"]["shear_modulus"] = 79.3e12  # 79.3 GPa in mPa
+    case["materials"]["steel"]["yield_strength"] = 350e9
+    # 16·T/(π·d³) with T = 1e300 N·m on d = 17 mm: about 1e306 Pa, 1e309 mPa.
+    case["shafts"][0]["segments"][0]["section"]["diameter"] = 17
+    load = {"shaft": "main", "x": 300, "torque": 1e300}
+    case["load_cases"] = [{"name": "enormous", "torques": [load]}]
+    case.pop("combinations", None)
+    path = tmp_path / "case.json"
+    path.write_text(json.dumps(case), encoding="utf-8")
+    status = main(["solve", str(path), "--json"])
+    captured = capsys.readouterr()
+    assert status == 2, captured.err
+    assert captured.out == ""
+    assert captured.err.count("\n") == 1
+    assert captured.err.startswith("results[0].shafts.main.shear_stress: the shear stress of load ")
+    assert "mPa: JSON cannot hold it" in captured.err

@@ -21,7 +21,6 @@ from workbench.solver.analysis import (
     build_mesh,
     solve,
 )
-from workbench.solver.batch import BatchResults, solve_batch
 from workbench.solver.io import case_to_dict, load_case, parse_case, save_case
 from workbench.solver.model import (
     Combination,
@@ -38,16 +37,21 @@ from workbench.solver.model import (
 )
 
 if TYPE_CHECKING:
+    from workbench.solver.batch import BatchResults, solve_batch
     from workbench.solver.modes import Modes, natural_modes
 
 
 def __getattr__(name: str) -> Any:
-    # The vibration analysis is loaded when first asked for: statics (`workbench solve`) never
-    # needs it, and it costs a noticeable part of the command's start.
+    # The vibration analysis and the batch path are loaded when first asked for: statics
+    # (`workbench solve`) never needs them, and they cost a noticeable part of the command's start.
     if name in ("Modes", "natural_modes"):
         from workbench.solver import modes  # noqa: PLC0415
 
         return getattr(modes, name)
+    if name in ("BatchResults", "solve_batch"):
+        from workbench.solver import batch  # noqa: PLC0415
+
+        return getattr(batch, name)
     msg = f"module {__name__!r} has no attribute {name!r}"
     raise AttributeError(msg)
 

@@ -11,9 +11,10 @@ from __future__ import annotations
 
 import contextlib
 import dataclasses
+import functools
 import gc
 from collections.abc import Iterator
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from msgspec import UNSET
 
@@ -42,19 +43,36 @@ from workbench.solver.model import (
     Shaft,
     Support,
 )
-from workbench.solver.noncircular import NONCIRCULAR_SHAPES, Wall
 from workbench.solver.sections import Section
 
-_SOLVER_SECTIONS: tuple[type[Section], ...] = (
-    circular.SolidCircle,
-    circular.Tube,
-    circular.TaperedCircle,
-    *NONCIRCULAR_SHAPES.values(),
-)
-#: The solver's section for each declared shape (the same key names, in SI).
-SECTIONS: dict[type[declared.Keys], type[Section]] = {
-    declared.SHAPES[cls.shape]: cls for cls in _SOLVER_SECTIONS
-}
+if TYPE_CHECKING:
+    from workbench.solver.noncircular import Wall
+
+
+@functools.cache
+def solver_sections() -> dict[type[declared.Keys], type[Section]]:
+    """The solver's section for each declared shape (the same key names, in SI).
+
+    The non-circular shapes are loaded on first use: a case of circular shafts (the demo's
+    ``workbench solve``) never needs them.
+    """
+    from workbench.solver.noncircular import NONCIRCULAR_SHAPES  # noqa: PLC0415
+
+    shapes: tuple[type[Section], ...] = (
+        circular.SolidCircle,
+        circular.Tube,
+        circular.TaperedCircle,
+        *NONCIRCULAR_SHAPES.values(),
+    )
+    return {declared.SHAPES[cls.shape]: cls for cls in shapes}
+
+
+def __getattr__(name: str) -> Any:
+    # SECTIONS, the table of solver_sections(), is read by tests and tools as a constant.
+    if name == "SECTIONS":
+        return solver_sections()
+    msg = f"module {__name__!r} has no attribute {name!r}"
+    raise AttributeError(msg)
 
 
 class ModelBuilder:
@@ -113,9 +131,11 @@ class ModelBuilder:
             value = self.convert.si(entry, name)
             if value is not None:
                 values[name] = value
-        return SECTIONS[cls](**values)
+        return solver_sections()[cls](**values)
 
     def _wall(self, number: int, entry: declared.Wall) -> Wall:
+        from workbench.solver.noncircular import Wall  # noqa: PLC0415 - thin walls only
+
         try:
             return Wall(self.convert.si(entry, "length"), self.convert.si(entry, "thickness"))
         except InputError as error:

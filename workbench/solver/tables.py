@@ -36,7 +36,8 @@ def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity
     """
     rows = values.reshape(len(values), -1)
     for row in range(len(rows)):  # a loop over results
-        converted = units.from_si(rows[row], quantity)
+        with np.errstate(over="ignore"):  # an overflow is what is looked for
+            converted = units.from_si(rows[row], quantity)
         finite = np.isfinite(converted)
         if finite.all():
             continue
