@@ -30,6 +30,22 @@ def rpm(angular_frequency: Any) -> Any:
     return np.asarray(angular_frequency, dtype=float) * 60.0 / (2.0 * np.pi)
 
 
+def _band_mark(scales: dict[str, Any], opacity: float, line_style: str) -> Any:
+    """A shaded running-speed band (the band itself, or the band widened by the margin)."""
+    return bq.Lines(
+        x=[[1.0, 1.0]],
+        y=[[0.0, 1.0]],
+        scales=scales,
+        colors=[LOAD],
+        fill="inside",
+        fill_colors=[LOAD],
+        fill_opacities=[opacity],
+        line_style=line_style,
+        stroke_width=1.0,
+        visible=False,
+    )
+
+
 class ModesChart:
     """Mode shapes along the shaft shown, and natural frequencies against running-speed bands."""
 
@@ -72,29 +88,8 @@ class ModesChart:
         self.speed_scale = bq.LogScale()
         self.band_y = bq.LinearScale(min=0.0, max=1.0)
         band_scales = {"x": self.speed_scale, "y": self.band_y}
-        self.widened = bq.Lines(
-            x=[[1.0, 1.0]],
-            y=[[0.0, 1.0]],
-            scales=band_scales,
-            colors=[LOAD],
-            fill="inside",
-            fill_colors=[LOAD],
-            fill_opacities=[0.12],
-            line_style="dashed",
-            stroke_width=1.0,
-            visible=False,
-        )
-        self.bands = bq.Lines(
-            x=[[1.0, 1.0]],
-            y=[[0.0, 1.0]],
-            scales=band_scales,
-            colors=[LOAD],
-            fill="inside",
-            fill_colors=[LOAD],
-            fill_opacities=[0.45],
-            stroke_width=1.0,
-            visible=False,
-        )
+        self.widened = _band_mark(band_scales, opacity=0.12, line_style="dashed")
+        self.bands = _band_mark(band_scales, opacity=0.45, line_style="solid")
         self.frequencies = bq.Lines(
             x=[[1.0, 1.0]],
             y=[[0.0, 1.0]],
