@@ -340,7 +340,7 @@ def test_an_unexpected_error_is_one_line_with_exit_status_3(
     assert status == 3
     lines = captured.err.splitlines()
     assert len(lines) == 1
-    assert lines[0].startswith(f"internal error on {DEMO_CASE}: RuntimeError: a defect")
+    assert lines[0].startswith(f"internal error on {DEMO_CASE.name}: RuntimeError: a defect")
     assert "please report" in lines[0] and "Traceback" not in captured.err
     assert len(lines[0]) <= 200
 

@@ -12,8 +12,10 @@ import importlib
 import sys
 import traceback
 from collections.abc import Sequence
+from pathlib import Path
 
 from workbench.case.errors import InputError, WorkbenchError
+from workbench.case.text import short
 from workbench.cli.status import EXIT_BAD_INPUT, EXIT_INTERNAL_ERROR, EXIT_OK
 from workbench.design.caution import CAUTION
 
@@ -77,10 +79,9 @@ def _internal_error_line(arguments: argparse.Namespace, error: Exception) -> str
         ),
         "",
     )
-    where = f" on {target}" if target else ""
-    detail = str(error).replace("\n", " ")
-    if len(detail) > 60:
-        detail = detail[:57] + "..."
+    # The file's name, not its folder: the line stays short wherever the file lies.
+    where = f" on {short(Path(target).name)}" if target else ""
+    detail = short(str(error).replace("\n", " "))
     return (
         f"internal error{where}: {type(error).__name__}: {detail}; please report it "
         "(run with --debug for the traceback)"
