@@ -33,6 +33,7 @@ from workbench.case.declaration import (
     value_of,
 )
 from workbench.case.errors import InputError
+from workbench.case.units import quote
 from workbench.case.validate import build_each, require_positive, within
 
 __all__ = [
@@ -163,7 +164,7 @@ class RotationLimit:
     shaft
         Shaft id.
     start, end
-        The two stations (m).
+        The two stations (m), ``end`` beyond ``start``.
     limit
         Largest |θ(end) − θ(start)| (rad).
     """
@@ -175,6 +176,11 @@ class RotationLimit:
 
     def __post_init__(self) -> None:
         require_positive("limit", self.limit, "angle")
+        problem = declared.RotationLimit.span.problem(
+            self.start, self.end, lambda value: quote(value, "length")
+        )
+        if problem is not None:
+            raise InputError("end", problem)
 
 
 @dataclass(frozen=True)
