@@ -195,7 +195,8 @@ class DesignCriteria:
         ``"von_mises"`` (Sy/√3), ``"tresca"`` (Sy/2), ``"shafting_code"`` (min(0.30 Sy, 0.18 Su),
         −25 % with keyways) or ``"allowable"`` (``allowable_shear_stress`` as stated).
     keyway
-        Whether the shafts have keyways (the shafting code's 25 % reduction).
+        Whether the shafts have keyways (the shafting code's 25 % reduction, instead of a
+        keyseat's Kts).
     allowable_shear_stress
         Stated allowable shear stress (Pa) for ``"allowable"``.
     max_twist_rate

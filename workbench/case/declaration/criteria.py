@@ -186,7 +186,7 @@ class Design(Keys):
         | None
     ) = UNSET
     keyway: (
-        Annotated[bool, key("Whether the shafts have keyways (the shafting code's 25 % reduction)", default=False, always=True)] | UnsetType | None
+        Annotated[bool, key("Whether the shafts have keyways (the shafting code's 25 % reduction, instead of a keyseat's Kts)", default=False, always=True)] | UnsetType | None
     ) = UNSET  # fmt: skip
     allowable_shear_stress: (
         Annotated[float, key("Stated allowable shear stress (criterion allowable)", "stress", gt=0)]
