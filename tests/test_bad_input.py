@@ -503,7 +503,39 @@ BAD: list[tuple[str, Callable[[dict[str, Any]], None], str, str]] = [
         "shafts[0].segments[0].length",
         "is required",
     ),
-    ("missing load cases", deleter("load_cases"), "load_cases", "is required"),
+    # a rotation limit is a stretch of one shaft: end beyond start, both on the shaft
+    (
+        "rotation limit start after end",
+        setter(
+            "design", {"rotation_limits": [{"shaft": "main", "start": 500, "end": 300, "limit": 1}]}
+        ),
+        "design.rotation_limits[0].end",
+        "must be greater than start (300 mm ≤ 500 mm)",
+    ),
+    (
+        "rotation limit start at end",
+        setter(
+            "design", {"rotation_limits": [{"shaft": "main", "start": 300, "end": 300, "limit": 1}]}
+        ),
+        "design.rotation_limits[0].end",
+        "must be greater than start (300 mm ≤ 300 mm)",
+    ),
+    (
+        "rotation limit end off the shaft",
+        setter(
+            "design", {"rotation_limits": [{"shaft": "main", "start": 0, "end": 900, "limit": 1}]}
+        ),
+        "design.rotation_limits[0].end",
+        "900 mm is off shaft 'main', which runs from 0 to 750 mm",
+    ),
+    (
+        "rotation limit start off the shaft",
+        setter(
+            "design", {"rotation_limits": [{"shaft": "main", "start": -10, "end": 300, "limit": 1}]}
+        ),
+        "design.rotation_limits[0].start",
+        "-10 mm is off shaft 'main'",
+    ),
     (
         "spring without stiffness",
         deleter("supports.1.stiffness"),

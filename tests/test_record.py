@@ -30,6 +30,7 @@ from jwcrypto import jwk as jwcrypto_jwk
 from jwcrypto import jws as jwcrypto_jws
 
 from workbench import cli
+from workbench.case.files import temporary_prefix
 from workbench.design.checks import run_checks
 from workbench.design.handcheck import force_method_check
 from workbench.record import equations
@@ -335,6 +336,14 @@ def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.Capture
     assert fingerprint == jwcrypto_jwk.JWK.from_pem(public.read_bytes()).thumbprint()
     notebook = _executed(tmp_path)
     out = tmp_path / "record.html"
+    # What an export and a package killed midway leave: removed by the next write of each file.
+    dead = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"], capture_output=True, text=True, check=True)  # fmt: skip
+    leftovers = [
+        tmp_path / f"{temporary_prefix(target, int(dead.stdout))}abcd1234.tmp"
+        for target in (out, tmp_path / "pkg.zip")
+    ]
+    for leftover in leftovers:
+        leftover.write_bytes(b"<html>" * 1000)
     assert (
         _cli(
             [
@@ -363,6 +372,8 @@ def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.Capture
 
     package = tmp_path / "pkg.zip"
     assert _cli(["package", str(notebook), "-o", str(package), "--key", str(private)]) == 0
+    assert not any(leftover.exists() for leftover in leftovers)
+    assert not [path.name for path in tmp_path.iterdir() if path.name.endswith(".tmp")]
     with zipfile.ZipFile(package) as archive:
         names = set(archive.namelist())
         assert {

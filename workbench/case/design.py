@@ -33,6 +33,7 @@ from workbench.case.declaration import (
     value_of,
 )
 from workbench.case.errors import InputError
+from workbench.case.units import quote
 from workbench.case.validate import build_each, require_positive, within
 
 __all__ = [
@@ -163,7 +164,7 @@ class RotationLimit:
     shaft
         Shaft id.
     start, end
-        The two stations (m).
+        The two stations (m), ``end`` beyond ``start``.
     limit
         Largest |θ(end) − θ(start)| (rad).
     """
@@ -175,6 +176,11 @@ class RotationLimit:
 
     def __post_init__(self) -> None:
         require_positive("limit", self.limit, "angle")
+        problem = declared.RotationLimit.span.problem(
+            self.start, self.end, lambda value: quote(value, "length")
+        )
+        if problem is not None:
+            raise InputError("end", problem)
 
 
 @dataclass(frozen=True)
@@ -189,7 +195,8 @@ class DesignCriteria:
         ``"von_mises"`` (Sy/√3), ``"tresca"`` (Sy/2), ``"shafting_code"`` (min(0.30 Sy, 0.18 Su),
         −25 % with keyways) or ``"allowable"`` (``allowable_shear_stress`` as stated).
     keyway
-        Whether the shafts have keyways (the shafting code's 25 % reduction).
+        Whether the shafts have keyways (the shafting code's 25 % reduction, instead of a
+        keyseat's Kts).
     allowable_shear_stress
         Stated allowable shear stress (Pa) for ``"allowable"``.
     max_twist_rate

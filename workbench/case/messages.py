@@ -14,7 +14,7 @@ from typing import Any
 
 import msgspec
 
-from workbench.case.declaration import CaseFile, Keys, Unwrapped, field_type
+from workbench.case.declaration import CaseFile, Keys, Span, Unwrapped, field_type, quantity_of
 from workbench.case.errors import InputError
 from workbench.case.text import short
 
@@ -236,7 +236,15 @@ def _message(walk: _Walk, what: str, document: Any) -> InputError:
     own = re.match(r"^([a-z_]+): (.*)$", what, re.S)
     struct = walk.struct()
     if own and struct is not None and own[1] in struct.__struct_fields__:
-        return InputError(walk.path(own[1]), own[2])  # an alternatives message of the declaration
+        # A message of the declaration's own (alternatives, spans); a span's quotes its units.
+        span = getattr(struct, "span", None)
+        if isinstance(span, Span) and own[1] == span.end and isinstance(value, dict):
+            unit = _unit(document, quantity_of(struct, span.end))
+            quoted = span.problem(
+                value[span.start], value[span.end], lambda v: f"{_number(v)}{unit}"
+            )
+            return InputError(walk.path(own[1]), quoted or own[2])
+        return InputError(walk.path(own[1]), own[2])
     if not walk.parts and not isinstance(value, dict):
         return InputError("", f"a case file must be a JSON object, not {kind_of(value)}")
     if what.startswith(("Number out of range", "Integer value out of range")):

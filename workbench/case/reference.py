@@ -154,6 +154,9 @@ def markdown() -> str:
         if isinstance(alternatives, declared.Alternatives):
             need = "give either" if alternatives.required else "at most one of"
             lines.append(f"Keys: {need} {alternatives.words()}.")
+        span = getattr(cls, "span", None)
+        if isinstance(span, declared.Span):
+            lines.append(f"Keys: {span.words()}.")
         lines += ["", "| key | type | unit | default | bounds | meaning |", "| --- | --- | --- | --- | --- | --- |"]  # fmt: skip
         for name, meta in field_metas(cls).items():
             annotation = field_type(cls, name)

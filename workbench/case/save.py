@@ -9,12 +9,11 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from collections.abc import Mapping
-from pathlib import Path
 from typing import Any
 
 from workbench.case.declaration import CaseFile, Keys, extra_of, given
+from workbench.case.files import atomic_file
 
 
 def round_trip_number(value: float) -> float | int:
@@ -64,24 +63,14 @@ def case_document(case: CaseFile) -> dict[str, Any]:
 def write_json_atomic(
     path: str | os.PathLike[str], document: Mapping[str, Any] | list[Any]
 ) -> None:
-    """Write JSON to ``path`` atomically: a temporary file in the same folder, then a rename.
+    """Write JSON to ``path`` atomically (:func:`~workbench.case.files.atomic_file`).
 
-    A crash or a full disk mid-write leaves the old file whole.
+    A crash or a full disk mid-write leaves the old file whole; the temporaries of a writer
+    killed mid-write are removed by the next write of the same file.
     """
-    path = Path(path)
     text = json.dumps(document, indent=2, ensure_ascii=False) + "\n"
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8") as stream:
-            stream.write(text)
-            stream.flush()
-            os.fsync(stream.fileno())
-        if path.exists():
-            os.chmod(temporary, path.stat().st_mode & 0o777)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
+    with atomic_file(path) as stream:
+        stream.write(text.encode("utf-8"))
 
 
 def save_case_file(case: CaseFile, path: str | os.PathLike[str]) -> None:

@@ -14,6 +14,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from workbench.case.files import atomic_file
 from workbench.cli.output import output_file, writing
 from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
 
@@ -79,10 +80,8 @@ def _command_export(arguments: argparse.Namespace) -> int:
         title_block=_title_overrides(arguments),
         execute=not arguments.no_execute,
     )
-    temporary = output.with_name(output.name + ".partial")
-    with writing(output):
-        temporary.write_text(record, encoding="utf-8", newline="")
-        temporary.replace(output)
+    with writing(output), atomic_file(output) as stream:
+        stream.write(record.encode("utf-8"))
     status = "signed" if arguments.key else "UNSIGNED"
     sys.stdout.write(f"wrote {output} ({status}, {len(record.encode('utf-8')):,} bytes)\n")
     return EXIT_OK

@@ -12,7 +12,10 @@ How the factor of safety applies (the choice this module makes, stated in every 
 
 Keyways reduce the allowable only under the code. With the other criteria a keyseat is taken
 into account by its stress-concentration factor on the stress
-(:func:`workbench.design.concentration.keyseat_kts`), which the basis sentence says.
+(:func:`workbench.design.concentration.keyseat_kts`), which the basis sentence says. The code's
+25 % is its allowance for the keyway, so under the code with ``keyway`` a keyseat's stress is
+checked without Kts (:func:`keyseat_factor`): one or the other, never both, and the check row
+and the basis sentence say which.
 
 The twist-rate limits are rules of thumb of common practice, not code requirements.
 
@@ -41,6 +44,7 @@ from workbench.case.materials import Material
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 from workbench.design.blockwise import by_blocks
+from workbench.design.concentration import ConcentrationFactor, keyseat_kts
 from workbench.solver.sections import FloatArray
 
 #: Criteria :func:`allowable_shear_stress` accepts.
@@ -49,6 +53,13 @@ from workbench.solver.sections import FloatArray
 SHAFTING_CODE_YIELD_FRACTION = 0.30
 SHAFTING_CODE_ULTIMATE_FRACTION = 0.18
 SHAFTING_CODE_KEYWAY_FACTOR = 0.75
+#: The code's publication, as the check rows name it.
+SHAFTING_CODE_SOURCE = "ASME Code for Design of Transmission Shafting (ASA B17c-1927)"
+#: What the check rows and the basis sentence say when the code's keyway allowance is applied.
+KEYWAY_ALLOWANCE = (
+    f"keyway allowance of the shafting code applied (×{SHAFTING_CODE_KEYWAY_FACTOR:g}); "
+    "keyseat Kts not applied on top"
+)
 
 _FOOT = 0.3048  # m, exact (international foot, 1959)
 
@@ -178,7 +189,7 @@ def allowable_shear_stress(
         )
         if keyway:
             value *= SHAFTING_CODE_KEYWAY_FACTOR
-            basis += f", × 0.75 for the keyway = {quote(value, 'stress')}"
+            basis += f", × 0.75 for the keyway = {quote(value, 'stress')} ({KEYWAY_ALLOWANCE})"
         basis += (
             f"; the code value carries its own margin, so the factor of safety ({fos:g}) is not "
             "applied"
@@ -196,6 +207,35 @@ def allowable_shear_stress(
         f"include its margin; the factor of safety ({fos:g}) is not applied){keyway_note}"
     )
     return Allowable(value, basis, criterion, 1.0)
+
+
+def keyseat_factor(criterion: str, keyway: bool) -> ConcentrationFactor:
+    """The factor on a keyseat's nominal stress under a design's criterion: Kts, or 1.
+
+    Parameters
+    ----------
+    criterion
+        The shear criterion (:data:`SHEAR_CRITERIA`).
+    keyway
+        Whether the design declares keyways (``design.keyway``).
+
+    Returns
+    -------
+    ConcentrationFactor
+        1 under ``"shafting_code"`` with keyways — the code's × 0.75 on the allowable is its
+        allowance for the keyway, and Kts on top would count the keyway twice; the end-milled
+        keyseat's Kts (:func:`~workbench.design.concentration.keyseat_kts`) otherwise.
+
+    References
+    ----------
+    .. [1] ASME *Code for Design of Transmission Shafting*: 0.30 Sy, not over 0.18 Su, reduced
+       by 25 % where keyways are present.
+    .. [2] Shigley's *Mechanical Engineering Design*, Table 7-1: end-mill keyseat Kts = 3.0.
+    """
+    if criterion == "shafting_code" and keyway:
+        note = f"{KEYWAY_ALLOWANCE}; nominal stress 16T/(πd³)"
+        return ConcentrationFactor(1.0, True, note, SHAFTING_CODE_SOURCE)
+    return keyseat_kts()
 
 
 # --- twist-rate limits ---------------------------------------------------------------------------

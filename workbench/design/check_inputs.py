@@ -45,7 +45,6 @@ from workbench.design.check_layout import CROSS_HOLE, KEYSEAT, NOTCH, SHOULDER, 
 from workbench.design.concentration import (
     ShoulderFilletFactors,
     TransverseHoleFactors,
-    keyseat_kts,
     shoulder_fillet_factors,
     transverse_hole_factors,
 )
@@ -306,7 +305,7 @@ def batch_check_inputs(
     # Keyseat and notch: the smallest diameter (largest nominal stress) of the segment governs;
     # a linear taper is smallest at an end.
     smallest = _nominal_stress_per_torque(np.minimum(outer_start, outer_end), bores)
-    concentration[:, KEYSEAT] = np.where(layout.keyseat, keyseat_kts().value, np.nan)
+    concentration[:, KEYSEAT] = np.where(layout.keyseat, layout.keyseat_factor.value, np.nan)
     concentration[:, NOTCH] = layout.notch_kts
     body = ~np.isnan(concentration[:, KEYSEAT : NOTCH + 1])
     nominal[:, KEYSEAT : NOTCH + 1] = np.where(body, smallest[:, None, :], np.nan)

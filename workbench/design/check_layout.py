@@ -32,7 +32,13 @@ import numpy as np
 
 from workbench.case.design import DesignCriteria
 from workbench.case.materials import Material
-from workbench.design.allowables import TWIST_RATE_PRESETS, Allowable, allowable_shear_stress
+from workbench.design.allowables import (
+    TWIST_RATE_PRESETS,
+    Allowable,
+    allowable_shear_stress,
+    keyseat_factor,
+)
+from workbench.design.concentration import ConcentrationFactor
 from workbench.design.static_checks import CONCENTRATION_KINDS, BoolArray, IntArray
 from workbench.solver.model import Model, Segment
 from workbench.solver.sections import FloatArray
@@ -89,6 +95,10 @@ class CheckLayout:
         (G,) the segment has the detail and the check can judge it: a fillet at its start
         between one-layer round segments, a keyseat on a one-layer round segment, a cross hole
         in a solid round one.
+    keyseat_factor
+        The factor on a keyseat's nominal stress under the design
+        (:func:`~workbench.design.allowables.keyseat_factor`: Kts, or 1 under the shafting
+        code's keyway allowance).
     notch_kts
         (G,) the Kts stated for a one-layer round segment's notch; NaN for none.
     notch_labels
@@ -131,6 +141,7 @@ class CheckLayout:
     circular: BoolArray
     shoulder: BoolArray
     keyseat: BoolArray
+    keyseat_factor: ConcentrationFactor
     cross_hole: BoolArray
     notch_kts: FloatArray
     notch_labels: tuple[str, ...]
@@ -334,6 +345,7 @@ def check_layout(model: Model, mesh: CheckMesh, design: DesignCriteria) -> Check
         circular=circular,
         shoulder=shoulder,
         keyseat=keyseat,
+        keyseat_factor=keyseat_factor(design.shear_criterion, design.keyway),
         cross_hole=~np.isnan(hole_diameter),
         notch_kts=notch_kts,
         notch_labels=tuple(notch_labels),

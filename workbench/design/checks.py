@@ -9,7 +9,9 @@ For every load case and combination, every shaft and every segment, the checks f
   ``design``);
 * ``shoulder_stress`` — Kts·τ_nom at a shoulder fillet (segment ``fillet_radius``), the nominal
   stress taken on the smaller diameter at the shoulder;
-* ``keyseat_stress`` — Kts·τ with the end-milled keyseat factor;
+* ``keyseat_stress`` — Kts·τ with the end-milled keyseat factor; under the shafting code with
+  ``keyway`` τ alone, the code's × 0.75 on the allowable being its keyway allowance (the row's
+  note says so);
 * ``notch_stress`` — Kts·τ with the factor the case states for a segment's ``notch`` (a groove,
   a spline run-out, …);
 * ``cross_hole_stress`` — the equivalent shear stress of the peak normal stress at a transverse
@@ -62,7 +64,7 @@ from workbench.design.check_report import (
     check_text,
     plastic_reserves,
 )
-from workbench.design.concentration import ConcentrationFactor, keyseat_kts
+from workbench.design.concentration import ConcentrationFactor
 from workbench.design.fatigue_check import FatiguePoint, fatigue_checks
 from workbench.design.frequency import frequency_checks, frequency_utilisation_ceiling
 from workbench.design.static_checks import (
@@ -145,9 +147,8 @@ def _row_notes(
 
     for index in np.flatnonzero(layout.shoulder).tolist():
         detail(SHOULDER, index, batch.shoulder.at((0, index)))
-    keyseat = keyseat_kts()
     for index in np.flatnonzero(layout.keyseat).tolist():
-        detail(KEYSEAT, index, keyseat)
+        detail(KEYSEAT, index, layout.keyseat_factor)
     for index in np.flatnonzero(~np.isnan(layout.notch_kts)).tolist():
         label = layout.notch_labels[index]
         stated = ConcentrationFactor(

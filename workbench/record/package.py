@@ -15,6 +15,7 @@ import zipfile
 from pathlib import Path
 from typing import Any
 
+from workbench.case.files import atomic_file
 from workbench.record.document import FORMAT, compute
 from workbench.signing import canonicalize
 
@@ -101,7 +102,11 @@ def build_package(
         members["manifest.jws"] = sign_compact(
             members["manifest.json"], load_private_key(key_file), {"typ": "JOSE"}
         ).encode("ascii")
-    with zipfile.ZipFile(output, "w", compression=zipfile.ZIP_DEFLATED) as archive:
+    # Whole or not at all: a package cut short by a kill would still look like a zip.
+    with (
+        atomic_file(output) as stream,
+        zipfile.ZipFile(stream, "w", compression=zipfile.ZIP_DEFLATED) as archive,
+    ):
         for name, data in members.items():
             info = zipfile.ZipInfo(name, date_time=_ZIP_TIME)
             info.compress_type = zipfile.ZIP_DEFLATED

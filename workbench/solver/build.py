@@ -264,7 +264,7 @@ class ModelBuilder:
         return {
             "supports": build_each(value_of(case, "supports"), "supports", self._support),
             "gears": build_each(value_of(case, "gears"), "gears", self._gear),
-            "load_cases": build_each(case.load_cases, "load_cases", self._load_case),
+            "load_cases": build_each(value_of(case, "load_cases"), "load_cases", self._load_case),
             "combinations": build_each(
                 value_of(case, "combinations"),
                 "combinations",

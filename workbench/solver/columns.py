@@ -31,6 +31,7 @@ from typing import Any
 
 import numpy as np
 
+from workbench.case.errors import InputError
 from workbench.solver.model import (
     Combination,
     GearMesh,
@@ -261,6 +262,33 @@ class CaseTable:
     def result_names(self) -> tuple[str, ...]:
         """Load cases, then combinations."""
         return self.case_names + self.combination_names
+
+    def fixed_support_nodes(self, support_node: IntArray) -> IntArray:
+        """The nodes the fixed supports hold, refusing two fixed supports at one node.
+
+        The rule of every analysis of the system (statics and vibration alike): a second fixed
+        support at a point already held is a redundant restraint whose share of the reaction is
+        undefined, an ill-formed case whatever is asked of it.
+
+        Parameters
+        ----------
+        support_node
+            (n_supports,) the mesh node of each support.
+
+        Raises
+        ------
+        InputError
+            Naming the second fixed support at a point (``supports[2]``).
+        """
+        fixed_numbers = np.flatnonzero(self.support_fixed)
+        nodes = support_node[fixed_numbers]
+        _, first, counts = np.unique(nodes, return_index=True, return_counts=True)
+        if np.any(counts > 1):
+            repeated = nodes[first[counts > 1][0]]
+            number = int(fixed_numbers[np.flatnonzero(nodes == repeated)[1]])
+            msg = "a second fixed support at the same point of the shaft: the split is undefined"
+            raise InputError(f"supports[{number}]", msg)
+        return nodes
 
 
 # --- columns from a Model ----------------------------------------------------------------------

@@ -26,7 +26,7 @@ import scipy.sparse as sp
 
 from workbench.case.errors import InputError
 from workbench.solver.analysis import Mesh, build_mesh
-from workbench.solver.model import POSITION_TOLERANCE, LoadCase, Model, Segment
+from workbench.solver.model import POSITION_TOLERANCE, Model, Segment
 from workbench.solver.sections import FloatArray
 
 _GAUSS_POINTS, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(8)
@@ -84,10 +84,10 @@ def modal_mesh(
     points = tuple(
         (shaft.id, x) for shaft, xs in zip(model.shafts, wanted, strict=True) for x in xs.tolist()
     )
-    # The loads play no part in free vibration: one empty case keeps the model valid.
+    # The loads play no part in free vibration.
     modal_model = dataclasses.replace(
         model,
-        load_cases=(LoadCase(model.load_cases[0].name),),
+        load_cases=(),
         combinations=(),
         design=None,
         extra_nodes=points,

@@ -50,6 +50,7 @@ from workbench.case.design import DEFAULT_MODAL_ELEMENTS_PER_SEGMENT
 from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem, quote
 from workbench.solver.analysis import Mesh, torsion_stiffness_matrix
+from workbench.solver.columns import case_table
 from workbench.solver.modal_model import (
     constraint_transformation,
     has_mass,
@@ -212,8 +213,8 @@ def natural_modes(
     Raises
     ------
     InputError
-        When the system has no inertia, a group free to spin carries none, or an option is out
-        of range.
+        When the system has no inertia, a group free to spin carries none, two fixed supports
+        sit at one point (refused as the statics refuse it), or an option is out of range.
 
     References
     ----------
@@ -228,11 +229,10 @@ def natural_modes(
         msg = "the system has no inertia: give discs, or a density for the shafts' materials"
         raise InputError("discs", msg)
     rigid = rigid_body_shapes(modal_model, mesh, mass)
-    fixed = [
-        mesh.node_of(model.shaft_number(support.shaft), support.x)
-        for support in model.supports
-        if support.kind == "fixed"
-    ]
+    table = case_table(modal_model)
+    # The statics' rule: a redundant fixed support leaves the frequencies defined, but the case
+    # is the same ill-formed case file, refused alike whatever is asked of it.
+    fixed = table.fixed_support_nodes(mesh.nodes_of(table.support_shaft, table.support_x))
     constraints = []
     for gear in model.gears:
         coefficient_a, coefficient_b = gear.coefficients

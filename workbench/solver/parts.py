@@ -310,6 +310,16 @@ def result_names(
     )
 
 
+def require_load_cases(count: int) -> None:
+    """Raise :class:`InputError` when a static analysis is asked of a case with no load case.
+
+    A case needs load cases only for what it is loaded by (solve, check, size); its natural
+    frequencies need none, so the case file may leave them out.
+    """
+    if count < 1:
+        raise InputError("load_cases", "is required")
+
+
 def shaft_index(shaft_ids: Iterable[str]) -> dict[str, int]:
     """Each shaft id and its number; :class:`InputError` on an id given twice."""
     index: dict[str, int] = {}
@@ -382,8 +392,6 @@ class References:
                 raise InputError(
                     f"gears[{number}].b.shaft", "a gear cannot mesh with its own shaft"
                 )
-        if not load_cases:
-            raise InputError("load_cases", "the model needs at least one load case")
         names: set[str] = set()
         for number, case in enumerate(load_cases):
             if case.name in names:

@@ -34,6 +34,7 @@ from workbench.solver.assembly import (
 from workbench.solver.columns import CaseTable, IntArray
 from workbench.solver.elements import SaintVenantElements
 from workbench.solver.mesh import Geometry, Mesh, build_mesh_from_table
+from workbench.solver.parts import require_load_cases
 from workbench.solver.recovery import (
     ElementLoads,
     combine,
@@ -113,18 +114,6 @@ def check_restrained(table: CaseTable) -> None:
         raise MechanismError("supports", msg)
 
 
-def _fixed_nodes(table: CaseTable, support_node: IntArray) -> IntArray:
-    fixed_numbers = np.flatnonzero(table.support_fixed)
-    nodes = support_node[fixed_numbers]
-    _, first, counts = np.unique(nodes, return_index=True, return_counts=True)
-    if np.any(counts > 1):
-        repeated = nodes[first[counts > 1][0]]
-        number = int(fixed_numbers[np.flatnonzero(nodes == repeated)[1]])
-        msg = "a second fixed support at the same point of the shaft: the split is undefined"
-        raise InputError(f"supports[{number}]", msg)
-    return nodes
-
-
 def _element_loads(
     table: CaseTable, mesh: Mesh, geometry: Geometry, n_variants: int
 ) -> ElementLoads:
@@ -193,9 +182,10 @@ def solve_table(
     MechanismError
         When part of the system is free to spin.
     InputError
-        When supports or gears contradict each other (two fixed supports at one point, a gear
-        held at both ends, a redundant loop of gears).
+        When the case has no load case, or supports or gears contradict each other (two fixed
+        supports at one point, a gear held at both ends, a redundant loop of gears).
     """
+    require_load_cases(table.n_cases)
     check_restrained(table)
     mesh = mesh if mesh is not None else build_mesh_from_table(table)
     geometry = geometry if geometry is not None else mesh.geometry
@@ -246,7 +236,7 @@ class _Supports:
         fixed = np.flatnonzero(table.support_fixed)
         return cls(
             fixed=fixed,
-            fixed_nodes=_fixed_nodes(table, support_node),
+            fixed_nodes=table.fixed_support_nodes(support_node),
             fixed_rotation=table.support_rotation[:, fixed],
             springs=springs,
             spring_nodes=support_node[springs],

@@ -17,6 +17,7 @@ from workbench.case.declaration.keys import (
     Keys,
     Name,
     ShaftId,
+    Span,
     key,
 )
 
@@ -54,10 +55,15 @@ DEFAULT_FATIGUE_FACTOR_OF_SAFETY = 1.5
 class RotationLimit(Keys):
     """A limit on the relative rotation between two stations of one shaft."""
 
+    span: ClassVar[Span] = Span("start", "end")
+
     shaft: ShaftId
     start: Annotated[float, key("The first station", "length")]
-    end: Annotated[float, key("The second station", "length")]
+    end: Annotated[float, key("The second station, beyond start", "length")]
     limit: Annotated[float, key("Largest |θ(end) − θ(start)|", "angle", gt=0)]
+
+    def __post_init__(self) -> None:
+        self.span.check(self)
 
 
 class Fatigue(Keys):
@@ -180,7 +186,7 @@ class Design(Keys):
         | None
     ) = UNSET
     keyway: (
-        Annotated[bool, key("Whether the shafts have keyways (the shafting code's 25 % reduction)", default=False, always=True)] | UnsetType | None
+        Annotated[bool, key("Whether the shafts have keyways (the shafting code's 25 % reduction, instead of a keyseat's Kts)", default=False, always=True)] | UnsetType | None
     ) = UNSET  # fmt: skip
     allowable_shear_stress: (
         Annotated[float, key("Stated allowable shear stress (criterion allowable)", "stress", gt=0)]

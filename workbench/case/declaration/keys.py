@@ -13,9 +13,10 @@ declared ``default``. ``null`` is the same as leaving an optional key out.
 """
 
 import functools
+import math
 import types
 import typing
-from collections.abc import Iterator, Mapping
+from collections.abc import Callable, Iterator, Mapping
 from typing import Annotated, Any
 
 import msgspec
@@ -213,6 +214,52 @@ class Alternatives:
         problem = self.problem(entry)
         if problem is not None:
             msg = f"{problem[0]}: {problem[1]}"
+            raise ValueError(msg)
+
+
+# --- spans: "this key lies beyond that one" --------------------------------------------------
+
+
+def _plain(value: float) -> str:
+    return f"{value:g}"
+
+
+class Span:
+    """Two positions of one object that bound a stretch of a shaft: ``end`` lies beyond ``start``.
+
+    Parameters
+    ----------
+    start, end
+        The names of the two keys (numbers of one quantity, so comparable in the file's units).
+
+    Notes
+    -----
+    A value that is not finite is left to the checks that name it (every number is checked
+    finite after its conversion to SI); the span judges finite numbers only.
+    """
+
+    __slots__ = ("end", "start")
+
+    def __init__(self, start: str, end: str) -> None:
+        self.start, self.end = start, end
+
+    def words(self) -> str:
+        """``"end must be greater than start"``."""
+        return f"{self.end} must be greater than {self.start}"
+
+    def problem(
+        self, start: float, end: float, show: Callable[[float], str] = _plain
+    ) -> str | None:
+        """Why ``end`` does not lie beyond ``start`` (``show`` writes a value), or ``None``."""
+        if not (math.isfinite(start) and math.isfinite(end)) or end > start:
+            return None
+        return f"must be greater than {self.start} ({show(end)} ≤ {show(start)})"
+
+    def check(self, entry: Any) -> None:
+        """Raise ``ValueError("end: message")`` (msgspec adds the object's path)."""
+        problem = self.problem(getattr(entry, self.start), getattr(entry, self.end))
+        if problem is not None:
+            msg = f"{self.end}: {problem}"
             raise ValueError(msg)
 
 

@@ -207,7 +207,7 @@ class CaseFile(Keys, kw_only=True):
     shafts: Annotated[list[Shaft], _items("The shafts", MAX_SEGMENTS, 1)]
     supports: Annotated[list[Support], _items("Supports, in the order reactions are reported", always=True)] | UnsetType | None = UNSET  # fmt: skip
     gears: Annotated[list[Gear], _items("Gear meshes joining shafts")] | UnsetType | None = UNSET
-    load_cases: Annotated[list[LoadCase], _items("Load cases", MAX_LOAD_CASES, 1)]
+    load_cases: Annotated[list[LoadCase], _items("Load cases: solve, check and size need at least one; modes none", MAX_LOAD_CASES, 1)] | UnsetType | None = UNSET  # fmt: skip
     combinations: Annotated[list[Combination], _items("Factored sums of load cases", MAX_LOAD_CASES)] | UnsetType | None = UNSET  # fmt: skip
     design: Annotated[Design, key("Design criteria for the checks")] | UnsetType | None = UNSET
     discs: Annotated[list[Disc], _items("Rigid discs (vibration)")] | UnsetType | None = UNSET
