@@ -376,8 +376,9 @@ def _numbers(node: Any) -> list[float]:
     return [float(node)] if isinstance(node, int | float) else []
 
 
-def test_a_value_json_cannot_hold_is_one_line_naming_result_and_quantity(tmp_path, capsys):
-    """A combination of 10 × 1e308 N·m overflows: exit 2, one line, nothing on stdout."""
+def test_a_combination_beyond_the_range_of_numbers_is_one_line_naming_its_factor(tmp_path, capsys):
+    """A combination of 10 × 1e308 N·m overflows in SI: the solve refuses it (exit 2, one
+    line, nothing on stdout) naming the factor, before any document is written."""
     case = copy.deepcopy(VALID)
     case["load_cases"] = [
         {"name": "huge", "torques": [{"shaft": "main", "x": 300, "torque": 1e308}]},
@@ -390,8 +391,8 @@ def test_a_value_json_cannot_hold_is_one_line_naming_result_and_quantity(tmp_pat
     assert status == 2
     assert captured.out == ""
     assert captured.err.count("\n") == 1
-    assert captured.err.startswith("results[1].reactions[0]: the reaction of combination 'tenfold'")
-    assert "JSON cannot hold it" in captured.err
+    assert captured.err.startswith("combinations[0].factors.huge: 10 times load case 'huge' ")
+    assert "of combination 'tenfold' overflow" in captured.err
     assert "null" not in captured.err and "Traceback" not in captured.err
 
 

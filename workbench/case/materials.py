@@ -23,6 +23,7 @@ import math
 from dataclasses import dataclass
 
 from workbench.case.errors import InputError
+from workbench.case.text import short
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 
@@ -354,7 +355,7 @@ def library_material(name: str) -> Material:
     hint = (
         f"; did you mean {', '.join(repr(c) for c in close)}?"
         if close
-        else (f"; known materials: {', '.join(sorted(LIBRARY))}")
+        else (f"; known materials: {short(', '.join(sorted(LIBRARY)))}")
     )
-    msg = f"no library material named {name!r}{hint}"
+    msg = f"no library material named {short(str(name))!r}{hint}"
     raise InputError(field="material", message=msg)

@@ -246,7 +246,9 @@ display_units: contextvars.ContextVar[UnitSystem] = contextvars.ContextVar(
 def quote(value: float, quantity: str) -> str:
     """Format an SI value in the current display units, e.g. ``"30 mm"``, for messages."""
     system = display_units.get()
-    shown = system.from_si(value, quantity)
+    # A Python float: a value beyond the range of the display unit shows as inf, without numpy's
+    # overflow warning.
+    shown = system.from_si(float(value), quantity)
     return f"{_short(shown)} {system.label(quantity)}"
 
 

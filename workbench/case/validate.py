@@ -1,6 +1,10 @@
 """Field checks shared by every reader of a case: finite, positive, non-negative; field paths.
 
 Errors name the field by its dotted path in the case file (``shafts[0].segments[1].length``).
+
+A quantity that must be greater than zero must also be a normal number: a subnormal one (below
+:data:`SMALLEST_NORMAL` in SI) has lost digits, and dividing by it overflows, so a diameter of
+1e-320 mm would give a torsion constant of exactly zero.
 """
 
 from __future__ import annotations
@@ -8,7 +12,9 @@ from __future__ import annotations
 import contextlib
 import math
 from collections.abc import Callable, Iterable, Iterator
-from typing import TypeVar
+from typing import Any, TypeVar
+
+import numpy as np
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
@@ -16,15 +22,36 @@ from workbench.case.units import quote
 Item = TypeVar("Item")
 Built = TypeVar("Built")
 
+#: The smallest positive number held to full precision (about 2.2e-308): a positive quantity in SI
+#: must be at least this, and so must every constant a formula makes of such quantities.
+SMALLEST_NORMAL = float(np.finfo(float).tiny)
+#: The largest finite number (about 1.8e308).
+LARGEST = float(np.finfo(float).max)
+
+
+def not_normal_positive(values: Any) -> Any:
+    """Where values are not finite numbers of at least :data:`SMALLEST_NORMAL` (NaN included)."""
+    return ~((values >= SMALLEST_NORMAL) & (values <= LARGEST))
+
 
 def require_positive(name: str, value: float, quantity: str = "length") -> None:
-    """Raise :class:`InputError` unless ``value`` is a finite number greater than zero."""
+    """Raise :class:`InputError` unless ``value`` is a finite normal number greater than zero."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
         raise InputError(name, f"must be a number, not {value!r}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")
     if value <= 0.0:
         raise InputError(name, f"must be greater than zero ({quote(value, quantity)})")
+    if value < SMALLEST_NORMAL:
+        raise InputError(name, too_small(value, quantity))
+
+
+def too_small(value: float, quantity: str) -> str:
+    """Why a positive value below :data:`SMALLEST_NORMAL` (in SI) is refused."""
+    return (
+        f"is too close to zero to compute with ({quote(value, quantity)}; the least is "
+        f"{quote(SMALLEST_NORMAL, quantity)})"
+    )
 
 
 def require_non_negative(name: str, value: float, quantity: str = "length") -> None:

@@ -45,13 +45,22 @@ def _command_modes(arguments: argparse.Namespace) -> int:
     if model.operating_speeds:
         widening = 1.0 + (0.2 if margin is None else margin)
         up_to = max(speed.maximum for speed in model.operating_speeds) * widening
-    modes = natural_modes(
-        model,
-        count=arguments.count,
-        up_to=up_to,
-        elements_per_segment=arguments.elements_per_segment,
-        max_element_length=longest,
-    )
+    options = {
+        "elements_per_segment": "--elements-per-segment",
+        "max_element_length": "--max-element-length",
+    }
+    try:
+        modes = natural_modes(
+            model,
+            count=arguments.count,
+            up_to=up_to,
+            elements_per_segment=arguments.elements_per_segment,
+            max_element_length=longest,
+        )
+    except InputError as error:
+        if error.field in options:  # the options' own names on the command line
+            raise InputError(options[error.field], error.message) from None
+        raise
     if arguments.json:
         document = modes_document(modes)
         sys.stdout.write(json.dumps(document, separators=(",", ":"), allow_nan=False) + "\n")

@@ -32,15 +32,11 @@ def _print_json(document: Any) -> None:
 
 def _command_solve(arguments: argparse.Namespace) -> int:
     # Straight from the file's columns: no object per segment (keep `--help` fast: lazy imports).
-    import numpy as np  # noqa: PLC0415
-
     from workbench.solver.analysis import solve_file  # noqa: PLC0415
     from workbench.solver.tables import results_json, results_text  # noqa: PLC0415
 
-    # A load beyond the range of floats overflows to inf: the results carry it, the JSON writer
-    # refuses it by name, and numpy's warnings would add lines of their own to the one message.
-    with np.errstate(over="ignore", invalid="ignore"):
-        results = solve_file(arguments.case)
+    # A result beyond the range of numbers is refused by the solve, naming its cause.
+    results = solve_file(arguments.case)
     if arguments.json:
         # Written piece by piece; the document checks every value before its first piece.
         _write_bytes(itertools.chain(results_json(results), [b"\n"]))

@@ -355,8 +355,11 @@ def _judge(
         assert problem is not None  # the batch found a detail without a factor
         reasons[variant] = f"{problem[0]}: {problem[1]}"
     valid &= built.valid
-    judged = static_utilisations(built.inputs)
-    utilisation = np.where(valid, judged.governing_utilisation(), np.nan)
+    # A value or utilisation beyond the range of numbers fails its check (inf is not within any
+    # limit); a single model's report refuses it by name (workbench.design.finite_checks).
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        judged = static_utilisations(built.inputs)
+        utilisation = np.where(valid, judged.governing_utilisation(), np.nan)
     passes = valid & _static_passes(judged)
     kind, row, segment = _first_row(judged, utilisation)
     results: list[str | None] = [batch.names[r] if r >= 0 else None for r in row.tolist()]

@@ -31,7 +31,9 @@ from typing import Protocol
 import numpy as np
 
 from workbench.case.design import DesignCriteria
+from workbench.case.errors import InputError
 from workbench.case.materials import Material
+from workbench.case.text import short
 from workbench.design.allowables import (
     TWIST_RATE_PRESETS,
     Allowable,
@@ -204,13 +206,21 @@ class _Allowables:
     def __call__(self, material: Material) -> Allowable:
         key = id(material)
         if key not in self.found:
-            self.found[key] = allowable_shear_stress(
-                material,
-                self.design.shear_criterion,
-                self.design.factor_of_safety,
-                keyway=self.design.keyway,
-                stated_allowable=self.design.allowable_shear_stress,
-            )
+            try:
+                self.found[key] = allowable_shear_stress(
+                    material,
+                    self.design.shear_criterion,
+                    self.design.factor_of_safety,
+                    keyway=self.design.keyway,
+                    stated_allowable=self.design.allowable_shear_stress,
+                )
+            except InputError as error:
+                if error.field not in ("yield_strength", "ultimate_strength"):
+                    raise
+                # A strength the criterion needs: named where the case defines its materials
+                # (a library material is defined there too, under its name, to add one).
+                field = f"materials.{short(material.name)}.{error.field}"
+                raise InputError(field, error.message) from None
         return self.found[key]
 
 

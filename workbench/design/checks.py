@@ -66,6 +66,7 @@ from workbench.design.check_report import (
 )
 from workbench.design.concentration import ConcentrationFactor
 from workbench.design.fatigue_check import FatiguePoint, fatigue_checks
+from workbench.design.finite_checks import require_finite_checks
 from workbench.design.frequency import frequency_checks, frequency_utilisation_ceiling
 from workbench.design.static_checks import (
     CONCENTRATION_KINDS,
@@ -239,7 +240,8 @@ def model_check_inputs(results: Results, design: DesignCriteria) -> ModelCheckIn
 
 def _static_rows(results: Results, prepared: ModelCheckInputs) -> list[Check]:
     """The report's rows of the static checks, by segment, kind and result, then rotations."""
-    judged = static_utilisations(prepared.inputs)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # refused by the caller
+        judged = static_utilisations(prepared.inputs)
     names = results.names
     value, limit, x = (array[0].tolist() for array in (judged.value, judged.limit, judged.x))
     layer, checked = judged.layer[0].tolist(), judged.checked[0].tolist()
@@ -323,6 +325,7 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     try:
         prepared = model_check_inputs(results, design)
         checks = _static_rows(results, prepared)
+        require_finite_checks(checks, results.model, design)
         notes.extend(prepared.report_notes)
         frequency_rows, frequency_notes, modes = frequency_checks(results.model, design)
         checks.extend(frequency_rows)
@@ -330,7 +333,9 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
         fatigue_points: tuple[FatiguePoint, ...] = ()
         if design.fatigue is not None:
             rows, points = fatigue_checks(results, design.fatigue, notes)
-            checks.extend(Check(*row) for row in rows)
+            fatigue_rows = [Check(*row) for row in rows]
+            require_finite_checks(fatigue_rows, results.model, design)
+            checks.extend(fatigue_rows)
             fatigue_points = tuple(points)
     finally:
         display_units.reset(token)

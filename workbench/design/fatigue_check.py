@@ -21,6 +21,7 @@ References
 from __future__ import annotations
 
 import functools
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
@@ -221,7 +222,9 @@ def fatigue_checks(
                         shaft.id,
                         number,
                         kind,
-                        1.0 / factor_of_safety,
+                        # n = 0: a stress over a strength beyond the range of numbers (refused
+                        # by name in the report, workbench.design.finite_checks).
+                        1.0 / factor_of_safety if factor_of_safety else math.inf,
                         1.0 / required,
                         x,
                         f"{criteria.criterion if kind == 'fatigue' else 'Langer'}: "
@@ -281,16 +284,19 @@ def _governing_place(
     kfsm = kfs if criteria.mean_concentration == "kfs" else np.ones_like(kfs)
     strengths = np.array([(s[0].value, s[1], s[2]) for *_, s in places]).T
     per_torque = state.stress_per_torque[stations]
-    nominal_a = state.torque[first, stations] * per_torque
-    nominal_b = state.torque[second, stations] * per_torque
-    if criteria.extremes is not None:
-        mean = kfsm * (nominal_a + nominal_b) / 2.0
-        alternating = kfs * np.abs(nominal_a - nominal_b) / 2.0
-    else:
-        # stresses_from_mean_alternating: extremes Tm ± |Ta|, then as above.
-        high, low = nominal_a + np.abs(nominal_b), nominal_a - np.abs(nominal_b)
-        mean = kfsm * (high + low) / 2.0
-        alternating = kfs * np.abs(high - low) / 2.0
+    # A stress beyond the range of numbers is inf here and governs; the scalar chain then
+    # refuses it by name.
+    with np.errstate(over="ignore", invalid="ignore"):
+        nominal_a = state.torque[first, stations] * per_torque
+        nominal_b = state.torque[second, stations] * per_torque
+        if criteria.extremes is not None:
+            mean = kfsm * (nominal_a + nominal_b) / 2.0
+            alternating = kfs * np.abs(nominal_a - nominal_b) / 2.0
+        else:
+            # stresses_from_mean_alternating: extremes Tm ± |Ta|, then as above.
+            high, low = nominal_a + np.abs(nominal_b), nominal_a - np.abs(nominal_b)
+            mean = kfsm * (high + low) / 2.0
+            alternating = kfs * np.abs(high - low) / 2.0
     factors = factors_of_safety(mean, alternating, *strengths)
     worst = np.minimum(factors[criteria.criterion], factors["first_cycle_yield"])
     return int(np.argmin(worst))

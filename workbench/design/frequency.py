@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from workbench.case.design import DEFAULT_FREQUENCY_MARGIN, DesignCriteria
+from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem, display_units, quote
 from workbench.design.check_report import Check
 from workbench.design.verdict import WithinLimit
@@ -130,6 +131,13 @@ def separation_note(separation: Separation, margin: float) -> str:
     )
 
 
+#: natural_modes' options and the keys of the case's design section that give them.
+_DESIGN_KEYS = {
+    "elements_per_segment": "design.modal_elements_per_segment",
+    "max_element_length": "design.modal_max_element_length",
+}
+
+
 def frequency_checks(
     model: Model, design: DesignCriteria
 ) -> tuple[list[Check], list[str], Modes | None]:
@@ -161,13 +169,18 @@ def frequency_checks(
     try:
         # The usual count (not 1): for small systems every mode comes at once anyway, and the
         # report keeps them for charts and records to reuse.
-        modes = natural_modes(
-            model,
-            count=DEFAULT_MODE_COUNT,
-            up_to=max(speed.maximum for speed in speeds) * (1.0 + margin),
-            elements_per_segment=design.modal_elements_per_segment,
-            max_element_length=design.modal_max_element_length,
-        )
+        try:
+            modes = natural_modes(
+                model,
+                count=DEFAULT_MODE_COUNT,
+                up_to=max(speed.maximum for speed in speeds) * (1.0 + margin),
+                elements_per_segment=design.modal_elements_per_segment,
+                max_element_length=design.modal_max_element_length,
+            )
+        except InputError as error:
+            if error.field in _DESIGN_KEYS:  # the mesh options come from the design section
+                raise InputError(_DESIGN_KEYS[error.field], error.message) from None
+            raise
         checks = [
             Check(
                 separation.speed.name,

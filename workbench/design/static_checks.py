@@ -217,13 +217,21 @@ class StaticUtilisations:
 
     @property
     def utilisation(self) -> FloatArray:
-        """(V, R, C, G) value/limit, NaN where the check does not exist."""
-        return self.value / self.limit
+        """(V, R, C, G) value/limit, NaN where the check does not exist.
+
+        A quotient beyond the range of numbers is inf: the check fails (a single model's
+        report refuses it by name, :mod:`workbench.design.finite_checks`).
+        """
+        with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+            utilisation: FloatArray = self.value / self.limit
+        return utilisation
 
     @property
     def rotation_utilisation(self) -> FloatArray:
-        """(V, R, L) rotation over its limit."""
-        return self.rotation_value / self.rotation_limit[:, None, :]
+        """(V, R, L) rotation over its limit (inf beyond the range of numbers, as above)."""
+        with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+            utilisation: FloatArray = self.rotation_value / self.rotation_limit[:, None, :]
+        return utilisation
 
     def governing_utilisation(self) -> FloatArray:
         """(V,) the largest utilisation of each variant over every static check and rotation.

@@ -9,6 +9,7 @@ is done by the array core on the model's columns:
 * :mod:`~workbench.solver.assembly` — banded LAPACK (no gears) or sparse LU (gears);
 * :mod:`~workbench.solver.recovery` and :mod:`~workbench.solver.statics` — T(x), θ(x), τ(x) and
   reactions by equilibrium, every load case at once;
+* :mod:`~workbench.solver.finite_results` — a result beyond the range of numbers refused by name;
 * :mod:`~workbench.solver.results` — :class:`Results`, the per-shaft views and tables;
 * :mod:`~workbench.solver.batch` — many variants of one topology at once.
 
@@ -40,14 +41,14 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from workbench.case.units import UnitSystem
+from workbench.case.units import UnitSystem, display_units
 from workbench.solver.assembly import add_diagonal, assemble_band, band_to_sparse
 from workbench.solver.columns import CaseTable, case_table
 from workbench.solver.elements import CURVE_PIECES, SaintVenantElements
+from workbench.solver.finite_results import solve_in_range
 from workbench.solver.mesh import Mesh, build_mesh, build_mesh_from_table
 from workbench.solver.model import Model
 from workbench.solver.results import Envelope, LoadResult, Results, ShaftResult
-from workbench.solver.statics import solve_table
 
 if TYPE_CHECKING:
     import scipy.sparse as sp
@@ -155,8 +156,12 @@ def _results(
     source: Model | Callable[[], Model],
 ) -> Results:
     """Solve a table (one variant) and wrap its arrays as :class:`Results`."""
-    mesh = mesh if mesh is not None else build_mesh_from_table(table)
-    solution = solve_table(table, mesh)
+    token = display_units.set(units)  # messages quote values in the case's own units
+    try:
+        mesh = mesh if mesh is not None else build_mesh_from_table(table)
+        solution = solve_in_range(table, mesh)
+    finally:
+        display_units.reset(token)
     arrays = {
         name: getattr(solution, name)[:, 0]
         for name in ("reactions", "gear_torques", "torque", "angle", "shear_stress", "node_angle")

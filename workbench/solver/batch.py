@@ -41,6 +41,7 @@ import numpy as np
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
+from workbench.case.validate import not_normal_positive, too_small
 from workbench.solver.columns import (
     DIMENSION_KEYS,
     GIVEN,
@@ -52,10 +53,10 @@ from workbench.solver.columns import (
     IntArray,
     case_table,
 )
+from workbench.solver.finite_results import solve_in_range
 from workbench.solver.mesh import Mesh, build_mesh_from_table, node_positions, size_mesh
 from workbench.solver.model import Model
-from workbench.solver.sections import FloatArray
-from workbench.solver.statics import solve_table
+from workbench.solver.sections import FloatArray, circles_out_of_range
 
 #: Columns a variant may change, by the table that holds them.
 SEGMENT_COLUMNS = (
@@ -86,7 +87,19 @@ class _Rule:
 
 
 def _positive(what: str) -> Callable[[float, float], str]:
-    return lambda value, _: f"must be greater than zero ({quote(value, what)})"
+    def message(value: float, _: float) -> str:
+        if value > 0.0 and np.isfinite(value):
+            return too_small(value, what)
+        return f"must be greater than zero ({quote(value, what)})"
+
+    return message
+
+
+def _out_of_range(value: float, _: float) -> str:
+    size = "small" if value < 1.0 else "large"
+    return (
+        f"{quote(value, 'length')} is too {size} for the torsion formulas: J or τ/T is out of range"
+    )
 
 
 def _same_key(name: str) -> Callable[[int], str]:
@@ -133,6 +146,8 @@ _RULES = (
         lambda value, _: f"a solid section has no bore ({quote(value, 'length')})",
         _same_key("diameter"),
     ),
+    _Rule("outer_diameter_start", _out_of_range, lambda shape: DIMENSION_KEYS[shape][0]),
+    _Rule("outer_diameter_end", _out_of_range, lambda shape: DIMENSION_KEYS[shape][1]),
     _Rule(
         "torsion_constant",
         lambda value, _: f"its torsion constant must be greater than zero ({value:g} m⁴)",
@@ -238,7 +253,9 @@ def validate(table: CaseTable, n_variants: int) -> Validity:
         return np.broadcast_to(values, (n_variants, *np.shape(values)[1:]))
 
     def not_positive(values: Any) -> BoolArray:
-        return ~(np.isfinite(values) & (values > 0.0))
+        with np.errstate(invalid="ignore"):  # NaN (a column that does not apply) is refused
+            refused: BoolArray = not_normal_positive(values)
+        return refused
 
     length = each(segments.length)
     _check(state, next(rules), not_positive(length), length)
@@ -257,6 +274,8 @@ def validate(table: CaseTable, n_variants: int) -> Validity:
     prismatic = (shape == SOLID) | (shape == TUBE)
     _check(state, next(rules), prismatic & (end != start), end, start)
     _check(state, next(rules), (shape == SOLID) & (bore != 0.0), bore)
+    _check(state, next(rules), circular & circles_out_of_range(start, bore), start)
+    _check(state, next(rules), circular & circles_out_of_range(end, bore), end)
     constant = each(segments.torsion_constant)
     _check(state, next(rules), (shape == GIVEN) & not_positive(constant), constant)
     stress = each(segments.stress_per_torque)
@@ -486,7 +505,7 @@ def solve_batch(base: Model | CaseTable, **variants: Any) -> BatchResults:
     moved = "length" in columns
     node_x = node_positions(mesh, segments) if moved else mesh.node_x[None]
     geometry = size_mesh(mesh, segments, node_x, nodes_moved=moved)
-    solution = solve_table(varied, mesh, geometry)
+    solution = solve_in_range(varied, mesh, geometry)
     n_stations = len(mesh.station_element)
     invalid = ~validity.valid
 

@@ -24,6 +24,7 @@ from workbench.case.design import design_criteria, design_section
 from workbench.case.errors import InputError
 from workbench.case.materials import Material, library_material
 from workbench.case.power import torque_from_power
+from workbench.case.text import short
 from workbench.case.units import SI, UnitSystem, display_units
 from workbench.case.validate import build_each, within
 from workbench.solver import sections as circular
@@ -113,8 +114,11 @@ class ModelBuilder:
         try:
             found = dataclasses.replace(library_material(name), name=name)
         except InputError as error:
-            own = ", ".join(sorted(self.materials)) or "none"
-            msg = f"unknown material {name!r}: not defined in materials (defined: {own}); {error.message}"
+            own = short(", ".join(sorted(self.materials)) or "none", 40)
+            hint = error.message.partition(";")[2]  # the library's close matches
+            msg = (
+                f"unknown material {short(name)!r}: not in materials ({own}) nor the library;{hint}"
+            )
             raise InputError("material", msg) from None
         self._library[name] = found
         return found

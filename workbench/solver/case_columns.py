@@ -7,9 +7,9 @@ segments per key), sections are grouped by shape, and each column is converted t
 multiplication by its key's declared factor (the product a key-by-key conversion gives).
 
 Checks: everything building the :class:`~workbench.solver.model.Model` checks of a segment
-(finite after the conversion, lengths and diameters greater than zero, bores smaller than
-their diameters, known materials, layers that nest, a cross hole smaller than the segment) is
-checked on whole columns. A segment a check flags is then built the model's way, alone, so that
+(finite after the conversion, lengths and diameters greater than zero and normal numbers,
+bores smaller than their diameters, J and τ/T of circles in range, known materials, layers
+that nest, a cross hole smaller than the segment) is checked on whole columns. A segment a check flags is then built the model's way, alone, so that
 its error is the very message, field path included, that building the model gives; the
 column checks only have to flag every such segment (they may flag a few more, which then pass).
 Supports, gears, loads and the design section are few: they are built as the model builds them
@@ -32,7 +32,7 @@ from workbench.case import declaration as declared
 from workbench.case.errors import InputError
 from workbench.case.materials import Material
 from workbench.case.units import UnitSystem
-from workbench.case.validate import within
+from workbench.case.validate import not_normal_positive, within
 from workbench.solver.build import ModelBuilder, building
 from workbench.solver.columns import (
     GIVEN,
@@ -47,8 +47,8 @@ from workbench.solver.columns import (
     system_columns,
 )
 from workbench.solver.model import Shaft
-from workbench.solver.parts import References, shaft_index
-from workbench.solver.sections import FloatArray
+from workbench.solver.parts import References, check_segment_lengths, shaft_index
+from workbench.solver.sections import FloatArray, circles_out_of_range
 
 #: The declared circular sections by their shape code.
 _CIRCULAR: dict[int, type] = {
@@ -180,11 +180,6 @@ def _required(cls: type) -> frozenset[str]:
     return frozenset(item.name for item in msgspec.structs.fields(cls) if item.required)
 
 
-def _not_positive(values: FloatArray) -> BoolArray:
-    """Where a value is not a finite number greater than zero (NaN included)."""
-    return ~(values > 0.0) | ~np.isfinite(values)
-
-
 def _any_layer(refused: BoolArray, per_segment: IntArray) -> BoolArray:
     """(n_segments,) whether any layer of a segment is refused."""
     if len(refused) == len(per_segment):
@@ -263,7 +258,7 @@ class _ShaftReader:
         """The shaft's columns; raises the model's error of the first segment it refuses."""
         segments = self.segments
         length = self.si(segments, declared.Segment, "length")
-        self.flagged |= _not_positive(length)
+        self.flagged |= not_normal_positive(length)
         layers, per_segment = self._layers()
         # Rows: shear modulus, d_start, d_end, bore, K, τ/T of every layer.
         values = np.full((6, len(layers)), np.nan)
@@ -277,6 +272,7 @@ class _ShaftReader:
                 raise within(f"shafts[{self.number}].segments[{row}]", error) from None
         try:
             Shaft.check_id(self.entry.id)
+            check_segment_lengths(length)
         except InputError as error:
             raise within(f"shafts[{self.number}]", error) from None
         return _ShaftColumns(
@@ -365,22 +361,24 @@ class _ShaftReader:
         if code == SOLID:
             start = end = self.si(members, cls, "diameter")
             bore = np.zeros(len(members))
-            refused = _not_positive(start)
+            refused = not_normal_positive(start)
         elif code == TUBE:
             start = end = self.si(members, cls, "outer_diameter")
             bore = self.si(members, cls, "inner_diameter")
-            refused = _not_positive(start) | _not_positive(bore) | ~(bore < start)
+            refused = not_normal_positive(start) | not_normal_positive(bore) | ~(bore < start)
         else:
             start = self.si(members, cls, "diameter_start")
             end = self.si(members, cls, "diameter_end")
             bore = self.si(members, cls, "bore")
             refused = (
-                _not_positive(start)
-                | _not_positive(end)
+                not_normal_positive(start)
+                | not_normal_positive(end)
                 | ~(bore >= 0.0)
                 | ~np.isfinite(bore)
                 | ~(bore < np.fmin(start, end))
             )
+        # J and τ/T in range at both ends (between them they are monotonic in the diameter).
+        refused |= circles_out_of_range(start, bore) | circles_out_of_range(end, bore)
         # The model's outer radius is half the largest diameter; the hole check doubles it.
         outer = 2.0 * (np.fmax(start, end) / 2.0)
         return (start, end, bore, None, None), outer, refused
@@ -410,10 +408,10 @@ class _ShaftReader:
         segments, cls = self.segments, declared.Segment
         if any(map(operator.attrgetter("fillet_radius"), segments)):
             fillet = self.si(segments, cls, "fillet_radius")
-            self.flagged |= ~np.isnan(fillet) & _not_positive(fillet)
+            self.flagged |= ~np.isnan(fillet) & not_normal_positive(fillet)
         if any(map(operator.attrgetter("cross_hole_diameter"), segments)):
             hole = self.si(segments, cls, "cross_hole_diameter")
-            self.flagged |= ~np.isnan(hole) & (_not_positive(hole) | ~(hole < outer))
+            self.flagged |= ~np.isnan(hole) & (not_normal_positive(hole) | ~(hole < outer))
         if any(map(operator.attrgetter("notch"), segments)):
             notches = list(map(operator.attrgetter("notch"), segments))
             rows = np.flatnonzero(np.fromiter(map(declared.given, notches), bool, len(notches)))
@@ -424,7 +422,7 @@ class _ShaftReader:
             refused = (
                 ~(kts >= 1.0)
                 | ~np.isfinite(kts)
-                | (~np.isnan(radius) & _not_positive(radius))
+                | (~np.isnan(radius) & not_normal_positive(radius))
                 | (~np.isnan(sensitivity) & ~((sensitivity >= 0.0) & (sensitivity <= 1.0)))
                 | (~np.isnan(radius) & ~np.isnan(sensitivity))
             )

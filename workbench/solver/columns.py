@@ -150,6 +150,11 @@ class SegmentTable:
         """(n_segments,) shaft number of each segment."""
         return np.repeat(np.arange(len(self.shaft_ids)), np.diff(self.shaft_segment_start))
 
+    def segment_path(self, row: int) -> str:
+        """The case file's path of a segment row: ``shafts[1].segments[4]``."""
+        shaft = int(np.searchsorted(self.shaft_segment_start, row, side="right")) - 1
+        return f"shafts[{shaft}].segments[{row - int(self.shaft_segment_start[shaft])}]"
+
 
 #: Float columns of :class:`SegmentTable` with one value per layer.
 LAYER_COLUMNS = (

@@ -21,6 +21,7 @@ from typing import Any
 import numpy as np
 
 from workbench.solver.columns import BoolArray, CaseTable, IntArray, SegmentTable, case_table
+from workbench.solver.element_range import require_element_constants, require_every_segment
 from workbench.solver.elements import CURVE_PIECES, VaryingElements, segment_constants
 from workbench.solver.model import POSITION_TOLERANCE, Model
 from workbench.solver.sections import FloatArray
@@ -263,6 +264,7 @@ def _shaft_nodes(
         boundaries = boundaries_of(number)
         middles = 0.5 * (nodes[:-1] + nodes[1:])
         segment_of = np.clip(np.searchsorted(boundaries, middles) - 1, 0, len(boundaries) - 2)
+        require_every_segment(number, segment_of, len(boundaries) - 1)
         segment_parts.append(segment_of)
         origin_parts.append(boundaries[segment_of])
     return node_x, shaft_node_start, np.concatenate(segment_parts), np.concatenate(origin_parts)
@@ -414,11 +416,36 @@ def size_mesh(
     Geometry
         Element flexibility moments and station values, variant by variant.
 
+    Raises
+    ------
+    InputError
+        When a rigidity G·K, a stress per torque or a flexibility moment is not a finite
+        number in range (:func:`~workbench.solver.element_range.require_element_constants`).
+
     References
     ----------
     .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 3
        (flexibility of a prismatic member: I_k = L^(k+1)/((k+1)·G·K)).
     """
+    # Each input is in range, but a product or quotient of them may not be: that is checked
+    # on the results, so numpy's warnings about it are not wanted.
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        geometry = _sizes(topology, segments, node_x, nodes_moved)
+    require_element_constants(
+        segments,
+        topology.element_segment_row,
+        topology.station_element,
+        geometry.station_rigidity,
+        geometry.station_stress_per_torque,
+        geometry.flexibility,
+    )
+    return geometry
+
+
+def _sizes(
+    topology: MeshTopology, segments: SegmentTable, node_x: FloatArray, nodes_moved: bool
+) -> Geometry:
+    """The work of :func:`size_mesh`, without its checks."""
     n_variants = max(segments.n_variants, node_x.shape[0])
     x_start, x_end = start_and_end_values(topology, node_x)
     length = x_end - x_start

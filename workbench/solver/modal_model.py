@@ -25,6 +25,8 @@ import scipy.linalg
 import scipy.sparse as sp
 
 from workbench.case.errors import InputError
+from workbench.case.text import short
+from workbench.case.validate import not_normal_positive
 from workbench.solver.analysis import Mesh, build_mesh
 from workbench.solver.model import POSITION_TOLERANCE, Model, Segment
 from workbench.solver.sections import FloatArray
@@ -157,10 +159,12 @@ def torsion_mass_matrix(model: Model, mesh: Mesh) -> sp.csr_matrix:
             ) / segment.length
             mu[elements] = _rotary_inertia(segment, np.clip(fraction, 0.0, 1.0))
     shape_a, shape_b = 1.0 - _UNIT_POINTS, _UNIT_POINTS
-    weighted = mu * _UNIT_WEIGHTS * length[:, None]
-    m_aa = weighted @ (shape_a * shape_a)
-    m_ab = weighted @ (shape_a * shape_b)
-    m_bb = weighted @ (shape_b * shape_b)
+    with np.errstate(over="ignore", invalid="ignore"):  # a product out of range is checked below
+        weighted = mu * _UNIT_WEIGHTS * length[:, None]
+        m_aa = weighted @ (shape_a * shape_a)
+        m_ab = weighted @ (shape_a * shape_b)
+        m_bb = weighted @ (shape_b * shape_b)
+    _require_masses_in_range(model, mesh, np.stack([m_aa, m_ab, m_bb]))
     node_a = mesh.element_start_node
     node_b = node_a + 1
     rows = np.concatenate([node_a, node_b, node_a, node_b])
@@ -173,6 +177,28 @@ def torsion_mass_matrix(model: Model, mesh: Mesh) -> sp.csr_matrix:
         inertia = [disc.inertia for disc in model.discs]
         matrix = matrix + sp.csr_matrix((inertia, (nodes, nodes)), shape=(size, size))
     return matrix
+
+
+def _require_masses_in_range(model: Model, mesh: Mesh, masses: FloatArray) -> None:
+    """Raise :class:`InputError` unless every element's mass entries are 0 or normal numbers.
+
+    ``masses``: (3, n_elements) M_aa, M_ab, M_bb (kg·m²). A density of 1e-300 kg/m³ gives
+    entries of 1e-309, which the eigensolver cannot work with (it returns no modes at all).
+    """
+    bad = (masses != 0.0) & not_normal_positive(masses)
+    if not bad.any():
+        return
+    element = int(np.argmax(bad.any(axis=0)))
+    shaft = int(mesh.element_shaft[element])
+    segment = model.shafts[shaft].segments[int(mesh.element_segment[element])]
+    names = [layer.material.name for layer in segment.layers if layer.material.density]
+    value = float(masses[:, element][bad[:, element]][0])
+    msg = (
+        f"the rotary inertia ρ·J·L/3 of an element of shafts[{shaft}].segments"
+        f"[{int(mesh.element_segment[element])}] comes to {value:.3g} kg·m², beyond the range "
+        "of full-precision numbers"
+    )
+    raise InputError(f"materials.{short(names[0] if names else '?')}.density", msg)
 
 
 # --- constraints ------------------------------------------------------------------------------

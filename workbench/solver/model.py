@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import functools
 import itertools
+import operator
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -39,10 +40,13 @@ from workbench.solver.parts import (
     PointTorque,
     References,
     Support,
+    check_segment_lengths,
     result_names,
     shaft_index,
 )
 from workbench.solver.sections import FloatArray, Section
+
+_LENGTH = operator.attrgetter("length")
 
 
 @dataclass(frozen=True)
@@ -287,6 +291,8 @@ class Shaft:
         self.check_id(self.id)
         if not self.segments:
             raise InputError("segments", "a shaft needs at least one segment")
+        count = len(self.segments)
+        check_segment_lengths(np.fromiter(map(_LENGTH, self.segments), float, count))
 
     @staticmethod
     def check_id(shaft_id: str) -> None:

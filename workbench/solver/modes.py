@@ -37,6 +37,7 @@ References
 from __future__ import annotations
 
 import math
+import warnings
 from collections.abc import Iterable
 from dataclasses import dataclass
 from typing import Any
@@ -46,6 +47,7 @@ import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from workbench.case.declaration import MAX_MODAL_ELEMENTS
 from workbench.case.design import DEFAULT_MODAL_ELEMENTS_PER_SEGMENT
 from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem, quote
@@ -153,7 +155,16 @@ def _dense_modes(
         values, vectors = scipy.linalg.eigh(k, m, subset_by_index=subset)
         return values, vectors
     keep, drop = np.flatnonzero(massive), np.flatnonzero(~massive)
-    coupling = scipy.linalg.solve(k[np.ix_(drop, drop)], k[np.ix_(drop, keep)], assume_a="sym")
+    with warnings.catch_warnings():
+        # An ill-conditioned massless part (stiffnesses out of scale with each other) gives a
+        # meaningless condensation: refused by the caller, naming the stiffness out of scale.
+        warnings.simplefilter("error", scipy.linalg.LinAlgWarning)
+        try:
+            coupling = scipy.linalg.solve(
+                k[np.ix_(drop, drop)], k[np.ix_(drop, keep)], assume_a="sym"
+            )
+        except scipy.linalg.LinAlgWarning as warning:
+            raise _IllConditionedError(str(warning)) from None
     condensed = k[np.ix_(keep, keep)] - k[np.ix_(keep, drop)] @ coupling
     condensed = 0.5 * (condensed + condensed.T)
     values, reduced = scipy.linalg.eigh(condensed, m[np.ix_(keep, keep)], subset_by_index=subset)
@@ -161,6 +172,30 @@ def _dense_modes(
     vectors[keep] = reduced
     vectors[drop] = -coupling @ reduced
     return values, vectors
+
+
+class _IllConditionedError(ArithmeticError):
+    """The stiffness matrix is too ill-conditioned to condense (an internal signal)."""
+
+
+def _out_of_scale(model: Model, mesh: Mesh) -> InputError:
+    """The element or spring stiffness farthest (on a log scale) from the elements' median."""
+    table = case_table(model)
+    element_stiffness = 1.0 / mesh.flexibility[:, 0]
+    springs = np.flatnonzero(~table.support_fixed)
+    values = np.concatenate([element_stiffness, table.support_stiffness[0, springs]])
+    distance = np.abs(np.log(values) - np.median(np.log(element_stiffness)))
+    worst = int(np.argmax(distance))
+    words = (
+        f"{values[worst]:.3g} N·m/rad is out of scale with the rest (median element "
+        f"{float(np.median(element_stiffness)):.3g}): the eigenproblem is too ill-conditioned"
+    )
+    if worst >= len(element_stiffness):
+        return InputError(
+            f"supports[{int(springs[worst - len(element_stiffness)])}].stiffness", words
+        )
+    row = int(mesh.element_segment_row[worst])
+    return InputError(f"{table.segments.segment_path(row)}.material", f"its stiffness, {words}")
 
 
 def _sparse_modes(
@@ -256,8 +291,11 @@ def natural_modes(
         # twice as many until the highest found lies above ``up_to``, or all are found.
         lowest = max(count, len(rigid)) + 1
         while True:
-            values, vectors = _dense_modes(reduced_stiffness, reduced_mass, lowest)
-            if len(values) >= massive or up_to is None or values[-1] > up_to**2:
+            try:
+                values, vectors = _dense_modes(reduced_stiffness, reduced_mass, lowest)
+            except _IllConditionedError:
+                raise _out_of_scale(modal_model, mesh) from None
+            if len(values) >= massive or up_to is None or values[-1] > up_to * up_to:
                 break
             lowest *= 2
         complete = True
@@ -309,24 +347,44 @@ def _options(
         msg = f"must be 'auto', 'dense' or 'sparse', not {method!r}"
         raise InputError("method", msg)
     design = model.design
+    pieces_key, longest_key = "elements_per_segment", "max_element_length"
     if elements_per_segment is None:
+        pieces_key = "design.modal_elements_per_segment"
         elements_per_segment = getattr(
             design, "modal_elements_per_segment", DEFAULT_ELEMENTS_PER_SEGMENT
         )
     if max_element_length is None:
+        longest_key = "design.modal_max_element_length"
         max_element_length = getattr(design, "modal_max_element_length", None)
     if (
         isinstance(elements_per_segment, bool)
         or not isinstance(elements_per_segment, int)
-        or elements_per_segment < 1
+        or not 1 <= elements_per_segment <= MAX_MODAL_ELEMENTS
     ):
-        msg = f"must be a whole number of at least 1, not {elements_per_segment!r}"
-        raise InputError("modal_elements_per_segment", msg)
-    if max_element_length is not None and (
-        not math.isfinite(max_element_length) or max_element_length <= 0.0
-    ):
-        msg = f"must be greater than zero ({quote(max_element_length, 'length')})"
-        raise InputError("modal_max_element_length", msg)
+        msg = (
+            f"must be a whole number from 1 to {MAX_MODAL_ELEMENTS:,}, not {elements_per_segment!r}"
+        )
+        raise InputError(pieces_key, msg)
+    if max_element_length is not None:
+        if not math.isfinite(max_element_length) or max_element_length <= 0.0:
+            msg = f"must be greater than zero ({quote(max_element_length, 'length')})"
+            raise InputError(longest_key, msg)
+        # Bounded work: no segment with inertia cut into more elements than the case file may ask.
+        longest = max(
+            (
+                segment.length
+                for shaft in model.shafts
+                for segment in shaft.segments
+                if has_mass(segment)
+            ),
+            default=0.0,
+        )
+        if longest / max_element_length > MAX_MODAL_ELEMENTS:
+            msg = (
+                f"{quote(max_element_length, 'length')} would cut a segment of "
+                f"{quote(longest, 'length')} into more than {MAX_MODAL_ELEMENTS:,} elements"
+            )
+            raise InputError(longest_key, msg)
     return elements_per_segment, max_element_length
 
 

@@ -22,6 +22,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 from typing import ClassVar
@@ -57,6 +58,7 @@ _ISOPERIMETRIC_SLACK = 1e-3
 _SERIES_TOLERANCE = 1e-16
 
 
+@functools.lru_cache(maxsize=4096)
 def rectangle_coefficients(aspect_ratio: float) -> tuple[float, float]:
     """Saint-Venant coefficients α and β of a solid rectangle.
 
@@ -201,6 +203,7 @@ class Rectangle(Section):
     def __post_init__(self) -> None:
         require_positive("width", self.width)
         require_positive("height", self.height)
+        self._require_constants()
 
     @property
     def _long_short(self) -> tuple[float, float]:
@@ -273,6 +276,12 @@ class ThinWalledClosed(Section):
     def __post_init__(self) -> None:
         require_positive("enclosed_area", self.enclosed_area, "area")
         object.__setattr__(self, "walls", _require_walls("walls", self.walls))
+        with self._formulas():
+            self._require_closed_cell()
+        self._require_constants()
+
+    def _require_closed_cell(self) -> None:
+        """The centre line can enclose the area, and the walls are thin."""
         perimeter = self.perimeter
         largest_area = perimeter**2 / (4.0 * math.pi)
         if self.enclosed_area > largest_area * (1.0 + _ISOPERIMETRIC_SLACK):
@@ -424,7 +433,9 @@ class Box(_UniformWallCell):
 
     def __post_init__(self) -> None:
         self._require_hollow("side")
-        _require_thin("thickness", self.thickness, self.enclosed_area, self.perimeter)
+        with self._formulas():
+            _require_thin("thickness", self.thickness, self.enclosed_area, self.perimeter)
+        self._require_constants()
 
     @property
     def enclosed_area(self) -> float:
@@ -489,6 +500,12 @@ class EllipticalTube(_UniformWallCell):
 
     def __post_init__(self) -> None:
         self._require_hollow("axis")
+        with self._formulas():
+            self._require_smooth_and_thin()
+        self._require_constants()
+
+    def _require_smooth_and_thin(self) -> None:
+        """The inner face is a smooth curve and the wall thin."""
         major, minor = self._semi_axes
         sharpest = minor**2 / major
         if self.thickness / 2.0 >= sharpest:
@@ -577,6 +594,12 @@ class ThinWalledOpen(Section):
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "walls", _require_walls("walls", self.walls))
+        with self._formulas():
+            self._require_slender()
+        self._require_constants()
+
+    def _require_slender(self) -> None:
+        """The walls' end effects are a small part of K."""
         deficit = math.fsum(_STRIP_END_DEFICIT * wall.thickness**4 for wall in self.walls)
         if deficit > THIN_WALL_LIMIT * self.torsion_constant:
             stubbiest = min(
@@ -585,9 +608,9 @@ class ThinWalledOpen(Section):
             )
             wall = self.walls[stubbiest]
             msg = (
-                f"is too thick for thin-walled open-section theory: the walls' end effects "
-                f"(0.21·t⁴ each) exceed {THIN_WALL_LIMIT:g} of Σ b·t³/3; the stubbiest wall has "
-                f"{quote(wall.thickness, 'length')} over a length of {quote(wall.length, 'length')}"
+                f"is too thick for thin-walled open-section theory: end effects 0.21·t⁴ exceed "
+                f"{THIN_WALL_LIMIT:g} of Σb·t³/3 (stubbiest wall: {quote(wall.thickness, 'length')}"
+                f" thick, {quote(wall.length, 'length')} long)"
             )
             field_name = f"walls[{stubbiest}].thickness"
             raise InputError(field_name, msg)

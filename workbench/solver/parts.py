@@ -17,15 +17,65 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from workbench.case.declaration import MeshKind, SupportKind
+from workbench.case.declaration import POSITION_TOLERANCE, MeshKind, SupportKind
 from workbench.case.design import DesignCriteria
 from workbench.case.errors import InputError
-from workbench.case.units import quote
+from workbench.case.text import short
+from workbench.case.units import display_units, quote
 from workbench.case.validate import require_finite, require_non_negative, require_positive
 from workbench.solver.sections import FloatArray
 
-#: Two positions on one shaft closer than this fraction of its length are the same point.
-POSITION_TOLERANCE = 1e-9
+
+def check_segment_lengths(lengths: FloatArray) -> None:
+    """Raise :class:`InputError` unless a shaft's segments add up and can be told apart.
+
+    The shaft's length must be a finite number, and every segment longer than twice the
+    position tolerance of it (plus the rounding of the running sum), so that no segment end
+    merges with the next: a segment of 1e30 mm before one of 200 mm would otherwise swallow
+    it, and the loads on it, without a word.
+
+    Parameters
+    ----------
+    lengths
+        (n_segments,) the segment lengths of one shaft (m), each a finite number above zero.
+
+    Raises
+    ------
+    InputError
+        On ``segments[j].length``: where the running sum overflows; else the segment out of
+        scale, the longest when it dwarfs the rest, the shortest otherwise.
+    """
+    # Positions are reported in the file's unit: the sum must be finite there too.
+    in_file_units = display_units.get().factor("length")
+    with np.errstate(over="ignore"):  # an overflow of the sum is what is looked for
+        ends = np.cumsum(lengths)
+        shown = ends / in_file_units
+    if not np.isfinite(shown[-1]):
+        number = int(np.argmin(np.isfinite(shown)))
+        msg = (
+            "the segments up to this one add up to more than the largest number, "
+            f"{float(np.finfo(float).max):.4g} {display_units.get().label('length')}"
+        )
+        raise InputError(f"segments[{number}].length", msg)
+    total = float(ends[-1])
+    least = 2.0 * POSITION_TOLERANCE * total + 8.0 * float(np.finfo(float).eps) * total
+    shortest, longest = int(np.argmin(lengths)), int(np.argmax(lengths))
+    if len(lengths) < 2 or lengths[shortest] > least:
+        return
+    typical = float(np.median(lengths))
+    if lengths[longest] / typical > typical / lengths[shortest]:
+        msg = (
+            f"{quote(lengths[longest], 'length')} dwarfs segment {shortest} "
+            f"({quote(lengths[shortest], 'length')}): each segment must be longer than "
+            f"{2.0 * POSITION_TOLERANCE:g} of its shaft for its ends to be told apart"
+        )
+        raise InputError(f"segments[{longest}].length", msg)
+    msg = (
+        f"{quote(lengths[shortest], 'length')} is too short to tell its ends apart on a shaft "
+        f"{quote(total, 'length')} long (each segment must be longer than "
+        f"{2.0 * POSITION_TOLERANCE:g} of it)"
+    )
+    raise InputError(f"segments[{shortest}].length", msg)
 
 
 @dataclass(frozen=True)
@@ -206,7 +256,7 @@ class LoadCase:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError("name", f"must be a non-empty name, not {self.name!r}")
+            raise InputError("name", f"must be a non-empty name, not {short(repr(self.name))}")
 
 
 @dataclass(frozen=True)
@@ -231,7 +281,7 @@ class Combination:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError("name", f"must be a non-empty name, not {self.name!r}")
+            raise InputError("name", f"must be a non-empty name, not {short(repr(self.name))}")
         if not self.factors:
             raise InputError("factors", "a combination needs at least one load case")
         for case_name, factor in self.factors:
@@ -290,7 +340,7 @@ class OperatingSpeed:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError("name", f"must be a non-empty name, not {self.name!r}")
+            raise InputError("name", f"must be a non-empty name, not {short(repr(self.name))}")
         require_non_negative("min", self.minimum, "speed")
         require_positive("max", self.maximum, "speed")
         if self.maximum < self.minimum:
@@ -325,7 +375,7 @@ def shaft_index(shaft_ids: Iterable[str]) -> dict[str, int]:
     index: dict[str, int] = {}
     for number, shaft_id in enumerate(shaft_ids):
         if shaft_id in index:
-            raise InputError(f"shafts[{number}].id", f"duplicate shaft id {shaft_id!r}")
+            raise InputError(f"shafts[{number}].id", f"duplicate shaft id {short(shaft_id)!r}")
         index[shaft_id] = number
     return index
 
@@ -350,13 +400,14 @@ class References:
     def point(self, path: str, shaft_id: str, x: float, key: str) -> None:
         """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
         if shaft_id not in self.index:
-            known = ", ".join(repr(name) for name in self.index)
-            raise InputError(f"{path}.shaft", f"unknown shaft {shaft_id!r}; known: {known}")
+            known = short(", ".join(repr(name) for name in self.index))
+            msg = f"unknown shaft {short(shaft_id)!r}; known: {known}"
+            raise InputError(f"{path}.shaft", msg)
         length = self.lengths[self.index[shaft_id]]
         tolerance = POSITION_TOLERANCE * length
         if not -tolerance <= x <= length + tolerance:
             msg = (
-                f"{quote(x, 'length')} is off shaft {shaft_id!r}, which runs from 0 to "
+                f"{quote(x, 'length')} is off shaft {short(shaft_id)!r}, which runs from 0 to "
                 f"{quote(length, 'length')}"
             )
             raise InputError(f"{path}.{key}", msg)
@@ -395,7 +446,9 @@ class References:
         names: set[str] = set()
         for number, case in enumerate(load_cases):
             if case.name in names:
-                raise InputError(f"load_cases[{number}].name", f"duplicate name {case.name!r}")
+                raise InputError(
+                    f"load_cases[{number}].name", f"duplicate name {short(case.name)!r}"
+                )
             names.add(case.name)
             for item, torque in enumerate(case.torques):
                 point(f"load_cases[{number}].torques[{item}]", torque.shaft, torque.x, "x")
@@ -406,13 +459,16 @@ class References:
         case_names = set(names)
         for number, combination in enumerate(combinations):
             if combination.name in names:
-                msg = f"duplicate name {combination.name!r} (names are shared with load cases)"
+                msg = (
+                    f"duplicate name {short(combination.name)!r} (names are shared with load cases)"
+                )
                 raise InputError(f"combinations[{number}].name", msg)
             names.add(combination.name)
             for case_name, _ in combination.factors:
                 if case_name not in case_names:
-                    msg = f"unknown load case {case_name!r}; known: {', '.join(sorted(case_names))}"
-                    raise InputError(f"combinations[{number}].factors.{case_name}", msg)
+                    known = short(", ".join(sorted(case_names)))
+                    msg = f"unknown load case {short(case_name)!r}; known: {known}"
+                    raise InputError(f"combinations[{number}].factors.{short(case_name)}", msg)
         self._check_vibration(names, discs, operating_speeds, has_density)
         if design is not None:
             self._check_design(design, result_names(load_cases, combinations))
@@ -429,7 +485,7 @@ class References:
         keys = ("extremes", "extremes") if fatigue.extremes is not None else ("mean", "alternating")
         for key, name in zip(keys, fatigue.result_names, strict=True):
             if name not in known:
-                msg = f"unknown load case or combination {name!r}; known: {', '.join(known)}"
+                msg = f"unknown load case or combination {short(name)!r}; known: {short(', '.join(known))}"
                 raise InputError(f"design.fatigue.{key}", msg)
 
     def _check_vibration(
@@ -445,7 +501,7 @@ class References:
         for number, speed in enumerate(operating_speeds):
             if speed.name in result_names or speed.name in speed_names:
                 msg = (
-                    f"duplicate name {speed.name!r} (names are shared with load cases and "
+                    f"duplicate name {short(speed.name)!r} (names are shared with load cases and "
                     "combinations)"
                 )
                 raise InputError(f"operating_speeds[{number}].name", msg)

@@ -11,6 +11,11 @@ Every section is a frozen dataclass in SI (metres). A section answers two questi
 Prismatic sections (``prismatic = True``) also expose the constants ``torsion_constant`` and
 ``shear_stress_per_torque``. Non-circular shapes live in :mod:`workbench.solver.noncircular`.
 
+A section is refused when its constants are not positive finite numbers held to full precision
+(:data:`~workbench.case.validate.SMALLEST_NORMAL` up to the largest float): a diameter of
+1e-320 mm, allowed by "greater than zero", would give J = 0 and an infinite stress per torque.
+The message names the dimension that is out of range.
+
 References
 ----------
 .. [1] J. M. Gere and B. J. Goodno, *Mechanics of Materials*, 8th ed., Cengage, 2013, ch. 3
@@ -19,7 +24,10 @@ References
 
 from __future__ import annotations
 
+import contextlib
+import dataclasses
 import math
+from collections.abc import Iterator
 from dataclasses import dataclass
 from typing import Any, ClassVar
 
@@ -28,9 +36,16 @@ from numpy.typing import ArrayLike, NDArray
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
-from workbench.case.validate import require_non_negative, require_positive
+from workbench.case.validate import (
+    LARGEST,
+    SMALLEST_NORMAL,
+    not_normal_positive,
+    require_non_negative,
+    require_positive,
+)
 
 FloatArray = NDArray[np.float64]
+BoolArray = NDArray[np.bool_]
 
 #: Largest ratio between the wall-to-bore distances at the two ends of one quadrature piece of a
 #: varying section. With 8 Gauss–Legendre points per piece the integrals of 1/J are exact to
@@ -69,8 +84,73 @@ def polar_moment(outer_diameter: ArrayLike, inner_diameter: ArrayLike = 0.0) -> 
         bore = inner * inner
         bore *= bore
         moment -= bore
-    moment *= math.pi / 32.0
+    moment *= _PI_OVER_32
     return moment
+
+
+_PI_OVER_32 = math.pi / 32.0
+
+
+def circle_constants(diameter: Any, bore: Any) -> tuple[Any, Any]:
+    """J (m⁴) and peak shear stress per torque (1/m³) of circles, with the solver's arithmetic.
+
+    Floats or arrays alike, rounded exactly as :func:`polar_moment` and the element constants
+    round them, so that a check on these values is a check on what the solver computes. A value
+    out of range comes out as 0, inf or NaN: arrays under the caller's ``numpy.errstate``,
+    floats without an error (a zero J gives an infinite stress per torque).
+
+    Parameters
+    ----------
+    diameter
+        Outer diameter D (m).
+    bore
+        Bore diameter d (m), 0 for a solid circle.
+
+    Returns
+    -------
+    moment, stress_per_torque
+        J = π(D⁴ − d⁴)/32 and (D/2)/J.
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., eqs. 3-10 and 3-19 (J), §3.3
+       (τ = T·r/J).
+    """
+    squared, bore_squared = diameter * diameter, bore * bore
+    moment = (squared * squared - bore_squared * bore_squared) * _PI_OVER_32
+    if isinstance(moment, float):
+        return moment, 0.5 * (diameter / moment) if moment else math.inf
+    return moment, 0.5 * (diameter / moment)
+
+
+def circles_out_of_range(diameter: FloatArray, bore: FloatArray) -> BoolArray:
+    """Where J or τ/T of circles (:func:`circle_constants`) is not a finite normal number."""
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # what is looked for
+        moment, stress = circle_constants(diameter, bore)
+    out: BoolArray = not_normal_positive(moment) | not_normal_positive(stress)
+    return out
+
+
+def require_circle(name: str, diameter: float, bore: float) -> None:
+    """Raise :class:`InputError` on ``name`` unless a circle's J and τ/T are in range.
+
+    Parameters
+    ----------
+    name
+        The key of the outer diameter (``diameter``, ``diameter_start``, ...).
+    diameter, bore
+        Outer and bore diameters (m).
+    """
+    moment, stress = circle_constants(diameter, bore)
+    if not SMALLEST_NORMAL <= moment <= LARGEST:
+        what = f"J = π(D⁴ − d⁴)/32 comes to {moment:.3g} m⁴"
+    elif not SMALLEST_NORMAL <= stress <= LARGEST:
+        what = f"τ/T = (D/2)/J comes to {stress:.3g} 1/m³"
+    else:
+        return
+    size = "small" if diameter < 1.0 else "large"
+    msg = f"{quote(diameter, 'length')} is too {size} for the torsion formulas: {what}"
+    raise InputError(name, msg)
 
 
 def taper_breaks(
@@ -192,6 +272,54 @@ class Section:
         """
         return np.array([0.0, 1.0])
 
+    # --- range of the formulas (non-circular shapes; circles check their own cheaply) -----------
+    def _dimensions(self) -> Iterator[tuple[str, float, str]]:
+        """(key, value in SI, quantity) of every dimension, walls' included."""
+        for item in dataclasses.fields(self):
+            value = getattr(self, item.name)
+            if isinstance(value, float | int):
+                yield item.name, float(value), "area" if item.name.endswith("area") else "length"
+            elif isinstance(value, tuple):
+                for number, wall in enumerate(value):
+                    yield from (
+                        (f"{item.name}[{number}].{key}", float(size), kind)
+                        for key, size, kind in Section._dimensions(wall)
+                    )
+
+    def _out_of_range(self, what: str) -> InputError:
+        """The error naming the dimension farthest from 1 m (on a log scale): the likely cause."""
+
+        def distance(entry: tuple[str, float, str]) -> float:
+            _, value, quantity = entry
+            metres = math.sqrt(value) if quantity == "area" else value
+            return abs(math.log(metres)) if metres > 0.0 else math.inf
+
+        key, value, quantity = max(self._dimensions(), key=distance)
+        size = "small" if value < 1.0 else "large"
+        msg = f"{quote(value, quantity)} is too {size} for the {self.shape} section's formulas: {what}"
+        return InputError(key, msg)
+
+    @contextlib.contextmanager
+    def _formulas(self) -> Iterator[None]:
+        """Turn an overflow or a division by zero of the formulas inside into that error."""
+        try:
+            with np.errstate(over="raise", divide="raise", invalid="raise"):
+                yield
+        except (OverflowError, ZeroDivisionError, FloatingPointError):
+            raise self._out_of_range("they overflow or divide by zero") from None
+
+    def _require_constants(self) -> None:
+        """Raise :class:`InputError` unless K, τ/T and J are positive finite normal numbers."""
+        for attribute, name, unit in (
+            ("torsion_constant", "K", "m⁴"),
+            ("shear_stress_per_torque", "τ/T", "1/m³"),
+            ("polar_moment", "J", "m⁴"),
+        ):
+            with self._formulas():
+                value = getattr(self, attribute)
+            if not SMALLEST_NORMAL <= value <= LARGEST:
+                raise self._out_of_range(f"{name} comes to {value:.3g} {unit}")
+
 
 @dataclass(frozen=True)
 class SolidCircle(Section):
@@ -213,6 +341,7 @@ class SolidCircle(Section):
 
     def __post_init__(self) -> None:
         require_positive("diameter", self.diameter)
+        require_circle("diameter", self.diameter, 0.0)
 
     @property
     def torsion_constant(self) -> float:
@@ -258,6 +387,7 @@ class Tube(Section):
                 f"({quote(self.inner_diameter, 'length')} ≥ {quote(self.outer_diameter, 'length')})"
             )
             raise InputError("inner_diameter", msg)
+        require_circle("outer_diameter", self.outer_diameter, self.inner_diameter)
 
     @property
     def torsion_constant(self) -> float:
@@ -318,6 +448,8 @@ class TaperedCircle(Section):
                 f"({quote(self.bore, 'length')} ≥ {quote(smaller, 'length')})"
             )
             raise InputError("bore", msg)
+        require_circle("diameter_start", self.diameter_start, self.bore)
+        require_circle("diameter_end", self.diameter_end, self.bore)
 
     def diameter_at(self, fraction: ArrayLike) -> FloatArray:
         """Outer diameter (m) at fractions of the segment length."""

@@ -41,6 +41,9 @@ MAX_LOAD_CASES = 10_000
 MAX_ITEMS = 2_000_000
 #: Most elements the vibration analysis cuts one segment into.
 MAX_MODAL_ELEMENTS = 1_000
+#: Two positions on one shaft closer than this fraction of its length are the same point; each
+#: segment must be longer than twice it, so that its ends stay apart.
+POSITION_TOLERANCE = 1e-9
 
 #: The quantities a number may be measured in (each has a unit in a case's ``units``).
 QUANTITIES: tuple[str, ...] = (

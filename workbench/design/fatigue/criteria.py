@@ -117,7 +117,8 @@ def factors_of_safety(
     -------
     dict of str to numpy.ndarray
         Factors of safety by ``goodman``, ``gerber``, ``asme_elliptic``, ``soderberg`` and
-        ``first_cycle_yield`` (``inf`` where the stresses they depend on are zero).
+        ``first_cycle_yield`` (``inf`` where the stresses they depend on are zero or too small
+        for their reciprocal, 0 where a ratio overflows).
 
     References
     ----------
@@ -125,10 +126,12 @@ def factors_of_safety(
        :func:`fatigue_factors`).
     """
     magnitude = np.abs(mean_shear)
-    amplitude_ratio = np.asarray(alternating_shear, dtype=float) / endurance_shear
-    ultimate_ratio = magnitude / ultimate_shear
-    yield_ratio = magnitude / yield_shear
-    with np.errstate(divide="ignore"):
+    # A factor of safety beyond the range of numbers is 0 or ∞, judged as such: stresses
+    # near the largest float, or a few ulps above zero, are no error here.
+    with np.errstate(divide="ignore", over="ignore"):
+        amplitude_ratio = np.asarray(alternating_shear, dtype=float) / endurance_shear
+        ultimate_ratio = magnitude / ultimate_shear
+        yield_ratio = magnitude / yield_shear
         return {
             "goodman": 1.0 / (amplitude_ratio + ultimate_ratio),
             # The root of n·A + n²(|τm|/Ssu)² = 1, in a form exact for τm = 0 and for τa = 0.
