@@ -41,6 +41,7 @@ def _command_solve(arguments: argparse.Namespace) -> int:
     # refuses it by name, and numpy's warnings would add lines of their own to the one message.
     with np.errstate(over="ignore", invalid="ignore"):
         results = solve_file(arguments.case)
+    _warn(results.warnings)
     if arguments.json:
         # Written piece by piece; the document checks every value before its first piece.
         _write_bytes(itertools.chain(results_json(results), [b"\n"]))
@@ -48,6 +49,12 @@ def _command_solve(arguments: argparse.Namespace) -> int:
         sys.stdout.write(results_text(results))
         sys.stdout.write(f"\nCaution: {CAUTION}\n")
     return EXIT_OK
+
+
+def _warn(warnings: Iterable[str]) -> None:
+    """Each caution on results that are still reported, one line on stderr."""
+    for warning in warnings:
+        sys.stderr.write(f"warning: {warning}\n")
 
 
 def _write_bytes(pieces: Iterable[bytes]) -> None:
@@ -68,7 +75,9 @@ def _command_check(arguments: argparse.Namespace) -> int:
     from workbench.solver.io import load_case  # noqa: PLC0415
 
     model = load_case(arguments.case)
-    report = run_checks(solve(model))
+    results = solve(model)
+    _warn(results.warnings)
+    report = run_checks(results)
     if arguments.json:
         _print_json(check_document(report))
     else:

@@ -40,7 +40,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from workbench.case.units import UnitSystem
+from workbench.case.units import UnitSystem, display_units
 from workbench.solver.assembly import add_diagonal, assemble_band, band_to_sparse
 from workbench.solver.columns import CaseTable, case_table
 from workbench.solver.elements import CURVE_PIECES, SaintVenantElements
@@ -156,7 +156,11 @@ def _results(
 ) -> Results:
     """Solve a table (one variant) and wrap its arrays as :class:`Results`."""
     mesh = mesh if mesh is not None else build_mesh_from_table(table)
-    solution = solve_table(table, mesh)
+    token = display_units.set(units)  # a refusal quotes positions in the case's own units
+    try:
+        solution = solve_table(table, mesh)
+    finally:
+        display_units.reset(token)
     arrays = {
         name: getattr(solution, name)[:, 0]
         for name in ("reactions", "gear_torques", "torque", "angle", "shear_stress", "node_angle")
