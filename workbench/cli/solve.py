@@ -2,7 +2,8 @@
 
 Exit status: 0 success (``check``: every check passes; ``size``: a passing size was found), 1 a
 check fails or nothing passes, 2 bad input (raised as :class:`InputError`, printed by the main
-command as one line).
+command as one line), a system nearly a mechanism among it. Warnings on results that are still
+reported (rotations beyond 1 rad) go to stderr, one line each, and leave the status alone.
 """
 
 from __future__ import annotations
