@@ -17,7 +17,7 @@ from typing import Any
 import nbformat
 import numpy as np
 import pytest
-from hypothesis import given
+from hypothesis import example, given
 from hypothesis import strategies as st
 
 from tests.panel_cases import shown_messages, simple_case
@@ -219,8 +219,29 @@ def shaft_equilibrium_misses(case: dict[str, Any], results: Any) -> list[float]:
     return misses
 
 
+#: Found by the property: a prescribed rotation of 5e-324 rad (a subnormal float) gave a
+#: tolerance that underflowed to zero and a residual of one subnormal unit.
+SUBNORMAL_ROTATION = {
+    "materials": {"m0": {"shear_modulus": 2e10}},
+    "shafts": [
+        {
+            "id": "s",
+            "segments": [
+                {"length": 1.0, "material": "m0", "section": {"shape": "solid", "diameter": 0.0625}}
+            ],
+        }
+    ],
+    "supports": [
+        {"shaft": "s", "x": 0.0, "kind": "spring", "stiffness": 100.0, "rotation": 0.0},
+        {"shaft": "s", "x": 0.05, "kind": "spring", "stiffness": 100.0, "rotation": 5e-324},
+    ],
+    "load_cases": [{"name": "case0", "torques": [], "distributed": []}],
+}
+
+
 @SETTINGS
 @given(st.one_of(single_shaft_cases(), geared_cases()))
+@example(case=SUBNORMAL_ROTATION)
 def test_random_stiff_systems_are_solved_in_equilibrium(case):
     # Springs of 10² to 10⁷ N·m/rad on shafts of 10 to 100 mm: none is nearly a mechanism.
     results = solve(parse_case(copy.deepcopy(case)))

@@ -37,6 +37,7 @@ References
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from typing import Any
 
@@ -107,17 +108,17 @@ class Soundness:
     residual: FloatArray
     tolerance: FloatArray
 
-    @property
+    @functools.cached_property
     def ill_conditioned(self) -> BoolArray:
         """(n_variants,) whether the factor is too ill-conditioned to trust."""
         return ~(self.rcond >= self.limit)
 
-    @property
+    @functools.cached_property
     def off_balance(self) -> BoolArray:
         """(n_cases, n_variants, n_shafts) whether a shaft misses equilibrium."""
         return ~(np.abs(self.residual) <= self.tolerance[..., None])
 
-    @property
+    @functools.cached_property
     def sound(self) -> BoolArray:
         """(n_variants,) whether each variant's results may be reported."""
         return ~self.ill_conditioned & ~self.off_balance.any(axis=(0, 2))
@@ -222,7 +223,8 @@ def shaft_residuals(
         loading the system — point torques, ∫|t| of distributed ones, springs' k·|θ̄|, fixed
         supports' reactions (what a prescribed rotation loads the system with) — and
         :data:`ROUNDING_UNITS`·ε times the stiffest element's stiffness times the largest
-        prescribed rotation.
+        prescribed rotation; never below 10⁻²⁹⁹ N·m (the smallest normal float over
+        :data:`EQUILIBRIUM_LIMIT`).
 
     References
     ----------
@@ -238,16 +240,18 @@ def shaft_residuals(
     np.add.at(residual, point, table.torque.T)
     point_case: Any = (table.torque_case, every)
     np.add.at(scale, point_case, np.abs(table.torque.T))
-    intensity = table.load_intensity  # (n_variants or 1, n_distributed, 2)
-    totals = 0.5 * intensity.sum(axis=2) * load_spans
-    distributed: Any = (table.load_case, every, table.load_shaft)
-    np.add.at(residual, distributed, totals.T)
-    distributed_case: Any = (table.load_case, every)
-    np.add.at(scale, distributed_case, (0.5 * np.abs(intensity).sum(axis=2) * load_spans).T)
+    if len(table.load_case):
+        intensity = table.load_intensity  # (n_variants or 1, n_distributed, 2)
+        totals = 0.5 * intensity.sum(axis=2) * load_spans
+        distributed: Any = (table.load_case, every, table.load_shaft)
+        np.add.at(residual, distributed, totals.T)
+        distributed_case: Any = (table.load_case, every)
+        np.add.at(scale, distributed_case, (0.5 * np.abs(intensity).sum(axis=2) * load_spans).T)
     on_supports: Any = (every, every, table.support_shaft)
     np.add.at(residual, on_supports, reactions)
-    on_gears: Any = (every, every, table.gear_shaft.ravel())
-    np.add.at(residual, on_gears, gear_torques.reshape(n_cases, n_variants, -1))
+    if len(table.gear_x):
+        on_gears: Any = (every, every, table.gear_shaft.ravel())
+        np.add.at(residual, on_gears, gear_torques.reshape(n_cases, n_variants, -1))
     springs = ~table.support_fixed
     preload = np.abs(table.support_stiffness[:, springs] * table.support_rotation[:, springs])
     scale += preload.sum(axis=1)
@@ -255,7 +259,10 @@ def shaft_residuals(
     prescribed = np.abs(table.support_rotation).max(axis=1, initial=0.0)
     stiffest = element_stiffness.max(axis=1, initial=0.0)
     rounding = ROUNDING_UNITS * np.finfo(float).eps * stiffest * prescribed
-    return residual, EQUILIBRIUM_LIMIT * scale + rounding
+    # Below the smallest normal float a residual has no relative precision left: torques
+    # under 10⁻²⁹⁹ N·m count as zero here.
+    floor = np.finfo(float).tiny / EQUILIBRIUM_LIMIT
+    return residual, np.maximum(EQUILIBRIUM_LIMIT * scale + rounding, floor)
 
 
 def rotation_warning(

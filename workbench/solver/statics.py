@@ -343,12 +343,11 @@ def _soundness(
     are the load cases' (N·m).
     """
     n_variants = reactions.shape[1]
-    size = factor.band.size if isinstance(factor, BandFactor) else factor.matrix.shape[0]
-    n_rotations = size // n_variants
+    n_rotations = factor.order // n_variants
     limit = rcond_limit(n_rotations)
-    rcond = np.full(n_variants, factor.rcond)
-    if n_variants > 1 and not factor.rcond >= limit:
-        # The stacked estimate is at most every variant's: only now tell them apart.
+    if isinstance(factor, BandFactor):  # Saint-Venant elements and springs: an M-matrix
+        rcond = factor.m_matrix_rcond(n_variants)
+    else:
         rcond = factor.block_rcond(n_variants)
     span_start, span_end = _load_spans(table, mesh, geometry)
     residual, tolerance = shaft_residuals(
