@@ -357,6 +357,20 @@ def test_each_variants_condition_estimate_brackets_its_exact_one(n_variants, dof
         assert exact * (1.0 - 1e-9) <= estimates[variant] <= 10.0 * exact
 
 
+@SETTINGS
+@given(single_shaft_cases())
+def test_a_shafts_condition_number_is_exact(case):
+    # Source: numpy.linalg.cond(·, 1) of the held band (an SVD-free exact 1-norm condition
+    # number: ‖A‖₁·‖A⁻¹‖₁ with the inverse formed densely).
+    solution = solve_table(case_table(parse_case(copy.deepcopy(case))))
+    assert isinstance(solution.factor, BandFactor)
+    matrix = band_to_sparse(solution.factor.band).toarray()
+    exact = 1.0 / np.linalg.cond(matrix, 1)
+    assert solution.soundness.rcond[0] == pytest.approx(exact, rel=1e-9)
+    # LAPACK's estimate (?gtcon) of the same is at least the exact value.
+    assert exact * (1.0 - 1e-9) <= solution.factor.rcond <= 10.0 * exact
+
+
 def test_the_geared_systems_condition_is_that_of_its_scaled_matrix():
     # Source: numpy.linalg.cond(·, 1) of D·A·D, D the factor's scaling, block by block: the
     # bordered matrix's own condition would change with the units of the multipliers.

@@ -6,10 +6,12 @@ matrix so ill-conditioned that rounding swamps the rotations: on springs of 10�
 a 100 N·m torque came back as rotations of 10¹³ rad and reactions that miss equilibrium by
 70 N·m. Such a result is refused, by two tests:
 
-* the reciprocal condition number of the factorization (LAPACK's ?gtcon/?gbcon on the band,
-  ``onenormest`` of the inverse through SuperLU's factors with gears; variant by variant with
-  Hager's estimator when many are stacked) below :data:`RCOND_LIMIT` / n², n the rotations of
-  one variant. A shaft cut into n elements has a condition number of about 2n² with nothing
+* the reciprocal 1-norm condition number of each variant's factored system below
+  :data:`RCOND_LIMIT` / n², n the rotations of one variant. On the band it is exact from one
+  solve (the stiffness matrix is an M-matrix: ‖A⁻¹‖₁ is the largest entry of A⁻ᵀ·1, where
+  LAPACK's ?gtcon would estimate it with a dozen solves); with gears it is Hager's estimate (the
+  method of LAPACK's ?lacon) of the symmetrically scaled bordered system, whose raw condition
+  number would depend on the units of its multipliers. A shaft cut into n elements has a condition number of about 2n² with nothing
   nearly free (the stiffness matrix of a chain of springs; 6·10⁻¹² for the 10⁶-segment
   benchmark shaft, which is solved to 3·10⁻⁶), so the mesh's own growth is taken out and the
   test reads the physical ratio: a group of shafts on springs gives about 2n²·K/k (K the
