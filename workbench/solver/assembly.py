@@ -275,8 +275,12 @@ class BandFactor:
         .. [2] A. Berman and R. J. Plemmons, *Nonnegative Matrices in the Mathematical
            Sciences*, SIAM, 1994, ch. 6 (a nonsingular M-matrix has a nonnegative inverse).
         """
-        width = self.band.half_width
-        norms = np.abs(self.band.values[width:]).sum(axis=0).reshape(n_blocks, -1).max(axis=1)
+        width, values, diagonal = self.band.half_width, self.band.values, self.band.diagonal_row
+        # Nothing positive off the diagonal: a column's Σ|A_ij| is A_jj − Σ_(i≠j) A_ij.
+        column_sums = values[diagonal].copy()
+        for row in (*range(width, diagonal), *range(diagonal + 1, 3 * width + 1)):
+            column_sums -= values[row]  # a loop over the band's off-diagonals
+        norms = column_sums.reshape(n_blocks, -1).max(axis=1)
         ones = np.ones((self.band.size, 1), order="F")
         inverse_norms = np.abs(self.solve(ones, transpose=True)).reshape(n_blocks, -1).max(axis=1)
         with np.errstate(divide="ignore", over="ignore"):
