@@ -175,6 +175,20 @@ def test_an_equilibrium_refusal_names_the_shaft_the_case_and_the_springs():
     )
 
 
+def test_a_shaft_hung_on_a_thread_is_refused_naming_the_shafts(tmp_path, capsys):
+    # Held by a fixed support, not by springs: the near mechanism is a 1 µm segment between
+    # the support and the rest, 10¹⁹ times softer than it (J ∝ d⁴).
+    case = simple_case()
+    segment = case["shafts"][0]["segments"][0]
+    thread = copy.deepcopy(segment) | {"length": 10}
+    thread["section"] = {"shape": "solid", "diameter": 0.001}
+    case["shafts"][0]["segments"] = [thread, segment | {"length": 990}]
+    status, out, err = run(capsys, ["check", str(written(tmp_path, case))])
+    assert (status, out) == (2, "")
+    assert err.startswith("shafts: the system is nearly a mechanism (reciprocal condition ")
+    assert err.endswith("a segment or spring is far softer than the rest; check sizes\n")
+
+
 def test_a_long_list_of_springs_is_cut_to_one_line():
     case = on_springs(1e-12)
     case["shafts"][0]["id"] = "a shaft with a long name " * 4
