@@ -42,13 +42,13 @@ def _command_solve(arguments: argparse.Namespace) -> int:
     # refuses it by name, and numpy's warnings would add lines of their own to the one message.
     with np.errstate(over="ignore", invalid="ignore"):
         results = solve_file(arguments.case)
-    _warn(results.warnings)
     if arguments.json:
         # Written piece by piece; the document checks every value before its first piece.
         _write_bytes(itertools.chain(results_json(results), [b"\n"]))
     else:
         sys.stdout.write(results_text(results))
         sys.stdout.write(f"\nCaution: {CAUTION}\n")
+    _warn(results.warnings)  # once the results are out: a refusal stays one line
     return EXIT_OK
 
 
@@ -77,12 +77,12 @@ def _command_check(arguments: argparse.Namespace) -> int:
 
     model = load_case(arguments.case)
     results = solve(model)
-    _warn(results.warnings)
     report = run_checks(results)
     if arguments.json:
         _print_json(check_document(report))
     else:
         sys.stdout.write(check_text(report))
+    _warn(results.warnings)  # once the report is out: a refusal stays one line
     return EXIT_OK if report.passes else EXIT_FAILED_CHECK
 
 
