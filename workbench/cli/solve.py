@@ -2,7 +2,8 @@
 
 Exit status: 0 success (``check``: every check passes; ``size``: a passing size was found), 1 a
 check fails or nothing passes, 2 bad input (raised as :class:`InputError`, printed by the main
-command as one line).
+command as one line), a system nearly a mechanism among it. Warnings on results that are still
+reported (rotations beyond 1 rad) go to stderr, one line each, and leave the status alone.
 """
 
 from __future__ import annotations
@@ -43,7 +44,14 @@ def _command_solve(arguments: argparse.Namespace) -> int:
     else:
         sys.stdout.write(results_text(results))
         sys.stdout.write(f"\nCaution: {CAUTION}\n")
+    _warn(results.warnings)  # once the results are out: a refusal stays one line
     return EXIT_OK
+
+
+def _warn(warnings: Iterable[str]) -> None:
+    """Each caution on results that are still reported, one line on stderr."""
+    for warning in warnings:
+        sys.stderr.write(f"warning: {warning}\n")
 
 
 def _write_bytes(pieces: Iterable[bytes]) -> None:
@@ -64,11 +72,13 @@ def _command_check(arguments: argparse.Namespace) -> int:
     from workbench.solver.io import load_case  # noqa: PLC0415
 
     model = load_case(arguments.case)
-    report = run_checks(solve(model))
+    results = solve(model)
+    report = run_checks(results)
     if arguments.json:
         _print_json(check_document(report))
     else:
         sys.stdout.write(check_text(report))
+    _warn(results.warnings)  # once the report is out: a refusal stays one line
     return EXIT_OK if report.passes else EXIT_FAILED_CHECK
 
 

@@ -400,6 +400,9 @@ def size_shafts(model: Model, request: SizingRequest) -> SizingOutcome:
 
 
 def _size(model: Model, request: SizingRequest) -> SizingOutcome:
+    # The case as given must solve: what the solve refuses (a near mechanism, say) is refused
+    # here in its words, not as sizes that all fail.
+    solve(model)
     search = _Search(model, request)
     search.prepare_columns()
     before = tuple(

@@ -53,16 +53,31 @@ def key_values(
     return values
 
 
-def summary_html(values: dict[str, float], report: CheckReport, result: str) -> str:
-    """The verdict, where it governs, and the headline ``values`` of the result shown."""
+def summary_html(
+    values: dict[str, float], report: CheckReport, result: str, stale: bool = False
+) -> str:
+    """The verdict, where it governs, and the headline ``values`` of the result shown.
+
+    ``stale``: the case as edited is not solved, so there is no verdict, only the last valid
+    case's values (a pass of that case is no pass of this one).
+    """
+    if stale:
+        return render("summary", STALE_VERDICT, None, result, _cells(values))
     governing = report.governing
     where = None
     if governing is not None:
         kind = governing.kind.replace("_", " ")
         where = (kind, governing.shaft, governing.segment, governing.result)
     verdict = "all checks pass" if report.passes else "SOME CHECKS FAIL"
-    cells = [(key, f"{value:.4g}") for key, value in values.items()]
-    return render("summary", verdict, where, result, cells)
+    return render("summary", verdict, where, result, _cells(values))
+
+
+#: The summary's verdict while the case as edited is not solved.
+STALE_VERDICT = "NOT SOLVED: no verdict (values of the last valid case, dimmed)"
+
+
+def _cells(values: dict[str, float]) -> list[tuple[str, str]]:
+    return [(key, f"{value:.4g}") for key, value in values.items()]
 
 
 def checks_html(report: CheckReport, units: UnitSystem) -> str:
@@ -108,11 +123,36 @@ class ResultTables:
         self.check_table = w.HTML()
         self.check_table.add_class("wb-checks")
         self.caution = w.HTML()
+        self._shown: tuple[dict[str, float], CheckReport, str] | None = None
 
     def draw(
-        self, values: dict[str, float], report: CheckReport, result: str, units: UnitSystem
+        self,
+        values: dict[str, float],
+        report: CheckReport,
+        result: str,
+        units: UnitSystem,
+        stale: bool = False,
     ) -> None:
-        """Fill the three from the checks and the headline values (:func:`key_values`)."""
-        self.summary.value = summary_html(values, report, result)
+        """Fill the three from the checks and the headline values (:func:`key_values`).
+
+        ``stale``: the case as edited is not solved; these are the last valid case's, shown
+        dimmed and without a verdict.
+        """
+        self._shown = (values, report, result)
+        self.summary.value = summary_html(values, report, result, stale)
         self.check_table.value = checks_html(report, units)
         self.caution.value = render("caution", CAUTION, report.notes)
+        self._dim(stale)
+
+    def show_stale(self) -> None:
+        """The case as edited is not solved: take the verdict away, dim the values and checks."""
+        if self._shown is not None:
+            self.summary.value = summary_html(*self._shown, stale=True)
+        self._dim(True)
+
+    def _dim(self, stale: bool) -> None:
+        for widget in (self.summary, self.check_table):
+            if stale:
+                widget.add_class("wb-stale")
+            else:
+                widget.remove_class("wb-stale")

@@ -291,7 +291,11 @@ class Workbench:
 
     def _on_solved(self) -> None:
         self.form.clear_errors()
-        self.status.value = render("solved")
+        results = self.state.results
+        cautions = results.warnings if results is not None else ()
+        self.status.value = render("solved") + "".join(
+            render("warning", f"Warning: {text}") for text in cautions
+        )
         self.charts_box.remove_class("wb-stale")
         self._redraw()
         if self._handle is not None:  # the case output the calculation record reads
@@ -302,6 +306,7 @@ class Workbench:
         words = self.form.show_error(error)
         self.status.value = render("not_solved", words)
         self.charts_box.add_class("wb-stale")
+        self.tables.show_stale()  # no verdict of the last valid case stands for this one
 
     # --- the panel's own controls -----------------------------------------------------------
 
@@ -375,7 +380,7 @@ class Workbench:
         units = state.units
         self.charts.draw(model, results, report, result, shaft, state.baseline)
         values = key_values(results, report, result, units)
-        self.tables.draw(values, report, result, units)
+        self.tables.draw(values, report, result, units, stale=state.stale)
         baseline = state.baseline
         before = key_values(*baseline, result, units) if baseline is not None else None
         self.difference.value = difference_html(values, before)

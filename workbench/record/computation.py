@@ -150,10 +150,11 @@ def fatigue_digest_document(report: CheckReport) -> list[dict[str, Any]]:
 
 def results_digest(results: Results, report: CheckReport, modes: Modes | None = None) -> str:
     """``sha256:<hex>`` of the canonical, rounded results, checks, modes and fatigue cycles."""
-    document: dict[str, Any] = {
-        "results": results_document(results),
-        "checks": check_document(report),
-    }
+    solved = results_document(results)
+    # The warnings are words about the numbers digested already (and records signed before
+    # they existed must keep their digests).
+    solved.pop("warnings", None)
+    document: dict[str, Any] = {"results": solved, "checks": check_document(report)}
     if modes is not None:
         document["modes"] = modes_digest_document(modes)
     if report.fatigue_points:

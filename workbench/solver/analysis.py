@@ -156,9 +156,9 @@ def _results(
     source: Model | Callable[[], Model],
 ) -> Results:
     """Solve a table (one variant) and wrap its arrays as :class:`Results`."""
-    token = display_units.set(units)  # messages quote values in the case's own units
+    mesh = mesh if mesh is not None else build_mesh_from_table(table)
+    token = display_units.set(units)  # a refusal quotes values in the case's own units
     try:
-        mesh = mesh if mesh is not None else build_mesh_from_table(table)
         solution = solve_in_range(table, mesh)
     finally:
         display_units.reset(token)

@@ -5,7 +5,8 @@ changes their sizes: segment lengths, section dimensions, shear moduli, spring s
 prescribed rotations, gear radii, load magnitudes. Each is given as a column with one row per
 variant. All variants are checked at once; one that is not a valid model (a negative wall, a
 bore as large as its shaft, a zero length) is flagged with the reason instead of failing the
-batch, and the valid ones are solved together: their systems are stacked in one band (one
+batch, and so is one whose solution cannot be trusted (nearly a mechanism, see
+:mod:`~workbench.solver.soundness`); the valid ones are solved together: their systems are stacked in one band (one
 LAPACK factorization for every variant and load case) or, with gears, in one sparse system.
 
 A node keeps its place as a fraction of its segment when lengths vary, so supports, gears and
@@ -57,6 +58,7 @@ from workbench.solver.finite_results import solve_in_range
 from workbench.solver.mesh import Mesh, build_mesh_from_table, node_positions, size_mesh
 from workbench.solver.model import Model
 from workbench.solver.sections import FloatArray, circles_out_of_range
+from workbench.solver.soundness import Soundness
 
 #: Columns a variant may change, by the table that holds them.
 SEGMENT_COLUMNS = (
@@ -185,6 +187,8 @@ _RULES = (
     ),
 )
 _RULE_NUMBER = {id(rule): number for number, rule in enumerate(_RULES)}
+#: The rule number of a variant whose solve is refused (:mod:`~workbench.solver.soundness`).
+UNSOUND = len(_RULES)
 
 
 @dataclass(frozen=True)
@@ -196,7 +200,8 @@ class Validity:
     valid
         (n_variants,) whether each variant is a valid model.
     rule
-        (n_variants,) number of the first broken rule, −1 for a valid variant.
+        (n_variants,) number of the first broken rule, −1 for a valid variant, :data:`UNSOUND`
+        for a variant nearly a mechanism.
     item
         (n_variants,) row (layer, segment, support, …) of the column where it broke.
     value, other
@@ -367,6 +372,8 @@ class BatchResults:
         (n_variants, n_results, n_nodes) nodal rotations (rad).
     table
         The variant columns as solved (invalid variants carry the base case's values).
+    soundness
+        The condition and equilibrium of every variant's solution.
     """
 
     names: tuple[str, ...]
@@ -383,6 +390,7 @@ class BatchResults:
     gear_torques: FloatArray
     node_angle: FloatArray
     table: CaseTable
+    soundness: Soundness
 
     @property
     def valid(self) -> BoolArray:
@@ -397,6 +405,8 @@ class BatchResults:
         number = int(self.validity.rule[variant])
         if number < 0:
             return None
+        if number == UNSOUND:
+            return str(self.soundness.error(self.table, variant))
         rule = _RULES[number]
         item = int(self.validity.item[variant])
         path = _field_path(self.table, rule, item)
@@ -505,7 +515,14 @@ def solve_batch(base: Model | CaseTable, **variants: Any) -> BatchResults:
     moved = "length" in columns
     node_x = node_positions(mesh, segments) if moved else mesh.node_x[None]
     geometry = size_mesh(mesh, segments, node_x, nodes_moved=moved)
-    solution = solve_in_range(varied, mesh, geometry)
+    solution = solve_in_range(varied, mesh, geometry, unsound="flag")
+    unsound = validity.valid & ~np.broadcast_to(solution.soundness.sound, (n_variants,))
+    if unsound.any():
+        validity = dataclasses.replace(
+            validity,
+            valid=validity.valid & ~unsound,
+            rule=np.where(unsound, UNSOUND, validity.rule),
+        )
     n_stations = len(mesh.station_element)
     invalid = ~validity.valid
 
@@ -535,6 +552,7 @@ def solve_batch(base: Model | CaseTable, **variants: Any) -> BatchResults:
         gear_torques=per_variant(solution.gear_torques),
         node_angle=per_variant(solution.node_angle),
         table=varied,
+        soundness=solution.soundness,
     )
 
 
@@ -556,4 +574,4 @@ def _with_columns(table: CaseTable, columns: dict[str, FloatArray]) -> CaseTable
     return dataclasses.replace(table, segments=segments, **case_part)
 
 
-__all__ = ["BatchResults", "Validity", "solve_batch", "validate"]
+__all__ = ["UNSOUND", "BatchResults", "Validity", "solve_batch", "validate"]

@@ -42,8 +42,13 @@ def solve_in_range(
     mesh: Mesh | None = None,
     geometry: Geometry | None = None,
     method: Literal["auto", "band", "sparse"] = "auto",
+    unsound: Literal["raise", "flag"] = "raise",
 ) -> StaticSolution:
     """:func:`~workbench.solver.statics.solve_table`, its results checked finite.
+
+    A result beyond the range of numbers is named by its cause before the soundness of the
+    solve is judged: an overflow also upsets equilibrium, and blaming the supports for it
+    would send the engineer to the wrong field.
 
     Raises
     ------
@@ -52,8 +57,13 @@ def solve_in_range(
         everything :func:`~workbench.solver.statics.solve_table` raises.
     """
     with np.errstate(over="ignore", invalid="ignore"):  # an overflow is checked just below
-        solution = solve_table(table, mesh, geometry, method)
+        solution = solve_table(table, mesh, geometry, method, unsound="flag")
     require_finite_results(table, solution)
+    sound = solution.soundness.sound
+    if unsound == "raise" and not sound.all():
+        error = solution.soundness.error(table, int(np.argmin(sound)))
+        assert error is not None
+        raise error
     return solution
 
 

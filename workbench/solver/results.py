@@ -18,10 +18,11 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from workbench.case.errors import InputError
-from workbench.case.units import SI, UnitSystem
+from workbench.case.units import SI, UnitSystem, display_units
 from workbench.solver.columns import CaseTable
 from workbench.solver.mesh import Mesh
 from workbench.solver.sections import FloatArray
+from workbench.solver.soundness import rotation_warning
 
 if TYPE_CHECKING:
     from workbench.solver.model import Model
@@ -154,6 +155,26 @@ class Results:
             msg = "these results were made without a model"
             raise TypeError(msg)
         return source() if callable(source) else source
+
+    @functools.cached_property
+    def warnings(self) -> tuple[str, ...]:
+        """Cautions on results that are otherwise reported: one line each, in the case's units.
+
+        Rotations beyond :data:`~workbench.solver.soundness.ROTATION_LIMIT` (1 rad) are outside
+        the small-rotation theory of the solution.
+        """
+        token = display_units.set(self.units)
+        try:
+            rotation = rotation_warning(
+                self.angle,
+                self.mesh.element_shaft[self.mesh.station_element],
+                self.mesh.station_x,
+                self.table,
+                self.names,
+            )
+        finally:
+            display_units.reset(token)
+        return () if rotation is None else (rotation,)
 
     @property
     def shaft_ids(self) -> tuple[str, ...]:

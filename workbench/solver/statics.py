@@ -27,6 +27,7 @@ from workbench.solver.assembly import (
     SparseFactor,
     add_diagonal,
     assemble_band,
+    bordered,
     prescribe,
     split_constrained,
     with_constraints,
@@ -44,6 +45,12 @@ from workbench.solver.recovery import (
     station_values,
 )
 from workbench.solver.sections import FloatArray
+from workbench.solver.soundness import (
+    Soundness,
+    rcond_limit,
+    shaft_groups,
+    shaft_residuals,
+)
 
 
 @dataclass(frozen=True)
@@ -69,6 +76,9 @@ class StaticSolution:
         (n_results, n_variants, n_nodes) nodal rotations (rad).
     factor
         The factorization (its ``rcond`` estimates the reciprocal condition number).
+    soundness
+        Each variant's condition estimate and the equilibrium of its shafts
+        (:mod:`~workbench.solver.soundness`).
     """
 
     names: tuple[str, ...]
@@ -81,25 +91,17 @@ class StaticSolution:
     shear_stress: FloatArray
     node_angle: FloatArray
     factor: BandFactor | SparseFactor
+    soundness: Soundness
 
 
 def check_restrained(table: CaseTable) -> None:
     """Raise :class:`MechanismError` naming every group of shafts no support restrains."""
     shaft_ids = table.segments.shaft_ids
-    parent = list(range(len(shaft_ids)))
-
-    def root(number: int) -> int:
-        while parent[number] != number:
-            parent[number] = parent[parent[number]]
-            number = parent[number]
-        return number
-
-    for shaft_a, shaft_b in table.gear_shaft.tolist():  # a loop over gears
-        parent[root(shaft_a)] = root(shaft_b)
-    restrained = {root(number) for number in table.support_shaft.tolist()}
+    root = shaft_groups(table)
+    restrained = set(root[table.support_shaft].tolist())
     groups: dict[int, list[str]] = {}
     for number, shaft_id in enumerate(shaft_ids):
-        groups.setdefault(root(number), []).append(shaft_id)
+        groups.setdefault(int(root[number]), []).append(shaft_id)
     free = [names for group, names in groups.items() if group not in restrained]
     if free:
         names = free[0]
@@ -129,12 +131,7 @@ def _element_loads(
     x_start = geometry.node_x[:, node_a]
     x_end = geometry.node_x[:, node_a + 1]
     middle = 0.5 * (mesh.node_x[node_a] + mesh.node_x[node_a + 1])
-    if not geometry.nodes_moved:
-        span_start, span_end = table.load_start[None], table.load_end[None]
-    else:  # lengths vary: the loads' ends stay on their nodes
-        nodes_start = mesh.nodes_of(table.load_shaft, table.load_start)
-        nodes_end = mesh.nodes_of(table.load_shaft, table.load_end)
-        span_start, span_end = geometry.node_x[:, nodes_start], geometry.node_x[:, nodes_end]
+    span_start, span_end = _load_spans(table, mesh, geometry)
     intensity = table.load_intensity
     shaft = mesh.element_shaft[elements]
     for number in range(len(table.load_case)):  # a loop over distributed torques
@@ -151,11 +148,22 @@ def _element_loads(
     return ElementLoads(elements, start, end, length)
 
 
+def _load_spans(table: CaseTable, mesh: Mesh, geometry: Geometry) -> tuple[FloatArray, FloatArray]:
+    """(n_variants or 1, n_distributed) start and end of every distributed torque (m)."""
+    if not geometry.nodes_moved:
+        return table.load_start[None], table.load_end[None]
+    # Lengths vary: the loads' ends stay on their nodes.
+    nodes_start = mesh.nodes_of(table.load_shaft, table.load_start)
+    nodes_end = mesh.nodes_of(table.load_shaft, table.load_end)
+    return geometry.node_x[:, nodes_start], geometry.node_x[:, nodes_end]
+
+
 def solve_table(
     table: CaseTable,
     mesh: Mesh | None = None,
     geometry: Geometry | None = None,
     method: Literal["auto", "band", "sparse"] = "auto",
+    unsound: Literal["raise", "flag"] = "raise",
 ) -> StaticSolution:
     """Solve every load case (and combination) of a system given as columns.
 
@@ -183,7 +191,9 @@ def solve_table(
         When part of the system is free to spin.
     InputError
         When the case has no load case, or supports or gears contradict each other (two fixed
-        supports at one point, a gear held at both ends, a redundant loop of gears).
+        supports at one point, a gear held at both ends, a redundant loop of gears), or
+        (``unsound="raise"``) when the system is nearly a mechanism: its factor too
+        ill-conditioned, or its shafts out of equilibrium after the solve.
     """
     require_load_cases(table.n_cases)
     check_restrained(table)
@@ -197,24 +207,143 @@ def solve_table(
     band = assemble_band(elements, mesh.shaft_node_start, n_variants)
     add_diagonal(band, supports.spring_nodes, supports.spring_stiffness)
     prescribe(band, rhs, supports.fixed_nodes, supports.fixed_rotation)
-    node_angle, gear_torques, gear_nodes, factor = _factor_and_solve(
+    node_angle, multipliers, gear_nodes, factor = _factor_and_solve(
         table, mesh, band, rhs, supports, method
     )
-    # The held rows give θ̄·K_jj/K_jj: put the prescribed values back exactly.
-    node_angle[..., supports.fixed_nodes] = supports.fixed_rotation
-    return _recover(
-        table,
-        mesh,
-        geometry,
-        elements,
-        loads,
-        supports,
-        point,
-        node_angle,
-        gear_torques,
-        gear_nodes,
-        factor,
+    del rhs  # the right-hand sides as held are done with (the solve may have overwritten them)
+    solution = None
+    for attempt in range(2):  # the solve, then one step of refinement if a shaft is off balance
+        if attempt:
+            point, loaded = _right_hand_sides(table, mesh, elements, loads, supports, n_variants)
+            node_angle, multipliers = _refine(
+                mesh,
+                elements,
+                supports,
+                factor,
+                loaded,
+                node_angle,
+                multipliers,
+                gear_nodes,
+                table.gear_coefficient,
+            )
+        # The held rows give θ̄·K_jj/K_jj: put the prescribed values back exactly.
+        node_angle[..., supports.fixed_nodes] = supports.fixed_rotation
+        solution = _recover(
+            table,
+            mesh,
+            geometry,
+            elements,
+            loads,
+            supports,
+            point,
+            node_angle,
+            -multipliers[..., None] * table.gear_coefficient,
+            gear_nodes,
+            factor,
+        )
+        soundness = solution.soundness
+        if not (soundness.off_balance.any(axis=(0, 2)) & ~soundness.ill_conditioned).any():
+            break
+    assert solution is not None
+    sound = solution.soundness.sound
+    if unsound == "raise" and not sound.all():
+        error = solution.soundness.error(table, int(np.argmin(sound)))
+        assert error is not None
+        raise error
+    return solution
+
+
+def _refine(
+    mesh: Mesh,
+    elements: SaintVenantElements,
+    supports: _Supports,
+    factor: BandFactor | SparseFactor,
+    loaded: FloatArray,
+    node_angle: FloatArray,
+    multipliers: FloatArray,
+    gear_nodes: IntArray,
+    gear_coefficient: FloatArray,
+) -> tuple[FloatArray, FloatArray]:
+    """One step of iterative refinement, its residual f − K·θ − Cᵀ·λ taken element by element.
+
+    K·θ is summed from each element's torque k·(θ_b − θ_a), so the residual keeps the accuracy
+    of the torques, not of the rotations' products with the stiffness: a long mesh on springs
+    (10⁵ elements: 2·10⁻⁸ of the load out of balance) comes back in balance to rounding, while
+    a near mechanism, whose twists drown in its rigid rotation, stays out.
+
+    Parameters
+    ----------
+    loaded
+        (n_cases, n_variants, n_nodes) the loads before any rotation was held: point torques,
+        consistent loads and the springs' k·θ̄ (N·m).
+    node_angle, multipliers
+        (n_cases, n_variants, n_nodes) rotations (rad) and (n_cases, n_variants, n_gears)
+        mesh multipliers (N) of the solve.
+
+    Returns
+    -------
+    node_angle, multipliers
+        Refined.
+
+    References
+    ----------
+    .. [1] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM, 2002,
+       ch. 12 (iterative refinement: one step makes the solve componentwise stable; its gain
+       is bounded by the accuracy of the residual).
+    """
+    n_cases, n_variants, n_nodes = node_angle.shape
+    node_a = mesh.element_start_node
+    element_torque = elements.stiffness * (node_angle[..., node_a + 1] - node_angle[..., node_a])
+    residual = loaded
+    residual[..., node_a] += element_torque  # −(K_e·θ)_a = k·(θ_b − θ_a)
+    residual[..., node_a + 1] -= element_torque
+    springs: Any = (slice(None), slice(None), supports.spring_nodes)
+    np.subtract.at(
+        residual, springs, supports.spring_stiffness * node_angle[..., supports.spring_nodes]
     )
+    coefficients = np.broadcast_to(gear_coefficient, (n_variants, *gear_coefficient.shape[1:]))
+    gears: Any = (slice(None), slice(None), gear_nodes.ravel())
+    np.subtract.at(
+        residual, gears, (multipliers[..., None] * coefficients).reshape(n_cases, n_variants, -1)
+    )
+    residual[..., supports.fixed_nodes] = 0.0  # held: no correction
+    if isinstance(factor, BandFactor):
+        change = factor.solve(np.asfortranarray(residual.reshape(n_cases, -1).T))
+        return node_angle + change.T.reshape(node_angle.shape), multipliers
+    # The mesh rows: c_a·θ_a + c_b·θ_b = 0 (a held rotation's term is exact, θ̄ put back).
+    constraint = -(coefficients * node_angle[..., gear_nodes]).sum(axis=-1)
+    change = factor.solve_plain(bordered(residual, constraint))
+    angle_change, multiplier_change = split_constrained(change, n_variants, n_nodes)
+    return node_angle + angle_change, multipliers + multiplier_change
+
+
+def _soundness(
+    table: CaseTable,
+    mesh: Mesh,
+    geometry: Geometry,
+    factor: BandFactor | SparseFactor,
+    stiffness: FloatArray,
+    reactions: FloatArray,
+    gear_torques: FloatArray,
+) -> Soundness:
+    """Each variant's condition estimate and the equilibrium of its shafts, load case by case.
+
+    ``stiffness`` (n_variants or 1, n_elements) is every element's (N·m/rad); ``reactions``
+    (n_cases, n_variants, n_supports) and ``gear_torques`` (n_cases, n_variants, n_gears, 2)
+    are the load cases' (N·m).
+    """
+    n_variants = reactions.shape[1]
+    n_rotations = factor.order // n_variants
+    limit = rcond_limit(n_rotations)
+    if isinstance(factor, BandFactor):  # Saint-Venant elements and springs: an M-matrix
+        rcond = factor.m_matrix_rcond(n_variants)
+    else:
+        rcond = factor.block_rcond(n_variants)
+    span_start, span_end = _load_spans(table, mesh, geometry)
+    residual, tolerance = shaft_residuals(
+        table, span_end - span_start, stiffness, reactions, gear_torques
+    )
+    return Soundness(rcond, limit, n_rotations, residual, tolerance)
 
 
 @dataclass(frozen=True)
@@ -283,7 +412,10 @@ def _factor_and_solve(
     supports: _Supports,
     method: str,
 ) -> tuple[FloatArray, FloatArray, IntArray, BandFactor | SparseFactor]:
-    """Nodal rotations and gear torques of every case: one factorization for all of them."""
+    """Nodal rotations and mesh multipliers of every case: one factorization for all of them.
+
+    The gear torques are −λ·(c_a, c_b) of each mesh's multiplier λ.
+    """
     n_cases, n_variants, n_nodes = rhs.shape
     n_gears = len(table.gear_x)
     if n_gears and method == "band":
@@ -293,7 +425,7 @@ def _factor_and_solve(
         factor = BandFactor(band)
         solution = factor.solve(rhs.reshape(n_cases, -1).T)
         node_angle = solution.T.reshape(n_cases, n_variants, n_nodes)
-        no_gears = np.zeros((n_cases, n_variants, 0, 2))
+        no_gears = np.zeros((n_cases, n_variants, 0))
         return node_angle, no_gears, np.zeros((0, 2), dtype=np.intp), factor
     gear_nodes = mesh.nodes_of(table.gear_shaft.ravel(), table.gear_x.ravel()).reshape(-1, 2)
     fixed_rotation = supports.fixed_rotation
@@ -306,7 +438,7 @@ def _factor_and_solve(
         raise InputError(f"gears[{int(both[0])}]", msg)
     sparse, full_rhs = with_constraints(band, rhs, gear_nodes, table.gear_coefficient, known)
     node_angle, multipliers = split_constrained(sparse.solve(full_rhs), n_variants, n_nodes)
-    return node_angle, -multipliers[..., None] * table.gear_coefficient, gear_nodes, sparse
+    return node_angle, multipliers, gear_nodes, sparse
 
 
 def _recover(
@@ -387,6 +519,7 @@ def _recover(
         shear_stress=shear_stress,
         node_angle=combine(node_angle, factors),
         factor=factor,
+        soundness=_soundness(table, mesh, geometry, factor, stiffness, reactions, gear_torques),
     )
 
 

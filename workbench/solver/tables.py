@@ -95,7 +95,8 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
     bytes
         Consecutive pieces of the document ``{"units": {...}, "results": [{"name",
         "reactions", "shafts": {id: {"x", "torque", "angle", "shear_stress"}}}]}``, load cases
-        then combinations, in file order.
+        then combinations, in file order; then ``"warnings": [line, ...]`` when there are any
+        (:attr:`~workbench.solver.results.Results.warnings`), and only then.
 
     Raises
     ------
@@ -131,7 +132,10 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
                 yield from _array_text(units.from_si(values, quantity), encode)
             yield b"}"
         yield b"}}"
-    yield b"]}"
+    yield b"]"
+    if results.warnings:  # present only when there is one: documents without keep their keys
+        yield b',"warnings":' + encode(list(results.warnings))
+    yield b"}"
 
 
 def results_document(results: Results, units: UnitSystem | None = None) -> dict[str, Any]:
