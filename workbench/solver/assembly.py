@@ -26,7 +26,7 @@ from __future__ import annotations
 import functools
 import warnings
 from dataclasses import dataclass
-from typing import Protocol
+from typing import Any, Protocol
 
 import numpy as np
 import scipy.sparse as sp
@@ -179,26 +179,59 @@ class BandFactor:
 
     Tridiagonal systems (one degree of freedom per node) use ?gttrf/?gttrs, wider bands
     ?gbtrf/?gbtrs; :meth:`rcond` estimates the reciprocal condition number (?gtcon/?gbcon).
+    :meth:`solving` factors and solves at once (?gtsv: the same elimination, one pass), keeping
+    the factors only if they are asked for later.
     """
 
     def __init__(self, band: Band) -> None:
         self.band = band
-        width = band.half_width
-        values = band.values
         # scipy's ?gttrf wrapper refuses orders below 3 (its du2 would be empty): use ?gbtrf.
-        self._tridiagonal = width == 1 and band.size >= 3
-        if self._tridiagonal:
-            diagonal = band.diagonal_row
-            factors = lapack.dgttrf(
-                values[diagonal + 1, :-1], values[diagonal], values[diagonal - 1, 1:]
-            )
-            info = factors[-1]
-            self._factors = factors[:-1]
-        else:
-            lu, pivots, info = lapack.dgbtrf(values, width, width)
-            self._factors = (lu, pivots)
+        self._tridiagonal = band.half_width == 1 and band.size >= 3
+        self._factors  # noqa: B018 - factor now: a zero pivot is refused here
+
+    @classmethod
+    def solving(cls, band: Band, rhs: FloatArray) -> tuple[BandFactor, FloatArray]:
+        """Factor the band and solve (n_dofs_total, n_rhs) right-hand sides, overwritten.
+
+        A tridiagonal band is eliminated together with its right-hand sides (?gtsv, the
+        elimination ?gttrf and ?gttrs make, in one pass over the band); the factors of the
+        returned object are then taken again only if :attr:`rcond` is read.
+
+        Raises
+        ------
+        InputError
+            On a zero pivot (part of the system is free to move).
+        """
+        factor = cls.__new__(cls)
+        factor.band = band
+        factor._tridiagonal = band.half_width == 1 and band.size >= 3
+        if not factor._tridiagonal:
+            return factor, factor.solve(rhs)
+        values, diagonal = band.values, band.diagonal_row
+        *_, solution, info = lapack.dgtsv(
+            values[diagonal + 1, :-1],
+            values[diagonal],
+            values[diagonal - 1, 1:],
+            rhs,
+            overwrite_b=True,
+        )
         if info > 0:
             raise _singular("a zero pivot: part of the system is free to move")
+        return factor, np.asarray(solution)
+
+    @functools.cached_property
+    def _factors(self) -> tuple[Any, ...]:
+        values, width = self.band.values, self.band.half_width
+        if self._tridiagonal:
+            diagonal = self.band.diagonal_row
+            *factors, info = lapack.dgttrf(
+                values[diagonal + 1, :-1], values[diagonal], values[diagonal - 1, 1:]
+            )
+        else:
+            *factors, info = lapack.dgbtrf(values, width, width)
+        if info > 0:
+            raise _singular("a zero pivot: part of the system is free to move")
+        return tuple(factors)
 
     def solve(self, rhs: FloatArray) -> FloatArray:
         """Solve for (n_dofs_total, n_rhs) right-hand sides (Fortran order avoids a copy)."""
