@@ -158,7 +158,7 @@ class _ShaftColumns:
     """One shaft's segment and layer columns (SI), read-only: equal columns may be one array."""
 
     length: FloatArray  # (n_segments,)
-    layers_per_segment: IntArray  # (n_segments,)
+    layer_start: IntArray  # (n_segments + 1,) first layer row of each segment
     layer_shape: np.ndarray[Any, np.dtype[np.int8]]  # (n_layers,)
     # (n_layers,) each: shear modulus, d_start, d_end, bore, K, τ/T
     layer_values: tuple[FloatArray, ...]
@@ -268,10 +268,8 @@ class _Picked:
 
 
 def _filled(count: int, value: float) -> FloatArray:
-    """A read-only column holding one value (one buffer, written once)."""
-    column = np.full(count, value)
-    column.setflags(write=False)
-    return column
+    """A read-only column holding one value everywhere, without a buffer of its size."""
+    return np.broadcast_to(np.float64(value), (count,))
 
 
 class _ShaftReader:
@@ -347,10 +345,13 @@ class _ShaftReader:
         values = [modulus, *(nan if column is None else column for column in dimensions)]
         for array in (length, *values):
             array.setflags(write=False)
-        counts = np.ones(len(segments), np.intp) if per_segment is None else per_segment
+        if per_segment is None:  # one layer each: the layer rows are the segment rows
+            layer_start = np.arange(len(segments) + 1)
+        else:
+            layer_start = np.concatenate([[0], np.cumsum(per_segment)])
         return _ShaftColumns(
             length=length,
-            layers_per_segment=counts,
+            layer_start=layer_start,
             layer_shape=codes,
             layer_values=tuple(values),
             materials=materials,
@@ -402,13 +403,13 @@ class _ShaftReader:
         The sections are read a shape at a time.
         """
         count = len(sections)
-        present = np.flatnonzero(np.bincount(codes, minlength=GIVEN + 1)).tolist()
+        present = [code for code in range(GIVEN + 1) if np.any(codes == code)]
         if len(present) == 1:
             group = self._group(present[0], _Picked(sections, None, count), with_outer)
             columns, outer, refused = list(group[0]), group[1], group[2]
         else:
             columns = [None] * 5
-            outer = np.full(count, np.nan) if with_outer else None
+            outer = np.empty(count) if with_outer else None
             parts: list[BoolArray | None] = []
             # d_end is d_start unless a section tapers: then one array serves for both.
             filled = range(5) if TAPERED in present else (0, 2, 3, 4)
@@ -421,7 +422,11 @@ class _ShaftReader:
                     if column is not None:
                         target = columns[number]
                         if target is None:
-                            target = columns[number] = np.full(count, np.nan)
+                            # Circular shapes fill d_start, d_end and bore, non-circular
+                            # ones K and τ/T: the rows of the others stay NaN.
+                            whole = number <= 2 and GIVEN not in present
+                            target = np.empty(count) if whole else np.full(count, np.nan)
+                            columns[number] = target
                         target[mask] = column
                 if outer is not None and group_outer is not None:
                     outer[mask] = group_outer
@@ -553,19 +558,35 @@ def _scattered(mask: BoolArray, values: BoolArray) -> BoolArray:
 
 def _joined(shaft_ids: tuple[str, ...], shafts: list[_ShaftColumns]) -> SegmentTable:
     """The segment table of every shaft, shaft after shaft."""
-
-    def joined(arrays: list[Any]) -> Any:
-        return arrays[0] if len(arrays) == 1 else np.concatenate(arrays)
-
-    per_segment = joined([shaft.layers_per_segment for shaft in shafts])
-    values = [joined([shaft.layer_values[row] for shaft in shafts]) for row in range(6)]
+    if len(shafts) == 1:
+        only = shafts[0]
+        length, layer_start, shape, values = (
+            only.length,
+            only.layer_start,
+            only.layer_shape,
+            only.layer_values,
+        )
+    else:
+        length = np.concatenate([shaft.length for shaft in shafts])
+        offsets = np.cumsum([0] + [shaft.layer_start[-1] for shaft in shafts])
+        layer_start = np.concatenate(
+            [
+                shaft.layer_start[:-1] + offset
+                for shaft, offset in zip(shafts, offsets, strict=False)
+            ]
+            + [offsets[-1:]]
+        )
+        shape = np.concatenate([shaft.layer_shape for shaft in shafts])
+        values = tuple(
+            np.concatenate([shaft.layer_values[row] for shaft in shafts]) for row in range(6)
+        )
     counts = [len(shaft.length) for shaft in shafts]
     return SegmentTable(
         shaft_ids=shaft_ids,
         shaft_segment_start=np.concatenate([[0], np.cumsum(counts)]).astype(np.intp),
-        length=joined([shaft.length for shaft in shafts]),
-        segment_layer_start=np.concatenate([[0], np.cumsum(per_segment)]).astype(np.intp),
-        layer_shape=joined([shaft.layer_shape for shaft in shafts]),
+        length=length,
+        segment_layer_start=layer_start.astype(np.intp, copy=False),
+        layer_shape=shape,
         shear_modulus=values[0],
         outer_diameter_start=values[1],
         outer_diameter_end=values[2],
