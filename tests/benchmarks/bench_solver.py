@@ -438,6 +438,11 @@ class _DenseFactor:
     def solve(self, rhs: FloatArray) -> FloatArray:
         return np.asarray(np.linalg.solve(self.matrix, rhs))
 
+    @classmethod
+    def solving(cls, band: assembly.Band, rhs: FloatArray) -> tuple[_DenseFactor, FloatArray]:
+        factor = cls(band)
+        return factor, factor.solve(rhs)
+
 
 def _versus_dense() -> list[Row]:
     model = demo_shaft_model(2000, distributed=False)
