@@ -39,7 +39,7 @@ from tests.test_properties import (
 )
 from workbench.case.errors import InputError
 from workbench.solver.analysis import Results, solve
-from workbench.solver.assembly import BandFactor, assemble_band, band_to_sparse
+from workbench.solver.assembly import Band, BandFactor, assemble_band, band_to_sparse
 from workbench.solver.batch import BatchResults, solve_batch
 from workbench.solver.columns import case_table
 from workbench.solver.io import parse_case
@@ -414,6 +414,35 @@ def test_the_condition_estimate_of_a_shaft_brackets_the_exact_one(case):
     exact = 1.0 / np.linalg.cond(matrix, 1)
     assert math.isfinite(solution.factor.rcond)
     assert exact * (1.0 - 1e-9) <= solution.factor.rcond <= 10.0 * exact
+
+
+@SETTINGS
+@given(single_shaft_cases(n_cases=2), st.integers(0, 2**32 - 1))
+def test_the_one_pass_band_solve_equals_factoring_then_solving(case, seed):
+    """?gtsv eliminates as ?gttrf + ?gttrs do (LAPACK Users' Guide, 3rd ed., §2.4): the same
+    numbers, bit for bit, the band left as it was and the same condition estimate."""
+    solution = solve_table(case_table(parse_case(case)), method="band")
+    assert isinstance(solution.factor, BandFactor)
+    band = solution.factor.band
+    kept = band.values.copy()
+    rhs = np.random.default_rng(seed).normal(size=(band.size, 3))
+    factored = BandFactor(band)
+    expected = factored.solve(np.asfortranarray(rhs))
+    solving, solved = BandFactor.solving(band, np.asfortranarray(rhs))
+    np.testing.assert_array_equal(solved, expected)
+    np.testing.assert_array_equal(band.values, kept)
+    assert solving.rcond == factored.rcond
+
+
+def test_the_one_pass_band_solve_refuses_a_free_part_as_the_factorization_does():
+    values = np.zeros((4, 4))
+    values[2] = [1.0, 0.0, 1.0, 1.0]  # a zero pivot on the second row of a diagonal band
+    band = Band(values, half_width=1, n_variants=1)
+    with pytest.raises(InputError) as factoring:
+        BandFactor(band)
+    with pytest.raises(InputError) as solving:
+        BandFactor.solving(band, np.ones((4, 1), order="F"))
+    assert str(solving.value) == str(factoring.value)
 
 
 # --- the bundled demo: a taper, bonded layers and a gear pair, diameters varied -----------------
