@@ -16,7 +16,8 @@ References
    (direct stiffness assembly, prescribed displacements) and ch. 12 (constraints by Lagrange
    multipliers).
 .. [2] E. Anderson et al., *LAPACK Users' Guide*, 3rd ed., SIAM, 1999, §2.4 and §5.1 (band
-   storage; ?gttrf/?gttrs/?gtcon for tridiagonal and ?gbtrf/?gbtrs/?gbcon for band matrices).
+   storage; ?gtsv, ?gttrf/?gttrs/?gtcon for tridiagonal and ?gbtrf/?gbtrs/?gbcon for band
+   matrices).
 .. [3] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM, 2002,
    ch. 15 (condition estimation; the 1-norm estimator behind ?gbcon and onenormest).
 """

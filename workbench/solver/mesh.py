@@ -297,7 +297,8 @@ def build_mesh_from_table(table: CaseTable) -> Mesh:
         element_shaft = np.repeat(np.arange(n_shafts), np.diff(first_element))
         element_start_node = np.arange(n_elements) + element_shaft
     if element_segment is None or origin is None:  # elements are the segments
-        segment_row = np.arange(n_elements)
+        # One shaft: the element, its start node and its segment share one number.
+        segment_row = element_start_node if n_shafts == 1 else np.arange(n_elements)
         element_segment = (
             segment_row if n_shafts == 1 else segment_row - first_element[element_shaft]
         )
@@ -327,7 +328,9 @@ def build_mesh_from_table(table: CaseTable) -> Mesh:
     if not len(varying_element) and not loaded.any():
         # Every element shows its two ends only.
         station_start = np.arange(0, 2 * n_elements + 1, 2)
-        station_element = np.repeat(np.arange(n_elements), 2)
+        station_element = np.repeat(
+            element_start_node if n_shafts == 1 else np.arange(n_elements), 2
+        )
         is_end = np.zeros(2 * n_elements, dtype=bool)
         is_end[1::2] = True
         interior = np.zeros(0, dtype=np.intp)
@@ -465,12 +468,16 @@ def _sizes(
     shape = (n_variants, len(topology.station_element))
     if topology.two_stations:
         full = (n_variants, n_elements)
-        station_u = interleave(np.zeros((1, 1)), np.broadcast_to(length, full))
-        station_x = interleave(np.broadcast_to(x_start, full), np.broadcast_to(x_end, full))
-        stress_pair = np.broadcast_to(element_stress, full)
-        station_stress = interleave(stress_pair, stress_pair)
-        rigidity_pair = np.broadcast_to(element_rigidity, full)
-        station_rigidity = interleave(rigidity_pair, rigidity_pair)
+        station_u = np.zeros((n_variants, 2 * n_elements))
+        station_u[:, 1::2] = length
+        if len(topology.shaft_node_start) == 2:  # one shaft: element k joins nodes k and k + 1
+            station_x = np.repeat(np.broadcast_to(node_x, (n_variants, n_elements + 1)), 2, 1)
+            station_x = station_x[:, 1:-1]
+        else:
+            station_x = interleave(np.broadcast_to(x_start, full), np.broadcast_to(x_end, full))
+        # Both stations of an element hold its values: repeating them is one contiguous pass.
+        station_stress = np.repeat(np.broadcast_to(element_stress, full), 2, axis=1)
+        station_rigidity = np.repeat(np.broadcast_to(element_rigidity, full), 2, axis=1)
         interior_moments = np.zeros((n_variants, 0, 3))
     else:
         element = topology.station_element

@@ -391,7 +391,9 @@ def _right_hand_sides(
     torque_node = mesh.nodes_of(table.torque_shaft, table.torque_x)
     at_torques: Any = (table.torque_case, slice(None), torque_node)
     np.add.at(point, at_torques, table.torque.T)
-    rhs = point.copy()
+    # Not a copy of ``point``: a fresh buffer is written only where the torques act.
+    rhs = np.zeros_like(point)
+    np.add.at(rhs, at_torques, table.torque.T)
     if len(loads.elements):
         start_load, end_load = elements.consistent_loads(
             loads.elements, loads.length, np.stack([loads.start, loads.end], axis=-1)
@@ -475,15 +477,15 @@ def _recover(
         resultant = loads.full(loads.resultant, n_elements)
         moments = elements.flexibility[:, loads.elements]
         load_moment = moments[..., 1] * loads.start + moments[..., 2] * loads.slope
-    loaded_position = np.full(n_elements, -1)
-    loaded_position[loads.elements] = np.arange(len(loads.elements))
 
     def stiffness_torque(chosen: IntArray) -> FloatArray:
         """T(0⁺) = (θ_b − θ_a + ∫m/GK)/I₀ of the chosen elements."""
         node_a = mesh.element_start_node[chosen]
         twist = node_angle[..., node_a + 1] - node_angle[..., node_a]
-        position = loaded_position[chosen]
-        on_load = position >= 0
+        # The loaded elements come sorted: find the chosen ones among them.
+        position = np.searchsorted(loads.elements, chosen)
+        on_load = position < len(loads.elements)
+        on_load[on_load] = loads.elements[position[on_load]] == chosen[on_load]
         twist[..., on_load] += load_moment[..., position[on_load]]
         return twist * stiffness[:, chosen]
 
