@@ -114,8 +114,12 @@ def registry() -> Any:
     """Return the application's single pint unit registry (created on first use)."""
     import pint  # noqa: PLC0415 - imported lazily: pint costs ~0.3 s and SI cases do not need it
 
-    ureg: Any = pint.UnitRegistry()
+    # The degree's display symbol is °: pint's own is "deg". Redefining it keeps every name and
+    # alias, and the registry then prints "°/m" for a twist rate.
+    ureg: Any = pint.UnitRegistry(on_redefinition="ignore")
+    ureg.define("degree = π / 180 * radian = ° = deg = arcdeg = arcdegree = angular_degree")
     ureg.formatter.default_format = "~"
+    ureg.formatter.default_sort_func = None  # units in the order written: N·m, not m·N
     return ureg
 
 
