@@ -123,11 +123,11 @@ class Form:
         self.fields.setdefault(path_text(path), []).append(widget)
         widget.add_class(f"wb-at-{css_name(path)}")  # lets a page find the field by its path
 
-    def forget(self, path: Path, widget: w.Widget, label: w.HTML) -> None:
-        """Unbind a widget and its message line from a field (a replaced drag slider)."""
+    def forget(self, path: Path, *widgets: w.Widget) -> None:
+        """Unbind widgets and message lines from a field (a replaced drag slider and its entry)."""
         key = path_text(path)
-        self.fields[key] = [x for x in self.fields.get(key, []) if x is not widget]
-        self.messages[key] = [x for x in self.messages.get(key, []) if x is not label]
+        self.fields[key] = [x for x in self.fields.get(key, []) if x not in widgets]
+        self.messages[key] = [x for x in self.messages.get(key, []) if x not in widgets]
 
     def message(self, prefix: Path | str) -> w.HTML:
         """An (empty) message line for errors of a field, or of a row or list named by a prefix."""
@@ -275,6 +275,9 @@ class Form:
             min=low,
             max=high,
             step=None,  # any value: a snapped slider must not rewrite a typed value
+            # The browser's readout is an editable number that reads `7o` as 7: values are
+            # typed into the entry beside the slider instead (:meth:`dragged`).
+            readout=False,
             description=f"{description} [{self.unit(quantity_of(path))}]",
             continuous_update=True,
             readout_format=".4g",
@@ -284,6 +287,20 @@ class Form:
         self.register(path, field)
         field.observe(lambda change: self.write(path, clean_number(change["new"]), field), "value")
         return field
+
+    def dragged(
+        self, path: Path, description: str, low: float, high: float, width: str = "300px"
+    ) -> tuple[w.FloatSlider, w.HBox]:
+        """A :meth:`slider` with an :meth:`entry` for typing the value, its unit and message line.
+
+        Returns
+        -------
+        tuple
+            The slider, and the line holding all four.
+        """
+        slider = self.slider(path, description, low, high, width)
+        entry = self.entry(path, "", lambda value: self.write(path, value), width="90px")
+        return slider, self.beside(slider, path, entry)
 
     def flag(self, path: Path, description: str) -> w.HBox:
         """A check box bound to a true-or-absent key of the case (unticked removes the key)."""
