@@ -2,7 +2,9 @@
 
 Starts a private JupyterLab (:mod:`tests.browser.lab`), opens the demo notebook, runs all cells,
 types a bad diameter (its message must show beside the field, in the page), then a good one, and
-checks that a chart path and a result value change.
+checks that a chart path and a result value change. Then types ``7o`` (a browser number input
+read it as 7): it must be refused beside the field, nothing redrawn, and every derived output
+marked stale with its reason. Screenshots of each state go to ``test-artifacts/``.
 """
 
 from __future__ import annotations
@@ -40,7 +42,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         stress_path = page.locator(".wb-chart-stress path.line").last
         value = page.locator(".wb-summary td.wb-value").nth(1)
         before_d, before_value = stress_path.get_attribute("d"), value.inner_text()
-        entry = page.locator(DIAMETER)
+        entry = page.locator(DIAMETER).first  # the segment's entry and the drag line's
         # A bad value: the message shows beside the field, the charts keep the last good case.
         entry.fill("-5")
         entry.press("Enter")
@@ -70,4 +72,40 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         assert value.inner_text() != before_value
         assert message.inner_text() == ""
         assert page.locator(".wb-charts.wb-stale").count() == 0
-        page.screenshot(path=str(ARTIFACTS / "lab_panel.png"), full_page=True)
+        shot(page, "lab_panel.png")
+
+        # Typed text that is no length: refused beside the field, nothing solved, all stale.
+        after_d = stress_path.get_attribute("d")
+        entry.fill("7o")
+        entry.press("Enter")
+        page.wait_for_function(
+            "s => (document.querySelector(s) || {}).innerText?.includes('unknown unit')",
+            arg=DIAMETER_MESSAGE,
+            timeout=15000,
+        )
+        assert "'7o'" in message.inner_text()
+        assert entry.input_value() == "7o"
+        page.wait_for_selector(".wb-summary.wb-stale", timeout=15000)
+        assert "NOT SOLVED" in page.locator(".wb-summary").inner_text()
+        assert "STALE" in page.locator(".wb-checks").inner_text()
+        assert page.locator(".wb-charts .bqplot.figure.wb-stale").count() >= 5
+        note = page.locator(".wb-charts .wb-stale-note").first
+        assert "'7o'" in note.inner_text() and "segments[0].section.diameter" in note.inner_text()
+        opacity = page.locator(".wb-chart-stress").evaluate("e => getComputedStyle(e).opacity")
+        assert float(opacity) < 0.5
+        assert stress_path.get_attribute("d") == after_d  # the last valid case stays up
+        shot(page, "lab_panel_refused_7o.png")
+        entry.fill("75 mm")
+        entry.press("Enter")
+        page.wait_for_function(
+            "() => !document.querySelector('.wb-summary.wb-stale')", timeout=15000
+        )
+        assert message.inner_text() == "" and entry.input_value() == "75"
+        assert page.locator(".wb-stale").count() == 0
+
+
+def shot(page: object, name: str) -> None:
+    """A full-page screenshot into ``test-artifacts/``, its path printed into the test log."""
+    path = ARTIFACTS / name
+    page.screenshot(path=str(path), full_page=True)  # type: ignore[attr-defined]
+    print(f"screenshot: {path}")

@@ -114,14 +114,51 @@ def registry() -> Any:
     """Return the application's single pint unit registry (created on first use)."""
     import pint  # noqa: PLC0415 - imported lazily: pint costs ~0.3 s and SI cases do not need it
 
-    ureg: Any = pint.UnitRegistry()
+    # The degree's display symbol is °: pint's own is "deg". Redefining it keeps every name and
+    # alias, and the registry then prints "°/m" for a twist rate.
+    ureg: Any = pint.UnitRegistry(on_redefinition="ignore")
+    ureg.define("degree = π / 180 * radian = ° = deg = arcdeg = arcdegree = angular_degree")
     ureg.formatter.default_format = "~"
+    ureg.formatter.default_sort_func = None  # units in the order written: N·m, not m·N
     return ureg
 
 
+def si_unit(quantity: str) -> str:
+    """The SI unit of ``quantity``, base or derived (``"stiffness"`` → ``"(N*m)/(rad)"``)."""
+    if quantity in SI_UNITS:
+        return SI_UNITS[quantity]
+    if quantity == "ratio":
+        return "dimensionless"
+    numerator, denominator, power = DERIVED[quantity]
+    top = f"({SI_UNITS[numerator]})" if numerator else "1"
+    return f"{top}/({SI_UNITS[denominator]})**{power}" if denominator else top
+
+
+def _involves_angle(quantity: str) -> bool:
+    if quantity in SI_UNITS:
+        return quantity in _NEEDS_ANGLE
+    if quantity == "ratio":
+        return False
+    numerator, denominator, _ = DERIVED[quantity]
+    return numerator in _NEEDS_ANGLE or denominator in _NEEDS_ANGLE
+
+
 @functools.lru_cache(maxsize=256)
-def _si_factor(unit: str, quantity: str) -> float:
-    """Return the factor that turns a value in ``unit`` into SI for ``quantity``."""
+def unit_factor(unit: str, quantity: str) -> float:
+    """Return the factor that turns a value in ``unit`` into SI for ``quantity``.
+
+    Parameters
+    ----------
+    unit
+        A unit string pint reads (``"mm"``, ``"lbf*in"``, ``"N·m/deg"``).
+    quantity
+        A base quantity of :data:`SI_UNITS`, a derived one of :data:`DERIVED`, or ``"ratio"``.
+
+    Raises
+    ------
+    InputError
+        Naming ``units.<quantity>``: the unit is unknown or measures something else.
+    """
     if unit in _SIMPLE_FACTORS and _SIMPLE_QUANTITY.get(unit) == quantity:
         return _SIMPLE_FACTORS[unit]
     ureg = registry()
@@ -130,19 +167,21 @@ def _si_factor(unit: str, quantity: str) -> float:
     except Exception as exc:
         msg = f"unknown unit {unit!r}"
         raise InputError(f"units.{quantity}", msg) from exc
-    if quantity in _NEEDS_ANGLE and not _names_an_angle(unit):
+    named_angle = _names_an_angle(unit)
+    if _involves_angle(quantity) != named_angle and (named_angle or quantity in _NEEDS_ANGLE):
         # pint counts the radian as dimensionless, so "percent" would pass as an angle and
-        # "Hz" as a speed; a rotation must be named as one.
-        msg = f"{unit!r} is not a unit of {quantity} (name an angle: rad, deg, rev, rpm, ...)"
+        # "Hz" as a speed; a rotation must be named as one, and a ratio is not an angle.
+        hint = " (name an angle: rad, deg, rev, rpm, ...)" if not named_angle else ""
+        msg = f"{unit!r} is not a unit of {quantity.replace('_', ' ')}{hint}"
         raise InputError(f"units.{quantity}", msg)
-    expected = ureg.Quantity(1.0, SI_UNITS[quantity]).dimensionality
+    expected = ureg.Quantity(1.0, si_unit(quantity)).dimensionality
     if parsed.dimensionality != expected:
         msg = (
             f"{unit!r} is not a unit of {quantity.replace('_', ' ')} "
             f"(it has dimension {parsed.dimensionality or 'none'})"
         )
         raise InputError(f"units.{quantity}", msg)
-    return float(parsed.to(SI_UNITS[quantity]).magnitude)
+    return float(parsed.to(si_unit(quantity)).magnitude)
 
 
 @dataclass(frozen=True)
@@ -174,7 +213,7 @@ class UnitSystem:
             unit = getattr(self, f.name)
             if not isinstance(unit, str) or not unit.strip():
                 raise InputError(f"units.{f.name}", f"must be a unit string, not {unit!r}")
-            factors[f.name] = _si_factor(unit, f.name)
+            factors[f.name] = unit_factor(unit, f.name)
         for name, (numerator, denominator, power) in DERIVED.items():
             value = factors[numerator] if numerator else 1.0
             if denominator:

@@ -16,6 +16,8 @@ from typing import Any
 
 import ipywidgets as w
 
+from workbench.case.display import format_number
+from workbench.case.entry import read_quantity
 from workbench.case.errors import InputError
 from workbench.panel.document import (
     Path,
@@ -48,6 +50,16 @@ def clean_number(value: float) -> float | int:
     """Drop float noise from widget values (12 significant digits; whole numbers as int)."""
     rounded = float(f"{value:.12g}")
     return int(rounded) if rounded.is_integer() and abs(rounded) < 1e15 else rounded
+
+
+def entry_text(value: float) -> str:
+    """A value as an entry shows it: four significant figures, thousands grouped.
+
+    A magnitude written with a power of ten (``1.2×10⁷``) is shown as ``1.2e+07`` instead, so
+    the text reads back unchanged through :func:`~workbench.case.entry.read_quantity`.
+    """
+    text = format_number(float(value))
+    return f"{value:.4g}" if "×" in text else text
 
 
 def button(text: str, action: Callable[..., Any], width: str = "34px") -> w.Button:
@@ -111,11 +123,11 @@ class Form:
         self.fields.setdefault(path_text(path), []).append(widget)
         widget.add_class(f"wb-at-{css_name(path)}")  # lets a page find the field by its path
 
-    def forget(self, path: Path, widget: w.Widget, label: w.HTML) -> None:
-        """Unbind a widget and its message line from a field (a replaced drag slider)."""
+    def forget(self, path: Path, *widgets: w.Widget) -> None:
+        """Unbind widgets and message lines from a field (a replaced drag slider and its entry)."""
         key = path_text(path)
-        self.fields[key] = [x for x in self.fields.get(key, []) if x is not widget]
-        self.messages[key] = [x for x in self.messages.get(key, []) if x is not label]
+        self.fields[key] = [x for x in self.fields.get(key, []) if x not in widgets]
+        self.messages[key] = [x for x in self.messages.get(key, []) if x not in widgets]
 
     def message(self, prefix: Path | str) -> w.HTML:
         """An (empty) message line for errors of a field, or of a row or list named by a prefix."""
@@ -139,7 +151,7 @@ class Form:
         width: str = "150px",
         default: float = 0.0,
     ) -> w.HBox:
-        """A numeric entry bound to ``path``, with its unit shown beside it.
+        """A quantity entry bound to ``path`` (:meth:`entry`), with its unit shown beside it.
 
         Parameters
         ----------
@@ -148,29 +160,97 @@ class Form:
         description
             The words before the entry.
         optional
-            Whether 0 removes the key (the solver then takes its own default or none).
+            Whether 0 (or nothing typed) removes the key (the solver then takes its own default
+            or none).
         width
             CSS width of the entry.
         default
             Shown while the document has no value there (the solver's own default), in the
             document's units.
         """
+
+        def take(value: float | None) -> None:
+            self.write(path, None if optional and not value else value)
+
+        field = self.entry(path, description, take, width=width, default=default, empty=optional)
+        unit = self.unit(quantity_of(path))
+        return self.beside(field, path, *([w.Label(unit)] if unit else []))
+
+    def entry(
+        self,
+        path: Path,
+        description: str,
+        take: Callable[[float | None], Any],
+        *,
+        width: str = "150px",
+        default: float = 0.0,
+        empty: bool = False,
+    ) -> w.Text:
+        """A text entry for the quantity at ``path``: the one way the panel reads a typed value.
+
+        It shows the document's value to four significant figures in the panel's units, and
+        reads what is typed (on Enter or leaving the field) with
+        :func:`~workbench.case.entry.read_quantity`: ``60``, ``60 mm``, ``2 1/4 in``,
+        ``1,250 N·m``. A value read is handed to ``take`` in the document's units (and shown
+        again, formatted); anything else is refused beside the field, the text kept as typed,
+        the document left at its last valid value and nothing solved (``state.refuse``).
+
+        Parameters
+        ----------
+        path, description, width, default
+            As for :meth:`number`.
+        take
+            Given the value read (document units), or ``None`` for an empty entry when
+            ``empty``.
+        empty
+            Whether an empty entry is a value (``None``: the key removed).
+        """
         value = get_at(self.document, path)
-        field = w.FloatText(
-            value=float(value) if isinstance(value, (int, float)) else default,
+        key = path_text(path)
+        field = w.Text(
+            value=entry_text(value if isinstance(value, (int, float)) else default),
             description=description,
+            continuous_update=False,
             layout=sized(width),
             style={"description_width": "initial"},
         )
+        refused = self.state.refused.get(key)
+        if refused is not None:  # rebuilt while refused: the text stays as typed
+            field.value = refused[0]
         self.register(path, field)
 
-        def changed(change: dict[str, Any]) -> None:
-            new = change["new"]
-            self.write(path, None if optional and new == 0 else clean_number(new), field)
+        def typed(change: dict[str, Any]) -> None:
+            if self.muted:
+                return
+            text = change["new"]
+            if empty and not text.strip():
+                self.state.accept(key)
+                take(None)
+                return
+            try:
+                number = self.read(text, quantity_of(path), key)
+            except InputError as error:
+                self.state.refuse(text, error)
+                return
+            self.state.accept(key)
+            with self.quiet():
+                field.value = entry_text(number)
+            take(number)
 
-        field.observe(changed, "value")
-        unit = self.unit(quantity_of(path))
-        return self.beside(field, path, *([w.Label(unit)] if unit else []))
+        field.observe(typed, "value")
+        return field
+
+    def read(self, text: str, quantity: str | None, field: str) -> float:
+        """A typed value (``60``, ``2 1/4 in``) in the document's units of ``quantity``.
+
+        Raises
+        ------
+        InputError
+            Naming ``field``, for anything :func:`~workbench.case.entry.read_quantity` refuses.
+        """
+        quantity = quantity or "ratio"
+        units = self.state.units
+        return clean_number(units.from_si(read_quantity(text, quantity, units, field), quantity))
 
     def slider(
         self, path: Path, description: str, low: float, high: float, width: str = "360px"
@@ -195,6 +275,9 @@ class Form:
             min=low,
             max=high,
             step=None,  # any value: a snapped slider must not rewrite a typed value
+            # The browser's readout is an editable number that reads `7o` as 7: values are
+            # typed into the entry beside the slider instead (:meth:`dragged`).
+            readout=False,
             description=f"{description} [{self.unit(quantity_of(path))}]",
             continuous_update=True,
             readout_format=".4g",
@@ -204,6 +287,20 @@ class Form:
         self.register(path, field)
         field.observe(lambda change: self.write(path, clean_number(change["new"]), field), "value")
         return field
+
+    def dragged(
+        self, path: Path, description: str, low: float, high: float, width: str = "300px"
+    ) -> tuple[w.FloatSlider, w.HBox]:
+        """A :meth:`slider` with an :meth:`entry` for typing the value, its unit and message line.
+
+        Returns
+        -------
+        tuple
+            The slider, and the line holding all four.
+        """
+        slider = self.slider(path, description, low, high, width)
+        entry = self.entry(path, "", lambda value: self.write(path, value), width="90px")
+        return slider, self.beside(slider, path, entry)
 
     def flag(self, path: Path, description: str) -> w.HBox:
         """A check box bound to a true-or-absent key of the case (unticked removes the key)."""
@@ -223,25 +320,15 @@ class Form:
         Its radius, notch sensitivity and description are kept as the case file gives them.
         """
         path = (*base, "notch", "kts")
-        value = get_at(self.document, path)
-        field = w.FloatText(
-            value=float(value) if isinstance(value, (int, float)) else 0.0,
-            description="notch Kts",
-            layout=sized("130px"),
-            style={"description_width": "initial"},
-        )
-        self.register(path, field)
 
-        def changed(change: dict[str, Any]) -> None:
-            if self.muted:
-                return
-            if change["new"] == 0:
+        def take(value: float | None) -> None:
+            if value:
+                self.write(path, value)
+            else:
                 get_at(self.document, base).pop("notch", None)
                 self.state.edited()
-            else:
-                self.write(path, clean_number(change["new"]), field)
 
-        field.observe(changed, "value")
+        field = self.entry(path, "notch Kts", take, width="130px", empty=True)
         return self.beside(field, path)
 
     def choice(
@@ -301,11 +388,16 @@ class Form:
                 if other is not source and value is not None:
                     if isinstance(other, w.FloatSlider):
                         other.min, other.max = min(other.min, value), max(other.max, value)
-                    other.value = value
+                    other.value = entry_text(value) if isinstance(other, w.Text) else value
         self.state.edited()
 
     def structural(self, change: Callable[[], Any]) -> None:
-        """Make a change of the document's structure, rebuild the editors, solve."""
+        """Make a change of the document's structure, rebuild the editors, solve.
+
+        Entries refused so far are dropped: their fields are rebuilt from the document (and a
+        list item's path may have moved).
+        """
+        self.state.refused.clear()
         change()
         self._rebuild()
         self.state.refresh()

@@ -89,6 +89,10 @@ class CaseState:
         self._queued: Model | None = None
         self._queued_error: InputError | None = None
         self._pending = False
+        #: Entries typed but refused (no number, a unit of another quantity), by field path:
+        #: (the text typed, why). The document keeps the last valid value, and while any is
+        #: here nothing is solved: the screen would otherwise show a value the results ignore.
+        self.refused: dict[str, tuple[str, InputError]] = {}
 
     # --- what the solver made of the document (pending work finished first) -------------------
 
@@ -193,6 +197,9 @@ class CaseState:
         self._queued, self._queued_error = None, None
         if model is None:
             return
+        if self.refused:  # refused while the solve waited: nothing is solved
+            self._fail(self._first_refusal())
+            return
         self._solve(model)
         if error is not None:  # the last edit was bad: its message, over the last good charts
             self._fail(error)
@@ -205,6 +212,9 @@ class CaseState:
 
     def _parse(self) -> Model | None:
         """The document's model, or ``None`` (and its error shown) when the input is bad."""
+        if self.refused:
+            self._fail(self._first_refusal())
+            return None
         try:
             return parse_case(clone(self.document))
         except InputError as error:
@@ -234,6 +244,23 @@ class CaseState:
     def _fail(self, error: InputError) -> None:
         self._stale, self._error = True, error
         self._on_error(error)
+
+    def _first_refusal(self) -> InputError:
+        return next(iter(self.refused.values()))[1]
+
+    def refuse(self, text: str, error: InputError) -> None:
+        """An entry typed into the field ``error`` names was refused: nothing is solved.
+
+        The document keeps the field's last valid value; the last valid results stay, stale,
+        until the field takes a value (:meth:`accept`) or the editors are rebuilt.
+        """
+        self.refused[error.field] = (text, error)
+        self._queued, self._queued_error = None, None
+        self._fail(error)
+
+    def accept(self, field: str) -> None:
+        """The field took a value: its earlier refusal no longer holds the solve back."""
+        self.refused.pop(field, None)
 
     def show_current_error(self) -> None:
         """Show the document's error again (on widgets built since), without solving anything."""

@@ -54,15 +54,15 @@ def key_values(
 
 
 def summary_html(
-    values: dict[str, float], report: CheckReport, result: str, stale: bool = False
+    values: dict[str, float], report: CheckReport, result: str, stale: str | None = None
 ) -> str:
     """The verdict, where it governs, and the headline ``values`` of the result shown.
 
-    ``stale``: the case as edited is not solved, so there is no verdict, only the last valid
-    case's values (a pass of that case is no pass of this one).
+    ``stale``: why the case as edited is not solved (the field and its message). There is then
+    no verdict, only the last valid case's values (a pass of that case is no pass of this one).
     """
-    if stale:
-        return render("summary", STALE_VERDICT, None, result, _cells(values))
+    if stale is not None:
+        return render("summary", f"{STALE_VERDICT} — {stale}", None, result, _cells(values))
     governing = report.governing
     where = None
     if governing is not None:
@@ -72,7 +72,7 @@ def summary_html(
     return render("summary", verdict, where, result, _cells(values))
 
 
-#: The summary's verdict while the case as edited is not solved.
+#: The summary's verdict while the case as edited is not solved (the reason follows).
 STALE_VERDICT = "NOT SOLVED: no verdict (values of the last valid case, dimmed)"
 
 
@@ -80,8 +80,12 @@ def _cells(values: dict[str, float]) -> list[tuple[str, str]]:
     return [(key, f"{value:.4g}") for key, value in values.items()]
 
 
-def checks_html(report: CheckReport, units: UnitSystem) -> str:
-    """The governing result of each segment and check, one row each."""
+def checks_html(report: CheckReport, units: UnitSystem, stale: str | None = None) -> str:
+    """The governing result of each segment and check, one row each.
+
+    ``stale``: why the case as edited is not solved; the rows are then the last valid case's,
+    headed so, and their verdicts read "was pass" / "was FAIL".
+    """
     unit_of = {quantity: unit_label(units, quantity) for quantity in set(CHECK_QUANTITIES.values())}
     rows = [
         (
@@ -98,7 +102,7 @@ def checks_html(report: CheckReport, units: UnitSystem) -> str:
         )
         for check in report.governing_by_kind()
     ]
-    return render("checks", unit_label(units, "length"), rows)
+    return render("checks", unit_label(units, "length"), rows, stale)
 
 
 def difference_html(now: dict[str, float], before: dict[str, float] | None) -> str:
@@ -123,7 +127,7 @@ class ResultTables:
         self.check_table = w.HTML()
         self.check_table.add_class("wb-checks")
         self.caution = w.HTML()
-        self._shown: tuple[dict[str, float], CheckReport, str] | None = None
+        self._shown: tuple[dict[str, float], CheckReport, str, UnitSystem] | None = None
 
     def draw(
         self,
@@ -131,23 +135,25 @@ class ResultTables:
         report: CheckReport,
         result: str,
         units: UnitSystem,
-        stale: bool = False,
+        stale: str | None = None,
     ) -> None:
         """Fill the three from the checks and the headline values (:func:`key_values`).
 
-        ``stale``: the case as edited is not solved; these are the last valid case's, shown
-        dimmed and without a verdict.
+        ``stale``: why the case as edited is not solved; these are then the last valid case's,
+        shown dimmed and without a verdict.
         """
-        self._shown = (values, report, result)
+        self._shown = (values, report, result, units)
         self.summary.value = summary_html(values, report, result, stale)
-        self.check_table.value = checks_html(report, units)
+        self.check_table.value = checks_html(report, units, stale)
         self.caution.value = render("caution", CAUTION, report.notes)
-        self._dim(stale)
+        self._dim(stale is not None)
 
-    def show_stale(self) -> None:
-        """The case as edited is not solved: take the verdict away, dim the values and checks."""
+    def show_stale(self, why: str) -> None:
+        """The case as edited is not solved (``why``): no verdict; values and checks dimmed."""
         if self._shown is not None:
-            self.summary.value = summary_html(*self._shown, stale=True)
+            values, report, result, units = self._shown
+            self.summary.value = summary_html(values, report, result, why)
+            self.check_table.value = checks_html(report, units, why)
         self._dim(True)
 
     def _dim(self, stale: bool) -> None:

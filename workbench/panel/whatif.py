@@ -19,7 +19,7 @@ from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem
 from workbench.design.sweep import METRICS, SweepRequest, sweep_chunks
 from workbench.panel.document import Path, clone, get_at, unit_label
-from workbench.panel.form import Form, sized
+from workbench.panel.form import Form, entry_text, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
 from workbench.panel.plotting import CURRENT, LOAD, bq
@@ -60,8 +60,9 @@ class WhatIf:
         self.difference.add_class("wb-difference")
         self.sweep_input = w.Dropdown(description="vary", layout=sized("420px"))
         self.sweep_input.observe(lambda _: self._sweep_defaults(), "value")
-        self.sweep_from = w.FloatText(description="from", layout=sized("160px"))
-        self.sweep_to = w.FloatText(description="to", layout=sized("160px"))
+        # Read with the input's unit when Run is clicked (Form.read: 60, 60 mm, 2 1/4 in).
+        self.sweep_from = w.Text(description="from", layout=sized("160px"))
+        self.sweep_to = w.Text(description="to", layout=sized("160px"))
         self.sweep_points = w.BoundedIntText(
             value=50, min=2, max=5000, description="points", layout=sized("160px")
         )
@@ -135,8 +136,8 @@ class WhatIf:
         if path is None:
             return
         value = float(get_at(self._document, path) or 0.0)
-        self.sweep_from.value = round(0.5 * value, 6) if value else -1.0
-        self.sweep_to.value = round(1.5 * value, 6) if value else 1.0
+        self.sweep_from.value = entry_text(0.5 * value) if value else "-1"
+        self.sweep_to.value = entry_text(1.5 * value) if value else "1"
 
     def start_sweep(self) -> None:
         """Run the sweep set up in the tab (in chunks, so Cancel can stop it)."""
@@ -145,9 +146,13 @@ class WhatIf:
         try:
             if path is None:
                 raise InputError("sweep", "there is no numeric input to vary")
-            values = tuple(
-                np.linspace(self.sweep_from.value, self.sweep_to.value, self.sweep_points.value)
-            )
+            if self.form.state.stale:
+                msg = "the case as edited is not solved; fix the field marked in red first"
+                raise InputError("sweep", msg)
+            quantity = quantity_of(path)
+            start = self.form.read(self.sweep_from.value, quantity, "sweep from")
+            end = self.form.read(self.sweep_to.value, quantity, "sweep to")
+            values = tuple(np.linspace(start, end, self.sweep_points.value))
             request = SweepRequest(
                 path,
                 values,

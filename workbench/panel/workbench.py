@@ -40,6 +40,7 @@ from workbench.panel.fatigue_section import FatigueSection
 from workbench.panel.form import Editor, Form, sized
 from workbench.panel.markup import render
 from workbench.panel.modes_section import ModesSection
+from workbench.panel.stale import StaleMarks
 from workbench.panel.state import CaseState
 from workbench.panel.summary import ResultTables, difference_html, key_values
 from workbench.panel.whatif import WhatIf
@@ -139,6 +140,7 @@ class Workbench:
         self.modes_section = ModesSection()
         self.fatigue_section = FatigueSection()
         self.tables = ResultTables()
+        self.stale_marks = StaleMarks()
         shown = self._shown_shaft
         self.segments_editor = SegmentsEditor(self.form, shown)
         self.supports_editor = SupportsEditor(self.form, shown)
@@ -227,14 +229,39 @@ class Workbench:
         self.editors = w.Tab(children=[tab.box for tab in tabs])
         for number, tab in enumerate(tabs):
             self.editors.set_title(number, tab.title)
+        marks = self.stale_marks
+        for name, figure in zip(
+            ("elevation", "torque", "angle", "stress", "utilisation"),
+            self.charts.figures,
+            strict=True,
+        ):
+            marks.output(name, figure)
+        for name, widget in (
+            ("mode shapes", self.modes_section.chart.shapes),
+            ("modes against speeds", self.modes_section.chart.against),
+            ("frequency table", self.modes_section.table),
+            ("fatigue diagram", self.fatigue_section.chart.figure),
+            ("fatigue table", self.fatigue_section.table),
+            ("sweep", self.whatif.sweep_figure),
+            ("baseline difference", self.whatif.difference),
+        ):
+            marks.output(name, widget)
+        self.whatif.box.children = (
+            marks.note("The baseline difference and the sweep are those"),
+            *self.whatif.box.children,
+        )
         self.more_charts = w.Accordion(
-            children=[self.modes_section.box, self.fatigue_section.box],
+            children=[
+                w.VBox([marks.note("Natural modes are those"), self.modes_section.box]),
+                w.VBox([marks.note("The fatigue points are those"), self.fatigue_section.box]),
+            ],
             titles=("Modes: natural frequencies and mode shapes", "Fatigue diagram"),
             selected_index=None,
         )
         self.more_charts.observe(lambda _: self._redraw(), "selected_index")
         self.charts_box = w.VBox(
             [
+                marks.note("These charts are those"),
                 self.charts.elevation,
                 w.GridBox(
                     [
@@ -297,16 +324,18 @@ class Workbench:
             render("warning", f"Warning: {text}") for text in cautions
         )
         self.charts_box.remove_class("wb-stale")
+        self.stale_marks.clear()
         self._redraw()
         if self._handle is not None:  # the case output the calculation record reads
             self._handle.update(self.case_bundle, raw=True)
 
     def _on_error(self, error: InputError) -> None:
-        """The message beside the field the error names, in the status line; charts dimmed."""
+        """The message beside the field the error names, in the status line; all else stale."""
         words = self.form.show_error(error)
         self.status.value = render("not_solved", words)
         self.charts_box.add_class("wb-stale")
-        self.tables.show_stale()  # no verdict of the last valid case stands for this one
+        why = self.stale_marks.mark(error, self.document)
+        self.tables.show_stale(why)  # no verdict of the last valid case stands for this one
 
     # --- the panel's own controls -----------------------------------------------------------
 
@@ -380,7 +409,7 @@ class Workbench:
         units = state.units
         self.charts.draw(model, results, report, result, shaft, state.baseline)
         values = key_values(results, report, result, units)
-        self.tables.draw(values, report, result, units, stale=state.stale)
+        self.tables.draw(values, report, result, units, stale=self.stale_marks.reason)
         baseline = state.baseline
         before = key_values(*baseline, result, units) if baseline is not None else None
         self.difference.value = difference_html(values, before)

@@ -46,8 +46,8 @@ class LoadsEditor(Editor):
             parts = [
                 w.Label(f"torque {n}"),
                 form.choice((*base, "shaft"), "", self.shaft_ids(), width="110px"),
-                form.beside(form.slider(x_path, "x", 0.0, length, width="300px"), x_path),
-                form.beside(form.slider(torque_path, "T", -size, size, width="320px"), torque_path),
+                form.dragged(x_path, "x", 0.0, length)[1],
+                form.dragged(torque_path, "T", -size, size, width="320px")[1],
                 button("✕", lambda n=n: form.remove(("load_cases", c, "torques"), n)),
                 form.message(base),
             ]

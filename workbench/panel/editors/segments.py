@@ -30,7 +30,7 @@ class SegmentsEditor(Editor):
         self.dimension = w.Dropdown()
         self.dimension_box = w.HBox()
         self.diameter_slider: w.FloatSlider | None = None
-        self._drag: tuple[Path, w.Widget, w.HTML] | None = None
+        self._drag: tuple[Path, tuple[w.Widget, ...]] | None = None
 
     def build(self) -> None:
         form = self.form
@@ -98,17 +98,18 @@ class SegmentsEditor(Editor):
     def _dimension_slider(self) -> None:
         """A slider for the size picked in ``dimension`` (it replaces the one before)."""
         if self._drag is not None:  # the slider it replaces leaves the field's widgets
-            self.form.forget(*self._drag)
+            self.form.forget(self._drag[0], *self._drag[1])
             self._drag = None
         path = self.dimension.value
         if path is None:
             self.dimension_box.children = []
             return
         value = float(get_at(self.document, path) or 1.0)
-        self.diameter_slider = self.form.slider(path, "size", 0.5 * value, 1.5 * value)
-        label = self.form.message(path)
-        self._drag = (path, self.diameter_slider, label)
-        self.dimension_box.children = [self.diameter_slider, label]
+        self.diameter_slider, line = self.form.dragged(
+            path, "size", 0.5 * value, 1.5 * value, width="360px"
+        )
+        self._drag = (path, tuple(line.children))
+        self.dimension_box.children = list(line.children)
         self.form.state.show_current_error()
 
     def set_shape(self, base: Path, shape: str) -> None:
