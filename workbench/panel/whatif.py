@@ -250,7 +250,8 @@ class WhatIf:
         x, y = np.array(values[:done]), result[:done]
         with self.sweep_figure.hold_sync():
             self.sweep_line.x, self.sweep_line.y = x, y
-            self.sweep_readout.x, self.sweep_readout.y = x, y
+            valid = np.isfinite(y)  # a point that is not a valid case has nothing to read
+            self.sweep_readout.x, self.sweep_readout.y = x[valid], y[valid]
             current = get_at(self._document, self.sweep_input.value)
             now = isinstance(current, (int, float)) and done
             if now:
