@@ -35,6 +35,7 @@ from workbench.panel.plotting import (
     held,
     name_tooltip,
     readout,
+    set_list,
     set_tooltip,
     xy_figure,
 )
@@ -85,8 +86,8 @@ class ResultChart:
     def set_labels(self, x_label: str, y_label: str, result: str) -> None:
         self.figure.axes[0].label = x_label
         self.figure.axes[1].label = y_label
-        self.now.labels = [f"{y_label}, {result}"]
-        self.baseline.labels = [f"baseline {y_label}"]
+        set_list(self.now, "labels", [f"{y_label}, {result}"])
+        set_list(self.baseline, "labels", [f"baseline {y_label}"])
         name_tooltip(self.now, "curve")
         name_tooltip(self.baseline, "curve")
         set_tooltip(self.now_readout, [x_label, y_label])
@@ -142,6 +143,7 @@ class StressChart(ResultChart):
                 colors=[colour],
                 default_size=70,
                 visible=False,
+                display_names=False,
                 tooltip=bq.Tooltip(fields=["name"], labels=[name], formats=[""]),
             )
             for name, colour, marker in DETAIL_STYLES
@@ -172,8 +174,8 @@ class StressChart(ResultChart):
         if lines:
             self.peaks.x = x
             self.peaks.y = units.from_si(stresses.peak[lines], "stress")
-            self.peaks.colors = [DETAIL_STYLES[kind][1] for kind in lines]
-            self.peaks.labels = [self._detail_label(stresses, kind) for kind in lines]
+            set_list(self.peaks, "colors", [DETAIL_STYLES[kind][1] for kind in lines])
+            set_list(self.peaks, "labels", [self._detail_label(stresses, kind) for kind in lines])
             name_tooltip(self.peaks, "peak stress")
         for kind, mark in enumerate(self.details):
             where = np.flatnonzero(~np.isnan(stresses.detail_value[kind]))
@@ -183,13 +185,13 @@ class StressChart(ResultChart):
             mark.x = units.from_si(stresses.detail_x[kind, where], "length")
             mark.y = units.from_si(stresses.detail_value[kind, where], "stress")
             values = mark.y.tolist() if len(where) else []
-            mark.names = [
+            names = [
                 f"segment {segment}: K = {factor:.3g}, {value:.4g} {stress_unit}"
                 for segment, factor, value in zip(
                     where.tolist(), stresses.factor[kind, where].tolist(), values, strict=True
                 )
             ]
-            mark.display_names = False
+            set_list(mark, "names", names)
         fails = stresses.detail_fails
         kinds, segments = np.nonzero(fails)
         shear = np.flatnonzero(stresses.shear_fails)
@@ -201,7 +203,7 @@ class StressChart(ResultChart):
         self.failing.visible = bool(len(fail_x))
         self.failing.x = units.from_si(fail_x, "length")
         self.failing.y = units.from_si(fail_y, "stress")
-        self.failing.names = [
+        names = [
             f"{what} fails, segment {segment}: utilisation {value / limit:.3f}"
             for what, segment, value, limit in zip(
                 words,
@@ -211,6 +213,7 @@ class StressChart(ResultChart):
                 strict=True,
             )
         ]
+        set_list(self.failing, "names", names)
 
     @staticmethod
     def _detail_label(stresses: ShaftStresses, kind: int) -> str:
@@ -387,7 +390,7 @@ class Charts:
     ) -> None:
         labels, now, fails = segment_utilisation(report, shaft.id, len(shaft.segments), result)
         self.bars.x, self.bars.y = labels, now
-        self.bars.colors = np.where(fails, FAIL, SHAFT).tolist()
+        set_list(self.bars, "colors", np.where(fails, FAIL, SHAFT).tolist())
         self.bar_failing.x, self.bar_failing.y = labels[fails], now[fails]
         self.bar_failing.visible = bool(fails.any())
         self.bar_limit.x, self.bar_limit.y = labels, np.ones(len(labels))

@@ -28,6 +28,7 @@ from workbench.panel.plotting import (
     bq,
     failing_mark,
     name_tooltip,
+    set_list,
     set_tooltip,
 )
 from workbench.solver.model import Model
@@ -186,14 +187,16 @@ class Elevation:
             if (shaft.id, number) in governing and not governing[(shaft.id, number)].passes
         ]
         numbers = {check.segment for check in failing}
-        self.segments.colors = [FAIL if n in numbers else SHAFT for n in range(count)]
-        self.segments.fill_colors = [FAIL if n in numbers else SHAFT_FILL for n in range(count)]
+        set_list(self.segments, "colors", [FAIL if n in numbers else SHAFT for n in range(count)])
+        fills = [FAIL if n in numbers else SHAFT_FILL for n in range(count)]
+        set_list(self.segments, "fill_colors", fills)
         self.failing.x = units.from_si(np.array([c.x for c in failing], dtype=float), "length")
         self.failing.y = np.zeros(len(failing))
-        self.failing.names = [
+        names = [
             f"{check.kind.replace('_', ' ')} fails ({check.utilisation:.2f}, {check.result})"
             for check in failing
         ]
+        set_list(self.failing, "names", names)
         self.failing.visible = bool(failing)
         if not failing:
             return []
@@ -216,7 +219,7 @@ class Elevation:
             _, name, words = SUPPORT_KINDS[kind]
             mark.x = np.array(kinds[kind])
             mark.y = np.full(len(kinds[kind]), marker_y)
-            mark.names = [name] * len(kinds[kind])
+            set_list(mark, "names", [name] * len(kinds[kind]))
             mark.visible = bool(kinds[kind])
             set_tooltip(mark, [f"{words} at x [{length_unit}]"], ("x",))
             if kinds[kind]:
@@ -238,7 +241,7 @@ class Elevation:
         if not gear_x:
             return []
         self.gears.x, self.gears.y = np.array(gear_x), np.array(gear_y)
-        self.gears.labels = names
+        set_list(self.gears, "labels", names)
         name_tooltip(self.gears, "gear (pitch diameter)")
         return [LegendEntry("gear (pitch diameter)", SUPPORT, "solid")]
 
@@ -260,7 +263,7 @@ class Elevation:
         self.torques.y = np.full(len(torques_x), load_y)
         self.torques.default_size = 90
         set_tooltip(self.torques, [f"point torque at x [{length_unit}]"], ("x",))
-        self.torques.names = [f"{t:.4g} {torque_unit}" for t in torques_t]
+        set_list(self.torques, "names", [f"{t:.4g} {torque_unit}" for t in torques_t])
         self.torques.display_names = bool(torques_x)
         self.torques.visible = bool(torques_x)
         self.distributed.visible = bool(spans_x)

@@ -89,6 +89,16 @@ class Legend:
             self.widget.value = render("legend", chosen)
 
 
+def set_list(mark: Any, trait: str, values: list[Any]) -> None:
+    """Set a list trait (colours, names, labels) only when it changes.
+
+    Validating a list of 20 colours costs about 0.1 ms even when it is the same list.
+    """
+    current = getattr(mark, trait)
+    if current is None or list(current) != values:
+        setattr(mark, trait, values)
+
+
 def name_tooltip(mark: Any, label: str) -> None:
     """Give a line a tooltip naming the curve under the pointer (its ``labels`` entry)."""
     tooltip = mark.tooltip
