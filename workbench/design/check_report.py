@@ -18,6 +18,7 @@ from workbench.case.units import UnitSystem
 from workbench.design.caution import CAUTION
 from workbench.design.fatigue_check import FatiguePoint
 from workbench.design.plastic import plastic_reserve
+from workbench.design.static_checks import StaticCheckInputs, StaticUtilisations
 from workbench.design.verdict import WithinLimit
 from workbench.solver.analysis import Results
 from workbench.solver.sections import SolidCircle, Tube
@@ -73,6 +74,26 @@ class Check(WithinLimit):
 
 
 @dataclass(frozen=True)
+class StaticArrays:
+    """The arrays behind a report's static check rows: a batch of one variant, judged.
+
+    Attributes
+    ----------
+    inputs
+        What :func:`~workbench.design.static_checks.static_utilisations` judged (V = 1).
+    judged
+        What it found (values, limits, stations of every kind, segment and result).
+    shafts, numbers
+        (G,) shaft id and index on its shaft of each segment of the arrays.
+    """
+
+    inputs: StaticCheckInputs
+    judged: StaticUtilisations
+    shafts: tuple[str, ...]
+    numbers: tuple[int, ...]
+
+
+@dataclass(frozen=True)
 class CheckReport:
     """All checks of a solved model.
 
@@ -91,6 +112,9 @@ class CheckReport:
     modes
         The natural modes (:class:`workbench.solver.modes.Modes`) the frequency-separation
         checks used, when the case has running speeds; ``None`` otherwise.
+    static
+        The arrays the static checks judged (:class:`StaticArrays`), for drawing the stresses
+        the rows report; ``None`` for a report built from rows alone.
     """
 
     results: Results
@@ -99,6 +123,7 @@ class CheckReport:
     notes: tuple[str, ...] = field(default=())
     fatigue_points: tuple[FatiguePoint, ...] = field(default=())
     modes: Any = None
+    static: StaticArrays | None = field(default=None, repr=False, compare=False)
 
     @property
     def passes(self) -> bool:

@@ -59,6 +59,7 @@ from workbench.design.check_report import (
     Check,
     CheckReport,
     PlasticReserveRow,
+    StaticArrays,
     check_document,
     check_row,
     check_text,
@@ -238,8 +239,11 @@ def model_check_inputs(results: Results, design: DesignCriteria) -> ModelCheckIn
     )
 
 
-def _static_rows(results: Results, prepared: ModelCheckInputs) -> list[Check]:
-    """The report's rows of the static checks, by segment, kind and result, then rotations."""
+def _static_rows(results: Results, prepared: ModelCheckInputs) -> tuple[list[Check], StaticArrays]:
+    """The static check rows and the arrays they were read from.
+
+    Rows by segment, kind and result, then the rotations.
+    """
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # refused by the caller
         judged = static_utilisations(prepared.inputs)
     names = results.names
@@ -286,7 +290,7 @@ def _static_rows(results: Results, prepared: ModelCheckInputs) -> list[Check]:
             )
             for result, name in enumerate(names)
         )
-    return rows
+    return rows, StaticArrays(prepared.inputs, judged, prepared.shafts, prepared.numbers)
 
 
 def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckReport:
@@ -324,7 +328,7 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     token = display_units.set(results.model.units)  # notes quote lengths in the case's units
     try:
         prepared = model_check_inputs(results, design)
-        checks = _static_rows(results, prepared)
+        checks, static = _static_rows(results, prepared)
         require_finite_checks(checks, results.model, design)
         notes.extend(prepared.report_notes)
         frequency_rows, frequency_notes, modes = frequency_checks(results.model, design)
@@ -340,5 +344,11 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     finally:
         display_units.reset(token)
     return CheckReport(
-        results, design, tuple(checks), tuple(dict.fromkeys(notes)), fatigue_points, modes
+        results,
+        design,
+        tuple(checks),
+        tuple(dict.fromkeys(notes)),
+        fatigue_points,
+        modes,
+        static,
     )

@@ -296,6 +296,53 @@ def _peaks_by_segment(values: FloatArray, segment_start: IntArray) -> tuple[Floa
     return peaks, offsets
 
 
+def station_segments(segment_start: IntArray, stations: int) -> IntArray:
+    """(S,) the segment of each station, from each segment's first station (increasing from 0)."""
+    counts = np.diff(np.append(segment_start, stations))
+    return np.repeat(np.arange(len(segment_start)), counts)
+
+
+def station_concentrated_stresses(inputs: StaticCheckInputs, variant: int = 0) -> FloatArray:
+    """The stresses the concentration checks judge, station by station, for one variant.
+
+    Each is K·(|T|·s_nom) with the factor K and nominal stress per torque s_nom the checks use,
+    in the same order of operations, so a segment's largest is the check's value to the last
+    bit (multiplying by a positive number keeps the order of the torques).
+
+    Parameters
+    ----------
+    inputs
+        The batch the checks judge (shapes and units in :class:`StaticCheckInputs`).
+    variant
+        Which variant of the batch.
+
+    Returns
+    -------
+    numpy.ndarray
+        (R, 4, S) stress (Pa) of each kind of :data:`CONCENTRATION_KINDS` at every station of
+        the segments that have the detail, NaN elsewhere. A shoulder has one value, at its
+        segment's first station, under the torque of the smaller side (``shoulder_station``).
+
+    References
+    ----------
+    .. [1] Shigley's *Mechanical Engineering Design*, 9th ed., ch. 7 (τ_max = Kts·τ_nom).
+    """
+    start = inputs.segment_start
+    magnitude = np.abs(inputs.torque[variant])  # (R, S)
+    segment = station_segments(start, magnitude.shape[-1])
+    factor = inputs.concentration[variant][:, segment]  # (4, S)
+    nominal = inputs.nominal_stress_per_torque[variant][:, segment]
+    stress: FloatArray = factor * (magnitude[:, None, :] * nominal)
+    shoulder = np.full(magnitude.shape, np.nan)
+    shoulder_torque = magnitude[:, inputs.shoulder_station[variant]]  # (R, G)
+    first = inputs.concentration[variant, 0] * (
+        shoulder_torque * inputs.nominal_stress_per_torque[variant, 0]
+    )
+    shoulder[:, start] = first
+    stress[:, 0] = shoulder
+    return stress
+
+
 def static_utilisations(inputs: StaticCheckInputs) -> StaticUtilisations:
     """Judge every static check of every variant, result and segment at once.
 

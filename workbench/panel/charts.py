@@ -1,49 +1,56 @@
 """The panel's main charts: elevation, internal torque, angle of twist, shear stress, utilisation.
 
 Everything drawn comes from the solver's model, results and check report, converted to the
-panel's units; nothing here computes mechanics. Colours and shared helpers:
-:mod:`workbench.panel.plotting`; the Modes and Fatigue sections have modules of their own.
+panel's units; nothing here computes mechanics. The stress chart draws the stresses the checks
+judged (:func:`workbench.design.stress_profile.shaft_stresses`): the nominal curve, each detail's
+peak stress K·τ_nom with its factor, the allowable of each segment, and a cross on each check
+that fails. Colours, legends and shared helpers: :mod:`workbench.panel.plotting`; the elevation:
+:mod:`workbench.panel.elevation`; the Modes and Fatigue sections have modules of their own.
 """
 
 from __future__ import annotations
 
 from typing import Any
 
+import ipywidgets as w
 import numpy as np
-from ipywidgets import Layout
 
 from workbench.design.checks import CheckReport
+from workbench.design.stress_profile import ShaftStresses, shaft_stresses
 from workbench.panel.document import unit_label
+from workbench.panel.elevation import Elevation
 from workbench.panel.plotting import (
     BASELINE,
     CURRENT,
+    DETAIL_STYLES,
+    FAIL,
+    FAIL_MARKER,
     LIMIT,
-    LOAD,
     SHAFT,
     SHAFT_FILL,
-    SUPPORT,
+    Legend,
+    LegendEntry,
     bq,
+    failing_mark,
     held,
+    name_tooltip,
+    readout,
+    set_list,
     set_tooltip,
     xy_figure,
 )
 from workbench.solver.analysis import Results
 from workbench.solver.model import Model
 
-#: Plot area of the elevation (px): the y range is set so lengths draw at one scale on both axes.
-_ELEVATION_WIDTH, _ELEVATION_HEIGHT = 760, 210
-_ELEVATION_MARGIN = {"top": 20, "bottom": 36, "left": 60, "right": 20}
-_PLOT_RATIO = (_ELEVATION_HEIGHT - 56) / (_ELEVATION_WIDTH - 80)
-_SAMPLES = 17
-
 
 class ResultChart:
-    """One x–y result chart (now, baseline, optional limit line) along the chosen shaft."""
+    """One x–y result chart along the chosen shaft: now, baseline, readouts, legend beneath."""
 
     def __init__(self, title: str, key: str) -> None:
         self.key = key
         self.x_scale, self.y_scale = bq.LinearScale(), bq.LinearScale()
         scales = {"x": self.x_scale, "y": self.y_scale}
+        extra = self.make_marks(scales)
         self.baseline = bq.Lines(
             x=[],
             y=[],
@@ -51,15 +58,6 @@ class ResultChart:
             colors=[BASELINE],
             line_style="dashed",
             stroke_width=1.5,
-            visible=False,
-        )
-        self.limit = bq.Lines(
-            x=[],
-            y=[],
-            scales=scales,
-            colors=[LIMIT],
-            stroke_width=1.5,
-            line_style="dash_dotted",
             visible=False,
         )
         self.now = bq.Lines(
@@ -72,106 +70,189 @@ class ResultChart:
             fill_opacities=[0.12],
             fill_colors=[SHAFT_FILL],
         )
-        self.figure = xy_figure(
-            [self.baseline, self.limit, self.now], self.x_scale, self.y_scale, "x", title, title
-        )
+        self.now_readout = readout(scales, CURRENT)
+        self.baseline_readout = readout(scales, BASELINE)
+        self.baseline_readout.visible = False
+        marks = [self.baseline, *extra, self.now, self.baseline_readout, self.now_readout]
+        self.figure = xy_figure(marks, self.x_scale, self.y_scale, "x", title, title)
         self.figure.add_class(f"wb-chart-{key}")
+        self.legend = Legend(key)
+        self.box = w.VBox([self.figure, self.legend.widget])
 
-    def set_labels(self, x_label: str, y_label: str) -> None:
+    def make_marks(self, scales: dict[str, Any]) -> tuple[Any, ...]:
+        """Marks a chart draws between the baseline and the curve now (none here)."""
+        return ()
+
+    def set_labels(self, x_label: str, y_label: str, result: str) -> None:
         self.figure.axes[0].label = x_label
         self.figure.axes[1].label = y_label
-        set_tooltip(self.now, [x_label, y_label])
-        set_tooltip(self.baseline, [x_label, "baseline " + y_label])
-        set_tooltip(self.limit, [x_label, "allowable " + y_label])
+        set_list(self.now, "labels", [f"{y_label}, {result}"])
+        set_list(self.baseline, "labels", [f"baseline {y_label}"])
+        name_tooltip(self.now, "curve")
+        name_tooltip(self.baseline, "curve")
+        set_tooltip(self.now_readout, [x_label, y_label])
+        set_tooltip(self.baseline_readout, [x_label, "baseline " + y_label])
+
+    def set_curves(self, x: Any, y: Any, base: tuple[Any, Any] | None) -> None:
+        """The curve now and the baseline's (``None``: no baseline), with their readouts."""
+        self.now.x, self.now.y = x, y
+        self.now_readout.x, self.now_readout.y = x, y
+        if base is not None:
+            self.baseline.x, self.baseline.y = base
+            self.baseline_readout.x, self.baseline_readout.y = base
+        self.baseline.visible = self.baseline_readout.visible = base is not None
+
+    def entries(self, now_label: str) -> list[LegendEntry]:
+        """The legend entries of the curve now and of the baseline when it is drawn."""
+        entries = [LegendEntry(now_label, CURRENT, "solid")]
+        if self.baseline.visible:
+            entries.append(LegendEntry("baseline (pinned)", BASELINE, "dashed"))
+        return entries
+
+
+class StressChart(ResultChart):
+    """The shear stress chart: nominal τ, each detail's peak K·τ_nom, allowables, failures."""
+
+    def __init__(self) -> None:
+        #: The detail kinds drawn: (kind, legend label, drawn as a line too).
+        self.drawn: list[tuple[int, str, bool]] = []
+        super().__init__("Shear stress", "stress")
+
+    def make_marks(self, scales: dict[str, Any]) -> tuple[Any, ...]:
+        """The allowable, the detail peaks, each detail's check and the failing crosses."""
+        self.limit = bq.Lines(
+            x=[],
+            y=[],
+            scales=scales,
+            colors=[LIMIT],
+            stroke_width=1.5,
+            line_style="dash_dotted",
+            visible=False,
+            labels=["allowable shear stress of the segment"],
+        )
+        self.peaks = bq.Lines(
+            x=[], y=[], scales=scales, line_style="dashed", stroke_width=1.8, visible=False
+        )
+        #: One mark per detail kind: the check's governing peak stress, in the kind's shape.
+        self.details = [
+            bq.Scatter(
+                x=[],
+                y=[],
+                scales=scales,
+                marker=marker,
+                colors=[colour],
+                default_size=70,
+                visible=False,
+                display_names=False,
+                tooltip=bq.Tooltip(fields=["name"], labels=[name], formats=[""]),
+            )
+            for name, colour, marker in DETAIL_STYLES
+        ]
+        self.failing = failing_mark(
+            scales, bq.Tooltip(fields=["name"], labels=["fails"], formats=[""])
+        )
+        return (self.limit, self.peaks, *self.details, self.failing)
+
+    def draw_checks(self, stresses: ShaftStresses | None, units: Any, bounds: Any) -> None:
+        """The allowables, the detail peaks and the failing checks of the shaft shown."""
+        self.drawn = []
+        if stresses is None:
+            for mark in (self.limit, self.peaks, *self.details, self.failing):
+                mark.visible = False
+            return
+        stress_unit = unit_label(units, "stress")
+        # Allowable: a step along each segment, from its start to its end.
+        self.limit.x = np.column_stack([bounds[:-1], bounds[1:]]).ravel()
+        self.limit.y = np.repeat(units.from_si(stresses.shear_limit, "stress"), 2)
+        self.limit.visible = True
+        name_tooltip(self.limit, "limit")
+        present = np.flatnonzero(~np.isnan(stresses.factor).all(axis=1)).tolist()
+        # A shoulder is one point (its check's); the body's details run along their segment.
+        lines = [kind for kind in present if np.count_nonzero(~np.isnan(stresses.peak[kind])) > 1]
+        x = units.from_si(stresses.x, "length")
+        self.peaks.visible = bool(lines)
+        if lines:
+            self.peaks.x = x
+            self.peaks.y = units.from_si(stresses.peak[lines], "stress")
+            set_list(self.peaks, "colors", [DETAIL_STYLES[kind][1] for kind in lines])
+            set_list(self.peaks, "labels", [self._detail_label(stresses, kind) for kind in lines])
+            name_tooltip(self.peaks, "peak stress")
+        for kind, mark in enumerate(self.details):
+            where = np.flatnonzero(~np.isnan(stresses.detail_value[kind]))
+            mark.visible = bool(len(where))
+            if len(where):
+                self.drawn.append((kind, self._detail_label(stresses, kind), kind in lines))
+            mark.x = units.from_si(stresses.detail_x[kind, where], "length")
+            mark.y = units.from_si(stresses.detail_value[kind, where], "stress")
+            values = mark.y.tolist() if len(where) else []
+            names = [
+                f"segment {segment}: K = {factor:.3g}, {value:.4g} {stress_unit}"
+                for segment, factor, value in zip(
+                    where.tolist(), stresses.factor[kind, where].tolist(), values, strict=True
+                )
+            ]
+            set_list(mark, "names", names)
+        fails = stresses.detail_fails
+        kinds, segments = np.nonzero(fails)
+        shear = np.flatnonzero(stresses.shear_fails)
+        fail_x = np.concatenate([stresses.detail_x[fails], stresses.shear_x[shear]])
+        fail_y = np.concatenate([stresses.detail_value[fails], stresses.shear_value[shear]])
+        limits = np.concatenate([stresses.detail_limit[fails], stresses.shear_limit[shear]])
+        words = [f"{DETAIL_STYLES[kind][0]} stress" for kind in kinds.tolist()]
+        words += ["shear stress"] * len(shear)
+        self.failing.visible = bool(len(fail_x))
+        self.failing.x = units.from_si(fail_x, "length")
+        self.failing.y = units.from_si(fail_y, "stress")
+        names = [
+            f"{what} fails, segment {segment}: utilisation {value / limit:.3f}"
+            for what, segment, value, limit in zip(
+                words,
+                [*segments.tolist(), *shear.tolist()],
+                fail_y.tolist(),
+                limits.tolist(),
+                strict=True,
+            )
+        ]
+        set_list(self.failing, "names", names)
+
+    @staticmethod
+    def _detail_label(stresses: ShaftStresses, kind: int) -> str:
+        factors = np.unique(stresses.factor[kind][~np.isnan(stresses.factor[kind])])
+        name = DETAIL_STYLES[kind][0]
+        if len(factors) == 1:
+            return f"{name} peak K·τ_nom, K = {factors[0]:.3g}"
+        return f"{name} peak K·τ_nom, K = {factors.min():.3g} to {factors.max():.3g}"
+
+    def check_entries(self) -> list[LegendEntry]:
+        """Legend entries of the allowable, each detail drawn and the failing mark."""
+        entries = []
+        if self.limit.visible:
+            entries.append(LegendEntry(self.limit.labels[0], LIMIT, "dash_dotted"))
+        for kind, label, line in self.drawn:
+            _, colour, marker = DETAIL_STYLES[kind]
+            words = f"{label}; mark: its check"
+            entries.append(LegendEntry(words, colour, "dashed" if line else "", marker))
+        if self.failing.visible:
+            entries.append(LegendEntry("fails its check", FAIL, "", FAIL_MARKER))
+        return entries
 
 
 class Charts:
     """Every chart of the panel, redrawn from (model, results, report) in one synced update."""
 
     def __init__(self) -> None:
-        self.x_scale = bq.LinearScale()
-        self.y_scale = bq.LinearScale()
-        scales = {"x": self.x_scale, "y": self.y_scale}
-        self.segments = bq.Lines(
-            x=[[0, 1]],
-            y=[[0, 0]],
-            scales=scales,
-            colors=[SHAFT],
-            fill="inside",
-            fill_colors=[SHAFT_FILL],
-            fill_opacities=[0.6],
-            stroke_width=1.2,
-        )
-        self.centre = bq.Lines(
-            x=[0, 1],
-            y=[0, 0],
-            scales=scales,
-            colors=[SHAFT],
-            line_style="dash_dotted",
-            stroke_width=0.8,
-        )
-        self.fixed = bq.Scatter(
-            x=[], y=[], scales=scales, marker="triangle-up", colors=[SUPPORT], default_size=140
-        )
-        self.spring = bq.Scatter(
-            x=[],
-            y=[],
-            scales=scales,
-            marker="diamond",
-            colors=[SUPPORT],
-            default_size=120,
-            fill=False,
-            stroke=SUPPORT,
-        )
-        self.prescribed = bq.Scatter(
-            x=[], y=[], scales=scales, marker="square", colors=[LIMIT], default_size=110
-        )
-        self.gears = bq.Lines(
-            x=[[0, 0]], y=[[0, 0]], scales=scales, colors=[SUPPORT], stroke_width=5, visible=False
-        )
-        self.torques = bq.Scatter(
-            x=[],
-            y=[],
-            scales=scales,
-            marker="circle",
-            colors=[LOAD],
-            default_size=90,
-            stroke=SUPPORT,
-        )
-        self.distributed = bq.Lines(
-            x=[[0, 0]],
-            y=[[0, 0]],
-            scales=scales,
-            colors=[LOAD],
-            stroke_width=6,
-            opacities=[0.8],
-            visible=False,
-        )
-        self.elevation = bq.Figure(
-            marks=[
-                self.centre,
-                self.segments,
-                self.gears,
-                self.distributed,
-                self.fixed,
-                self.spring,
-                self.prescribed,
-                self.torques,
-            ],
-            axes=[
-                bq.Axis(scale=self.x_scale, label="x"),
-                bq.Axis(scale=self.y_scale, side="left", label="radius", label_offset="45px"),
-            ],
-            title="Elevation (to scale)",
-            animation_duration=0,
-            fig_margin=_ELEVATION_MARGIN,
-            layout=Layout(width=f"{_ELEVATION_WIDTH}px", height=f"{_ELEVATION_HEIGHT}px"),
-            title_style={"font-size": "13px"},
-        )
-        self.elevation.add_class("wb-chart-elevation")
+        self.drawing = Elevation()
+        self.elevation = self.drawing.figure
+        # The drawing's marks, reachable as before.
+        self.segments, self.centre = self.drawing.segments, self.drawing.centre
+        self.fixed = self.drawing.supports["fixed"]
+        self.spring = self.drawing.supports["spring"]
+        self.prescribed = self.drawing.supports["prescribed"]
+        self.gears, self.torques = self.drawing.gears, self.drawing.torques
+        self.distributed = self.drawing.distributed
         self.torque = ResultChart("Internal torque", "torque")
         self.angle = ResultChart("Angle of twist", "angle")
-        self.stress = ResultChart("Shear stress", "stress")
+        self.stress = StressChart()
         self.bar_x, self.bar_y = bq.OrdinalScale(), bq.LinearScale(min=0.0)
         bar_scales = {"x": self.bar_x, "y": self.bar_y}
         self.bars = bq.Bars(
@@ -184,23 +265,35 @@ class Charts:
                 fields=["x", "y"], labels=["segment", "utilisation"], formats=["", ".3f"]
             ),
         )
+        self.bar_failing = failing_mark(
+            bar_scales,
+            bq.Tooltip(
+                fields=["x", "y"], labels=["segment fails", "utilisation"], formats=["", ".3f"]
+            ),
+        )
         self.bar_baseline = bq.Scatter(
             x=[],
             y=[],
             scales=bar_scales,
-            marker="cross",
+            marker="circle",
             colors=[BASELINE],
-            default_size=80,
+            default_size=60,
             visible=False,
             tooltip=bq.Tooltip(
                 fields=["x", "y"], labels=["segment", "baseline"], formats=["", ".3f"]
             ),
         )
         self.bar_limit = bq.Lines(
-            x=[0], y=[1.0], scales=bar_scales, colors=[LIMIT], line_style="dash_dotted"
+            x=[0],
+            y=[1.0],
+            scales=bar_scales,
+            colors=[LIMIT],
+            line_style="dash_dotted",
+            labels=["utilisation = 1"],
+            tooltip=bq.Tooltip(fields=["name"], labels=["limit"], formats=[""]),
         )
         self.utilisation = xy_figure(
-            [self.bars, self.bar_limit, self.bar_baseline],
+            [self.bars, self.bar_limit, self.bar_baseline, self.bar_failing],
             self.bar_x,
             self.bar_y,
             "segment",
@@ -208,12 +301,21 @@ class Charts:
             "Governing utilisation by segment",
         )
         self.utilisation.add_class("wb-chart-utilisation")
+        self.utilisation_legend = Legend("utilisation")
+        self.utilisation_box = w.VBox([self.utilisation, self.utilisation_legend.widget])
         self.figures = [
             self.elevation,
             self.torque.figure,
             self.angle.figure,
             self.stress.figure,
             self.utilisation,
+        ]
+        self.legends = [
+            self.drawing.legend,
+            self.torque.legend,
+            self.angle.legend,
+            self.stress.legend,
+            self.utilisation_legend,
         ]
 
     def draw(
@@ -230,7 +332,7 @@ class Charts:
         shaft = model.shafts[shaft_number]
         length_unit = unit_label(units, "length")
         with held(self.elevation):
-            self._draw_elevation(model, shaft_number, result)
+            self.drawing.draw(model, shaft_number, result, report)
         row = results.index(result)
         window = results._window(shaft_number)
         x = units.from_si(results.mesh.station_x[window], "length")
@@ -250,8 +352,8 @@ class Charts:
         for chart in (self.torque, self.angle, self.stress):
             values, quantity, y_label = series[chart.key]
             with held(chart.figure):
-                chart.set_labels(x_label, y_label)
-                chart.now.x, chart.now.y = x, units.from_si(values[row, window], quantity)
+                chart.set_labels(x_label, y_label, result)
+                base_curve = None
                 if base is not None:
                     base_results, base_window, base_row = base
                     source = {
@@ -259,134 +361,66 @@ class Charts:
                         "angle": base_results.angle,
                         "stress": base_results.shear_stress,
                     }[chart.key]
-                    chart.baseline.x = units.from_si(
-                        base_results.mesh.station_x[base_window], "length"
+                    base_curve = (
+                        units.from_si(base_results.mesh.station_x[base_window], "length"),
+                        units.from_si(source[base_row, base_window], quantity),
                     )
-                    chart.baseline.y = units.from_si(source[base_row, base_window], quantity)
-                chart.baseline.visible = base is not None
-                if chart.key == "stress":
-                    self._draw_allowable(report, shaft, result)
+                chart.set_curves(x, units.from_si(values[row, window], quantity), base_curve)
+                if chart is self.stress:
+                    bounds = units.from_si(shaft.boundaries, "length")
+                    self.stress.draw_checks(shaft_stresses(report, shaft.id, result), units, bounds)
+            now_label = {
+                "torque": "internal torque",
+                "angle": "angle of twist",
+                "stress": "nominal τ = T·r/J (no concentration)",
+            }[chart.key]
+            entries = chart.entries(f"{now_label}, {result}")
+            if chart is self.stress:
+                entries += self.stress.check_entries()
+            chart.legend.show(entries)
         with held(self.utilisation):
-            labels, now = segment_utilisation(report, shaft.id, len(shaft.segments), result)
-            self.bars.x, self.bars.y = labels, now
-            self.bar_limit.x, self.bar_limit.y = labels, np.ones(len(labels))
-            if baseline is not None:
-                base_labels, base_values = segment_utilisation(
-                    baseline[1], shaft.id, len(shaft.segments), result
-                )
-                self.bar_baseline.x, self.bar_baseline.y = base_labels, base_values
-            self.bar_baseline.visible = baseline is not None
+            self._draw_bars(report, shaft, result, baseline)
 
-    def _draw_allowable(self, report: CheckReport, shaft: Any, result: str) -> None:
-        units = report.results.model.units
-        limits = {
-            c.segment: c.limit
-            for c in report.checks
-            if c.kind == "shear_stress" and c.shaft == shaft.id and c.result == result
-        }
-        bounds = units.from_si(shaft.boundaries, "length")
-        xs, ys = [], []
-        for number in range(len(shaft.segments)):
-            if number in limits:
-                limit = units.from_si(limits[number], "stress")
-                xs += [bounds[number], bounds[number + 1]]
-                ys += [limit, limit]
-        self.stress.limit.x, self.stress.limit.y = np.array(xs), np.array(ys)
-        self.stress.limit.visible = bool(xs)
-
-    def _draw_elevation(self, model: Model, shaft_number: int, result: str) -> None:
-        units = model.units
-        shaft = model.shafts[shaft_number]
-        length = units.from_si(shaft.length, "length")
-        bounds = units.from_si(shaft.boundaries, "length")
-        outlines_x, outlines_y = [], []
-        fractions = np.linspace(0.0, 1.0, _SAMPLES)
-        radius_max = 0.0
-        for number, segment in enumerate(shaft.segments):
-            radius = units.from_si(segment.outer_radius_at(fractions), "length")
-            radius_max = max(radius_max, float(radius.max()))
-            along = bounds[number] + (bounds[number + 1] - bounds[number]) * fractions
-            outlines_x.append(np.concatenate([along, along[::-1], along[:1]]))
-            outlines_y.append(np.concatenate([radius, -radius[::-1], radius[:1]]))
-        self.segments.x, self.segments.y = np.array(outlines_x), np.array(outlines_y)
-        self.centre.x, self.centre.y = [0.0, length], [0.0, 0.0]
-        # Same scale on both axes for the figure's fixed plot area.
-        half_height = 0.5 * _PLOT_RATIO * length * 1.04
-        self.x_scale.min, self.x_scale.max = -0.02 * length, 1.02 * length
-        self.y_scale.min, self.y_scale.max = -half_height, half_height
-        length_unit = unit_label(units, "length")
-        self.elevation.axes[0].label = f"x [{length_unit}]"
-        self.elevation.axes[1].label = f"r [{length_unit}]"
-        marker_y = -max(radius_max * 1.25, 0.08 * half_height)
-        kinds: dict[str, list[float]] = {"fixed": [], "spring": [], "prescribed": []}
-        for support in model.supports:
-            if support.shaft != shaft.id:
-                continue
-            kind: str = support.kind
-            if kind == "fixed" and support.rotation != 0.0:
-                kind = "prescribed"
-            kinds[kind].append(float(units.from_si(support.x, "length")))
-        for kind, mark in (
-            ("fixed", self.fixed),
-            ("spring", self.spring),
-            ("prescribed", self.prescribed),
-        ):
-            mark.x = np.array(kinds[kind])
-            mark.y = np.full(len(kinds[kind]), marker_y)
-            set_tooltip(mark, [f"{kind} support at x [{length_unit}]"], ("x",))
-        gear_x, gear_y = [], []
-        for gear in model.gears:
-            for point in (gear.a, gear.b):
-                if point.shaft == shaft.id:
-                    x = float(units.from_si(point.x, "length"))
-                    radius = float(units.from_si(point.radius, "length"))
-                    gear_x.append([x, x])
-                    gear_y.append([-radius, radius])
-        self.gears.visible = bool(gear_x)
-        if gear_x:
-            self.gears.x, self.gears.y = np.array(gear_x), np.array(gear_y)
-            set_tooltip(self.gears, [f"gear at x [{length_unit}]", "pitch radius"])
-        torques_x, torques_t, spans_x = [], [], []
-        for case, factor in _cases_of(model, result):
-            for torque in case.torques:
-                if torque.shaft == shaft.id:
-                    torques_x.append(float(units.from_si(torque.x, "length")))
-                    torques_t.append(float(units.from_si(torque.torque * factor, "torque")))
-            for load in case.distributed:
-                if load.shaft == shaft.id:
-                    spans_x.append(units.from_si(np.array([load.start, load.end]), "length"))
-        load_y = max(radius_max * 1.35, 0.1 * half_height)
-        self.torques.x = np.array(torques_x)
-        self.torques.y = np.full(len(torques_x), load_y)
-        self.torques.default_size = 90
-        set_tooltip(self.torques, [f"point torque at x [{length_unit}]"], ("x",))
-        self.torques.names = [f"{t:.4g} {unit_label(units, 'torque')}" for t in torques_t]
-        self.torques.display_names = bool(torques_x)
-        self.distributed.visible = bool(spans_x)
-        if spans_x:
-            self.distributed.x = np.array(spans_x)
-            self.distributed.y = np.full((len(spans_x), 2), load_y)
-            set_tooltip(self.distributed, [f"distributed torque x [{length_unit}]", "r"])
-
-
-def _cases_of(model: Model, result: str) -> list[tuple[Any, float]]:
-    """The load cases behind a result, with their factors."""
-    for case in model.load_cases:
-        if case.name == result:
-            return [(case, 1.0)]
-    by_name = {case.name: case for case in model.load_cases}
-    for combination in model.combinations:
-        if combination.name == result:
-            return [(by_name[name], factor) for name, factor in combination.factors]
-    return []
+    def _draw_bars(
+        self,
+        report: CheckReport,
+        shaft: Any,
+        result: str,
+        baseline: tuple[Results, CheckReport] | None,
+    ) -> None:
+        labels, now, fails = segment_utilisation(report, shaft.id, len(shaft.segments), result)
+        self.bars.x, self.bars.y = labels, now
+        set_list(self.bars, "colors", np.where(fails, FAIL, SHAFT).tolist())
+        self.bar_failing.x, self.bar_failing.y = labels[fails], now[fails]
+        self.bar_failing.visible = bool(fails.any())
+        self.bar_limit.x, self.bar_limit.y = labels, np.ones(len(labels))
+        if baseline is not None:
+            base_labels, base_values, _ = segment_utilisation(
+                baseline[1], shaft.id, len(shaft.segments), result
+            )
+            self.bar_baseline.x, self.bar_baseline.y = base_labels, base_values
+        self.bar_baseline.visible = baseline is not None
+        entries = [LegendEntry(f"governing utilisation, {result}", SHAFT, "", "square")]
+        if fails.any():
+            entries.append(LegendEntry("fails (a check above its limit)", FAIL, "", FAIL_MARKER))
+        entries.append(LegendEntry("utilisation = 1", LIMIT, "dash_dotted"))
+        if baseline is not None:
+            entries.append(LegendEntry("baseline (pinned)", BASELINE, "", "circle"))
+        self.utilisation_legend.show(entries)
 
 
 def segment_utilisation(
     report: CheckReport, shaft_id: str, count: int, result: str
-) -> tuple[np.ndarray, np.ndarray]:
-    """(segment numbers, governing utilisation of each segment over its checks in ``result``)."""
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Each segment's governing utilisation in ``result`` and whether it fails there.
+
+    Returns (segment numbers, the largest utilisation of each over its checks in ``result``,
+    whether any of its checks fails there, as the check rows say).
+    """
     values = np.zeros(count)
+    fails = np.zeros(count, dtype=bool)
     for check in report.checks:
         if check.shaft == shaft_id and check.result == result and check.segment is not None:
             values[check.segment] = max(values[check.segment], check.utilisation)
-    return np.arange(count), values
+            fails[check.segment] |= not check.passes
+    return np.arange(count), values, fails

@@ -25,6 +25,7 @@ from workbench.panel.plotting import (
     SUPPORT,
     bq,
     held,
+    name_tooltip,
     set_tooltip,
     xy_figure,
 )
@@ -134,8 +135,10 @@ class FatigueChart:
             self.others.y = np.array(
                 [float(stress(p.factors.alternating_shear)) for p in points[1:]]
             )
-            set_tooltip(self.lines, [x_label, y_label])
-            set_tooltip(self.chosen, [x_label, f"{CRITERION_NAMES[criterion]} {y_label}"])
+            # A line's tooltip gets the curve, not a point: it names the curve (plotting).
+            name_tooltip(self.lines, "failure line")
+            self.chosen.labels = [f"{CRITERION_NAMES[criterion]} (the design's criterion)"]
+            name_tooltip(self.chosen, "chosen")
             set_tooltip(self.point, [f"governing {x_label}", y_label])
             set_tooltip(self.others, [f"other segments' {x_label}", y_label])
             self.figure.title = (

@@ -16,7 +16,17 @@ from ipywidgets import Layout
 from workbench.case.units import UnitSystem
 from workbench.panel.document import unit_label
 from workbench.panel.markup import render
-from workbench.panel.plotting import LOAD, SHAFT, SUPPORT, bq, held, set_tooltip, xy_figure
+from workbench.panel.plotting import (
+    LOAD,
+    SHAFT,
+    SUPPORT,
+    Legend,
+    LegendEntry,
+    bq,
+    held,
+    name_tooltip,
+    xy_figure,
+)
 from workbench.solver.modes import Modes
 
 #: Colours of the mode shapes, lowest mode first (our own ramp from slate blue to amber).
@@ -58,7 +68,6 @@ class ModesChart:
             scales=scales,
             colors=MODE_COLOURS,
             stroke_width=2.0,
-            display_legend=True,
             labels=["mode"],
             marker="circle",
             marker_size=12,
@@ -70,7 +79,6 @@ class ModesChart:
             colors=[SUPPORT],
             line_style="dashed",
             stroke_width=1.5,
-            display_legend=True,
             labels=["rigid body"],
             visible=False,
         )
@@ -83,8 +91,10 @@ class ModesChart:
             "Mode shapes (largest |angle| = 1)",
             height=260,
         )
-        self.shapes.legend_location = "top-right"
         self.shapes.add_class("wb-chart-modes")
+        # Beneath the figure, never over the curves; it lists the modes drawn and no other.
+        self.legend = Legend("modes")
+        self.bands_legend = Legend("frequencies")
         self.speed_scale = bq.LogScale()
         self.band_y = bq.LinearScale(min=0.0, max=1.0)
         band_scales = {"x": self.speed_scale, "y": self.band_y}
@@ -120,6 +130,10 @@ class ModesChart:
         )
         self.against.add_class("wb-chart-frequencies")
         self.figures = [self.shapes, self.against]
+        self.boxes = [
+            w.VBox([self.shapes, self.legend.widget]),
+            w.VBox([self.against, self.bands_legend.widget]),
+        ]
 
     def draw(self, modes: Any, shaft_number: int, speeds: Any, margin: float) -> None:
         """Draw the lowest :data:`MODES_SHOWN` modes along one shaft and every frequency."""
@@ -129,6 +143,7 @@ class ModesChart:
         shown = range(min(MODES_SHOWN, len(modes)))
         flexible = [mode for mode in shown if not modes.rigid_body[mode]]
         rigid = [mode for mode in shown if modes.rigid_body[mode]]
+        entries = []
         with held(self.shapes):
             self.shapes.axes[0].label = f"x [{length_unit}]"
             for mark, chosen, colours in (
@@ -151,7 +166,14 @@ class ModesChart:
                     else f"mode {mode + 1}: {modes.frequency[mode]:.4g} Hz"
                     for mode in chosen
                 ]
-                set_tooltip(mark, [f"x [{length_unit}]", "normalised angle"])
+                name_tooltip(mark, "mode")
+                line, marker = mark.line_style, mark.marker or ""
+                entries += [
+                    LegendEntry(label, colour, line, marker)
+                    for label, colour in zip(mark.labels, mark.colors, strict=True)
+                ]
+        entries.sort(key=lambda entry: int(entry.label.split(":")[0].split()[1]))
+        self.legend.show(entries)
         natural = rpm(modes.angular_frequency[~modes.rigid_body])
         lows = np.array([rpm(speed.minimum) for speed in speeds])
         highs = np.array([rpm(speed.maximum) for speed in speeds])
@@ -177,6 +199,13 @@ class ModesChart:
                     mark.labels = [speed.name for speed in speeds]
             self.speed_scale.min = floor
             self.speed_scale.max = 2.0 * max(positive) if positive else 10.0
+        bands = []
+        if len(natural):
+            bands.append(LegendEntry("natural frequency", SHAFT, "solid", "diamond"))
+        if len(lows):
+            bands.append(LegendEntry("running-speed band", LOAD, "solid", "square"))
+            bands.append(LegendEntry(f"band widened by ±{margin:.0%}", LOAD, "dashed"))
+        self.bands_legend.show(bands)
 
 
 class ModesSection:
@@ -188,7 +217,7 @@ class ModesSection:
         self.message.add_class("wb-modes-message")
         self.table = w.HTML()
         self.table.add_class("wb-frequencies")
-        self.figures = w.VBox([self.chart.shapes, self.chart.against, self.table])
+        self.figures = w.VBox([*self.chart.boxes, self.table])
         self.box = w.VBox([self.message, self.figures])
 
     def draw(

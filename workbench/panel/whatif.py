@@ -22,7 +22,21 @@ from workbench.panel.document import Path, clone, get_at, unit_label
 from workbench.panel.form import Form, entry_text, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
-from workbench.panel.plotting import CURRENT, LOAD, bq
+from workbench.panel.plotting import (
+    CURRENT,
+    FAIL,
+    LIMIT,
+    LOAD,
+    Legend,
+    LegendEntry,
+    bq,
+    name_tooltip,
+    readout,
+    set_tooltip,
+)
+
+#: The sweep's metric whose limit is 1 (a utilisation): the chart draws that line.
+UTILISATION_METRIC = "governing_utilisation"
 
 
 class WhatIf:
@@ -50,6 +64,7 @@ class WhatIf:
         self.form = form
         self._result_shown = result_shown
         self._cancelled = False
+        self._metric = ""
         #: The values of the last sweep so far (document units; NaN where a point is invalid).
         self.sweep_values: np.ndarray | None = None
         pin_button = w.Button(description="Pin baseline", icon="thumb-tack")
@@ -82,17 +97,49 @@ class WhatIf:
         self.sweep_message = form.message("whatif.sweep")
         self.sweep_x, self.sweep_y = bq.LinearScale(), bq.LinearScale()
         scales = {"x": self.sweep_x, "y": self.sweep_y}
-        self.sweep_line = bq.Lines(
+        self.sweep_line = bq.Lines(x=[], y=[], scales=scales, colors=[CURRENT], stroke_width=2)
+        name_tooltip(self.sweep_line, "curve")
+        #: The part of a utilisation sweep above 1 (designs that fail), dotted in its colour.
+        self.sweep_over = bq.Lines(
             x=[],
             y=[],
             scales=scales,
-            colors=[CURRENT],
-            stroke_width=2,
-            tooltip=bq.Tooltip(fields=["x", "y"], formats=[".4g", ".4g"]),
+            colors=[FAIL],
+            stroke_width=3,
+            line_style="dotted",
+            visible=False,
+            labels=["fails: utilisation above 1"],
         )
-        self.sweep_now = bq.Scatter(x=[], y=[], scales=scales, colors=[LOAD], default_size=80)
+        name_tooltip(self.sweep_over, "curve")
+        self.sweep_limit = bq.Lines(
+            x=[],
+            y=[],
+            scales=scales,
+            colors=[LIMIT],
+            line_style="dash_dotted",
+            stroke_width=1.5,
+            visible=False,
+            labels=["utilisation = 1"],
+        )
+        name_tooltip(self.sweep_limit, "limit")
+        self.sweep_readout = readout(scales, CURRENT)
+        self.sweep_now = bq.Scatter(
+            x=[],
+            y=[],
+            scales=scales,
+            colors=[LOAD],
+            default_size=80,
+            tooltip=bq.Tooltip(fields=["x", "y"], labels=["now", "value"], formats=[".4g", ".4g"]),
+        )
+        self.sweep_legend = Legend("sweep")
         self.sweep_figure = bq.Figure(
-            marks=[self.sweep_line, self.sweep_now],
+            marks=[
+                self.sweep_limit,
+                self.sweep_line,
+                self.sweep_over,
+                self.sweep_readout,
+                self.sweep_now,
+            ],
             axes=[
                 bq.Axis(scale=self.sweep_x, label="input"),
                 bq.Axis(scale=self.sweep_y, side="left", label="result", label_offset="45px"),
@@ -115,6 +162,7 @@ class WhatIf:
                     [self.sweep_run, self.sweep_cancel, self.sweep_progress, self.sweep_message]
                 ),
                 self.sweep_figure,
+                self.sweep_legend.widget,
             ]
         )
 
@@ -172,6 +220,9 @@ class WhatIf:
         input_label = dict((p, lbl) for lbl, p in self.sweep_input.options).get(path, "input")
         self.sweep_figure.axes[0].label = input_label
         self.sweep_figure.axes[1].label = label + unit
+        self.sweep_line.labels = [label + unit]
+        set_tooltip(self.sweep_readout, [input_label, label + unit])
+        self._metric = request.metric
         try:
             loop = asyncio.get_running_loop()
         except RuntimeError:
@@ -201,13 +252,39 @@ class WhatIf:
 
     def _sweep_step(self, values: tuple[float, ...], done: int, result: np.ndarray) -> None:
         self.sweep_values = result[:done]
+        x, y = np.array(values[:done]), result[:done]
         with self.sweep_figure.hold_sync():
-            self.sweep_line.x, self.sweep_line.y = np.array(values[:done]), result[:done]
+            self.sweep_line.x, self.sweep_line.y = x, y
+            valid = np.isfinite(y)  # a point that is not a valid case has nothing to read
+            self.sweep_readout.x, self.sweep_readout.y = x[valid], y[valid]
             current = get_at(self._document, self.sweep_input.value)
-            if isinstance(current, (int, float)) and done:
+            now = isinstance(current, (int, float)) and done
+            if now:
                 self.sweep_now.x = np.array([float(current)])
                 self.sweep_now.y = np.array([np.interp(current, values[:done], result[:done])])
+            utilisation = self._metric == UTILISATION_METRIC and done > 0
+            self.sweep_limit.visible = utilisation
+            if utilisation:
+                self.sweep_limit.x = np.array([x.min(), x.max()])
+                self.sweep_limit.y = np.ones(2)
+            over = utilisation and bool(np.any(y > 1.0))
+            self.sweep_over.visible = over
+            if over:
+                self.sweep_over.x = x
+                self.sweep_over.y = np.where(y > 1.0, y, np.nan)
+        self.sweep_legend.show(self._sweep_entries(bool(now)))
         self.sweep_progress.value = done
+
+    def _sweep_entries(self, now: bool) -> list[LegendEntry]:
+        """The legend of what the sweep chart draws."""
+        entries = [LegendEntry(self.sweep_line.labels[0], CURRENT, "solid")]
+        if self.sweep_over.visible:
+            entries.append(LegendEntry(self.sweep_over.labels[0], FAIL, "dotted"))
+        if self.sweep_limit.visible:
+            entries.append(LegendEntry("utilisation = 1 (the limit)", LIMIT, "dash_dotted"))
+        if now:
+            entries.append(LegendEntry("the case as it is now", LOAD, "", "circle"))
+        return entries
 
     def _sweep_done(self) -> None:
         self.sweep_run.disabled, self.sweep_cancel.disabled = False, True

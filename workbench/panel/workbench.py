@@ -263,12 +263,13 @@ class Workbench:
             [
                 marks.note("These charts are those"),
                 self.charts.elevation,
+                self.charts.drawing.legend.widget,
                 w.GridBox(
                     [
-                        self.charts.torque.figure,
-                        self.charts.angle.figure,
-                        self.charts.stress.figure,
-                        self.charts.utilisation,
+                        self.charts.torque.box,
+                        self.charts.angle.box,
+                        self.charts.stress.box,
+                        self.charts.utilisation_box,
                     ],
                     layout=w.Layout(grid_template_columns="1fr 1fr", width="100%"),
                 ),
