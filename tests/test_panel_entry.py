@@ -20,6 +20,7 @@ import ipywidgets as w
 import pytest
 
 from tests.panel_cases import field, message_beside, open_demo, shown_messages, simple_case
+from workbench.case.errors import InputError
 from workbench.case.units import registry
 from workbench.panel import Workbench
 from workbench.panel.markup import render
@@ -99,6 +100,20 @@ def test_a_mixed_number_in_inches_in_an_si_panel() -> None:
     entry.value = "2 1/4 in"
     assert panel.document["shafts"][0]["segments"][0]["section"]["diameter"] == 57.15
     assert entry.value == "57.15"
+
+
+def test_entering_text_from_code_reads_it_as_typed() -> None:
+    panel = Workbench(simple_case(diameter=40.0))
+    panel.enter(DIAMETER, "2 in")  # 50.8 mm (NIST SP 811, 2008, B.8: 1 in = 25.4 mm)
+    assert panel.document["shafts"][0]["segments"][0]["section"]["diameter"] == 50.8
+    assert field(panel, DIAMETER).value == "50.8" and not panel.stale
+    assert largest_shear_mpa(panel) == pytest.approx(tau_max_mpa(500.0, 2 * INCH), rel=1e-9)
+    count = panel.solve_count
+    panel.enter(DIAMETER, "7o")  # refused beside the field, nothing solved
+    assert panel.stale and panel.solve_count == count
+    assert "'7o'" in html.unescape(message_beside(panel, DIAMETER).value)
+    with pytest.raises(InputError, match="no entry of this field"):
+        panel.enter("shafts[0].segments[9].section.diameter", "50")
 
 
 def test_a_torque_with_thousands_separator() -> None:

@@ -198,6 +198,31 @@ class Workbench:
         """The current case file text (last valid case, panel units)."""
         return self.state.case_json()
 
+    def enter(self, field: str, text: str) -> None:
+        """Type ``text`` into the entry of ``field``, as a person would, and press Enter.
+
+        It is read like typed text (``71``, ``71 mm``, ``2 3/4 in``): a refused value shows beside
+        the field and nothing is solved.
+
+        Parameters
+        ----------
+        field
+            The field's path as the panel names it, e.g.
+            ``"shafts[0].segments[0].section.diameter"`` (a field of the shaft shown).
+        text
+            What is typed, with or without a unit (the field's unit when without).
+
+        Raises
+        ------
+        InputError
+            When no entry of that field is on the panel.
+        """
+        entries = [x for x in self.form.fields.get(field, []) if isinstance(x, w.Text)]
+        if not entries:
+            raise InputError(field, "no entry of this field is shown on the panel")
+        entries[0].value = text
+        self.settle()
+
     def settle(self) -> None:
         """Solve and redraw a pending edit now instead of when the burst of edits ends."""
         self.state.settle()
