@@ -10,7 +10,7 @@ import math
 from collections.abc import Callable, Iterable, Iterator
 from typing import TypeVar
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 
 Item = TypeVar("Item")
@@ -20,7 +20,7 @@ Built = TypeVar("Built")
 def require_positive(name: str, value: float, quantity: str = "length") -> None:
     """Raise :class:`InputError` unless ``value`` is a finite number greater than zero."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
+        raise InputError(name, f"must be a number, not {quoted(value)}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")
     if value <= 0.0:
@@ -30,7 +30,7 @@ def require_positive(name: str, value: float, quantity: str = "length") -> None:
 def require_non_negative(name: str, value: float, quantity: str = "length") -> None:
     """Raise :class:`InputError` unless ``value`` is a finite number of at least zero."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
+        raise InputError(name, f"must be a number, not {quoted(value)}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")
     if value < 0.0:
@@ -79,6 +79,6 @@ def field_path(prefix: str) -> Iterator[None]:
 def require_finite(name: str, value: float) -> None:
     """Raise :class:`InputError` unless ``value`` is a finite real number (sign free)."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
+        raise InputError(name, f"must be a number, not {quoted(value)}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")

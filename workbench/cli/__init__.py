@@ -13,7 +13,7 @@ import sys
 import traceback
 from collections.abc import Sequence
 
-from workbench.case.errors import InputError, WorkbenchError
+from workbench.case.errors import InputError, WorkbenchError, one_line
 from workbench.cli.status import EXIT_BAD_INPUT, EXIT_INTERNAL_ERROR, EXIT_OK
 from workbench.design.caution import CAUTION
 
@@ -54,7 +54,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         sys.stderr.write(f"{error}\n")
         return EXIT_BAD_INPUT
     except WorkbenchError as error:
-        sys.stderr.write(f"error: {error}\n")
+        sys.stderr.write(one_line(f"error: {error}") + "\n")
         return EXIT_BAD_INPUT
     except BrokenPipeError:
         return EXIT_OK

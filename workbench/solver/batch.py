@@ -39,7 +39,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, listing
 from workbench.case.units import quote
 from workbench.solver.columns import (
     DIMENSION_KEYS,
@@ -464,7 +464,7 @@ def solve_batch(base: Model | CaseTable, **variants: Any) -> BatchResults:
     unknown = set(variants) - set(SEGMENT_COLUMNS) - set(CASE_COLUMNS)
     if unknown:
         known = ", ".join((*SEGMENT_COLUMNS, *CASE_COLUMNS, "outer_diameter"))
-        msg = f"unknown column(s) {', '.join(sorted(unknown))}; known: {known}"
+        msg = f"unknown column(s) {listing(sorted(unknown))}; known: {known}"
         raise InputError("variants", msg)
     columns = {name: np.asarray(values, dtype=float) for name, values in variants.items()}
     n_variants = _n_variants(columns) if columns else 1

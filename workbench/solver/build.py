@@ -13,6 +13,7 @@ import contextlib
 import dataclasses
 import functools
 import gc
+import itertools
 from collections.abc import Iterator
 from typing import TYPE_CHECKING, Any
 
@@ -21,8 +22,8 @@ from msgspec import UNSET
 from workbench.case import declaration as declared
 from workbench.case.convert import Converter, unit_system
 from workbench.case.design import design_criteria, design_section
-from workbench.case.errors import InputError
-from workbench.case.materials import Material, library_material
+from workbench.case.errors import InputError, path_key, quoted
+from workbench.case.materials import LIBRARY, Material, closest_names, library_material
 from workbench.case.power import torque_from_power
 from workbench.case.units import SI, UnitSystem, display_units
 from workbench.case.validate import build_each, within
@@ -89,7 +90,7 @@ class ModelBuilder:
             try:
                 self.materials[name] = self._material(name, entry)
             except InputError as error:
-                raise within(f"materials.{name}", error) from None
+                raise within(f"materials.{path_key(name)}", error) from None
         self._library: dict[str, Material] = {}
 
     def _material(self, name: str, entry: declared.Material) -> Material:
@@ -112,9 +113,13 @@ class ModelBuilder:
             return found
         try:
             found = dataclasses.replace(library_material(name), name=name)
-        except InputError as error:
-            own = ", ".join(sorted(self.materials)) or "none"
-            msg = f"unknown material {name!r}: not defined in materials (defined: {own}); {error.message}"
+        except InputError:
+            own = itertools.islice(self.materials, 1000)  # a hint, not a search of every name
+            hint = closest_names(name, [*own, *LIBRARY])
+            msg = (
+                f"unknown material {quoted(name)}: not among the case's {len(self.materials):,} "
+                f"materials nor the library's {len(LIBRARY)}{hint}"
+            )
             raise InputError("material", msg) from None
         self._library[name] = found
         return found
