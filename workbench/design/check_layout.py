@@ -31,6 +31,7 @@ from typing import Protocol
 import numpy as np
 
 from workbench.case.design import DesignCriteria
+from workbench.case.errors import InputError
 from workbench.case.materials import Material
 from workbench.design.allowables import TWIST_RATE_PRESETS, Allowable, allowable_shear_stress
 from workbench.design.static_checks import CONCENTRATION_KINDS, BoolArray, IntArray
@@ -190,16 +191,26 @@ class _Allowables:
         self.design = design
         self.found: dict[int, Allowable] = {}
 
-    def __call__(self, material: Material) -> Allowable:
+    def __call__(self, material: Material, path: str) -> Allowable:
+        """The allowable of ``material``, found once.
+
+        A strength the criterion needs and the material lacks is named at ``path.material``: the
+        segment (or layer) that uses it, the first one the checks come to.
+        """
         key = id(material)
         if key not in self.found:
-            self.found[key] = allowable_shear_stress(
-                material,
-                self.design.shear_criterion,
-                self.design.factor_of_safety,
-                keyway=self.design.keyway,
-                stated_allowable=self.design.allowable_shear_stress,
-            )
+            try:
+                self.found[key] = allowable_shear_stress(
+                    material,
+                    self.design.shear_criterion,
+                    self.design.factor_of_safety,
+                    keyway=self.design.keyway,
+                    stated_allowable=self.design.allowable_shear_stress,
+                )
+            except InputError as error:
+                if error.field not in ("material", "yield_strength", "ultimate_strength"):
+                    raise
+                raise InputError(f"{path}.material", error.message) from None
         return self.found[key]
 
 
@@ -265,11 +276,12 @@ def check_layout(model: Model, mesh: CheckMesh, design: DesignCriteria) -> Check
     unchecked: list[tuple[int, int, str]] = []
     allowables = _Allowables(design)
     # Reading the segment objects into columns; the factors are computed on the columns.
-    for index, (_, number, shaft, segment) in enumerate(segments):
+    for index, (shaft_number, number, shaft, segment) in enumerate(segments):
         layered = len(segment.layers) > 1
         bases = []
         for slot, layer in enumerate(segment.layers):
-            found = allowables(layer.material)
+            path = f"shafts[{shaft_number}].segments[{number}]"
+            found = allowables(layer.material, f"{path}.layers[{slot}]" if layered else path)
             allowable[slot, index] = found.value
             bases.append((f"layer {slot}: " if layered else "") + found.basis)
         layer_notes.append(tuple(bases))
