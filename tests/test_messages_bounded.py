@@ -119,7 +119,9 @@ def test_size_names_a_segment_beyond_the_preferred_numbers(tmp_path: Path) -> No
 def test_verify_names_the_option_of_a_key_file_that_is_no_key(tmp_path: Path) -> None:
     key = tmp_path / "key.pem"
     key.write_bytes(b"")
-    status, _, stderr = run(["verify", str(FIXTURES / "record-before.html"), "--public-key", str(key)])
+    status, _, stderr = run(
+        ["verify", str(FIXTURES / "record-before.html"), "--public-key", str(key)]
+    )
     assert status == 2
     assert stderr == f"--public-key: {key} is neither a PEM public key nor a JWK JSON file\n"
 
@@ -147,3 +149,14 @@ def test_quoting_helpers_cut_values_and_lists() -> None:
     assert listing(["a", "b", "c", "d", "e", "f", "g"]) == "'a', 'b', 'c', 'd', 'e' and 2 more"
     assert path_key("steel 1020") == "steel 1020"
     assert path_key(" x") == '" x"'
+
+
+def test_an_allowable_stated_for_another_criterion_names_its_key(tmp_path: Path) -> None:
+    case = copy.deepcopy(LINE_SHAFT)
+    case["design"]["allowable_shear_stress"] = 5
+    for command in ("check", "size"):
+        line = refusal(tmp_path, case, command)
+        assert line == (
+            "design.allowable_shear_stress: is used only with criterion 'allowable', "
+            "not 'von_mises'"
+        )

@@ -184,6 +184,15 @@ def _fixed_twist_limit(design: DesignCriteria) -> tuple[float, str]:
 _ENDS = np.array([0.0, 1.0])
 
 
+#: The case file's key of each design value the allowable refuses; any other fault (a strength
+#: the material lacks) is the material's, named at the segment that uses it.
+_DESIGN_FIELDS = {
+    "criterion": "design.shear_criterion",
+    "factor_of_safety": "design.factor_of_safety",
+    "stated_allowable": "design.allowable_shear_stress",
+}
+
+
 class _Allowables:
     """Each material's allowable shear stress under the design, found once per material."""
 
@@ -208,9 +217,8 @@ class _Allowables:
                     stated_allowable=self.design.allowable_shear_stress,
                 )
             except InputError as error:
-                if error.field not in ("material", "yield_strength", "ultimate_strength"):
-                    raise
-                raise InputError(f"{path}.material", error.message) from None
+                field = _DESIGN_FIELDS.get(error.field, f"{path}.material")
+                raise InputError(field, error.message) from None
         return self.found[key]
 
 
