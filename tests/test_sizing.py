@@ -414,8 +414,16 @@ def test_descent_ends_on_sizes_read_back_from_inches(tmp_path: Path) -> None:
             {
                 "id": "s0",
                 "segments": [
-                    {"length": 36.44, "material": "steel", "section": {"shape": "solid", "diameter": 7.504}},
-                    {"length": 34.02, "material": "steel", "section": {"shape": "solid", "diameter": 1.305}},
+                    {
+                        "length": 36.44,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 7.504},
+                    },
+                    {
+                        "length": 34.02,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 1.305},
+                    },
                 ],
             }
         ],
