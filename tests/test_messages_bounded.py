@@ -72,6 +72,12 @@ def test_a_key_that_would_break_the_line_or_vanish_is_quoted(tmp_path: Path) -> 
     case = copy.deepcopy(LINE_SHAFT)
     case[""] = 1
     assert refusal(tmp_path, case).startswith('"": unknown key (expected: ')
+    case = copy.deepcopy(LINE_SHAFT)
+    case["¶\x8f\U0010cb9d"] = 1  # a C1 control and a private-use character: escaped
+    assert refusal(tmp_path, case).startswith('"¶\\u008f\\U0010cb9d": unknown key (expected: ')
+    case = copy.deepcopy(LINE_SHAFT)
+    case["`a`b"] = 1  # msgspec quotes names in backticks
+    assert refusal(tmp_path, case).startswith("`a`b: unknown key (expected: ")
 
 
 def test_a_long_material_name_in_a_path_is_cut(tmp_path: Path) -> None:

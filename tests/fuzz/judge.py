@@ -31,7 +31,7 @@ from tests.fuzz.documents import get_at, places
 from tests.fuzz.equilibrium import equilibrium_problem
 from tests.fuzz.harness import Run, run
 from workbench.case.declaration import CaseFile
-from workbench.case.errors import short
+from workbench.case.errors import path_key
 from workbench.case.schema import case_schema
 
 #: Names a message may start with: the case file's top-level keys, and the commands' options.
@@ -60,9 +60,8 @@ def names_a_field(line: str, document: Any, case_path: str) -> bool:
     if line.startswith(f"{case_path}: ") or _OPTION.match(line) or _LIST_ROOT.match(line):
         return True
     names = set(_TOP_KEYS)
-    if isinstance(document, dict):  # an unknown key, as written or in JSON quotes
-        names |= {short(str(key)) for key in document}
-        names |= {short(json.dumps(str(key), ensure_ascii=False)) for key in document}
+    if isinstance(document, dict):  # an unknown key, as a path shows it
+        names |= {path_key(str(key)) for key in document}
     return any(
         (line.startswith(name) and line[len(name) : len(name) + 2] in (": ", ".", "["))
         or line.startswith(f"{name}[")

@@ -41,8 +41,15 @@ def path_key(name: str) -> str:
     As written, or in JSON quotes when it is empty, has blanks at an end or characters that are
     not plain text (a line break would split the message).
     """
-    plain = name.isprintable() and name.strip() == name != ""
-    return short(name if plain else json.dumps(name, ensure_ascii=False))
+    if name.isprintable() and name.strip() == name != "":
+        return short(name)
+    written = json.dumps(name, ensure_ascii=False)
+    return short("".join(c if c.isprintable() else _escaped(c) for c in written))
+
+
+def _escaped(character: str) -> str:
+    code = ord(character)
+    return f"\\u{code:04x}" if code <= 0xFFFF else f"\\U{code:08x}"
 
 
 def listing(names: Iterable[Any]) -> str:

@@ -228,12 +228,12 @@ def _fits(name: str, declared: Unwrapped) -> bool:
 def _message(walk: _Walk, what: str, document: Any) -> InputError:
     value = walk.value
     if what.startswith("Object contains unknown field"):
-        name = what.split("`")[1]
+        name = _quoted_name(what)
         struct = walk.struct()
         expected = f" (expected: {_expected_keys(struct)})" if struct else ""
         return InputError(walk.path(path_key(name)), f"unknown key{expected}")
     if what.startswith("Object missing required field"):
-        return InputError(walk.path(path_key(what.split("`")[1])), "is required")
+        return InputError(walk.path(path_key(_quoted_name(what))), "is required")
     own = re.match(r"^([a-z_]+): (.*)$", what, re.S)
     struct = walk.struct()
     if own and struct is not None and own[1] in struct.__struct_fields__:
@@ -251,6 +251,11 @@ def _message(walk: _Walk, what: str, document: Any) -> InputError:
     if what.startswith("Expected") and walk.found:
         return InputError(walk.path(), bound_message(walk.declared, value, document))
     return InputError(walk.path(), what)
+
+
+def _quoted_name(what: str) -> str:
+    """The name msgspec quotes in backticks (the name may hold backticks itself)."""
+    return what[what.index("`") + 1 : what.rindex("`")]
 
 
 def _unknown_name(walk: _Walk, value: Any) -> str:
