@@ -88,6 +88,8 @@ def test_any_value_typed_into_any_field_gives_a_message_or_a_solve(
         texts = {_plain(message) for message in shown}
         if not texts:
             problems.append(f"stale, no message beside a field: {_plain(panel.status.value)}")
+        elif any("unexpected error" in t for t in texts):
+            problems.append(f"an unexpected error: {texts}")
         elif len(texts) > 1:
             problems.append(f"several messages: {texts}")
         elif any("\n" in t or len(t) > LONGEST_MESSAGE for t in texts):
