@@ -13,12 +13,14 @@ import faulthandler
 import io
 import os
 import signal
+import time
 import warnings
 from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
 
 from hypothesis import HealthCheck, settings
 
+from tests.fuzz.open_defects import known_open
 from workbench.cli import main
 
 #: The longest run allowed for one command on one input (s): beyond it the run has hung.
@@ -126,8 +128,6 @@ def run(command: str, argv: Sequence[str], *, tally: bool = True) -> Run:
     ``command`` names the run in the fuzz figures (``"solve --json"``); ``tally=False`` leaves
     it out of them.
     """
-    import time
-
     out, err = _stream(), _stream()
     status: int | None = None
     overtime = False
@@ -145,6 +145,9 @@ def run(command: str, argv: Sequence[str], *, tally: bool = True) -> Run:
             overtime = True
         except SystemExit as exit_:  # argparse's own refusals
             status = exit_.code if isinstance(exit_.code, int) else 2
+        except Exception as error:
+            text = f"traceback: {type(error).__name__}: {error}"[:400]
+            err.write(text.encode("utf-8", "backslashreplace").decode("utf-8") + "\n")
     seconds = time.perf_counter() - started
     result = Run(
         command=command,
@@ -164,8 +167,6 @@ def run(command: str, argv: Sequence[str], *, tally: bool = True) -> Run:
 
 def set_aside(problems: Sequence[str], mutations: Sequence[str]) -> list[str]:
     """The problems that are no known open defect; the others are counted, not failed on."""
-    from tests.fuzz.open_defects import known_open
-
     left = []
     for problem in problems:
         defect = known_open(problem, mutations)
@@ -184,7 +185,7 @@ def summary() -> list[str]:
         total = sum(kinds.values())
         shown = ", ".join(f"{k}: {n}" for k, n in kinds.items())
         timing = f" in {SECONDS[command]:.1f} s" if command in SECONDS else ""
-        lines.append(f"{command}: {total} runs{timing} ({shown})")
+        lines.append(f"{command}: {total}{timing} ({shown})")
     return lines
 
 
