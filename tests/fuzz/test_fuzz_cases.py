@@ -18,7 +18,7 @@ from tests.fuzz.harness import TALLY, fail, fuzz_settings, set_aside
 from tests.fuzz.judge import judge_case
 
 #: Case files per CI run; each goes through five commands.
-CI_EXAMPLES = 2000
+CI_EXAMPLES = 1500
 
 
 @fuzz_settings(CI_EXAMPLES)
