@@ -550,3 +550,17 @@ def test_case_state_alone_solves_keeps_the_last_good_results_and_names_the_field
     assert state.change_units("us")
     diameter = state.document["shafts"][0]["segments"][0]["section"]["diameter"]
     assert diameter == pytest.approx(40 / 25.4, rel=1e-11)  # the case file keeps 12 digits
+
+
+def test_a_rename_that_duplicates_another_name_is_told_beside_the_name(panel: Workbench) -> None:
+    # Found by the fuzzer (tests/fuzz): the duplicate is named at the other load case, whose
+    # name is not shown while this one is picked, so no message line showed it.
+    path = "load_cases[0].name"
+    field(panel, path).value = "jam"
+    assert panel.stale
+    shown = html.unescape(message_beside(panel, path).value)
+    assert "duplicate name 'jam'" in shown and "load case" in shown
+    assert shown_messages(panel) == [message_beside(panel, path).value]
+    assert "wb-stale" in panel.charts_box._dom_classes
+    field(panel, path).value = "pressing"
+    assert not panel.stale and shown_messages(panel) == []

@@ -401,3 +401,40 @@ def test_sizing_terminates_when_a_segment_sheds_torque_as_it_shrinks(series: str
         assert row.diameter_after >= 0.25 * row.diameter_before * (1 - 1e-9)
         assert row.diameter_after / MM <= 12.5 * 1.0001
     assert_local_minimum(model, outcome, series_sizes_mm(series))
+
+
+def test_descent_ends_on_sizes_read_back_from_inches(tmp_path: Path) -> None:
+    # Found by the fuzzer (tests/fuzz): with no load every size passes, and a size read back
+    # from SI in inches sat a rounding error above its preferred number, so "one size down"
+    # gave the same size again and the descent never ended.
+    case = {
+        "units": {"length": "in", "torque": "lbf*in", "stress": "psi", "angle": "deg"},
+        "materials": {"steel": {"shear_modulus": 11.5e6, "yield_strength": 50750}},
+        "shafts": [
+            {
+                "id": "s0",
+                "segments": [
+                    {
+                        "length": 36.44,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 7.504},
+                    },
+                    {
+                        "length": 34.02,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 1.305},
+                    },
+                ],
+            }
+        ],
+        "supports": [{"shaft": "s0", "x": 0.0}],
+        "load_cases": [{"name": "none", "torques": [{"shaft": "s0", "x": 0.0, "torque": 0.0}]}],
+    }
+    model = parse_case(case)
+    with time_limit(60.0):
+        outcome = size_shafts(model, SizingRequest.from_arguments(model, None))
+    assert outcome.passes
+    # Each segment stops at its floor: the preferred size at or above 25 % of its start (R40).
+    assert [row.at_floor for row in outcome.segments] == [True, True]
+    after = [row.diameter_after for row in outcome.segments]
+    assert after == pytest.approx([1.90 * 0.0254, 0.335 * 0.0254])

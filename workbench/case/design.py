@@ -32,7 +32,7 @@ from workbench.case.declaration import (
     default_of,
     value_of,
 )
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import build_each, require_positive, within
 
@@ -109,21 +109,23 @@ class FatigueCriteria:
         if self.extremes is not None and len(self.extremes) != 2:
             raise InputError("extremes", "must name exactly two results")
         if self.finish not in SURFACE_FINISHES:
-            msg = f"unknown finish {self.finish!r}; choose one of {', '.join(SURFACE_FINISHES)}"
+            msg = (
+                f"unknown finish {quoted(self.finish)}; choose one of {', '.join(SURFACE_FINISHES)}"
+            )
             raise InputError("finish", msg)
         if self.reliability not in RELIABILITIES:
             known = ", ".join(f"{r:g}" for r in RELIABILITIES)
-            raise InputError("reliability", f"must be one of {known}, not {self.reliability!r}")
-        if self.criterion not in FATIGUE_CRITERIA:
-            msg = (
-                f"unknown criterion {self.criterion!r}; choose one of {', '.join(FATIGUE_CRITERIA)}"
+            raise InputError(
+                "reliability", f"must be one of {known}, not {quoted(self.reliability)}"
             )
+        if self.criterion not in FATIGUE_CRITERIA:
+            msg = f"unknown criterion {quoted(self.criterion)}; choose one of {', '.join(FATIGUE_CRITERIA)}"
             raise InputError("criterion", msg)
         if self.endurance_limit is not None:
             require_positive("endurance_limit", self.endurance_limit, "stress")
         if self.mean_concentration not in MEAN_CONCENTRATIONS:
             msg = (
-                f"unknown mean_concentration {self.mean_concentration!r}; choose one of "
+                f"unknown mean_concentration {quoted(self.mean_concentration)}; choose one of "
                 f"{', '.join(MEAN_CONCENTRATIONS)}"
             )
             raise InputError("mean_concentration", msg)
@@ -227,12 +229,12 @@ class DesignCriteria:
     def __post_init__(self) -> None:
         if self.twist_rate_preset is not None and self.twist_rate_preset not in TWIST_RATE_RULES:
             msg = (
-                f"unknown preset {self.twist_rate_preset!r}; give a number or one of "
+                f"unknown preset {quoted(self.twist_rate_preset)}; give a number or one of "
                 f"{', '.join(TWIST_RATE_RULES)}"
             )
             raise InputError("max_twist_rate", msg)
         if self.shear_criterion not in SHEAR_CRITERIA:
-            msg = f"unknown criterion {self.shear_criterion!r}; choose one of {', '.join(SHEAR_CRITERIA)}"
+            msg = f"unknown criterion {quoted(self.shear_criterion)}; choose one of {', '.join(SHEAR_CRITERIA)}"
             raise InputError("shear_criterion", msg)
         if (
             isinstance(self.factor_of_safety, bool)
@@ -260,7 +262,7 @@ class DesignCriteria:
             or not math.isfinite(margin)
             or not 0.0 <= margin < 1.0
         ):
-            msg = f"must be a fraction from 0 up to (not including) 1, not {margin!r}"
+            msg = f"must be a fraction from 0 up to (not including) 1, not {quoted(margin)}"
             raise InputError("frequency_margin", msg)
         pieces = self.modal_elements_per_segment
         if (
@@ -268,7 +270,7 @@ class DesignCriteria:
             or not isinstance(pieces, int)
             or not 1 <= pieces <= MAX_MODAL_ELEMENTS
         ):
-            msg = f"must be a whole number from 1 to {MAX_MODAL_ELEMENTS:,}, not {pieces!r}"
+            msg = f"must be a whole number from 1 to {MAX_MODAL_ELEMENTS:,}, not {quoted(pieces)}"
             raise InputError("modal_elements_per_segment", msg)
         if self.modal_max_element_length is not None:
             require_positive("modal_max_element_length", self.modal_max_element_length)

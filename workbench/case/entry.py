@@ -14,8 +14,7 @@ import re
 import unicodedata
 
 from workbench.case.declaration.keys import MAX_NUMBER_DIGITS, MAX_UNIT_LENGTH
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, short
 from workbench.case.units import UnitSystem, unit_factor
 
 #: The number at the start of an entry, then the unit. Thousands commas only in groups of three,

@@ -20,10 +20,10 @@ from __future__ import annotations
 
 import difflib
 import math
+from collections.abc import Iterable
 from dataclasses import dataclass
 
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, listing, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 
@@ -81,7 +81,7 @@ class Material:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            msg = f"must be a non-empty string, not {self.name!r}"
+            msg = f"must be a non-empty string, not {quoted(self.name)}"
             raise InputError(field="name", message=msg)
         require_positive("shear_modulus", self.shear_modulus, "stress")
         for field_name, quantity in (
@@ -96,7 +96,7 @@ class Material:
         ratio = self.poisson_ratio
         if ratio is not None:
             if not isinstance(ratio, (int, float)) or isinstance(ratio, bool):
-                msg = f"must be a number, not {ratio!r}"
+                msg = f"must be a number, not {quoted(ratio)}"
                 raise InputError(field="poisson_ratio", message=msg)
             if not (math.isfinite(ratio) and -1.0 < ratio <= 0.5):
                 msg = f"must lie in (-1, 0.5] for an isotropic solid, not {ratio}"
@@ -112,7 +112,7 @@ class Material:
             )
             raise InputError(field="yield_strength", message=msg)
         if not isinstance(self.source, str):
-            msg = f"must be a string, not {self.source!r}"
+            msg = f"must be a string, not {quoted(self.source)}"
             raise InputError(field="source", message=msg)
 
 
@@ -326,6 +326,15 @@ LIBRARY: dict[str, Material] = {
 }
 
 
+def closest_names(name: str, names: Iterable[str]) -> str:
+    """``"; did you mean 'a', 'b'?"``: up to three of ``names`` close to ``name``, or ``""``.
+
+    The names themselves may be many; the message stays one short line.
+    """
+    close = difflib.get_close_matches(name, list(names), n=3, cutoff=0.5)
+    return f"; did you mean {listing(close)}?" if close else ""
+
+
 def library_material(name: str) -> Material:
     """Return a material of :data:`LIBRARY` by its key.
 
@@ -351,11 +360,5 @@ def library_material(name: str) -> Material:
     key = name.strip().lower() if isinstance(name, str) else ""
     if key in LIBRARY:
         return LIBRARY[key]
-    close = difflib.get_close_matches(key, list(LIBRARY), n=3, cutoff=0.5)
-    hint = (
-        f"; did you mean {', '.join(repr(c) for c in close)}?"
-        if close
-        else (f"; known materials: {short(', '.join(sorted(LIBRARY)))}")
-    )
-    msg = f"no library material named {short(str(name))!r}{hint}"
+    msg = f"no library material named {quoted(name)}{closest_names(key, LIBRARY)}"
     raise InputError(field="material", message=msg)

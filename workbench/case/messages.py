@@ -15,8 +15,7 @@ from typing import Any
 import msgspec
 
 from workbench.case.declaration import CaseFile, Keys, Span, Unwrapped, field_type, quantity_of
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, path_key, quoted
 
 #: msgspec's report: what is wrong, then where: `` - at `$.a[0].b``` or, for a dict's key,
 #: `` - at `key` in `$.a```.
@@ -55,7 +54,7 @@ def kind_of(value: Any) -> str:
     names = {dict: "an object", list: "a list", str: "a string", bool: "true/false"}
     if value is None:
         return "null"
-    return names.get(type(value), short(repr(value)))
+    return names.get(type(value), quoted(value))
 
 
 def _unit(document: Any, quantity: str | None) -> str:
@@ -86,24 +85,24 @@ def bound_message(declared: Unwrapped, value: Any, document: Any) -> str:
             return f"must be {expect}, not {_number(value)}"
         if declared.bound("multiple_of") == 1 and not float(value).is_integer():
             return f"must be a whole number, not {_number(value)}"
-        quoted = f"{_number(value)}{_unit(document, declared.extra('quantity'))}"
+        shown = f"{_number(value)}{_unit(document, declared.extra('quantity'))}"
         gt, ge, lt, le = (declared.bound(name) for name in ("gt", "ge", "lt", "le"))
         if (gt, ge, lt, le) == (0, None, None, None):
-            return f"must be greater than zero ({quoted})"
+            return f"must be greater than zero ({shown})"
         if (gt, ge, lt, le) == (None, 0, None, None):
-            return f"must not be negative ({quoted})"
+            return f"must not be negative ({shown})"
         if ge is not None and le is not None:
-            return f"must lie between {_number(ge)} and {_number(le)}, not {quoted}"
+            return f"must lie between {_number(ge)} and {_number(le)}, not {shown}"
         limits = [f"greater than {_number(gt)}" if gt is not None else ""]
         limits += [f"at least {_number(ge)}" if ge is not None else ""]
         limits += [f"less than {_number(lt)}" if lt is not None else ""]
         limits += [f"at most {_number(le)}" if le is not None else ""]
-        return f"must be {' and '.join(part for part in limits if part)}, not {quoted}"
+        return f"must be {' and '.join(part for part in limits if part)}, not {shown}"
     size = len(value) if isinstance(value, (str, list, dict)) else 0
     least, most = declared.bound("min_length"), declared.bound("max_length")
     expect = declared.extra("expect")
     if expect:
-        return f"must be {expect}, not {kind_of(value) if not isinstance(value, list) else short(repr(value))}"
+        return f"must be {expect}, not {kind_of(value) if not isinstance(value, list) else quoted(value)}"
     if isinstance(value, str):
         if least is not None and size < least:
             return "must not be empty"
@@ -135,7 +134,7 @@ class _Walk:
     def step_key(self, name: str) -> None:
         struct = self.struct()
         tags = self.declared.tags(name)
-        self.parts.append(short(name))
+        self.parts.append(path_key(name))
         self.value = self.value.get(name) if isinstance(self.value, dict) else None
         if tags:
             self.declared = Unwrapped(typing.Literal[tags])
@@ -160,7 +159,7 @@ class _Walk:
             try:
                 msgspec.convert(item, inner)
             except msgspec.ValidationError:
-                self.parts.append(short(str(name)))
+                self.parts.append(path_key(str(name)))
                 self.value = item
                 return
         self.found = False
@@ -215,7 +214,9 @@ def _bad_dict_key(walk: _Walk, what: str) -> InputError:
     for name in names:
         if not isinstance(name, str) or (key_type and not _fits(name, key_type)):
             bad = Unwrapped(str) if key_type is None else key_type
-            return InputError(walk.path(short(str(name))), "name " + bound_message(bad, name, None))
+            return InputError(
+                walk.path(path_key(str(name))), "name " + bound_message(bad, name, None)
+            )
     return InputError(walk.path(), what)
 
 
@@ -227,12 +228,12 @@ def _fits(name: str, declared: Unwrapped) -> bool:
 def _message(walk: _Walk, what: str, document: Any) -> InputError:
     value = walk.value
     if what.startswith("Object contains unknown field"):
-        name = what.split("`")[1]
+        name = _quoted_name(what)
         struct = walk.struct()
         expected = f" (expected: {_expected_keys(struct)})" if struct else ""
-        return InputError(walk.path(short(name)), f"unknown key{expected}")
+        return InputError(walk.path(path_key(name)), f"unknown key{expected}")
     if what.startswith("Object missing required field"):
-        return InputError(walk.path(short(what.split("`")[1])), "is required")
+        return InputError(walk.path(path_key(_quoted_name(what))), "is required")
     own = re.match(r"^([a-z_]+): (.*)$", what, re.S)
     struct = walk.struct()
     if own and struct is not None and own[1] in struct.__struct_fields__:
@@ -260,6 +261,11 @@ def _message(walk: _Walk, what: str, document: Any) -> InputError:
     return InputError(walk.path(), what)
 
 
+def _quoted_name(what: str) -> str:
+    """The name msgspec quotes in backticks (the name may hold backticks itself)."""
+    return what[what.index("`") + 1 : what.rindex("`")]
+
+
 def _unknown_name(walk: _Walk, value: Any) -> str:
     field = walk.parts[-1] if walk.parts else "value"
     choices = [
@@ -269,4 +275,4 @@ def _unknown_name(walk: _Walk, value: Any) -> str:
         for choice in typing.get_args(base)
     ]
     words = field.replace("_", " ").split()[-1]
-    return f"unknown {words} {short(repr(value))}; choose one of {', '.join(choices)}"
+    return f"unknown {words} {quoted(value)}; choose one of {', '.join(choices)}"

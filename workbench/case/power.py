@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 
@@ -40,7 +40,7 @@ def torque_from_power(power: float, speed: float) -> float:
     .. [1] Shigley's *Mechanical Engineering Design*, ch. 3: P = T·ω.
     """
     if not isinstance(power, (int, float)) or isinstance(power, bool) or not math.isfinite(power):
-        msg = f"must be a finite number, not {power!r}"
+        msg = f"must be a finite number, not {quoted(power)}"
         raise InputError(field="power", message=msg)
     require_positive("speed", speed, "speed")
     if power != 0.0 and not math.isfinite(power / speed):

@@ -16,7 +16,7 @@ from typing import Any
 import numpy as np
 
 from workbench.case.declaration import MAX_DEPTH, MAX_NUMBER_DIGITS
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, path_key
 
 _QUOTE, _BACKSLASH = 0x22, 0x5C
 _OPENS, _CLOSES = b"{[", b"}]"
@@ -34,11 +34,6 @@ _NON_FINITE = (b"NaN", b"Infinity", b"-Infinity")
 #: Numbers with an exponent of three digits or more: the only ones beyond a double's range (their
 #: digits are bounded).
 _EXPONENT = re.compile(rb"-?[0-9]+(?:\.[0-9]*)?[eE][-+]?[0-9]{3,}")
-
-
-def short(text: str, most: int = 60) -> str:
-    """``text`` cut to ``most`` characters (messages quote at most this much of a value)."""
-    return text if len(text) <= most else text[: most - 1] + "…"
 
 
 def _real_quotes(raw: np.ndarray) -> np.ndarray:
@@ -117,7 +112,7 @@ class Structure:
                 if colons.size == 0:
                     break
                 key = self._key_before(int(self.positions[start + 1 + int(colons[-1])]))
-                parts.append(f".{short(key)}" if parts else short(key))
+                parts.append(f".{path_key(key)}" if parts else path_key(key))
             else:
                 commas = np.count_nonzero(at_level & (tokens[inside] == ord(",")))
                 parts.append(f"[{commas}]")
@@ -201,10 +196,10 @@ def _keep_pairs(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
 
 def _first_repeated(node: Any, path: str) -> str | None:
     if isinstance(node, _Repeated):
-        return f"{path}.{short(node.repeated)}" if path else short(node.repeated)
+        return f"{path}.{path_key(node.repeated)}" if path else path_key(node.repeated)
     children: Any = ()
     if isinstance(node, dict):
-        children = ((f"{path}.{short(k)}" if path else short(k), v) for k, v in node.items())
+        children = ((f"{path}.{path_key(k)}" if path else path_key(k), v) for k, v in node.items())
     elif isinstance(node, list):
         children = ((f"{path}[{n}]", v) for n, v in enumerate(node))
     for child_path, child in children:

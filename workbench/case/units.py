@@ -18,7 +18,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 
 #: SI unit of every quantity the solver works in.
 SI_UNITS: dict[str, str] = {
@@ -165,19 +165,19 @@ def unit_factor(unit: str, quantity: str) -> float:
     try:
         parsed = ureg.Quantity(1.0, unit)
     except Exception as exc:
-        msg = f"unknown unit {unit!r}"
+        msg = f"unknown unit {quoted(unit)}"
         raise InputError(f"units.{quantity}", msg) from exc
     named_angle = _names_an_angle(unit)
     if _involves_angle(quantity) != named_angle and (named_angle or quantity in _NEEDS_ANGLE):
         # pint counts the radian as dimensionless, so "percent" would pass as an angle and
         # "Hz" as a speed; a rotation must be named as one, and a ratio is not an angle.
         hint = " (name an angle: rad, deg, rev, rpm, ...)" if not named_angle else ""
-        msg = f"{unit!r} is not a unit of {quantity.replace('_', ' ')}{hint}"
+        msg = f"{quoted(unit)} is not a unit of {quantity.replace('_', ' ')}{hint}"
         raise InputError(f"units.{quantity}", msg)
     expected = ureg.Quantity(1.0, si_unit(quantity)).dimensionality
     if parsed.dimensionality != expected:
         msg = (
-            f"{unit!r} is not a unit of {quantity.replace('_', ' ')} "
+            f"{quoted(unit)} is not a unit of {quantity.replace('_', ' ')} "
             f"(it has dimension {parsed.dimensionality or 'none'})"
         )
         raise InputError(f"units.{quantity}", msg)
@@ -212,7 +212,7 @@ class UnitSystem:
                 continue
             unit = getattr(self, f.name)
             if not isinstance(unit, str) or not unit.strip():
-                raise InputError(f"units.{f.name}", f"must be a unit string, not {unit!r}")
+                raise InputError(f"units.{f.name}", f"must be a unit string, not {quoted(unit)}")
             factors[f.name] = unit_factor(unit, f.name)
         for name, (numerator, denominator, power) in DERIVED.items():
             value = factors[numerator] if numerator else 1.0

@@ -16,7 +16,7 @@ from typing import Any, TypeVar
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 
 Item = TypeVar("Item")
@@ -37,7 +37,7 @@ def not_normal_positive(values: Any) -> Any:
 def require_positive(name: str, value: float, quantity: str = "length") -> None:
     """Raise :class:`InputError` unless ``value`` is a finite normal number greater than zero."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
+        raise InputError(name, f"must be a number, not {quoted(value)}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")
     if value <= 0.0:
@@ -57,7 +57,7 @@ def too_small(value: float, quantity: str) -> str:
 def require_non_negative(name: str, value: float, quantity: str = "length") -> None:
     """Raise :class:`InputError` unless ``value`` is a finite number of at least zero."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
+        raise InputError(name, f"must be a number, not {quoted(value)}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")
     if value < 0.0:
@@ -106,6 +106,6 @@ def field_path(prefix: str) -> Iterator[None]:
 def require_finite(name: str, value: float) -> None:
     """Raise :class:`InputError` unless ``value`` is a finite real number (sign free)."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        raise InputError(name, f"must be a number, not {value!r}")
+        raise InputError(name, f"must be a number, not {quoted(value)}")
     if not math.isfinite(value):
         raise InputError(name, f"must be a finite number, not {value}")

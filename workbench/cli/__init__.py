@@ -14,8 +14,7 @@ import traceback
 from collections.abc import Sequence
 from pathlib import Path
 
-from workbench.case.errors import InputError, WorkbenchError
-from workbench.case.text import short
+from workbench.case.errors import InputError, WorkbenchError, one_line, short
 from workbench.cli.status import EXIT_BAD_INPUT, EXIT_INTERNAL_ERROR, EXIT_OK
 from workbench.design.caution import CAUTION
 
@@ -56,7 +55,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         sys.stderr.write(f"{error}\n")
         return EXIT_BAD_INPUT
     except WorkbenchError as error:
-        sys.stderr.write(f"error: {error}\n")
+        sys.stderr.write(one_line(f"error: {error}") + "\n")
         return EXIT_BAD_INPUT
     except BrokenPipeError:
         return EXIT_OK

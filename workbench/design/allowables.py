@@ -39,7 +39,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from workbench.case.design import SHEAR_CRITERIA
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.materials import Material
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
@@ -89,12 +89,12 @@ class Allowable:
 
 def _require_strength(material: Material | None, attribute: str, criterion: str) -> float:
     if material is None:
-        msg = f"criterion {criterion!r} needs a material"
+        msg = f"criterion {quoted(criterion)} needs a material"
         raise InputError(field="material", message=msg)
     value = getattr(material, attribute)
     if value is None:
         label = attribute.replace("_", " ")
-        msg = f"material {material.name!r} has no {label}; criterion {criterion!r} needs it"
+        msg = f"material {quoted(material.name)} has no {label}; criterion {quoted(criterion)} needs it"
         raise InputError(attribute, msg)
     return float(value)
 
@@ -142,7 +142,7 @@ def allowable_shear_stress(
        with keyways.
     """
     if criterion not in SHEAR_CRITERIA:
-        msg = f"unknown criterion {criterion!r}; choose one of {', '.join(SHEAR_CRITERIA)}"
+        msg = f"unknown criterion {quoted(criterion)}; choose one of {', '.join(SHEAR_CRITERIA)}"
         raise InputError(field="criterion", message=msg)
     if (
         not isinstance(factor_of_safety, (int, float))
@@ -150,10 +150,10 @@ def allowable_shear_stress(
         or not math.isfinite(factor_of_safety)
         or factor_of_safety < 1.0
     ):
-        msg = f"must be a finite number of at least 1, not {factor_of_safety!r}"
+        msg = f"must be a finite number of at least 1, not {quoted(factor_of_safety)}"
         raise InputError(field="factor_of_safety", message=msg)
     if criterion != "allowable" and stated_allowable is not None:
-        msg = f"is used only with criterion 'allowable', not {criterion!r}"
+        msg = f"is used only with criterion 'allowable', not {quoted(criterion)}"
         raise InputError(field="stated_allowable", message=msg)
     fos = float(factor_of_safety)
     keyway_note = (

@@ -31,9 +31,8 @@ from typing import Protocol
 import numpy as np
 
 from workbench.case.design import DesignCriteria
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, short
 from workbench.case.materials import Material
-from workbench.case.text import short
 from workbench.design.allowables import (
     TWIST_RATE_PRESETS,
     Allowable,
@@ -196,6 +195,15 @@ def _fixed_twist_limit(design: DesignCriteria) -> tuple[float, str]:
 _ENDS = np.array([0.0, 1.0])
 
 
+#: The case file's key of each design value the allowable refuses; any other fault (a strength
+#: the material lacks) is the material's, named at the segment that uses it.
+_DESIGN_FIELDS = {
+    "criterion": "design.shear_criterion",
+    "factor_of_safety": "design.factor_of_safety",
+    "stated_allowable": "design.allowable_shear_stress",
+}
+
+
 class _Allowables:
     """Each material's allowable shear stress under the design, found once per material."""
 
@@ -203,7 +211,12 @@ class _Allowables:
         self.design = design
         self.found: dict[int, Allowable] = {}
 
-    def __call__(self, material: Material) -> Allowable:
+    def __call__(self, material: Material, path: str) -> Allowable:
+        """The allowable of ``material``, found once.
+
+        A strength the criterion needs and the material lacks is named at ``path.material``: the
+        segment (or layer) that uses it, the first one the checks come to.
+        """
         key = id(material)
         if key not in self.found:
             try:
@@ -215,11 +228,12 @@ class _Allowables:
                     stated_allowable=self.design.allowable_shear_stress,
                 )
             except InputError as error:
-                if error.field not in ("yield_strength", "ultimate_strength"):
-                    raise
-                # A strength the criterion needs: named where the case defines its materials
-                # (a library material is defined there too, under its name, to add one).
-                field = f"materials.{short(material.name)}.{error.field}"
+                if error.field in ("yield_strength", "ultimate_strength"):
+                    # A strength the criterion needs: named where the case defines its materials
+                    # (a library material is defined there too, under its name, to add one).
+                    field = f"materials.{short(material.name)}.{error.field}"
+                else:
+                    field = _DESIGN_FIELDS.get(error.field, f"{path}.material")
                 raise InputError(field, error.message) from None
         return self.found[key]
 
@@ -286,11 +300,12 @@ def check_layout(model: Model, mesh: CheckMesh, design: DesignCriteria) -> Check
     unchecked: list[tuple[int, int, str]] = []
     allowables = _Allowables(design)
     # Reading the segment objects into columns; the factors are computed on the columns.
-    for index, (_, number, shaft, segment) in enumerate(segments):
+    for index, (shaft_number, number, shaft, segment) in enumerate(segments):
         layered = len(segment.layers) > 1
         bases = []
         for slot, layer in enumerate(segment.layers):
-            found = allowables(layer.material)
+            path = f"shafts[{shaft_number}].segments[{number}]"
+            found = allowables(layer.material, f"{path}.layers[{slot}]" if layered else path)
             allowable[slot, index] = found.value
             bases.append((f"layer {slot}: " if layered else "") + found.basis)
         layer_notes.append(tuple(bases))

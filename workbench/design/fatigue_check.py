@@ -28,7 +28,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from workbench.case.design import FatigueCriteria
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, listing, quoted
 from workbench.case.units import UnitSystem, display_units
 from workbench.case.validate import field_path
 from workbench.design.check_layout import CheckMesh
@@ -239,7 +239,7 @@ def _row(names: tuple[str, ...], name: str) -> int:
     try:
         return names.index(name)
     except ValueError:
-        msg = f"unknown load case or combination {name!r}; known: {', '.join(names)}"
+        msg = f"unknown load case or combination {quoted(name)}; known: {listing(names)}"
         raise InputError("result", msg) from None
 
 

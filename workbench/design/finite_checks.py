@@ -15,9 +15,8 @@ import math
 from collections.abc import Iterable
 
 from workbench.case.design import DesignCriteria
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, short
 from workbench.case.materials import Material
-from workbench.case.text import short
 from workbench.case.validate import LARGEST, SMALLEST_NORMAL
 from workbench.design.check_report import Check
 from workbench.solver.model import Model

@@ -21,7 +21,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 
@@ -55,7 +55,7 @@ def _require_value(value: float, field: str = "value") -> None:
 
 def _series(series: str) -> tuple[int, ...]:
     if series not in _HUNDREDTHS:
-        msg = f"unknown series {series!r}; choose one of {', '.join(_HUNDREDTHS)}"
+        msg = f"unknown series {quoted(series)}; choose one of {', '.join(_HUNDREDTHS)}"
         raise InputError(field="series", message=msg)
     return _HUNDREDTHS[series]
 

@@ -11,7 +11,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.solver.columns import SOLID, TAPERED, TUBE
 from workbench.solver.sections import FloatArray, Section, SolidCircle, TaperedCircle, Tube
 
@@ -69,7 +69,7 @@ def _dimensions(section: Section) -> tuple[int, float, float, float]:
         return TUBE, section.outer_diameter, section.outer_diameter, section.inner_diameter
     if isinstance(section, TaperedCircle):
         return TAPERED, section.diameter_start, section.diameter_end, section.bore
-    raise InputError("section", f"shape {section.shape!r} cannot be sized by diameter")
+    raise InputError("section", f"shape {quoted(section.shape)} cannot be sized by diameter")
 
 
 def resized(section: Section, diameter: float, keep: str) -> Section:

@@ -17,8 +17,9 @@ The answer passes every check, and for every sized segment the next smaller pref
 
 from __future__ import annotations
 
+import contextlib
 import dataclasses
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -26,102 +27,23 @@ import numpy as np
 
 from workbench.case.design import DesignCriteria
 from workbench.case.errors import InputError
-from workbench.case.units import display_units
+from workbench.case.units import display_units, quote
+from workbench.case.validate import quoted, within
 from workbench.design.batch_checks import VERDICT_KINDS, BatchVerdicts, governing_utilisations
 from workbench.design.caution import CAUTION
 from workbench.design.checks import Check, CheckReport, run_checks
-from workbench.design.preferred import RENARD_SERIES, next_smaller_preferred, round_up_preferred
+from workbench.design.preferred import (
+    VALUE_RANGE,
+    next_smaller_preferred,
+    round_up_preferred,
+)
 from workbench.design.resize import outer_diameter, resized, resized_dimensions
+from workbench.design.sizing_request import SizingRequest, require_preferred, sizable
 from workbench.solver.analysis import solve
 from workbench.solver.columns import case_table
-from workbench.solver.model import Layer, Model, Segment
-from workbench.solver.sections import SolidCircle, TaperedCircle, Tube
+from workbench.solver.model import Layer, Model
 
 _MAX_ROUNDS = 40
-
-
-@dataclass(frozen=True)
-class SizingRequest:
-    """What to size and how.
-
-    Parameters
-    ----------
-    segments
-        (shaft id, segment index) of each segment to size.
-    series
-        Renard series of preferred sizes (``"R5"`` … ``"R40"``), in the case's length unit,
-        unless ``sizes`` is given.
-    sizes
-        Allowed outer diameters (m), ascending; replaces the series when given.
-    keep
-        For tubes and bored tapers: ``"ratio"`` keeps bore/outer, ``"wall"`` keeps the wall
-        thickness.
-    minimum_fraction
-        No segment goes below this fraction of its starting diameter. In an indeterminate shaft
-        a segment can shed torque as it shrinks (its stress then falls with its size), so the
-        checks alone may never stop it; such a segment ends at this floor and is reported as
-        governed by no check. Default 0.25 (our choice; a practical floor, no source).
-    """
-
-    segments: tuple[tuple[str, int], ...]
-    series: str = "R40"
-    sizes: tuple[float, ...] = ()
-    keep: str = "ratio"
-    minimum_fraction: float = 0.25
-
-    def __post_init__(self) -> None:
-        if self.series not in RENARD_SERIES:
-            raise InputError("series", f"unknown series {self.series!r}; choose R5, R10, R20, R40")
-        if self.keep not in ("ratio", "wall"):
-            raise InputError("keep", f"must be 'ratio' or 'wall', not {self.keep!r}")
-        if not self.segments:
-            raise InputError("segments", "choose at least one segment to size")
-        if not 0.0 < self.minimum_fraction <= 1.0:
-            raise InputError("minimum_fraction", "must lie in (0, 1]")
-
-    @classmethod
-    def from_arguments(
-        cls,
-        model: Model,
-        segments: Sequence[str] | None,
-        series: str = "R40",
-        sizes: str | None = None,
-        keep: str = "ratio",
-        minimum_fraction: float = 0.25,
-    ) -> SizingRequest:
-        """Build from command-line words: ``["main:0", "main:2"]``, ``"40,45,50"`` (file units)."""
-        chosen: list[tuple[str, int]] = []
-        if segments:
-            for word in segments:
-                shaft_id, _, index = word.rpartition(":")
-                if not shaft_id or not index.isdigit():
-                    raise InputError("--segment", f"expected SHAFT:INDEX, not {word!r}")
-                chosen.append((shaft_id, int(index)))
-        else:
-            chosen = [
-                (shaft.id, number)
-                for shaft in model.shafts
-                for number, segment in enumerate(shaft.segments)
-                if _sizable(segment)
-            ]
-        allowed: tuple[float, ...] = ()
-        if sizes:
-            try:
-                values = [float(word) for word in sizes.split(",") if word.strip()]
-            except ValueError:
-                raise InputError(
-                    "--sizes", f"expected comma-separated numbers, not {sizes!r}"
-                ) from None
-            if not values or any(not value > 0 for value in values):
-                raise InputError("--sizes", "sizes must be positive numbers")
-            allowed = tuple(sorted(model.units.to_si(value, "length") for value in values))
-        return cls(tuple(chosen), series, allowed, keep, minimum_fraction)
-
-
-def _sizable(segment: Segment) -> bool:
-    return len(segment.layers) == 1 and isinstance(
-        segment.layers[0].section, (SolidCircle, Tube, TaperedCircle)
-    )
 
 
 @dataclass(frozen=True)
@@ -201,16 +123,18 @@ class _Search:
         self.reached: set[tuple[float, ...]] = set()
         self.verdicts: dict[tuple[float, ...], _Verdict | None] = {}
         for shaft_id, number in request.segments:
-            path = f"segments[{shaft_id}:{number}]"
+            named = quoted(f"{shaft_id}:{number}")
             if shaft_id not in {shaft.id for shaft in model.shafts}:
-                raise InputError(path, f"unknown shaft {shaft_id!r}")
+                raise InputError("--segment", f"{named}: unknown shaft {quoted(shaft_id)}")
             shaft = model.shaft(shaft_id)
             if not 0 <= number < len(shaft.segments):
-                msg = f"shaft {shaft_id!r} has segments 0 to {len(shaft.segments) - 1}"
-                raise InputError(path, msg)
-            if not _sizable(shaft.segments[number]):
-                msg = "only one-layer solid, tube or tapered segments can be sized by diameter"
-                raise InputError(path, msg)
+                msg = (
+                    f"{named}: shaft {quoted(shaft_id)} has segments 0 to {len(shaft.segments) - 1}"
+                )
+                raise InputError("--segment", msg)
+            if not sizable(shaft.segments[number]):
+                msg = f"{named}: only one-layer solid, tube or tapered segments can be sized by diameter"
+                raise InputError("--segment", msg)
 
     # sizes are handled in the case's length unit so the preferred numbers are the user's own
     def up(self, diameter: float) -> float:
@@ -219,17 +143,36 @@ class _Search:
                 if size >= diameter * (1.0 - 1e-9):
                     return size
             return self.request.sizes[-1]
-        value = round_up_preferred(
-            diameter / self.length_factor * (1.0 - 1e-12), self.request.series
-        )
+        with self._preferred(diameter):
+            value = round_up_preferred(
+                diameter / self.length_factor * (1.0 - 1e-12), self.request.series
+            )
         return value * self.length_factor
 
     def down(self, diameter: float) -> float | None:
         if self.request.sizes:
             smaller = [size for size in self.request.sizes if size < diameter * (1.0 - 1e-9)]
             return smaller[-1] if smaller else None
-        value = next_smaller_preferred(diameter / self.length_factor, self.request.series)
+        # A size read back from SI sits a rounding error off its preferred number: step from
+        # just below it, or the "next smaller" size is the same size again.
+        with self._preferred(diameter):
+            value = next_smaller_preferred(
+                diameter / self.length_factor * (1.0 - 1e-9), self.request.series
+            )
         return value * self.length_factor
+
+    @contextlib.contextmanager
+    def _preferred(self, diameter: float) -> Iterator[None]:
+        """A size beyond the preferred numbers' range, refused as the series option's."""
+        try:
+            yield
+        except InputError:
+            low, high = (quote(v * self.length_factor, "length") for v in VALUE_RANGE)
+            msg = (
+                f"a size of {quote(diameter, 'length')} is needed, outside the preferred "
+                f"numbers' range ({low} to {high}); give --sizes"
+            )
+            raise InputError("--series", msg) from None
 
     def step_up(self, diameter: float) -> float | None:
         if self.request.sizes:
@@ -243,12 +186,11 @@ class _Search:
             index = self.model.shaft_number(shaft_id)
             segment = shafts[index].segments[number]
             layer = segment.layers[0]
-            new_segment = dataclasses.replace(
-                segment,
-                layers=(
-                    Layer(layer.material, resized(layer.section, diameter, self.request.keep)),
-                ),
-            )
+            try:
+                section = resized(layer.section, diameter, self.request.keep)
+            except InputError as error:  # grown beyond what the formulas hold: name the segment
+                raise within(f"shafts[{index}].segments[{number}].section", error) from None
+            new_segment = dataclasses.replace(segment, layers=(Layer(layer.material, section),))
             segments = list(shafts[index].segments)
             segments[number] = new_segment
             shafts[index] = dataclasses.replace(shafts[index], segments=tuple(segments))
@@ -409,6 +351,8 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
         outer_diameter(model.shaft(shaft_id).segments[number].layers[0].section)
         for shaft_id, number in request.segments
     )
+    if not request.sizes:
+        require_preferred(model, request, before)
     floors = tuple(search.up(d * request.minimum_fraction) for d in before)
     sizes = tuple(search.up(d) for d in before)
     seen: set[tuple[float, ...]] = set()
@@ -461,7 +405,7 @@ def _size(model: Model, request: SizingRequest) -> SizingOutcome:
     final_model = search.build(sizes)
     if search.evaluate(sizes) is None:
         msg = "no allowed size gives a valid section (check the wall thickness and the size list)"
-        raise InputError("sizes", msg)
+        raise InputError("--sizes" if request.sizes else "--series", msg)
     final_report = run_checks(solve(final_model))
     governing = final_report.segment_utilisation()
     rows = tuple(
@@ -489,6 +433,8 @@ def _smaller(
     """The sizes with segment ``index`` one allowed size down, or ``None`` at its floor."""
     smaller = search.down(sizes[index])
     if smaller is None or smaller < floors[index] * (1.0 - 1e-9):
+        return None
+    if smaller >= sizes[index] * (1.0 - 1e-9):  # no smaller size: the descent must end
         return None
     return (*sizes[:index], smaller, *sizes[index + 1 :])
 

@@ -28,7 +28,7 @@ from typing import Any
 import numpy as np
 
 from workbench.case.declaration import key_quantities
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.design.batch_checks import governing_utilisations
 from workbench.design.checks import run_checks
 from workbench.solver.analysis import Results, solve
@@ -77,7 +77,7 @@ class SweepRequest:
 
     def __post_init__(self) -> None:
         if self.metric not in METRICS:
-            msg = f"unknown result {self.metric!r}; choose one of {', '.join(METRICS)}"
+            msg = f"unknown result {quoted(self.metric)}; choose one of {', '.join(METRICS)}"
             raise InputError("metric", msg)
         if not self.values:
             raise InputError("values", "a sweep needs at least one value")

@@ -91,6 +91,8 @@ class Form:
         self._bad: list[w.Widget] = []
         #: While set, widget changes are the panel's own (a rebuild, a mirror), not edits.
         self.muted = False
+        #: The field edited last: an error no message line of its own can show is shown there.
+        self.edited: Path | None = None
 
     @property
     def document(self) -> dict[str, Any]:
@@ -371,9 +373,12 @@ class Form:
             continuous_update=False,
         )
         self.register(path, field)
-        field.observe(
-            lambda c: self.structural(lambda: rename(self.document, path, c["new"])), "value"
-        )
+
+        def renamed(change: dict[str, Any]) -> None:
+            self.edited = path
+            self.structural(lambda: rename(self.document, path, change["new"]))
+
+        field.observe(renamed, "value")
         return w.HBox([field, self.message(path)])
 
     # --- edits ------------------------------------------------------------------------------
@@ -382,6 +387,7 @@ class Form:
         """Store an edit in the document, mirror it in other widgets of the field, re-solve."""
         if self.muted:
             return
+        self.edited = path
         set_at(self.document, path, value)
         with self.quiet():
             for other in self.fields.get(path_text(path), []):
@@ -420,11 +426,16 @@ class Form:
         field = normal_field(error.field)
         path = parse_path(field)
         message = plain_words(error.message)
-        # The nearest enclosing thing shown: the field itself, else its row, else its list.
-        for size in range(len(path), 0, -1):
-            labels = self.messages.get(path_text(path[:size]))
+        # The nearest enclosing thing shown: the field itself, else its row, else its list;
+        # else the field just edited (a rename that made another entry's name a duplicate).
+        places = [
+            (path_text(path[:size]), field_words(path[size:])) for size in range(len(path), 0, -1)
+        ]
+        if self.edited is not None:
+            places.append((path_text(self.edited), field_words(path, self.document)))
+        for key, rest in places:
+            labels = self.messages.get(key)
             if labels:
-                rest = field_words(path[size:])
                 text = render("text", f"{rest}: {message}" if rest else message)
                 for label in labels:
                     label.value = text

@@ -24,7 +24,7 @@ from collections.abc import Callable
 from pathlib import Path as FilePath
 from typing import Any
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, one_line
 from workbench.case.units import UnitSystem
 from workbench.design.checks import CheckReport, run_checks
 from workbench.panel import CASE_MIME_TYPE
@@ -220,7 +220,7 @@ class CaseState:
         except InputError as error:
             self._fail(error)
         except Exception as error:
-            self._fail(InputError("", f"unexpected error ({type(error).__name__}): {error}"))
+            self._fail(_unexpected(error))
         return None
 
     def _solve(self, model: Model) -> bool:
@@ -232,7 +232,7 @@ class CaseState:
             self._fail(error)
             return False
         except Exception as error:
-            self._fail(InputError("", f"unexpected error ({type(error).__name__}): {error}"))
+            self._fail(_unexpected(error))
             return False
         self._model, self._results, self._report = model, results, report
         self.solve_count += 1
@@ -334,3 +334,8 @@ def _modes_of(model: Model) -> tuple[Modes | None, str]:
         return natural_modes(model), ""
     except InputError as error:
         return None, f"No natural modes: {plain_words(error.message)}"
+
+
+def _unexpected(error: Exception) -> InputError:
+    """An error that is no fault of the input, said in one short line on the status line."""
+    return InputError("", one_line(f"unexpected error ({type(error).__name__}): {error}"))

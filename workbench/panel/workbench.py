@@ -357,9 +357,10 @@ class Workbench:
 
     def _on_error(self, error: InputError) -> None:
         """The message beside the field the error names, in the status line; all else stale."""
+        # Dimmed first: a page that sees the message then sees the charts dimmed too.
+        self.charts_box.add_class("wb-stale")
         words = self.form.show_error(error)
         self.status.value = render("not_solved", words)
-        self.charts_box.add_class("wb-stale")
         why = self.stale_marks.mark(error, self.document)
         self.tables.show_stale(why)  # no verdict of the last valid case stands for this one
 

@@ -68,6 +68,18 @@ MANIFEST, MANIFEST_SIGNATURE, RECORD, CASE = (
 #: Largest member read from a package (bytes): a guard against a zip that inflates without end.
 MAX_MEMBER_BYTES = 256 * 1024 * 1024
 
+#: What zipfile raises on a damaged or unusual archive (a seek before its start is a
+#: ValueError, an encrypted member a RuntimeError, an unknown compression NotImplementedError).
+_ZIP_FAULTS = (
+    zipfile.BadZipFile,
+    zlib.error,
+    EOFError,
+    OSError,
+    ValueError,
+    RuntimeError,
+    NotImplementedError,
+)
+
 #: The signature block's data: (element id, type, what its text must match entirely).
 _TOKEN = ("record-signature", "application/jose", re.compile(r"[A-Za-z0-9_.-]*"))
 _JWK = ("record-public-key", "application/jwk+json", re.compile(r"\{[^<]*\}"))
@@ -157,9 +169,12 @@ def _read_with_key(
         raise InputError(str(file), msg) from None
     public_key = None
     if public_key_path is not None:
-        from workbench.signing import load_public_key  # noqa: PLC0415
+        from workbench.signing import SigningError, load_public_key  # noqa: PLC0415
 
-        public_key = load_public_key(public_key_path)
+        try:
+            public_key = load_public_key(public_key_path)
+        except SigningError as error:  # bad input of the option that named the key
+            raise InputError("--public-key", str(error)) from None
     return data, public_key
 
 
@@ -376,7 +391,7 @@ def _read_members(
             continue
         try:
             members[info.filename] = archive.read(info)
-        except (zipfile.BadZipFile, zlib.error, EOFError, OSError, NotImplementedError) as error:
+        except _ZIP_FAULTS as error:
             problems.append(f"{info.filename} cannot be read from the zip ({error}): damaged")
     return members
 
@@ -416,7 +431,7 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
     facts, problems = outcome.facts, outcome.problems
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
-    except zipfile.BadZipFile as error:
+    except _ZIP_FAULTS as error:  # zipfile raises more than BadZipFile on a damaged directory
         problems.append(f"not a zip archive ({error}): not a calculation package, or damaged")
         return outcome
     with archive:

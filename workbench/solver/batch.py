@@ -40,7 +40,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, listing
 from workbench.case.units import quote
 from workbench.case.validate import not_normal_positive, too_small
 from workbench.solver.columns import (
@@ -493,7 +493,7 @@ def solve_batch(base: Model | CaseTable, **variants: Any) -> BatchResults:
     unknown = set(variants) - set(SEGMENT_COLUMNS) - set(CASE_COLUMNS)
     if unknown:
         known = ", ".join((*SEGMENT_COLUMNS, *CASE_COLUMNS, "outer_diameter"))
-        msg = f"unknown column(s) {', '.join(sorted(unknown))}; known: {known}"
+        msg = f"unknown column(s) {listing(sorted(unknown))}; known: {known}"
         raise InputError("variants", msg)
     columns = {name: np.asarray(values, dtype=float) for name, values in variants.items()}
     n_variants = _n_variants(columns) if columns else 1

@@ -13,6 +13,7 @@ import contextlib
 import dataclasses
 import functools
 import gc
+import itertools
 from collections.abc import Iterator
 from typing import TYPE_CHECKING, Any
 
@@ -21,10 +22,9 @@ from msgspec import UNSET
 from workbench.case import declaration as declared
 from workbench.case.convert import Converter, unit_system
 from workbench.case.design import design_criteria, design_section
-from workbench.case.errors import InputError
-from workbench.case.materials import Material, library_material
+from workbench.case.errors import InputError, path_key, quoted
+from workbench.case.materials import LIBRARY, Material, closest_names, library_material
 from workbench.case.power import torque_from_power
-from workbench.case.text import short
 from workbench.case.units import SI, UnitSystem, display_units
 from workbench.case.validate import build_each, within
 from workbench.solver import sections as circular
@@ -90,7 +90,7 @@ class ModelBuilder:
             try:
                 self.materials[name] = self._material(name, entry)
             except InputError as error:
-                raise within(f"materials.{name}", error) from None
+                raise within(f"materials.{path_key(name)}", error) from None
         self._library: dict[str, Material] = {}
 
     def _material(self, name: str, entry: declared.Material) -> Material:
@@ -113,11 +113,12 @@ class ModelBuilder:
             return found
         try:
             found = dataclasses.replace(library_material(name), name=name)
-        except InputError as error:
-            own = short(", ".join(sorted(self.materials)) or "none", 40)
-            hint = error.message.partition(";")[2]  # the library's close matches
+        except InputError:
+            own = itertools.islice(self.materials, 1000)  # a hint, not a search of every name
+            hint = closest_names(name, [*own, *LIBRARY])
             msg = (
-                f"unknown material {short(name)!r}: not in materials ({own}) nor the library;{hint}"
+                f"unknown material {quoted(name)}: not among the case's {len(self.materials):,} "
+                f"materials nor the library's {len(LIBRARY)}{hint}"
             )
             raise InputError("material", msg) from None
         self._library[name] = found

@@ -19,8 +19,7 @@ from typing import Any, Literal
 
 import numpy as np
 
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, short
 from workbench.case.validate import LARGEST
 from workbench.solver.columns import CaseTable
 from workbench.solver.mesh import Geometry, Mesh

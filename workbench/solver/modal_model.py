@@ -24,8 +24,7 @@ import numpy as np
 import scipy.linalg
 import scipy.sparse as sp
 
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, short
 from workbench.case.validate import not_normal_positive
 from workbench.solver.analysis import Mesh, build_mesh
 from workbench.solver.model import POSITION_TOLERANCE, Model, Segment

@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from workbench.case.design import DesignCriteria
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.materials import Material
 from workbench.case.units import SI, UnitSystem, quote
 from workbench.case.validate import (
@@ -178,7 +178,7 @@ class Segment:
         for index, layer in enumerate(self.layers):
             if not layer.section.circular:
                 msg = (
-                    f"shape {layer.section.shape!r} cannot be a bonded layer: layered segments "
+                    f"shape {quoted(layer.section.shape)} cannot be a bonded layer: layered segments "
                     "take circular layers (solid, tube, tapered)"
                 )
                 raise InputError(f"layers[{index}].section.shape", msg)
@@ -298,7 +298,7 @@ class Shaft:
     def check_id(shaft_id: str) -> None:
         """Raise :class:`InputError` on field ``id`` unless the id is a name (not blank)."""
         if not isinstance(shaft_id, str) or not shaft_id.strip():
-            raise InputError("id", f"must be a non-empty name, not {shaft_id!r}")
+            raise InputError("id", f"must be a non-empty name, not {quoted(shaft_id)}")
 
     @functools.cached_property
     def length(self) -> float:

@@ -29,7 +29,7 @@ from typing import ClassVar
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 from workbench.solver.sections import Section
@@ -101,7 +101,7 @@ def rectangle_coefficients(aspect_ratio: float) -> tuple[float, float]:
        text on the Riemann zeta function; derivable).
     """
     if not isinstance(aspect_ratio, (int, float)) or isinstance(aspect_ratio, bool):
-        msg = f"must be a number, not {aspect_ratio!r}"
+        msg = f"must be a number, not {quoted(aspect_ratio)}"
         field_name = "aspect_ratio"
         raise InputError(field_name, msg)
     if math.isnan(aspect_ratio) or aspect_ratio < 1.0:
@@ -141,11 +141,11 @@ def _require_thin(
 def _require_walls(field_name: str, walls: object) -> tuple[Wall, ...]:
     """Return ``walls`` as a tuple of :class:`Wall`, or raise :class:`InputError`."""
     if not isinstance(walls, (tuple, list)):
-        msg = f"must be a list of walls, not {walls!r}"
+        msg = f"must be a list of walls, not {quoted(walls)}"
         raise InputError(field_name, msg)
     for index, wall in enumerate(walls):
         if not isinstance(wall, Wall):
-            msg = f"must be a wall with a length and a thickness, not {wall!r}"
+            msg = f"must be a wall with a length and a thickness, not {quoted(wall)}"
             entry = f"{field_name}[{index}]"
             raise InputError(entry, msg)
     if not walls:

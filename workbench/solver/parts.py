@@ -19,8 +19,7 @@ import numpy as np
 
 from workbench.case.declaration import POSITION_TOLERANCE, MeshKind, SupportKind
 from workbench.case.design import DesignCriteria
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, listing, path_key, quoted
 from workbench.case.units import display_units, quote
 from workbench.case.validate import require_finite, require_non_negative, require_positive
 from workbench.solver.sections import FloatArray
@@ -107,7 +106,7 @@ class Support:
         require_finite("x", self.x)
         require_finite("rotation", self.rotation)
         if self.kind not in ("fixed", "spring"):
-            raise InputError("kind", f"must be 'fixed' or 'spring', not {self.kind!r}")
+            raise InputError("kind", f"must be 'fixed' or 'spring', not {quoted(self.kind)}")
         if self.kind == "spring":
             if self.stiffness is None:
                 raise InputError("stiffness", "a spring support needs a stiffness")
@@ -163,7 +162,7 @@ class GearMesh:
 
     def __post_init__(self) -> None:
         if self.mesh not in ("external", "internal"):
-            raise InputError("mesh", f"must be 'external' or 'internal', not {self.mesh!r}")
+            raise InputError("mesh", f"must be 'external' or 'internal', not {quoted(self.mesh)}")
 
     @property
     def coefficients(self) -> tuple[float, float]:
@@ -256,7 +255,7 @@ class LoadCase:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError("name", f"must be a non-empty name, not {short(repr(self.name))}")
+            raise InputError("name", f"must be a non-empty name, not {quoted(self.name)}")
 
 
 @dataclass(frozen=True)
@@ -281,7 +280,7 @@ class Combination:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError("name", f"must be a non-empty name, not {short(repr(self.name))}")
+            raise InputError("name", f"must be a non-empty name, not {quoted(self.name)}")
         if not self.factors:
             raise InputError("factors", "a combination needs at least one load case")
         for case_name, factor in self.factors:
@@ -340,7 +339,7 @@ class OperatingSpeed:
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError("name", f"must be a non-empty name, not {short(repr(self.name))}")
+            raise InputError("name", f"must be a non-empty name, not {quoted(self.name)}")
         require_non_negative("min", self.minimum, "speed")
         require_positive("max", self.maximum, "speed")
         if self.maximum < self.minimum:
@@ -375,7 +374,7 @@ def shaft_index(shaft_ids: Iterable[str]) -> dict[str, int]:
     index: dict[str, int] = {}
     for number, shaft_id in enumerate(shaft_ids):
         if shaft_id in index:
-            raise InputError(f"shafts[{number}].id", f"duplicate shaft id {short(shaft_id)!r}")
+            raise InputError(f"shafts[{number}].id", f"duplicate shaft id {quoted(shaft_id)}")
         index[shaft_id] = number
     return index
 
@@ -400,14 +399,13 @@ class References:
     def point(self, path: str, shaft_id: str, x: float, key: str) -> None:
         """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
         if shaft_id not in self.index:
-            known = short(", ".join(repr(name) for name in self.index))
-            msg = f"unknown shaft {short(shaft_id)!r}; known: {known}"
-            raise InputError(f"{path}.shaft", msg)
+            known = listing(self.index)
+            raise InputError(f"{path}.shaft", f"unknown shaft {quoted(shaft_id)}; known: {known}")
         length = self.lengths[self.index[shaft_id]]
         tolerance = POSITION_TOLERANCE * length
         if not -tolerance <= x <= length + tolerance:
             msg = (
-                f"{quote(x, 'length')} is off shaft {short(shaft_id)!r}, which runs from 0 to "
+                f"{quote(x, 'length')} is off shaft {quoted(shaft_id)}, which runs from 0 to "
                 f"{quote(length, 'length')}"
             )
             raise InputError(f"{path}.{key}", msg)
@@ -447,7 +445,7 @@ class References:
         for number, case in enumerate(load_cases):
             if case.name in names:
                 raise InputError(
-                    f"load_cases[{number}].name", f"duplicate name {short(case.name)!r}"
+                    f"load_cases[{number}].name", f"duplicate name {quoted(case.name)}"
                 )
             names.add(case.name)
             for item, torque in enumerate(case.torques):
@@ -460,15 +458,14 @@ class References:
         for number, combination in enumerate(combinations):
             if combination.name in names:
                 msg = (
-                    f"duplicate name {short(combination.name)!r} (names are shared with load cases)"
+                    f"duplicate name {quoted(combination.name)} (names are shared with load cases)"
                 )
                 raise InputError(f"combinations[{number}].name", msg)
             names.add(combination.name)
             for case_name, _ in combination.factors:
                 if case_name not in case_names:
-                    known = short(", ".join(sorted(case_names)))
-                    msg = f"unknown load case {short(case_name)!r}; known: {known}"
-                    raise InputError(f"combinations[{number}].factors.{short(case_name)}", msg)
+                    msg = f"unknown load case {quoted(case_name)}; known: {listing(sorted(case_names))}"
+                    raise InputError(f"combinations[{number}].factors.{path_key(case_name)}", msg)
         self._check_vibration(names, discs, operating_speeds, has_density)
         if design is not None:
             self._check_design(design, result_names(load_cases, combinations))
@@ -485,7 +482,7 @@ class References:
         keys = ("extremes", "extremes") if fatigue.extremes is not None else ("mean", "alternating")
         for key, name in zip(keys, fatigue.result_names, strict=True):
             if name not in known:
-                msg = f"unknown load case or combination {short(name)!r}; known: {short(', '.join(known))}"
+                msg = f"unknown load case or combination {quoted(name)}; known: {listing(known)}"
                 raise InputError(f"design.fatigue.{key}", msg)
 
     def _check_vibration(
@@ -501,7 +498,7 @@ class References:
         for number, speed in enumerate(operating_speeds):
             if speed.name in result_names or speed.name in speed_names:
                 msg = (
-                    f"duplicate name {short(speed.name)!r} (names are shared with load cases and "
+                    f"duplicate name {quoted(speed.name)} (names are shared with load cases and "
                     "combinations)"
                 )
                 raise InputError(f"operating_speeds[{number}].name", msg)

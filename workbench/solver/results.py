@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, listing, quoted
 from workbench.case.units import SI, UnitSystem, display_units
 from workbench.solver.columns import CaseTable
 from workbench.solver.mesh import Mesh
@@ -190,7 +190,7 @@ class Results:
         try:
             return self.names.index(name)
         except ValueError:
-            msg = f"unknown load case or combination {name!r}; known: {', '.join(self.names)}"
+            msg = f"unknown load case or combination {quoted(name)}; known: {listing(self.names)}"
             raise InputError("result", msg) from None
 
     def __getitem__(self, name: str) -> LoadResult:

@@ -45,8 +45,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
-from workbench.case.text import short
+from workbench.case.errors import InputError, short
 from workbench.case.units import quote
 from workbench.solver.columns import BoolArray, CaseTable, IntArray
 from workbench.solver.sections import FloatArray

@@ -12,7 +12,7 @@ from typing import Any
 
 import numpy as np
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import UnitSystem
 from workbench.solver.results import Results, support_labels
 
@@ -50,10 +50,10 @@ def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity
             shaft = int(np.searchsorted(results.mesh.shaft_station_start, column, "right")) - 1
             shaft_id = results.shaft_ids[shaft]
             x = units.from_si(float(results.mesh.station_x[column]), "length")
-            where = f"shaft {shaft_id!r} at x = {x:g} {units.label('length')}"
+            where = f"shaft {quoted(shaft_id)} at x = {x:g} {units.label('length')}"
             path = f"results[{row}].shafts.{shaft_id}.{key}"
         msg = (
-            f"the {_WORDS.get(key, key)} of {kind} {name!r} at {where} is "
+            f"the {_WORDS.get(key, key)} of {kind} {quoted(name)} at {where} is "
             f"{float(converted[column])} {units.label(quantity)}: JSON cannot hold it (no "
             "document is written)"
         )

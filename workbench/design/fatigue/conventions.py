@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 
 MPA = 1e6
 #: One kpsi in pascals (1000 lbf/in², with the international inch and pound, exact to rounding).
@@ -17,7 +17,7 @@ SHIGLEY = "Shigley's Mechanical Engineering Design, 9th/10th ed."
 def require_number(name: str, value: float) -> float:
     """``value`` as a float, or :class:`InputError` on ``name`` when it is not a finite number."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
-        msg = f"must be a number, not {value!r}"
+        msg = f"must be a number, not {quoted(value)}"
         raise InputError(name, msg)
     if not math.isfinite(value):
         msg = f"must be a finite number, not {value}"

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from workbench.case.design import FATIGUE_CRITERIA
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 from workbench.design.fatigue.conventions import require_number
@@ -72,7 +72,7 @@ class FatigueResult:
         """The fatigue factor of safety by ``criterion``, one of :data:`FATIGUE_CRITERIA`."""
         if criterion not in FATIGUE_CRITERIA:
             msg = (
-                f"unknown fatigue criterion {criterion!r}; choose one of "
+                f"unknown fatigue criterion {quoted(criterion)}; choose one of "
                 f"{', '.join(FATIGUE_CRITERIA)}"
             )
             raise InputError("fatigue_criterion", msg)

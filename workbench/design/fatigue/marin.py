@@ -21,7 +21,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from workbench.case.design import SURFACE_FINISHES
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 from workbench.design.fatigue.conventions import (
@@ -131,7 +131,9 @@ def surface_factor(ultimate_strength: float, finish: str) -> MarinFactor:
     require_positive("ultimate_strength", ultimate_strength, "stress")
     key = finish.strip().lower() if isinstance(finish, str) else ""
     if key not in SURFACE_FINISHES:
-        msg = f"unknown surface finish {finish!r}; choose one of {', '.join(SURFACE_FINISHES)}"
+        msg = (
+            f"unknown surface finish {quoted(finish)}; choose one of {', '.join(SURFACE_FINISHES)}"
+        )
         raise InputError("finish", msg)
     if key == "polished":
         return MarinFactor(
@@ -219,7 +221,7 @@ def size_factor(diameter: float, loading: str = "torsion") -> MarinFactor:
 
 def _load_factor_value(loading: str) -> float:
     if not isinstance(loading, str) or loading not in LOAD_FACTORS:
-        msg = f"unknown loading {loading!r}; choose one of {', '.join(LOAD_FACTORS)}"
+        msg = f"unknown loading {quoted(loading)}; choose one of {', '.join(LOAD_FACTORS)}"
         raise InputError("loading", msg)
     return LOAD_FACTORS[loading]
 
@@ -340,7 +342,7 @@ def reliability_factor(reliability: float = 0.5) -> MarinFactor:
                 f"reliability {tabulated * 100:g} %: ke = {factor:.3f} ({SHIGLEY}, Table 6-5)",
             )
     choices = ", ".join(f"{r:g}" for r in RELIABILITY_FACTORS)
-    msg = f"{reliability!r} is not a tabulated reliability; give a fraction, one of {choices}"
+    msg = f"{quoted(reliability)} is not a tabulated reliability; give a fraction, one of {choices}"
     raise InputError("reliability", msg)
 
 

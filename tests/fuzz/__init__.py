@@ -1,0 +1,1 @@
+"""Property-based fuzzing of the command line, ``verify`` and the panel (hypothesis)."""
