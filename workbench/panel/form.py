@@ -53,13 +53,12 @@ def clean_number(value: float) -> float | int:
 
 
 def entry_text(value: float) -> str:
-    """A value as an entry shows it: four significant figures, thousands grouped.
+    """A value as an entry shows it: four significant figures, thousands grouped (``1,250``).
 
-    A magnitude written with a power of ten (``1.2×10⁷``) is shown as ``1.2e+07`` instead, so
-    the text reads back unchanged through :func:`~workbench.case.entry.read_quantity`.
+    Beyond 10⁻³ to 10⁶ it is written with a power of ten (``1.2×10⁷``), which
+    :func:`~workbench.case.entry.read_quantity` reads back.
     """
-    text = format_number(float(value))
-    return f"{value:.4g}" if "×" in text else text
+    return format_number(float(value))
 
 
 def button(text: str, action: Callable[..., Any], width: str = "34px") -> w.Button:
@@ -98,8 +97,19 @@ class Form:
         return self.state.document
 
     def unit(self, quantity: str | None) -> str:
-        """The pretty unit of a quantity in the panel's units (empty for a plain number)."""
+        """The printed unit of a quantity in the panel's units (empty for a plain number)."""
         return unit_label(self.state.units, quantity) if quantity else ""
+
+    def shown_text(self, value: float, quantity: str | None) -> str:
+        """A document value (document units) as its entry shows it, in the unit beside it.
+
+        The entry shows four figures; the document keeps the value's full precision, and an
+        entry is read only when its text changes, so an untouched field never rounds the case.
+        """
+        if quantity is not None:
+            units = self.state.units
+            value = value * units.factor(quantity) / units.readout_factor(quantity)
+        return entry_text(value)
 
     @contextmanager
     def quiet(self) -> Iterator[None]:
@@ -207,8 +217,9 @@ class Form:
         """
         value = get_at(self.document, path)
         key = path_text(path)
+        quantity = quantity_of(path)
         field = w.Text(
-            value=entry_text(value if isinstance(value, (int, float)) else default),
+            value=self.shown_text(value if isinstance(value, (int, float)) else default, quantity),
             description=description,
             continuous_update=False,
             layout=sized(width),
@@ -228,13 +239,13 @@ class Form:
                 take(None)
                 return
             try:
-                number = self.read(text, quantity_of(path), key)
+                number = self.read(text, quantity, key)
             except InputError as error:
                 self.state.refuse(text, error)
                 return
             self.state.accept(key)
             with self.quiet():
-                field.value = entry_text(number)
+                field.value = self.shown_text(number, quantity)
             take(number)
 
         field.observe(typed, "value")
@@ -242,6 +253,8 @@ class Form:
 
     def read(self, text: str, quantity: str | None, field: str) -> float:
         """A typed value (``60``, ``2 1/4 in``) in the document's units of ``quantity``.
+
+        A bare number is in the unit shown beside the field (a twist rate's is °/m or °/ft).
 
         Raises
         ------
@@ -388,7 +401,11 @@ class Form:
                 if other is not source and value is not None:
                     if isinstance(other, w.FloatSlider):
                         other.min, other.max = min(other.min, value), max(other.max, value)
-                    other.value = entry_text(value) if isinstance(other, w.Text) else value
+                    other.value = (
+                        self.shown_text(value, quantity_of(path))
+                        if isinstance(other, w.Text)
+                        else value
+                    )
         self.state.edited()
 
     def structural(self, change: Callable[[], Any]) -> None:
