@@ -10,6 +10,7 @@ else its list), and the field is marked. :class:`Editor` is the base of each edi
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import Any
@@ -41,9 +42,32 @@ from workbench.panel.state import CaseState
 _KEPT_MESSAGES = "whatif"
 
 
+# Layouts and styles are widgets of their own, each a model the browser must create: every field
+# made with one of its own costs three models. The editors' fields share them instead (they are
+# never changed once made), so rebuilding the editors — on a unit switch, a new segment — sends
+# about a third as many models to the page.
+
+
+@functools.cache
+def shared_layout(**css: str) -> w.Layout:
+    """One layout per set of CSS properties, shared by every widget that uses it (never changed)."""
+    return w.Layout(**css)
+
+
+@functools.cache
+def shared_style(widget: Any, **properties: str) -> w.Widget:
+    """One style for widgets of class ``widget`` per set of properties, shared (never changed)."""
+    return widget.class_traits()["style"].klass(**properties)
+
+
 def sized(width: str) -> w.Layout:
-    """A widget layout of the given CSS width."""
-    return w.Layout(width=width)
+    """The shared widget layout of the given CSS width."""
+    return shared_layout(width=width)
+
+
+def _initial(widget: type) -> w.Widget:
+    """A shared style that leaves the description its natural width."""
+    return shared_style(widget, description_width="initial")
 
 
 def clean_number(value: float) -> float | int:
@@ -63,7 +87,7 @@ def entry_text(value: float) -> str:
 
 def button(text: str, action: Callable[..., Any], width: str = "34px") -> w.Button:
     """A button that runs ``action`` when clicked."""
-    widget = w.Button(description=text, layout=sized(width))
+    widget = w.Button(description=text, layout=sized(width), style=shared_style(w.Button))
     widget.on_click(lambda _: action())
     return widget
 
@@ -142,7 +166,7 @@ class Form:
     def message(self, prefix: Path | str) -> w.HTML:
         """An (empty) message line for errors of a field, or of a row or list named by a prefix."""
         key = prefix if isinstance(prefix, str) else path_text(prefix)
-        label = w.HTML(layout=w.Layout(min_width="0"))
+        label = w.HTML(layout=shared_layout(min_width="0"), style=shared_style(w.HTML))
         label.add_class("wb-msg")
         label.add_class(f"wb-msg-{css_name(parse_path(key))}")
         self.messages.setdefault(key, []).append(label)
@@ -150,7 +174,9 @@ class Form:
 
     def beside(self, widget: w.Widget, path: Path, *extra: w.Widget) -> w.HBox:
         """``widget`` (and its unit) with the message line of ``path`` right after it."""
-        return w.HBox([widget, *extra, self.message(path)], layout=w.Layout(align_items="center"))
+        return w.HBox(
+            [widget, *extra, self.message(path)], layout=shared_layout(align_items="center")
+        )
 
     def number(
         self,
@@ -184,7 +210,8 @@ class Form:
 
         field = self.entry(path, description, take, width=width, default=default, empty=optional)
         unit = self.unit(quantity_of(path))
-        return self.beside(field, path, *([w.Label(unit)] if unit else []))
+        label = [w.Label(unit, layout=shared_layout(), style=shared_style(w.Label))]
+        return self.beside(field, path, *(label if unit else []))
 
     def entry(
         self,
@@ -223,7 +250,7 @@ class Form:
             description=description,
             continuous_update=False,
             layout=sized(width),
-            style={"description_width": "initial"},
+            style=_initial(w.Text),
         )
         refused = self.state.refused.get(key)
         if refused is not None:  # rebuilt while refused: the text stays as typed
@@ -295,7 +322,7 @@ class Form:
             continuous_update=True,
             readout_format=".4g",
             layout=sized(width),
-            style={"description_width": "initial"},
+            style=_initial(w.FloatSlider),
         )
         self.register(path, field)
         field.observe(lambda change: self.write(path, clean_number(change["new"]), field), "value")
@@ -322,6 +349,7 @@ class Form:
             description=description,
             indent=False,
             layout=sized("90px"),
+            style=shared_style(w.Checkbox),
         )
         self.register(path, box)
         box.observe(lambda change: self.write(path, True if change["new"] else None, box), "value")
@@ -363,7 +391,7 @@ class Form:
             value=value if value in values else values[0],
             description=description,
             layout=sized(width),
-            style={"description_width": "initial"},
+            style=_initial(w.Dropdown),
         )
         self.register(path, field)
 
@@ -498,8 +526,8 @@ class Editor:
 def row(parts: list[w.Widget], *, wrap: bool = True) -> w.HBox:
     """One editor row: its widgets centred on a line (wrapping when ``wrap``)."""
     layout = (
-        w.Layout(align_items="center", flex_flow="row wrap")
+        shared_layout(align_items="center", flex_flow="row wrap")
         if wrap
-        else w.Layout(align_items="center")
+        else shared_layout(align_items="center")
     )
     return w.HBox(parts, layout=layout)
