@@ -145,7 +145,8 @@ class FatigueChart:
             self.figure.title = (
                 f"Fatigue diagram, {governing.shaft} segment {governing.segment} at x = "
                 f"{format_number(units.from_si(governing.x, 'length'))} {unit_label(units, 'length')} "
-                f"(n = {factors.factor_of_safety(criterion):.3g} {CRITERION_NAMES[criterion]})"
+                f"(n = {format_number(factors.factor_of_safety(criterion), 3)} "
+                f"{CRITERION_NAMES[criterion]})"
             )
             top = max(float(stress(factors.ultimate_shear)), float(self.others.x.max(initial=0)))
             self.x_scale.max = 1.05 * top
@@ -228,9 +229,9 @@ class FatigueSection:
                     point.segment,
                     format_number(units.from_si(point.x, "length")),
                     *(format_number(units.from_si(value, "stress")) for value in stresses),
-                    f"{point.concentration:.3g}",
-                    f"{factors.factor_of_safety(fatigue.criterion):.3g}",
-                    f"{factors.first_cycle_yield:.3g}",
+                    format_number(point.concentration, 3),
+                    format_number(factors.factor_of_safety(fatigue.criterion), 3),
+                    format_number(factors.first_cycle_yield, 3),
                 ]
             )
         self.table.value = render(
