@@ -22,6 +22,7 @@ LARGEST_PLAIN = Decimal("1e6")
 _SUPERSCRIPTS = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 
+@functools.lru_cache(maxsize=4096)  # a table's limits and stations repeat from redraw to redraw
 def format_number(value: float, significant: int = SIGNIFICANT_FIGURES) -> str:
     """Write ``value`` rounded to ``significant`` figures, thousands grouped.
 
