@@ -69,7 +69,7 @@ def test_a_quantity_changed_in_the_declaration_reaches_schema_parser_panel_and_r
     # the panel's unit table says so, and labels the input in degrees
     assert quantity_of(("shafts", 0, "segments", 0, "fillet_radius")) == "angle"
     labels = dict(numeric_inputs(case))
-    assert labels[("shafts", 0, "segments", 0, "fillet_radius")].endswith("fillet radius [deg]")
+    assert labels[("shafts", 0, "segments", 0, "fillet_radius")].endswith("fillet radius [°]")
     # the README's key reference would say so
     assert "| `fillet_radius` | number | angle |" in markdown()
     # and the saver writes it back in the same unit

@@ -268,7 +268,7 @@ def test_elevation_markers_are_labelled(demo: Workbench) -> None:
             assert mark.display_names and len(mark.names) == len(mark.x), mark.marker
             assert all(mark.names)
     assert list(charts.fixed.names) == ["fixed"]
-    assert list(charts.torques.names) == ["2100 N·m"]  # the jam torque, factored
+    assert list(charts.torques.names) == ["2,100 N·m"]  # the jam torque, factored
     assert charts.gears.labels_visibility == "label"
     assert list(charts.gears.labels) == ["gear 0a, r 60 mm"]
     labels = _labels(charts.drawing.legend)

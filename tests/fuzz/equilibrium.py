@@ -18,10 +18,13 @@ import sys
 from collections.abc import Sequence
 from typing import Any
 
+from workbench.case.declaration import POSITION_TOLERANCE
 from workbench.solver.model import Model
 
-#: Equilibrium must hold to this fraction of Σ|torque| (issue: 1e-9·Σ|applied torque|).
-RELATIVE = 1e-9
+#: Equilibrium must hold to this fraction of Σ|torque|: 1e-9 for the solve (issue 11), plus up to
+#: 1e-9 more for the loads of points closer than the position tolerance (1e-9 of a shaft's
+#: length, README), which the model merges before it solves.
+RELATIVE = 1e-9 + POSITION_TOLERANCE
 #: Below the smallest normal double a residual is rounding of subnormal loads, not an imbalance.
 FLOOR = sys.float_info.min
 

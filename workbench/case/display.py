@@ -22,6 +22,7 @@ LARGEST_PLAIN = Decimal("1e6")
 _SUPERSCRIPTS = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 
+@functools.lru_cache(maxsize=4096)  # a table's limits and stations repeat from redraw to redraw
 def format_number(value: float, significant: int = SIGNIFICANT_FIGURES) -> str:
     """Write ``value`` rounded to ``significant`` figures, thousands grouped.
 
@@ -44,7 +45,7 @@ def format_number(value: float, significant: int = SIGNIFICANT_FIGURES) -> str:
         return "0"
     # Round the shortest decimal that reads back as the value, half up, as a person would
     # round the digits printed (binary rounding would make 1234.5 → 1,234).
-    magnitude = Decimal(repr(abs(value)))
+    magnitude = Decimal(repr(abs(float(value))))  # a numpy scalar reprs as np.float64(...)
     exponent = magnitude.adjusted()
     step = Decimal(1).scaleb(exponent - significant + 1)
     rounded = magnitude.quantize(step, rounding=ROUND_HALF_UP)
@@ -74,8 +75,21 @@ def unit_symbol(unit: str) -> str:
     return format(registry().Unit(unit), "~P")
 
 
+def readout_symbol(system: UnitSystem, quantity: str) -> str:
+    """The printed unit a person reads ``quantity`` in (``"MPa"``, ``"°/m"``; ``""`` for a ratio).
+
+    Parameters
+    ----------
+    system
+        The units shown (its readout unit of a derived quantity, else its own).
+    quantity
+        What is measured (``"length"``, ``"twist_rate"``, ``"ratio"``, ...).
+    """
+    return unit_symbol(system.readout_unit(quantity))
+
+
 def format_quantity(value: float, quantity: str, system: UnitSystem) -> str:
-    """An SI value in ``system``'s unit of ``quantity``, e.g. ``"112.6 MPa"``.
+    """An SI value in ``system``'s readout unit of ``quantity``, e.g. ``"112.6 MPa"``, ``"0.25 °/m"``.
 
     Parameters
     ----------
@@ -86,6 +100,6 @@ def format_quantity(value: float, quantity: str, system: UnitSystem) -> str:
     system
         The units to show it in.
     """
-    number = format_number(system.from_si(value, quantity))
-    symbol = unit_symbol(system.label(quantity))
+    number = format_number(system.to_readout(value, quantity))
+    symbol = readout_symbol(system, quantity)
     return f"{number} {symbol}" if symbol else number

@@ -34,6 +34,9 @@ _DECIMAL_COMMA = re.compile(r"^,\d")
 _MINUSES = str.maketrans(
     {"\u2212": "-", "\u2012": "-", "\u2013": "-", "\ufe63": "-", "\uff0d": "-"}
 )
+#: A power of ten as the panel writes one (``1.235×10⁶``): read as ``1.235e6``.
+_POWER_OF_TEN = re.compile(r"(?<=\d)\s*×\s*10([⁻⁺]?[⁰¹²³⁴⁵⁶⁷⁸⁹]+)")
+_SUPERSCRIPT_DIGITS = str.maketrans("⁻⁺⁰¹²³⁴⁵⁶⁷⁸⁹", "-+0123456789")
 #: Spaces inside a number or between it and the unit (no-break, thin, narrow no-break).
 _SPACES = str.maketrans({"\u00a0": " ", "\u2009": " ", "\u202f": " "})
 
@@ -59,12 +62,13 @@ def read_quantity(text: str, quantity: str, system: UnitSystem, field: str = "")
     Parameters
     ----------
     text
-        What was typed: a number (``60``, ``-1.5e3``, ``1,250``, ``1/4``, ``2 1/4``, ``2-1/4``,
-        ``2¼``), then optionally a unit of ``quantity`` (``mm``, ``in``, ``N·m``, ``lbf*ft``, ``°``).
+        What was typed: a number (``60``, ``-1.5e3``, ``1.5×10³``, ``1,250``, ``1/4``, ``2 1/4``,
+        ``2-1/4``, ``2¼``), then optionally a unit of ``quantity`` (``mm``, ``in``, ``N·m``, ``lbf*ft``, ``°``).
     quantity
         What the field measures (``"length"``, ``"torque"``, ``"stiffness"``, ``"ratio"``, ...).
     system
-        The units the field shows: a bare number is in ``system``'s unit of ``quantity``.
+        The units the field shows: a bare number is in ``system``'s readout unit of
+        ``quantity`` (:meth:`~workbench.case.units.UnitSystem.readout_unit`).
     field
         The field's path, named in the error.
 
@@ -87,7 +91,11 @@ def read_quantity(text: str, quantity: str, system: UnitSystem, field: str = "")
     if len(text) > MAX_UNIT_LENGTH:
         msg = f"at most {MAX_UNIT_LENGTH} characters, not {len(text):,}"
         raise InputError(field, msg)
-    cleaned = _vulgar_fractions(text.translate(_MINUSES).translate(_SPACES)).strip()
+    cleaned = _POWER_OF_TEN.sub(
+        lambda power: "e" + power[1].translate(_SUPERSCRIPT_DIGITS),
+        text.translate(_MINUSES).translate(_SPACES),
+    )
+    cleaned = _vulgar_fractions(cleaned).strip()
     match = _ENTRY.match(cleaned)
     if match is None:
         raise InputError(field, f"{short(text)!r} is not a number (write e.g. 60, 60 mm, 2 1/4 in)")
@@ -104,7 +112,7 @@ def read_quantity(text: str, quantity: str, system: UnitSystem, field: str = "")
         except InputError as exc:
             raise InputError(field, f"{short(text)!r}: {exc.message}") from None
     else:
-        factor = system.factor(quantity)
+        factor = system.readout_factor(quantity)
     value = -magnitude * factor if match["sign"] == "-" else magnitude * factor
     if not math.isfinite(value):
         raise InputError(field, f"{short(text)!r} is too large a number")

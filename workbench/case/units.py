@@ -67,6 +67,7 @@ _SIMPLE_FACTORS: dict[str, float] = {
     "kg*m^2": 1.0,
     "kg/m**3": 1.0,
     "kg/m^3": 1.0,
+    "deg/m": math.pi / 180.0,
 }
 
 
@@ -80,6 +81,7 @@ _SIMPLE_QUANTITY: dict[str, str] = {
     **dict.fromkeys(["rad/s", "rpm"], "speed"),
     **dict.fromkeys(["kg*m**2", "kg*m^2"], "inertia"),
     **dict.fromkeys(["kg/m**3", "kg/m^3"], "density"),
+    "deg/m": "twist_rate",
 }
 
 
@@ -203,12 +205,16 @@ class UnitSystem:
     speed: str = "rad/s"
     inertia: str = "kg*m**2"
     density: str = "kg/m**3"
+    #: Units a person reads a derived quantity in, where the case file's own (angle/length:
+    #: ``deg/mm``) reads badly: ``(("twist_rate", "deg/m"),)``. Display only: values in a case file
+    #: stay in the derived unit, and :meth:`as_dict` leaves these out.
+    readouts: tuple[tuple[str, str], ...] = field(default=(), compare=False)
     _factors: dict[str, float] = field(default_factory=dict, init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         factors = {}
         for f in fields(self):
-            if f.name.startswith("_"):
+            if f.name.startswith("_") or f.name == "readouts":
                 continue
             unit = getattr(self, f.name)
             if not isinstance(unit, str) or not unit.strip():
@@ -221,6 +227,8 @@ class UnitSystem:
             factors[name] = value
         factors["area"] = factors["length"] ** 2
         factors["ratio"] = 1.0  # dimensionless: the same in every system
+        for quantity, unit in self.readouts:
+            factors[f"readout:{quantity}"] = unit_factor(unit, quantity)
         object.__setattr__(self, "_factors", factors)
 
     def factor(self, quantity: str) -> float:
@@ -249,15 +257,37 @@ class UnitSystem:
             return str(top)
         return f"{top}/{getattr(self, denominator)}"
 
+    def readout_unit(self, quantity: str) -> str:
+        """The unit a person reads ``quantity`` in: its readout unit, else :meth:`label`."""
+        return dict(self.readouts).get(quantity) or self.label(quantity)
+
+    def readout_factor(self, quantity: str) -> float:
+        """The factor from :meth:`readout_unit` of ``quantity`` to SI."""
+        return self._factors.get(f"readout:{quantity}", self._factors[quantity])
+
+    def to_readout(self, value: Any, quantity: str) -> Any:
+        """Convert a float or array from SI to :meth:`readout_unit` of ``quantity``."""
+        return value / self.readout_factor(quantity)
+
     def as_dict(self) -> dict[str, str]:
         """Return the unit strings keyed by base quantity (for the case file's ``units``)."""
-        return {f.name: getattr(self, f.name) for f in fields(self) if not f.name.startswith("_")}
+        return {
+            f.name: getattr(self, f.name)
+            for f in fields(self)
+            if not f.name.startswith("_") and f.name != "readouts"
+        }
 
 
 SI = UnitSystem()
-#: The display system "SI (engineering)": mm, N·m, MPa, deg.
+#: The display system "SI (engineering)": mm, N·m, MPa, deg; a twist rate read in °/m.
 SI_ENGINEERING = UnitSystem(
-    length="mm", torque="N*m", stress="MPa", angle="deg", power="kW", speed="rpm"
+    length="mm",
+    torque="N*m",
+    stress="MPa",
+    angle="deg",
+    power="kW",
+    speed="rpm",
+    readouts=(("twist_rate", "deg/m"),),
 )
 
 
@@ -273,6 +303,7 @@ def us_customary() -> UnitSystem:
         speed="rpm",
         inertia="lb*in**2",
         density="lb/in**3",
+        readouts=(("twist_rate", "deg/ft"),),
     )
 
 

@@ -15,6 +15,7 @@ from typing import Any
 import ipywidgets as w
 import numpy as np
 
+from workbench.case.display import format_number
 from workbench.design.checks import CheckReport
 from workbench.design.stress_profile import ShaftStresses, shaft_stresses
 from workbench.panel.document import unit_label
@@ -186,7 +187,7 @@ class StressChart(ResultChart):
             mark.y = units.from_si(stresses.detail_value[kind, where], "stress")
             values = mark.y.tolist() if len(where) else []
             names = [
-                f"segment {segment}: K = {factor:.3g}, {value:.4g} {stress_unit}"
+                f"segment {segment}: K = {factor:.3g}, {format_number(value)} {stress_unit}"
                 for segment, factor, value in zip(
                     where.tolist(), stresses.factor[kind, where].tolist(), values, strict=True
                 )

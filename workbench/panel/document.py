@@ -13,6 +13,7 @@ import copy
 import re
 from typing import Any
 
+from workbench.case.display import readout_symbol
 from workbench.case.units import SI_ENGINEERING, UnitSystem, us_customary
 
 Path = tuple[str | int, ...]
@@ -46,8 +47,8 @@ def pretty_unit(label: str) -> str:
 
 
 def unit_label(units: UnitSystem, quantity: str) -> str:
-    """The pretty unit of a quantity in a unit system."""
-    return pretty_unit(units.label(quantity))
+    """The printed unit a person reads a quantity in (``N·m``, ``kg/m³``, ``°/m``; none for a ratio)."""
+    return readout_symbol(units, quantity)
 
 
 def path_text(path: Path) -> str:

@@ -13,6 +13,7 @@ from typing import Any
 import numpy as np
 from ipywidgets import Layout
 
+from workbench.case.display import format_number
 from workbench.design.checks import CheckReport
 from workbench.panel.document import unit_label
 from workbench.panel.plotting import (
@@ -28,6 +29,7 @@ from workbench.panel.plotting import (
     bq,
     failing_mark,
     name_tooltip,
+    number_axis,
     set_list,
     set_tooltip,
 )
@@ -131,8 +133,8 @@ class Elevation:
                 self.failing,
             ],
             axes=[
-                bq.Axis(scale=self.x_scale, label="x"),
-                bq.Axis(scale=self.y_scale, side="left", label="radius", label_offset="45px"),
+                number_axis(self.x_scale, "x"),
+                number_axis(self.y_scale, "radius", side="left", label_offset="45px"),
             ],
             title="Elevation (to scale)",
             animation_duration=0,
@@ -236,7 +238,7 @@ class Elevation:
                     radius = float(units.from_si(point.radius, "length"))
                     gear_x.append([x, x])
                     gear_y.append([-radius, radius])
-                    names.append(f"gear {number}{end}, r {radius:.4g} {length_unit}")
+                    names.append(f"gear {number}{end}, r {format_number(radius)} {length_unit}")
         self.gears.visible = bool(gear_x)
         if not gear_x:
             return []
@@ -263,7 +265,7 @@ class Elevation:
         self.torques.y = np.full(len(torques_x), load_y)
         self.torques.default_size = 90
         set_tooltip(self.torques, [f"point torque at x [{length_unit}]"], ("x",))
-        set_list(self.torques, "names", [f"{t:.4g} {torque_unit}" for t in torques_t])
+        set_list(self.torques, "names", [f"{format_number(t)} {torque_unit}" for t in torques_t])
         self.torques.display_names = bool(torques_x)
         self.torques.visible = bool(torques_x)
         self.distributed.visible = bool(spans_x)

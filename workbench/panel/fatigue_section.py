@@ -12,6 +12,9 @@ from typing import Any
 import ipywidgets as w
 import numpy as np
 
+from workbench.case.declaration.criteria import in_words
+from workbench.case.design import FATIGUE_CRITERIA
+from workbench.case.display import format_number
 from workbench.case.units import UnitSystem
 from workbench.design.checks import CheckReport
 from workbench.design.fatigue.criteria import failure_lines
@@ -39,11 +42,9 @@ CRITERION_COLOURS = {
     "soderberg": "#8a6f3e",
     "langer": LIMIT,
 }
+#: The lines drawn, in words: the case's fatigue criteria, and Langer's first-cycle yield line.
 CRITERION_NAMES = {
-    "goodman": "modified Goodman",
-    "gerber": "Gerber",
-    "asme_elliptic": "ASME elliptic",
-    "soderberg": "Soderberg",
+    **{criterion: in_words(criterion) for criterion in FATIGUE_CRITERIA},
     "langer": "Langer (first-cycle yield)",
 }
 _CURVE_POINTS = 61
@@ -143,8 +144,9 @@ class FatigueChart:
             set_tooltip(self.others, [f"other segments' {x_label}", y_label])
             self.figure.title = (
                 f"Fatigue diagram, {governing.shaft} segment {governing.segment} at x = "
-                f"{units.from_si(governing.x, 'length'):.4g} {unit_label(units, 'length')} "
-                f"(n = {factors.factor_of_safety(criterion):.3g} {CRITERION_NAMES[criterion]})"
+                f"{format_number(units.from_si(governing.x, 'length'))} {unit_label(units, 'length')} "
+                f"(n = {format_number(factors.factor_of_safety(criterion), 3)} "
+                f"{CRITERION_NAMES[criterion]})"
             )
             top = max(float(stress(factors.ultimate_shear)), float(self.others.x.max(initial=0)))
             self.x_scale.max = 1.05 * top
@@ -225,11 +227,11 @@ class FatigueSection:
                 [
                     point.shaft,
                     point.segment,
-                    f"{units.from_si(point.x, 'length'):.4g}",
-                    *(f"{units.from_si(value, 'stress'):.4g}" for value in stresses),
-                    f"{point.concentration:.3g}",
-                    f"{factors.factor_of_safety(fatigue.criterion):.3g}",
-                    f"{factors.first_cycle_yield:.3g}",
+                    format_number(units.from_si(point.x, "length")),
+                    *(format_number(units.from_si(value, "stress")) for value in stresses),
+                    format_number(point.concentration, 3),
+                    format_number(factors.factor_of_safety(fatigue.criterion), 3),
+                    format_number(factors.first_cycle_yield, 3),
                 ]
             )
         self.table.value = render(

@@ -10,6 +10,7 @@ else its list), and the field is marked. :class:`Editor` is the base of each edi
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import Any
@@ -41,9 +42,32 @@ from workbench.panel.state import CaseState
 _KEPT_MESSAGES = "whatif"
 
 
+# Layouts and styles are widgets of their own, each a model the browser must create: every field
+# made with one of its own costs three models. The editors' fields share them instead (they are
+# never changed once made), so rebuilding the editors — on a unit switch, a new segment — sends
+# about a third as many models to the page.
+
+
+@functools.cache
+def shared_layout(**css: str) -> w.Layout:
+    """One layout per set of CSS properties, shared by every widget that uses it (never changed)."""
+    return w.Layout(**css)
+
+
+@functools.cache
+def shared_style(widget: Any, **properties: str) -> w.Widget:
+    """One style for widgets of class ``widget`` per set of properties, shared (never changed)."""
+    return widget.class_traits()["style"].klass(**properties)
+
+
 def sized(width: str) -> w.Layout:
-    """A widget layout of the given CSS width."""
-    return w.Layout(width=width)
+    """The shared widget layout of the given CSS width."""
+    return shared_layout(width=width)
+
+
+def _initial(widget: type) -> w.Widget:
+    """A shared style that leaves the description its natural width."""
+    return shared_style(widget, description_width="initial")
 
 
 def clean_number(value: float) -> float | int:
@@ -53,18 +77,17 @@ def clean_number(value: float) -> float | int:
 
 
 def entry_text(value: float) -> str:
-    """A value as an entry shows it: four significant figures, thousands grouped.
+    """A value as an entry shows it: four significant figures, thousands grouped (``1,250``).
 
-    A magnitude written with a power of ten (``1.2×10⁷``) is shown as ``1.2e+07`` instead, so
-    the text reads back unchanged through :func:`~workbench.case.entry.read_quantity`.
+    Beyond 10⁻³ to 10⁶ it is written with a power of ten (``1.2×10⁷``), which
+    :func:`~workbench.case.entry.read_quantity` reads back.
     """
-    text = format_number(float(value))
-    return f"{value:.4g}" if "×" in text else text
+    return format_number(float(value))
 
 
 def button(text: str, action: Callable[..., Any], width: str = "34px") -> w.Button:
     """A button that runs ``action`` when clicked."""
-    widget = w.Button(description=text, layout=sized(width))
+    widget = w.Button(description=text, layout=sized(width), style=shared_style(w.Button))
     widget.on_click(lambda _: action())
     return widget
 
@@ -100,8 +123,19 @@ class Form:
         return self.state.document
 
     def unit(self, quantity: str | None) -> str:
-        """The pretty unit of a quantity in the panel's units (empty for a plain number)."""
+        """The printed unit of a quantity in the panel's units (empty for a plain number)."""
         return unit_label(self.state.units, quantity) if quantity else ""
+
+    def shown_text(self, value: float, quantity: str | None) -> str:
+        """A document value (document units) as its entry shows it, in the unit beside it.
+
+        The entry shows four figures; the document keeps the value's full precision, and an
+        entry is read only when its text changes, so an untouched field never rounds the case.
+        """
+        if quantity is not None:
+            units = self.state.units
+            value = value * units.factor(quantity) / units.readout_factor(quantity)
+        return entry_text(value)
 
     @contextmanager
     def quiet(self) -> Iterator[None]:
@@ -134,7 +168,7 @@ class Form:
     def message(self, prefix: Path | str) -> w.HTML:
         """An (empty) message line for errors of a field, or of a row or list named by a prefix."""
         key = prefix if isinstance(prefix, str) else path_text(prefix)
-        label = w.HTML(layout=w.Layout(min_width="0"))
+        label = w.HTML(layout=shared_layout(min_width="0"), style=shared_style(w.HTML))
         label.add_class("wb-msg")
         label.add_class(f"wb-msg-{css_name(parse_path(key))}")
         self.messages.setdefault(key, []).append(label)
@@ -142,7 +176,9 @@ class Form:
 
     def beside(self, widget: w.Widget, path: Path, *extra: w.Widget) -> w.HBox:
         """``widget`` (and its unit) with the message line of ``path`` right after it."""
-        return w.HBox([widget, *extra, self.message(path)], layout=w.Layout(align_items="center"))
+        return w.HBox(
+            [widget, *extra, self.message(path)], layout=shared_layout(align_items="center")
+        )
 
     def number(
         self,
@@ -176,7 +212,8 @@ class Form:
 
         field = self.entry(path, description, take, width=width, default=default, empty=optional)
         unit = self.unit(quantity_of(path))
-        return self.beside(field, path, *([w.Label(unit)] if unit else []))
+        label = [w.Label(unit, layout=shared_layout(), style=shared_style(w.Label))]
+        return self.beside(field, path, *(label if unit else []))
 
     def entry(
         self,
@@ -209,12 +246,13 @@ class Form:
         """
         value = get_at(self.document, path)
         key = path_text(path)
+        quantity = quantity_of(path)
         field = w.Text(
-            value=entry_text(value if isinstance(value, (int, float)) else default),
+            value=self.shown_text(value if isinstance(value, (int, float)) else default, quantity),
             description=description,
             continuous_update=False,
             layout=sized(width),
-            style={"description_width": "initial"},
+            style=_initial(w.Text),
         )
         refused = self.state.refused.get(key)
         if refused is not None:  # rebuilt while refused: the text stays as typed
@@ -230,13 +268,13 @@ class Form:
                 take(None)
                 return
             try:
-                number = self.read(text, quantity_of(path), key)
+                number = self.read(text, quantity, key)
             except InputError as error:
                 self.state.refuse(text, error)
                 return
             self.state.accept(key)
             with self.quiet():
-                field.value = entry_text(number)
+                field.value = self.shown_text(number, quantity)
             take(number)
 
         field.observe(typed, "value")
@@ -244,6 +282,8 @@ class Form:
 
     def read(self, text: str, quantity: str | None, field: str) -> float:
         """A typed value (``60``, ``2 1/4 in``) in the document's units of ``quantity``.
+
+        A bare number is in the unit shown beside the field (a twist rate's is °/m or °/ft).
 
         Raises
         ------
@@ -284,7 +324,7 @@ class Form:
             continuous_update=True,
             readout_format=".4g",
             layout=sized(width),
-            style={"description_width": "initial"},
+            style=_initial(w.FloatSlider),
         )
         self.register(path, field)
         field.observe(lambda change: self.write(path, clean_number(change["new"]), field), "value")
@@ -311,6 +351,7 @@ class Form:
             description=description,
             indent=False,
             layout=sized("90px"),
+            style=shared_style(w.Checkbox),
         )
         self.register(path, box)
         box.observe(lambda change: self.write(path, True if change["new"] else None, box), "value")
@@ -352,7 +393,7 @@ class Form:
             value=value if value in values else values[0],
             description=description,
             layout=sized(width),
-            style={"description_width": "initial"},
+            style=_initial(w.Dropdown),
         )
         self.register(path, field)
 
@@ -394,7 +435,11 @@ class Form:
                 if other is not source and value is not None:
                     if isinstance(other, w.FloatSlider):
                         other.min, other.max = min(other.min, value), max(other.max, value)
-                    other.value = entry_text(value) if isinstance(other, w.Text) else value
+                    other.value = (
+                        self.shown_text(value, quantity_of(path))
+                        if isinstance(other, w.Text)
+                        else value
+                    )
         self.state.edited()
 
     def structural(self, change: Callable[[], Any]) -> None:
@@ -492,8 +537,8 @@ class Editor:
 def row(parts: list[w.Widget], *, wrap: bool = True) -> w.HBox:
     """One editor row: its widgets centred on a line (wrapping when ``wrap``)."""
     layout = (
-        w.Layout(align_items="center", flex_flow="row wrap")
+        shared_layout(align_items="center", flex_flow="row wrap")
         if wrap
-        else w.Layout(align_items="center")
+        else shared_layout(align_items="center")
     )
     return w.HBox(parts, layout=layout)

@@ -13,11 +13,13 @@ import ipywidgets as w
 import numpy as np
 from ipywidgets import Layout
 
+from workbench.case.display import format_number
 from workbench.case.units import UnitSystem
 from workbench.panel.document import unit_label
 from workbench.panel.markup import render
 from workbench.panel.plotting import (
     LOAD,
+    NUMBER_FORMAT,
     SHAFT,
     SUPPORT,
     Legend,
@@ -25,6 +27,7 @@ from workbench.panel.plotting import (
     bq,
     held,
     name_tooltip,
+    number_axis,
     xy_figure,
 )
 from workbench.solver.modes import Modes
@@ -115,12 +118,14 @@ class ModesChart:
             marker="diamond",
             colors=[SHAFT],
             default_size=60,
-            tooltip=bq.Tooltip(fields=["x"], labels=["natural frequency [rpm]"], formats=[".4g"]),
+            tooltip=bq.Tooltip(
+                fields=["x"], labels=["natural frequency [rpm]"], formats=[NUMBER_FORMAT]
+            ),
         )
         self.against = bq.Figure(
             marks=[self.widened, self.bands, self.frequencies, self.frequency_marks],
             axes=[
-                bq.Axis(scale=self.speed_scale, label="speed, frequency [rpm]", grid_lines="none"),
+                number_axis(self.speed_scale, "speed, frequency [rpm]", grid_lines="none"),
             ],
             title="Natural frequencies against running-speed bands (±margin dashed)",
             animation_duration=0,
@@ -163,7 +168,7 @@ class ModesChart:
                 mark.labels = [
                     f"mode {mode + 1}: rigid body (0 Hz)"
                     if modes.rigid_body[mode]
-                    else f"mode {mode + 1}: {modes.frequency[mode]:.4g} Hz"
+                    else f"mode {mode + 1}: {format_number(modes.frequency[mode])} Hz"
                     for mode in chosen
                 ]
                 name_tooltip(mark, "mode")
@@ -265,10 +270,10 @@ def _frequencies_html(modes: Modes, units: UnitSystem) -> str:
             (
                 mode + 1,
                 bool(modes.rigid_body[mode]),
-                f"{modes.frequency[mode]:.4g}",
-                f"{float(rpm(modes.angular_frequency[mode])):.4g}",
+                format_number(modes.frequency[mode]),
+                format_number(float(rpm(modes.angular_frequency[mode]))),
                 where,
-                f"{units.from_si(x, 'length'):.4g}",
+                format_number(units.from_si(x, "length")),
             )
         )
     length = unit_label(units, "length")

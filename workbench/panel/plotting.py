@@ -155,8 +155,19 @@ def held(figure: bq.Figure) -> Iterator[None]:
         yield
 
 
+#: How charts write numbers (d3-format, as bqplot's front end uses it): four significant figures,
+#: thousands grouped, trailing zeros trimmed, never an exponent or an SI prefix (``19,620``,
+#: ``0.0125``; a log axis's ``1,000`` not ``1e+3``).
+NUMBER_FORMAT = ",.4~r"
+
+
+def number_axis(scale: Any, label: str, **options: Any) -> Any:
+    """A chart axis whose ticks are written in :data:`NUMBER_FORMAT`."""
+    return bq.Axis(scale=scale, label=label, tick_format=NUMBER_FORMAT, **options)
+
+
 def set_tooltip(
-    mark: Any, labels: list[str], fields: tuple[str, ...] = ("x", "y"), fmt: str = ".4g"
+    mark: Any, labels: list[str], fields: tuple[str, ...] = ("x", "y"), fmt: str = NUMBER_FORMAT
 ) -> None:
     """Give ``mark`` a tooltip with these labels, keeping the one it has when they match.
 
@@ -180,10 +191,8 @@ def xy_figure(
 ) -> bq.Figure:
     """An x–y figure of the panel's look: axes labelled, grid dashed, no animation."""
     axes = [
-        bq.Axis(scale=x_scale, label=x_label, grid_lines="none"),
-        bq.Axis(
-            scale=y_scale, label=y_label, side="left", grid_lines="dashed", label_offset="45px"
-        ),
+        number_axis(x_scale, x_label, grid_lines="none"),
+        number_axis(y_scale, y_label, side="left", grid_lines="dashed", label_offset="45px"),
     ]
     return bq.Figure(
         marks=marks,

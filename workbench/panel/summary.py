@@ -10,6 +10,7 @@ from __future__ import annotations
 import ipywidgets as w
 import numpy as np
 
+from workbench.case.display import format_number
 from workbench.case.units import UnitSystem
 from workbench.design.caution import CAUTION
 from workbench.design.checks import CHECK_QUANTITIES, CheckReport
@@ -77,7 +78,7 @@ STALE_VERDICT = "NOT SOLVED: no verdict (values of the last valid case, dimmed)"
 
 
 def _cells(values: dict[str, float]) -> list[tuple[str, str]]:
-    return [(key, f"{value:.4g}") for key, value in values.items()]
+    return [(key, format_number(value)) for key, value in values.items()]
 
 
 def checks_html(report: CheckReport, units: UnitSystem, stale: str | None = None) -> str:
@@ -93,12 +94,12 @@ def checks_html(report: CheckReport, units: UnitSystem, stale: str | None = None
             "-" if check.segment is None else check.segment,
             check.kind.replace("_", " "),
             check.result,
-            f"{units.from_si(check.value, CHECK_QUANTITIES[check.kind]):.4g}",
-            f"{units.from_si(check.limit, CHECK_QUANTITIES[check.kind]):.4g}",
+            format_number(units.to_readout(check.value, CHECK_QUANTITIES[check.kind])),
+            format_number(units.to_readout(check.limit, CHECK_QUANTITIES[check.kind])),
             unit_of[CHECK_QUANTITIES[check.kind]],
             f"{check.utilisation:.3f}",
             check.passes,
-            f"{units.from_si(check.x, 'length'):.4g}",
+            format_number(units.to_readout(check.x, "length")),
         )
         for check in report.governing_by_kind()
     ]
@@ -114,7 +115,10 @@ def difference_html(now: dict[str, float], before: dict[str, float] | None) -> s
         old = before.get(key, float("nan"))
         change = value - old
         share = f"{change / old:+.1%}" if old else "-"
-        rows.append((key, [f"{old:.4g}", f"{value:.4g}", f"{change:+.4g}", share]))
+        sign = "+" if change > 0 else ""
+        rows.append(
+            (key, [format_number(old), format_number(value), sign + format_number(change), share])
+        )
     return render("difference", rows)
 
 

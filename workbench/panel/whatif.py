@@ -15,10 +15,11 @@ from typing import Any
 import ipywidgets as w
 import numpy as np
 
+from workbench.case.display import unit_symbol
 from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem
 from workbench.design.sweep import METRICS, SweepRequest, sweep_chunks
-from workbench.panel.document import Path, clone, get_at, unit_label
+from workbench.panel.document import Path, clone, get_at
 from workbench.panel.form import Form, entry_text, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
@@ -27,10 +28,12 @@ from workbench.panel.plotting import (
     FAIL,
     LIMIT,
     LOAD,
+    NUMBER_FORMAT,
     Legend,
     LegendEntry,
     bq,
     name_tooltip,
+    number_axis,
     readout,
     set_tooltip,
 )
@@ -129,7 +132,9 @@ class WhatIf:
             scales=scales,
             colors=[LOAD],
             default_size=80,
-            tooltip=bq.Tooltip(fields=["x", "y"], labels=["now", "value"], formats=[".4g", ".4g"]),
+            tooltip=bq.Tooltip(
+                fields=["x", "y"], labels=["now", "value"], formats=[NUMBER_FORMAT, NUMBER_FORMAT]
+            ),
         )
         self.sweep_legend = Legend("sweep")
         self.sweep_figure = bq.Figure(
@@ -141,8 +146,8 @@ class WhatIf:
                 self.sweep_now,
             ],
             axes=[
-                bq.Axis(scale=self.sweep_x, label="input"),
-                bq.Axis(scale=self.sweep_y, side="left", label="result", label_offset="45px"),
+                number_axis(self.sweep_x, "input"),
+                number_axis(self.sweep_y, "result", side="left", label_offset="45px"),
             ],
             title="Sweep",
             animation_duration=0,
@@ -306,7 +311,8 @@ def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:
 
     def label(path: Path) -> str:
         quantity = quantity_of(path)
-        unit = f" [{unit_label(system, quantity)}]" if quantity else ""
+        symbol = unit_symbol(system.label(quantity)) if quantity else ""  # the document's unit
+        unit = f" [{symbol}]" if symbol else ""
         return str(path[-1]).replace("_", " ") + unit
 
     for s, shaft in enumerate(document.get("shafts", [])):

@@ -38,6 +38,46 @@ SURFACE_FINISHES: tuple[str, ...] = typing.get_args(SurfaceFinish)
 #: How the mean stress is concentrated: ``"kfs"`` (Kfsm = Kfs, the conservative practice for
 #: shafts) or ``"none"`` (the nominal mean stress, Kfsm = 1).
 MEAN_CONCENTRATIONS: tuple[str, ...] = typing.get_args(MeanConcentration)
+#: Each named choice above in the words a person reads (the panel's drop-downs, tables, charts),
+#: one entry per key: a key added above without words here fails the declaration's tests.
+CHOICE_WORDS: dict[str, str] = {
+    # shear criteria
+    "von_mises": "von Mises (distortion energy)",
+    "tresca": "Tresca (maximum shear)",
+    "shafting_code": "transmission shafting code",
+    "allowable": "stated allowable",
+    # twist-rate rules
+    "machine-shaft": "machine shaft rule",
+    "line-shaft": "line shaft rule",
+    "twenty-diameters": "twenty diameters rule",
+    # fatigue (mean-stress) criteria
+    "goodman": "modified Goodman",
+    "gerber": "Gerber",
+    "asme_elliptic": "ASME elliptic",
+    "soderberg": "Soderberg",
+    # surface finishes
+    "polished": "polished",
+    "ground": "ground",
+    "machined": "machined",
+    "cold-drawn": "cold drawn",
+    "hot-rolled": "hot rolled",
+    "as-forged": "as forged",
+    # mean stress concentration
+    "kfs": "Kfs on the mean stress too",
+    "none": "nominal mean stress",
+}
+
+
+def in_words(key: str) -> str:
+    """A named choice of a case file (``"von_mises"``) as a person reads it; else the key, spaced."""
+    return CHOICE_WORDS.get(key) or key.replace("_", " ")
+
+
+def word_options(keys: tuple[str, ...]) -> list[tuple[str, str]]:
+    """(words, key) pairs for a drop-down of named choices."""
+    return [(in_words(key), key) for key in keys]
+
+
 #: Reliabilities of the endurance limit a case may name (Shigley Table 6-5 rows).
 RELIABILITIES: tuple[float, ...] = (0.5, 0.9, 0.95, 0.99, 0.999, 0.9999, 0.99999, 0.999999)
 

@@ -6,6 +6,7 @@ from collections.abc import Callable
 
 import ipywidgets as w
 
+from workbench.case.declaration.criteria import word_options
 from workbench.case.design import SHEAR_CRITERIA
 from workbench.panel.document import Path, get_at, shaft_length
 from workbench.panel.editors.fatigue import FatigueEditor
@@ -32,7 +33,10 @@ class DesignEditor(Editor):
         self.box.children = [
             form.number(("design", "factor_of_safety"), "factor of safety", width="200px"),
             form.choice(
-                ("design", "shear_criterion"), "criterion", list(SHEAR_CRITERIA), width="260px"
+                ("design", "shear_criterion"),
+                "criterion",
+                word_options(SHEAR_CRITERIA),
+                width="300px",
             ),
             keyway,
             form.number(

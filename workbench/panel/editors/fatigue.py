@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import ipywidgets as w
 
-from workbench.case.design import FATIGUE_CRITERIA, SURFACE_FINISHES
+from workbench.case.declaration.criteria import word_options
+from workbench.case.design import FATIGUE_CRITERIA, MEAN_CONCENTRATIONS, SURFACE_FINISHES
 from workbench.design.fatigue import RELIABILITY_FACTORS
 from workbench.panel.document import Path, get_at, result_names
 from workbench.panel.form import Form, row, sized
@@ -61,10 +62,13 @@ class FatigueEditor:
             row([how, *picks]),
             row(
                 [
-                    form.choice((*base, "finish"), "finish", list(SURFACE_FINISHES)),
+                    form.choice((*base, "finish"), "finish", word_options(SURFACE_FINISHES)),
                     form.choice((*base, "reliability"), "reliability", list(RELIABILITY_FACTORS)),
                     form.choice(
-                        (*base, "criterion"), "criterion", list(FATIGUE_CRITERIA), width="220px"
+                        (*base, "criterion"),
+                        "criterion",
+                        word_options(FATIGUE_CRITERIA),
+                        width="220px",
                     ),
                     form.number(
                         (*base, "factor_of_safety"),
@@ -75,7 +79,7 @@ class FatigueEditor:
                     form.choice(
                         (*base, "mean_concentration"),
                         "mean stress",
-                        [("× Kfs (conservative)", "kfs"), ("nominal", "none")],
+                        word_options(MEAN_CONCENTRATIONS),
                         width="260px",
                     ),
                 ]
