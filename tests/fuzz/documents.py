@@ -25,13 +25,13 @@ from tests.test_bad_input import VALID
 ROOT = Path(__file__).resolve().parents[2]
 
 #: The committed valid cases the mutations start from.
-SEED_FILES = (
+STARTING_FILES = (
     ROOT / "workbench" / "cases" / "press_drive.json",
     ROOT / "tests" / "fixtures" / "solve" / "every_shape.json",
     ROOT / "tests" / "fixtures" / "solve" / "line_shaft.json",
 )
-SEEDS: tuple[dict[str, Any], ...] = (
-    *(json.loads(path.read_text(encoding="utf-8")) for path in SEED_FILES),
+STARTING_CASES: tuple[dict[str, Any], ...] = (
+    *(json.loads(path.read_text(encoding="utf-8")) for path in STARTING_FILES),
     VALID,
 )
 
@@ -170,7 +170,7 @@ def built_case(draw: st.DrawFn) -> dict[str, Any]:
 
 #: A valid document: one of the committed cases or a built one.
 valid_documents = st.one_of(
-    st.sampled_from(SEEDS).map(copy.deepcopy),
+    st.sampled_from(STARTING_CASES).map(copy.deepcopy),
     built_case(),
 )
 

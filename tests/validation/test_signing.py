@@ -3,7 +3,7 @@
 Sources used here, each named again beside its check:
 
 * RFC 8785 (JCS) §3.2.2–§3.2.4 examples and Appendix B Table 1 — read from a verbatim
-  transcription of RFC 8785's normative text (section-by-section) found in a public repository.
+  copy of RFC 8785's normative text (section-by-section) found in a public repository.
 * ``testdata/input|output/weird.json`` of cyberphone/json-canonicalization, the reference
   implementations by RFC 8785's first author — read.
 * V8 (Node.js ``/usr/bin/node``), which RFC 8785 §3.2.2.3 names as the reference number
@@ -549,7 +549,7 @@ def test_base64url_round_trip_matches_python(data: bytes) -> None:
 
 # RFC 8037 A.1 (private "d", public "x"), A.3 thumbprint, A.4 payload and compact JWS.
 # Remembered by the lead; read again in jwcrypto 1.6.1 jwcrypto/tests.py (its RFC 8037
-# transcription); the same value also comes out of two implementations below.
+# copy); the same value also comes out of two implementations below.
 RFC8037_D = "nWGxne_9WmC6hEr0kuwsxERJxWl7MmkZcDusAxyuf2A"
 RFC8037_X = "11qYAYKxCrfVS_7TyWQHOg7hcvPapiMlrwIaaPcHURo"
 RFC8037_THUMBPRINT = "kPrK_qmxVWaYVA9wwBF6Iuo3vVzz7TxHCTwXBygrS4k"
