@@ -83,7 +83,7 @@ def countersign_text(
     outcome = verify_text(data)
     if not outcome.ok or outcome.payload is None:
         first = outcome.problems[0] if outcome.problems else "it does not verify"
-        msg = f"does not verify ({first}); countersign only a record that verifies"
+        msg = f"does not verify, and only a record that verifies is countersigned: {first}"
         raise InputError(str(where), msg)
     payload = outcome.payload
     before, block, after = split_block(data.decode("utf-8")) or ("", "", "")
