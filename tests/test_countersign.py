@@ -365,3 +365,17 @@ def test_record_status_names_the_chain_for_the_panel(chain: Path, people: dict) 
     holds, line = record_status(chain)
     assert not holds
     assert "NOT VALID" in line
+
+
+def test_readme_trusted_signers_example_reads(tmp_path: Path) -> None:
+    from workbench.signing import read_trusted_signers
+
+    readme = (Path(__file__).parents[1] / "README.md").read_text("utf-8")
+    example = re.search(r"```\n(# fingerprint .*?)```", readme, re.DOTALL).group(1)
+    signers_file = tmp_path / "signers.txt"
+    signers_file.write_text(example, "utf-8")
+    signers = read_trusted_signers(signers_file)
+    assert [(s.roles, s.name) for s in signers.values()] == [
+        (("prepared", "checked"), "A. Ingenieur"),
+        (("approved",), "B. Baumeister"),
+    ]

@@ -14,7 +14,10 @@ script, no template). It
 5. re-runs the solver and the checks from the signed case and compares the results digest,
    (natural modes and fatigue cycles included), and compares the results, checks, torsional
    vibration and fatigue sections written in the record with those rebuilt from the
-   recomputation.
+   recomputation;
+6. checks the chain of countersignatures (:mod:`workbench.signing.chain`): each signs the one
+   before and the content digest, in the order prepared → checked → approved, by a key the
+   reader gave (when keys are given) and on the reader's trusted-signers list (when given).
 
 A calculation package (zip, see :mod:`workbench.record.package`) is checked by
 :func:`verify_package`: the manifest's signature, every file's size and SHA-256 against the
@@ -35,7 +38,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from workbench.case.errors import InputError, WorkbenchError
+from workbench.case.errors import WorkbenchError
 from workbench.record.document import (
     BLOCK_END,
     BLOCK_START,
@@ -44,6 +47,7 @@ from workbench.record.document import (
     content_digest,
     signature_block,
 )
+from workbench.record.reader_keys import as_list, pick, read_trusted, read_with_key
 from workbench.record.render import document_end, render_sections
 from workbench.signing import JWK_SCRIPT, PAYLOAD_SCRIPT, TOKEN_SCRIPT, BlockData
 
@@ -116,55 +120,6 @@ class Verification:
         return [*self.facts, *(f"FAILED: {p}" for p in self.problems), verdict]
 
 
-def _read_with_key(
-    path: str | Path,
-    what: str,
-    public_key_path: str | Path | Sequence[str | Path] | None,
-) -> tuple[bytes, Any]:
-    """The file's bytes and the public key(s) to check it with (``None``: the embedded ones)."""
-    file = Path(path)
-    try:
-        data = file.read_bytes()
-    except OSError as error:
-        msg = f"cannot read the {what}: {error.strerror or error}"
-        raise InputError(str(file), msg) from None
-    if public_key_path is None:
-        return data, None
-    from workbench.signing import SigningError, load_public_key  # noqa: PLC0415
-
-    paths = [public_key_path] if isinstance(public_key_path, (str, Path)) else public_key_path
-    try:
-        keys = [load_public_key(one) for one in paths]
-    except SigningError as error:  # bad input of the option that named the key
-        raise InputError("--public-key", str(error)) from None
-    return data, keys[0] if len(keys) == 1 else keys
-
-
-def _as_list(public_key: Any) -> list[Any]:
-    """The keys given: none, one, or a list."""
-    if public_key is None:
-        return []
-    return list(public_key) if isinstance(public_key, (list, tuple)) else [public_key]
-
-
-def _pick(public_keys: list[Any], fingerprint: str | None) -> Any:
-    """The given key whose thumbprint is ``fingerprint``, else the first one given."""
-    from workbench.signing import jwk_thumbprint  # noqa: PLC0415
-
-    return next((k for k in public_keys if jwk_thumbprint(k) == fingerprint), public_keys[0])
-
-
-def _read_trusted(trusted_path: str | Path | None) -> Any:
-    if trusted_path is None:
-        return None
-    from workbench.signing import SigningError, read_trusted_signers  # noqa: PLC0415
-
-    try:
-        return read_trusted_signers(trusted_path)
-    except SigningError as error:
-        raise InputError("--trusted", str(error)) from None
-
-
 def verify_record(
     path: str | Path,
     public_key_path: str | Path | Sequence[str | Path] | None = None,
@@ -186,8 +141,8 @@ def verify_record(
     InputError
         When the file, a key file or the trusted-signers file cannot be read.
     """
-    trusted = _read_trusted(trusted_path)
-    return verify_text(*_read_with_key(path, "record", public_key_path), trusted)
+    trusted = read_trusted(trusted_path)
+    return verify_text(*read_with_key(path, "record", public_key_path), trusted)
 
 
 def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Verification:
@@ -223,7 +178,7 @@ def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Ver
 
     outcome = Verification()
     problems = outcome.problems
-    public_keys = _as_list(public_key)
+    public_keys = as_list(public_key)
     given = [jwk_thumbprint(key) for key in public_keys] if public_keys else None
     try:
         text = data.decode("utf-8")
@@ -269,7 +224,7 @@ def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Ver
         fingerprint = jwk_thumbprint(embedded)
         key = embedded
         if given is not None:
-            key = _pick(public_keys, fingerprint)
+            key = pick(public_keys, fingerprint)
             if jwk_thumbprint(key) != fingerprint:
                 problems.append(
                     f"the record was signed with key {fingerprint}, not with the expected key "
@@ -395,7 +350,7 @@ def verify_package(
     InputError
         When the file (or the key file) cannot be read.
     """
-    return verify_package_bytes(*_read_with_key(path, "package", public_key_path))
+    return verify_package_bytes(*read_with_key(path, "package", public_key_path))
 
 
 def _read_members(
@@ -459,7 +414,7 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
 
     outcome = Verification()
     facts, problems = outcome.facts, outcome.problems
-    public_keys = _as_list(public_key)
+    public_keys = as_list(public_key)
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
     except _ZIP_FAULTS as error:  # zipfile raises more than BadZipFile on a damaged directory
@@ -512,7 +467,7 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
             problems.append(f"{MANIFEST_SIGNATURE} is not a readable signature: {error}")
             return outcome
         if public_keys:
-            key = _pick(public_keys, kid)
+            key = pick(public_keys, kid)
         elif embedded is not None:
             try:
                 key = public_key_from_jwk(embedded)
