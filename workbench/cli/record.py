@@ -133,11 +133,13 @@ def _command_countersign(arguments: argparse.Namespace) -> int:
         raise InputError(
             str(source), f"cannot read the record: {error.strerror or error}"
         ) from None
+    output = output_file(
+        arguments.output or arguments.record, "-o" if arguments.output else "record"
+    )
     private_key = load_private_key(arguments.key, _passphrase(arguments))
     record = countersign_text(
         data, private_key, role=arguments.role, name=arguments.name or "", where=source
     )
-    output = output_file(arguments.output or arguments.record)
     with writing(output), atomic_file(output) as stream:
         stream.write(record.encode("utf-8"))
     fingerprint = jwk_thumbprint(private_key.public_key())
