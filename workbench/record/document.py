@@ -32,7 +32,6 @@ and the templates under ``templates/workbench_record/``), digests and signs.
 
 from __future__ import annotations
 
-import hashlib
 import os
 import time
 from collections.abc import Mapping
@@ -50,7 +49,7 @@ from workbench.record.render import (
 )
 from workbench.record.templating import templates_dir
 from workbench.record.view_model import heading, record_sections
-from workbench.signing import canonicalize
+from workbench.signing import canonicalize, content_digest
 
 __all__ = [
     "BLOCK_END",
@@ -70,11 +69,6 @@ __all__ = [
 
 FORMAT = "workbench-calculation-record"
 FORMAT_VERSION = 1
-
-
-def content_digest(text_without_block: str) -> str:
-    """``sha256:<hex>`` of the record's bytes outside the signature block."""
-    return "sha256:" + hashlib.sha256(text_without_block.encode("utf-8")).hexdigest()
 
 
 def signing_time() -> str:

@@ -52,10 +52,13 @@ def build_package(
     output: str | Path,
     *,
     key_file: str | Path | None = None,
+    key_passphrase: bytes | None = None,
     signer: str = "",
     title_block: dict[str, Any] | None = None,
 ) -> dict[str, Any]:
     """Write the calculation package of a notebook; return the manifest.
+
+    ``key_passphrase`` opens an encrypted key file (``None`` for an unencrypted one).
 
     Raises
     ------
@@ -69,7 +72,11 @@ def build_package(
 
     notebook = Path(notebook)
     record, resources = export_file(
-        notebook, key_file=key_file, signer=signer, title_block=title_block
+        notebook,
+        key_file=key_file,
+        key_passphrase=key_passphrase,
+        signer=signer,
+        title_block=title_block,
     )
     case = resources["workbench_case"]
     computation = compute(case)
@@ -100,7 +107,7 @@ def build_package(
     members["manifest.json"] = canonicalize(manifest)
     if key_file:
         members["manifest.jws"] = sign_compact(
-            members["manifest.json"], load_private_key(key_file), {"typ": "JOSE"}
+            members["manifest.json"], load_private_key(key_file, key_passphrase), {"typ": "JOSE"}
         ).encode("ascii")
     # Whole or not at all: a package cut short by a kill would still look like a zip.
     with (
