@@ -239,12 +239,13 @@ def _result_values(computation: Computation) -> dict[str, Any]:
     """Reactions, governing utilisations and verdicts of one revision, keyed by their names."""
     values: dict[str, Any] = {}
     supports = computation.model.supports
-    document = results_document(computation.results, computation.model.units)
+    units = computation.model.units
+    document = results_document(computation.results, units)
     for result in document["results"]:
         for index, reaction in enumerate(result["reactions"]):
             support = supports[index]
             where = f"support {index} ({support.shaft}, {support.kind})"
-            values[f"reaction at {where}, {result['name']!r}"] = reaction
+            values[f"reaction [{units.label('torque')}] at {where}, {result['name']!r}"] = reaction
     checks = check_document(computation.report)
     governing: dict[str, float] = {}
     passes: dict[str, bool] = {}
