@@ -32,11 +32,15 @@ def key(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, Path]:
     return write_key_pair(tmp_path_factory.mktemp("keys"))
 
 
-def _record(folder: Path, name: str, key: Path, diameter: float, title: str = "") -> Path:
+def _record(
+    folder: Path, name: str, key: Path, diameter: float, title: str = "", material: str = ""
+) -> Path:
     case = json.loads(DEMO_CASE.read_text("utf-8"))
     case["shafts"][0]["segments"][0]["section"]["diameter"] = diameter
     if title:
         case["title"] = title
+    if material:
+        case["shafts"][0]["segments"][0]["material"] = material
     notebook = folder / f"{name}.ipynb"
     nbformat.write(demo_notebook(case, executed=True), str(notebook))
     text, _ = export_file(notebook, key_file=key, execute=False, signed_at=SIGNED_AT)
@@ -126,3 +130,25 @@ def test_a_record_that_does_not_verify_is_bad_input(
     error = capsys.readouterr().err.strip()
     assert error.startswith(f"{altered}: does not verify, so it cannot be compared")
     assert "\n" not in error and len(error) <= 200
+
+
+def test_a_library_material_swapped_lists_its_values(
+    key: tuple[Path, Path], tmp_path: Path
+) -> None:
+    # The case names a library material; its values come from the library, so they are listed.
+    # Shigley's Mechanical Engineering Design, 9th ed., Table A-20: 1020 HR Sy 210, Su 380 MPa;
+    # 1045 CD Sy 530, Su 630 MPa.
+    a = _record(tmp_path, "a", key[0], 60, material="steel-1020-hr")
+    b = _record(tmp_path, "b", key[0], 60, material="steel-1045-cd")
+    comparison = compare_records(a, b, key[1])
+    inputs = {c.item: (c.old, c.new) for c in comparison.inputs}
+    assert inputs["shafts['auger'].segments[0].material"] == ("steel-1020-hr", "steel-1045-cd")
+    assert inputs["library material 'steel-1020-hr': yield_strength"] == (
+        pytest.approx(210.0),
+        None,
+    )
+    assert inputs["library material 'steel-1045-cd': ultimate_strength"] == (
+        None,
+        pytest.approx(630.0),
+    )
+    assert {c.group for c in comparison.inputs} == {"materials"}

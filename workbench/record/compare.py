@@ -26,7 +26,7 @@ from typing import Any
 
 from workbench.case.errors import InputError
 from workbench.design.checks import check_document
-from workbench.record.computation import Computation, compute
+from workbench.record.computation import Computation, compute, used_materials
 from workbench.record.render import CSP
 from workbench.record.templating import record_css, render
 from workbench.record.verify import verify_record
@@ -220,7 +220,7 @@ def _leaves(value: Any, path: str = "") -> Iterator[tuple[str, Any]]:
 
 
 def _input_group(path: str) -> str:
-    if path.endswith(".material"):
+    if path.endswith(".material") or path.startswith("library material"):
         return "materials"
     head = path.split(".", 1)[0].split("[", 1)[0]
     return _INPUT_GROUPS.get(head, "other")
@@ -233,6 +233,38 @@ def _compared(group_of: Any, old: Mapping[str, Any], new: Mapping[str, Any]) -> 
         for item in items
         if _differ(old.get(item), new.get(item))
     ]
+
+
+#: The values of a library material a comparison lists, with the quantity of each.
+_MATERIAL_QUANTITIES = (
+    ("shear_modulus", "stress"),
+    ("yield_strength", "stress"),
+    ("ultimate_strength", "stress"),
+    ("elastic_modulus", "stress"),
+    ("poisson_ratio", ""),
+    ("density", "density"),
+    ("source", ""),
+)
+
+
+def _input_values(case: Mapping[str, Any], computation: Computation) -> dict[str, Any]:
+    """Every scalar of the case, and the values of each library material it names.
+
+    A library material is named, not written, in the case: its values come from the software
+    that made the record, so they are compared too (in the case's units).
+    """
+    values = dict(_leaves(case))
+    own = case.get("materials") or {}
+    units = computation.model.units
+    for name, material in used_materials(computation.model).items():
+        if name in own:
+            continue
+        for field_name, quantity in _MATERIAL_QUANTITIES:
+            value = getattr(material, field_name)
+            if quantity and value is not None:
+                value = units.from_si(value, quantity)
+            values[f"library material {name!r}: {field_name}"] = value
+    return values
 
 
 def _result_values(computation: Computation) -> dict[str, Any]:
@@ -324,9 +356,12 @@ def compare_records(
     """
     revision_a, case_a = _revision(path_a, public_key_path)
     revision_b, case_b = _revision(path_b, public_key_path)
-    changes = _compared(_input_group, dict(_leaves(case_a)), dict(_leaves(case_b)))
+    computation_a, computation_b = compute(case_a), compute(case_b)
+    changes = _compared(
+        _input_group, _input_values(case_a, computation_a), _input_values(case_b, computation_b)
+    )
     changes += _compared(
-        _result_group, _result_values(compute(case_a)), _result_values(compute(case_b))
+        _result_group, _result_values(computation_a), _result_values(computation_b)
     )
     changes.sort(key=lambda change: GROUPS.index(change.group))
     return Comparison(revision_a, revision_b, changes)
