@@ -56,6 +56,8 @@ _INPUT_GROUPS = {
     "combinations": "loads",
     "design": "criteria",
 }
+#: Groups of results.
+RESULT_GROUPS = ("reactions", "utilisations", "verdicts")
 #: The order groups are listed in.
 GROUPS = (
     "dimensions",
@@ -65,9 +67,7 @@ GROUPS = (
     "loads",
     "criteria",
     "other",
-    "reactions",
-    "utilisations",
-    "verdicts",
+    *RESULT_GROUPS,
 )
 
 
@@ -106,14 +106,17 @@ class Change:
         return [self.group, self.item, _shown(self.old), _shown(self.new), change]
 
     def document(self) -> dict[str, Any]:
-        """The change as a JSON object."""
+        """The change as a JSON object (a number that is not finite written as text)."""
+        old, new, change, relative = (
+            _json_number(v) for v in (self.old, self.new, self.change, self.relative)
+        )
         return {
             "group": self.group,
             "item": self.item,
-            "old": self.old,
-            "new": self.new,
-            "change": self.change,
-            "relative": self.relative,
+            "old": old,
+            "new": new,
+            "change": change,
+            "relative": relative,
         }
 
 
@@ -151,12 +154,12 @@ class Comparison:
     @property
     def inputs(self) -> list[Change]:
         """The changes of the case file."""
-        return [c for c in self.changes if c.group in _INPUT_GROUPS.values() or c.group == "other"]
+        return [c for c in self.changes if c.group not in RESULT_GROUPS]
 
     @property
     def results(self) -> list[Change]:
         """The changes of reactions, governing utilisations and verdicts."""
-        return [c for c in self.changes if c not in self.inputs]
+        return [c for c in self.changes if c.group in RESULT_GROUPS]
 
     def document(self) -> dict[str, Any]:
         """The comparison as one JSON document."""
@@ -167,6 +170,11 @@ class Comparison:
             "inputs": [c.document() for c in self.inputs],
             "results": [c.document() for c in self.results],
         }
+
+
+def _json_number(value: Any) -> Any:
+    """``value``, or its text when it is a number JSON cannot hold (infinite, not a number)."""
+    return str(value) if _is_number(value) and not math.isfinite(value) else value
 
 
 def _signed(value: float, digits: int = 5) -> str:
@@ -185,8 +193,8 @@ def _is_number(value: Any) -> bool:
 
 def _differ(old: Any, new: Any) -> bool:
     if _is_number(old) and _is_number(new):
-        if math.isnan(old) or math.isnan(new):
-            return not (math.isnan(old) and math.isnan(new))
+        if not (math.isfinite(old) and math.isfinite(new)):
+            return not (math.isnan(old) and math.isnan(new)) and old != new
         return abs(new - old) > RELATIVE_TOLERANCE * max(abs(old), abs(new))
     return bool(old != new)
 
@@ -194,7 +202,8 @@ def _differ(old: Any, new: Any) -> bool:
 def _change(group: str, item: str, old: Any, new: Any) -> Change:
     if _is_number(old) and _is_number(new):
         delta = new - old
-        return Change(group, item, old, new, delta, delta / abs(old) if old else None)
+        relative = delta / abs(old) if old and math.isfinite(delta) else None
+        return Change(group, item, old, new, delta, relative)
     return Change(group, item, old, new)
 
 
