@@ -38,7 +38,12 @@ from collections.abc import Mapping
 from typing import Any
 
 import workbench
-from workbench.record.computation import Computation, compute, results_digest
+from workbench.record.computation import (
+    Computation,
+    compute,
+    refuse_recalled_materials,
+    results_digest,
+)
 from workbench.record.render import (
     BLOCK_END,
     BLOCK_START,
@@ -115,9 +120,15 @@ def render_record(
     -------
     str
         The record file's text.
+
+    Raises
+    ------
+    InputError
+        A material's source says its values were recalled ("from memory").
     """
     from workbench.signing import jwk_thumbprint, public_jwk, sign_compact  # noqa: PLC0415
 
+    refuse_recalled_materials(computation.model)
     signed_at = signed_at or signing_time()
     signer = signer or str(title_block.get("prepared_by", ""))
     jwk = public_jwk(private_key.public_key()) if private_key is not None else None
