@@ -9,7 +9,8 @@ Every section is a frozen dataclass in SI (metres). A section answers two questi
   unit torque (1/m³), so that τ_max = |T|·value.
 
 Prismatic sections (``prismatic = True``) also expose the constants ``torsion_constant`` and
-``shear_stress_per_torque``. Non-circular shapes live in :mod:`workbench.solver.noncircular`.
+``shear_stress_per_torque``. Non-circular shapes live in :mod:`workbench.solver.noncircular`
+and :mod:`workbench.solver.thin_walls`.
 
 A section is refused when its constants are not positive finite numbers held to full precision
 (:data:`~workbench.case.validate.SMALLEST_NORMAL` up to the largest float): a diameter of
