@@ -308,6 +308,48 @@ def test_alternatives_name_the_key(
     assert _solve_line(tmp_path, capsys, _with(BASE, old, new)) == line
 
 
+@pytest.mark.parametrize(
+    ("keys", "line"),
+    [
+        (
+            {"layers": True, "section": True},
+            "shafts[2].segments[2].section: give either material and section, or layers, not both",
+        ),
+        ({"material": True}, "shafts[2].segments[2].section: is required with material"),
+        ({"section": True}, "shafts[2].segments[2].material: is required with section"),
+        ({"layers": True, "material": None}, None),
+    ],
+)
+def test_alternatives_on_whole_shafts(keys: dict[str, bool | None], line: str | None) -> None:
+    """A segment's alternatives are checked shaft by shaft after decoding: the first segment
+    in error, by the bytes and by a plain document, under its own path (common practice, no
+    source: each key once, either group of keys)."""
+    layer = {"material": "steel", "section": {"shape": "solid", "diameter": 40}}
+    whole = {"length": 100, **layer}
+    layered = {"length": 100, "layers": [layer]}
+    document = copy.deepcopy(VALID)
+    document["shafts"].append({"id": "second", "segments": [whole, layered, dict(layered)]})
+    odd = {"length": 100}
+    for name, given in keys.items():
+        odd[name] = (
+            None if given is None else layered["layers"] if name == "layers" else layer[name]
+        )
+    document["shafts"][2]["segments"][2] = odd
+    document["shafts"][2]["segments"].append({"length": 100})  # a later error stays unreported
+    if line is None:
+        document["shafts"][2]["segments"].pop()
+        case_load.case_file_from_document(document)
+        case_load.decode_case_file(json.dumps(document).encode())
+        return
+    for read in (
+        lambda: case_load.case_file_from_document(document),
+        lambda: case_load.decode_case_file(json.dumps(document).encode()),
+    ):
+        with pytest.raises(InputError) as caught:
+            read()
+        assert str(caught.value) == line
+
+
 def test_nan_and_infinity_literals_are_named_as_not_finite() -> None:
     for literal in ("NaN", "Infinity", "-Infinity"):
         with pytest.raises(InputError) as raised:

@@ -443,6 +443,7 @@ SOLVER_CORE = (
     "workbench.solver.analysis",
     "workbench.solver.columns",
     "workbench.solver.mesh",
+    "workbench.solver.mesh_sizes",
     "workbench.solver.elements",
     "workbench.solver.assembly",
     "workbench.solver.recovery",

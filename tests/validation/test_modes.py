@@ -56,10 +56,10 @@ from workbench.solver.modes import (
     natural_modes,
     torsion_mass_matrix,
 )
-from workbench.solver.noncircular import (
+from workbench.solver.noncircular import Rectangle
+from workbench.solver.thin_walls import (
     Box,
     EllipticalTube,
-    Rectangle,
     ThinWalledClosed,
     ThinWalledOpen,
     Wall,

@@ -30,16 +30,14 @@ from shapely.geometry import box as shapely_box
 
 from workbench.case.errors import InputError
 from workbench.case.units import SI_ENGINEERING, display_units
-from workbench.solver.noncircular import (
-    NONCIRCULAR_SHAPES,
+from workbench.solver.noncircular import NONCIRCULAR_SHAPES, Rectangle, rectangle_coefficients
+from workbench.solver.thin_walls import (
     THIN_WALL_LIMIT,
     Box,
     EllipticalTube,
-    Rectangle,
     ThinWalledClosed,
     ThinWalledOpen,
     Wall,
-    rectangle_coefficients,
 )
 
 # --------------------------------------------------------------------------------------------

@@ -15,14 +15,16 @@ which could hide one) sends the file to the exact, slower pass that names the ke
 from __future__ import annotations
 
 import numbers
+import operator
 import os
 import re
 from pathlib import Path
 from typing import Any
 
 import msgspec
+import numpy as np
 
-from workbench.case.declaration import MAX_FILE_BYTES, MAX_SEGMENTS, CaseFile
+from workbench.case.declaration import MAX_FILE_BYTES, MAX_SEGMENTS, CaseFile, Segment
 from workbench.case.errors import InputError
 from workbench.case.text import (
     check_depth,
@@ -33,6 +35,9 @@ from workbench.case.text import (
 )
 
 _DECODER = msgspec.json.Decoder(CaseFile)
+_MATERIAL = operator.attrgetter("material")
+_SECTION = operator.attrgetter("section")
+_LAYERS = operator.attrgetter("layers")
 _ENCODER = msgspec.json.Encoder()
 _BYTE = re.compile(r"\(byte (\d+)\)")
 #: A colon written as an escape inside a string: it could hide a key given twice from the count.
@@ -130,7 +135,7 @@ def decode_case_file(data: bytes, source: str = "case") -> CaseFile:
     """
     _check_text(data, source)
     try:
-        return _DECODER.decode(data)
+        case = _DECODER.decode(data)
     except msgspec.ValidationError as error:
         from workbench.case.messages import translate  # noqa: PLC0415 - only for a message
 
@@ -139,6 +144,8 @@ def decode_case_file(data: bytes, source: str = "case") -> CaseFile:
     except msgspec.DecodeError as error:
         decode_document(data, source)  # names the syntax error by line and column
         raise InputError(source, f"not valid JSON: {error}") from None
+    check_segment_alternatives(case)
+    return case
 
 
 def check_case_bytes(data: bytes, case: CaseFile) -> None:
@@ -203,8 +210,46 @@ def case_file_from_document(document: Any) -> CaseFile:
             case = msgspec.convert(document, CaseFile)
         except msgspec.ValidationError as again:
             raise translate(again, document) from None
+    check_segment_alternatives(case)
     _check_totals(case)
     return case
+
+
+def check_segment_alternatives(case: CaseFile) -> None:
+    """Raise on the first segment that gives neither or both of its alternatives.
+
+    Checked on whole lists of segments, in C, rather than by each segment as it is decoded;
+    the first segment in error gets the message of the declared
+    :attr:`Segment.alternatives <workbench.case.declaration.Segment>` under its field path.
+
+    Raises
+    ------
+    InputError
+        ``shafts[0].segments[3].material: give either material and section, or layers, not
+        both`` and the like.
+    """
+    for number, shaft in enumerate(case.shafts):  # a loop over shafts
+        segments = shaft.segments
+        # A given material is a name and a given list of layers is not empty (both declared
+        # so) and a section is an object: "given" is truth (null and UNSET are false).
+        if (
+            not any(map(_LAYERS, segments))
+            and all(map(_MATERIAL, segments))
+            and all(map(_SECTION, segments))
+        ):
+            continue  # every segment a material and a section: the common case
+        count = len(segments)
+        material, section, layers = (
+            np.fromiter(map(bool, map(read, segments)), bool, count)
+            for read in (_MATERIAL, _SECTION, _LAYERS)
+        )
+        wrong = ~((material & section & ~layers) | (~material & ~section & layers))
+        if wrong.any():
+            row = int(np.argmax(wrong))
+            problem = Segment.alternatives.problem(segments[row])
+            if problem is not None:
+                field, message = problem
+                raise InputError(f"shafts[{number}].segments[{row}].{field}", message)
 
 
 def load_case_file(path: str | os.PathLike[str]) -> CaseFile:

@@ -55,7 +55,8 @@ from workbench.solver.columns import (
     case_table,
 )
 from workbench.solver.finite_results import solve_in_range
-from workbench.solver.mesh import Mesh, build_mesh_from_table, node_positions, size_mesh
+from workbench.solver.mesh import Mesh, build_mesh_from_table, node_positions
+from workbench.solver.mesh_sizes import size_mesh
 from workbench.solver.model import Model
 from workbench.solver.sections import FloatArray, circles_out_of_range
 from workbench.solver.soundness import Soundness

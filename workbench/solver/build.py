@@ -47,7 +47,7 @@ from workbench.solver.model import (
 from workbench.solver.sections import Section
 
 if TYPE_CHECKING:
-    from workbench.solver.noncircular import Wall
+    from workbench.solver.thin_walls import Wall
 
 
 @functools.cache
@@ -139,7 +139,7 @@ class ModelBuilder:
         return solver_sections()[cls](**values)
 
     def _wall(self, number: int, entry: declared.Wall) -> Wall:
-        from workbench.solver.noncircular import Wall  # noqa: PLC0415 - thin walls only
+        from workbench.solver.thin_walls import Wall  # noqa: PLC0415 - thin walls only
 
         try:
             return Wall(self.convert.si(entry, "length"), self.convert.si(entry, "thickness"))

@@ -32,7 +32,7 @@ from workbench.case import declaration as declared
 from workbench.case.errors import InputError
 from workbench.case.materials import Material
 from workbench.case.units import UnitSystem
-from workbench.case.validate import LARGEST, SMALLEST_NORMAL, not_normal_positive, within
+from workbench.case.validate import all_normal_positive, not_normal_positive, within
 from workbench.solver.build import ModelBuilder, building
 from workbench.solver.columns import (
     GIVEN,
@@ -48,7 +48,7 @@ from workbench.solver.columns import (
 )
 from workbench.solver.model import Shaft
 from workbench.solver.parts import References, check_segment_lengths, shaft_index
-from workbench.solver.sections import FloatArray, circles_out_of_range
+from workbench.solver.sections import FloatArray, circles_refused
 
 #: The declared circular sections by their shape code.
 _CIRCULAR: dict[int, type] = {
@@ -199,9 +199,7 @@ def _not_positive(values: FloatArray) -> BoolArray | None:
 
     Two reductions find the common case, every value fine, without a mask the size of the column.
     """
-    if not len(values) or (values.min() >= SMALLEST_NORMAL and values.max() <= LARGEST):
-        return None
-    return not_normal_positive(values)
+    return None if all_normal_positive(values) else not_normal_positive(values)
 
 
 def _either(*masks: BoolArray | None) -> BoolArray | None:
@@ -489,9 +487,11 @@ class _ShaftReader:
                 | ~(bore < np.fmin(start, end))
             )
         # J and τ/T in range at both ends (between them they are monotonic in the diameter).
-        out_of_range = circles_out_of_range(start, bore) | circles_out_of_range(end, bore)
-        if out_of_range.any():
-            refused = out_of_range if refused is None else refused | out_of_range
+        ends = (start,) if end is start else (start, end)
+        for diameter in ends:  # one end, or both of a taper
+            out_of_range = circles_refused(diameter, bore)
+            if out_of_range is not None:
+                refused = out_of_range if refused is None else refused | out_of_range
         return (start, end, bore, None, None), refused
 
     def _described(self, picked: _Picked) -> tuple[_Columns, FloatArray, BoolArray | None]:

@@ -14,7 +14,7 @@ import numpy as np
 
 from workbench.case.errors import InputError
 from workbench.case.units import quote
-from workbench.case.validate import not_normal_positive
+from workbench.case.validate import all_finite, all_normal_positive, not_normal_positive
 from workbench.solver.columns import BoolArray, IntArray, SegmentTable
 from workbench.solver.model import POSITION_TOLERANCE
 from workbench.solver.sections import FloatArray
@@ -80,12 +80,16 @@ def require_element_constants(
         (station_stress_per_torque, "its τ/T", "1/m³"),
     )
     for values, what, unit in checks:
+        if all_normal_positive(values):
+            continue  # the common case, found without a mask the size of the stations
         bad = not_normal_positive(values)
         if bad.any():
             variant, station = _first(bad)
             row = int(element_segment_row[station_element[station]])
             msg = f"{what} comes to {float(values[variant, station]):.3g} {unit}, {_OUT_OF_RANGE}"
             raise InputError(f"{segments.segment_path(row)}.section", msg)
+    if all_normal_positive(flexibility[..., 0]) and all_finite(flexibility[..., 1:]):
+        return
     bad = not_normal_positive(flexibility[..., 0]) | ~np.isfinite(flexibility[..., 1:]).all(-1)
     if bad.any():
         variant, element = _first(bad)

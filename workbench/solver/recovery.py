@@ -25,7 +25,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from workbench.solver.columns import BoolArray, IntArray
-from workbench.solver.mesh import Geometry, Mesh, interleave, start_and_end_values
+from workbench.solver.mesh import Mesh
+from workbench.solver.mesh_sizes import Geometry, interleave, start_and_end_values
 from workbench.solver.sections import FloatArray
 
 

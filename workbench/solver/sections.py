@@ -9,7 +9,8 @@ Every section is a frozen dataclass in SI (metres). A section answers two questi
   unit torque (1/m³), so that τ_max = |T|·value.
 
 Prismatic sections (``prismatic = True``) also expose the constants ``torsion_constant`` and
-``shear_stress_per_torque``. Non-circular shapes live in :mod:`workbench.solver.noncircular`.
+``shear_stress_per_torque``. Non-circular shapes live in :mod:`workbench.solver.noncircular`
+and :mod:`workbench.solver.thin_walls`.
 
 A section is refused when its constants are not positive finite numbers held to full precision
 (:data:`~workbench.case.validate.SMALLEST_NORMAL` up to the largest float): a diameter of
@@ -39,6 +40,7 @@ from workbench.case.units import quote
 from workbench.case.validate import (
     LARGEST,
     SMALLEST_NORMAL,
+    all_normal_positive,
     not_normal_positive,
     require_non_negative,
     require_positive,
@@ -125,8 +127,16 @@ def circle_constants(diameter: Any, bore: Any) -> tuple[Any, Any]:
 
 def circles_out_of_range(diameter: FloatArray, bore: FloatArray) -> BoolArray:
     """Where J or τ/T of circles (:func:`circle_constants`) is not a finite normal number."""
+    refused = circles_refused(diameter, bore)
+    return np.zeros(np.shape(diameter), dtype=bool) if refused is None else refused
+
+
+def circles_refused(diameter: FloatArray, bore: FloatArray) -> BoolArray | None:
+    """As :func:`circles_out_of_range`, ``None`` when every circle is in range (no mask made)."""
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # what is looked for
         moment, stress = circle_constants(diameter, bore)
+    if all_normal_positive(moment) and all_normal_positive(stress):
+        return None
     out: BoolArray = not_normal_positive(moment) | not_normal_positive(stress)
     return out
 

@@ -34,7 +34,8 @@ from workbench.solver.assembly import (
 )
 from workbench.solver.columns import CaseTable, IntArray
 from workbench.solver.elements import SaintVenantElements
-from workbench.solver.mesh import Geometry, Mesh, build_mesh_from_table
+from workbench.solver.mesh import Mesh, build_mesh_from_table
+from workbench.solver.mesh_sizes import Geometry
 from workbench.solver.parts import require_load_cases
 from workbench.solver.recovery import (
     ElementLoads,
@@ -174,7 +175,7 @@ def solve_table(
     mesh
         Its mesh, when already built; built here otherwise.
     geometry
-        Sizes of many variants of the mesh (:func:`~workbench.solver.mesh.size_mesh`); the
+        Sizes of many variants of the mesh (:func:`~workbench.solver.mesh_sizes.size_mesh`); the
         mesh's own sizes by default. The table's variant columns must match it.
     method
         ``"auto"``: banded LAPACK without gears, sparse LU with them; ``"sparse"`` forces the

@@ -91,6 +91,8 @@ class Notch(Keys):
 class Segment(Keys):
     """A length of shaft: a material and a section, or bonded coaxial layers."""
 
+    # Checked on whole lists of segments after decoding (workbench.case.load), not in a
+    # __post_init__: a million segments then decode without a Python call each.
     alternatives: ClassVar[Alternatives] = Alternatives((("material", "section"), ("layers",)))
 
     length: Annotated[float, key("Length along the shaft", "length", gt=0)]
@@ -101,9 +103,6 @@ class Segment(Keys):
     keyseat: Annotated[bool, key("Whether the segment carries an end-milled keyseat", default=False)] | UnsetType | None = UNSET  # fmt: skip
     cross_hole_diameter: Annotated[float, key("Diameter of a transverse through hole", "length", gt=0)] | UnsetType | None = UNSET  # fmt: skip
     notch: Annotated[Notch, key("A stress raiser with a stated Kts")] | UnsetType | None = UNSET
-
-    def __post_init__(self) -> None:
-        self.alternatives.check(self)
 
 
 class Shaft(Keys):

@@ -2,7 +2,8 @@
 
 Numbers are in the file's length units (``enclosed_area`` in length²). The solver builds its
 section of the same name from each (:mod:`workbench.solver.build`); what the shapes mean and their
-formulas are documented there (:mod:`workbench.solver.sections`, :mod:`workbench.solver.noncircular`).
+formulas are documented there (:mod:`workbench.solver.sections`, :mod:`workbench.solver.noncircular`,
+:mod:`workbench.solver.thin_walls`).
 """
 
 from typing import Annotated
