@@ -33,9 +33,11 @@ from workbench.panel.plotting import (
     LegendEntry,
     bq,
     failing_mark,
+    fit_scale,
     held,
     name_tooltip,
     readout,
+    set_array,
     set_list,
     set_tooltip,
     xy_figure,
@@ -174,7 +176,7 @@ class StressChart(ResultChart):
         self.peaks.visible = bool(lines)
         if lines:
             self.peaks.x = x
-            self.peaks.y = units.from_si(stresses.peak[lines], "stress")
+            set_array(self.peaks, "y", units.from_si(stresses.peak[lines], "stress"))
             set_list(self.peaks, "colors", [DETAIL_STYLES[kind][1] for kind in lines])
             set_list(self.peaks, "labels", [self._detail_label(stresses, kind) for kind in lines])
             name_tooltip(self.peaks, "peak stress")
@@ -370,6 +372,8 @@ class Charts:
                 if chart is self.stress:
                     bounds = units.from_si(shaft.boundaries, "length")
                     self.stress.draw_checks(shaft_stresses(report, shaft.id, result), units, bounds)
+                fit_scale(chart.x_scale, chart.figure.marks, "x")
+                fit_scale(chart.y_scale, chart.figure.marks, "y")
             now_label = {
                 "torque": "internal torque",
                 "angle": "angle of twist",
@@ -381,6 +385,7 @@ class Charts:
             chart.legend.show(entries)
         with held(self.utilisation):
             self._draw_bars(report, shaft, result, baseline)
+            fit_scale(self.bar_y, self.utilisation.marks, "y", include=0.0)
 
     def _draw_bars(
         self,
