@@ -98,3 +98,19 @@ def test_a_hidden_baseline_does_not_stretch_the_scale(demo: Workbench) -> None:
     drawn = [m for m in stress.figure.marks if m.visible and len(m.y)]
     low = np.nanmin(np.concatenate([np.asarray(m.y, dtype=float).ravel() for m in drawn]))
     assert stress.y_scale.min == pytest.approx(low)
+
+
+def test_the_invisible_readouts_are_sent_after_everything_seen(demo: Workbench) -> None:
+    demo.enter(DIAMETER, "56")
+    SENT.clear()
+    demo.enter(DIAMETER, "64")
+    order = [key for key, _ in SENT]
+    charts = (demo.charts.torque, demo.charts.angle, demo.charts.stress)
+    readouts = {chart.now_readout.model_id for chart in charts}
+    seen = {demo.check_table.model_id, demo.summary.model_id}
+    seen |= {chart.now.model_id for chart in charts}
+    assert readouts <= set(order) and seen <= set(order)
+    assert min(order.index(key) for key in readouts) > max(order.index(key) for key in seen)
+    for chart in charts:  # and they hold the curve's points
+        assert np.array_equal(chart.now_readout.x, chart.now.x)
+        assert np.array_equal(chart.now_readout.y, chart.now.y)
