@@ -59,6 +59,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         assert figures.count() >= 5
         stress_path = page.locator(".wb-chart-stress path.line").last
         value = page.locator(".wb-summary td.wb-value").nth(1)
+        settle(page)  # the notebook's last cells redraw the panel: let their updates land
         before_d, before_value = stress_path.get_attribute("d"), value.inner_text()
         entry = page.locator(DIAMETER).first  # the segment's entry and the drag line's
         # A bad value: the message shows beside the field, the charts keep the last good case.
@@ -93,6 +94,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         shot(page, "lab_panel.png")
 
         # Typed text that is no length: refused beside the field, nothing solved, all stale.
+        settle(page)
         after_d = stress_path.get_attribute("d")
         entry.fill("7o")
         entry.press("Enter")
@@ -189,6 +191,22 @@ def assert_unmarked(page: Any) -> None:
     assert bars["crosses"] == 0
     assert page.evaluate(MARKS, ".wb-chart-stress")["crosses"] == 0
     assert page.locator(".wb-checks .wb-fail").count() == 0
+
+
+def settle(page: Any, quiet_ms: int = 600) -> None:
+    """Wait until the stress line has not changed for ``quiet_ms`` (the page has drawn it all).
+
+    A chart's line is drawn with its new points, then again when its scale arrives: reading it
+    between the two would take a half-drawn chart for the state the page shows.
+    """
+    last = None
+    for _ in range(100):
+        now = page.locator(".wb-chart-stress path.line").last.get_attribute("d")
+        if now == last:
+            return
+        last = now
+        page.wait_for_timeout(quiet_ms)
+    raise AssertionError("the stress chart never settled")
 
 
 def shot(page: object, name: str) -> None:
