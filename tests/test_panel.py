@@ -278,7 +278,7 @@ def test_sweep_matches_point_solves(panel: Workbench) -> None:
 
 def test_sweep_widget_progress_and_cancel(panel: Workbench) -> None:
     panel.sweep_input.value = ("shafts", 0, "segments", 0, "section", "diameter")
-    panel.sweep_from.value, panel.sweep_to.value, panel.sweep_points.value = "40", "60 mm", 300
+    panel.sweep_from.value, panel.sweep_to.value, panel.sweep_points.value = "40", "60 mm", "300"
     panel.start_sweep()
     assert panel.sweep_progress.value == 300
     assert len(panel.sweep_line.y) == 300

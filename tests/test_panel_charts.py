@@ -150,7 +150,7 @@ def test_legends_for_the_allowable_the_baseline_and_the_sweep(demo: Workbench) -
 def test_utilisation_sweep_has_a_limit_line_and_a_legend(demo: Workbench) -> None:
     demo.sweep_input.value = ("shafts", 0, "segments", 0, "section", "diameter")
     demo.sweep_metric.value = "governing_utilisation"
-    demo.sweep_from.value, demo.sweep_to.value, demo.sweep_points.value = "50", "90", 9
+    demo.sweep_from.value, demo.sweep_to.value, demo.sweep_points.value = "50", "90", "9"
     demo.start_sweep()
     whatif = demo.whatif
     assert whatif.sweep_limit.visible
@@ -214,7 +214,7 @@ def test_no_tooltip_reads_nan_after_pinning_a_baseline(demo: Workbench) -> None:
     demo.form.fields["shafts[0].segments[0].section.diameter"][0].value = "64"
     demo.open_modes()
     demo.sweep_metric.value = "governing_utilisation"
-    demo.sweep_points.value = 5
+    demo.sweep_points.value = "5"
     demo.start_sweep()
     figures = [
         *demo.charts.figures,

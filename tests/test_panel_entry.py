@@ -19,7 +19,7 @@ from pathlib import Path
 import ipywidgets as w
 import pytest
 
-from tests.panel_cases import field, message_beside, open_demo, shown_messages, simple_case
+from tests.panel_cases import box_of, field, message_beside, open_demo, shown_messages, simple_case
 from workbench.case.errors import InputError
 from workbench.case.units import registry
 from workbench.panel import Workbench
@@ -132,7 +132,7 @@ def test_a_torque_with_thousands_separator() -> None:
 def test_no_quantity_is_a_browser_number_input() -> None:
     panel = Workbench(simple_case())
     kinds = {type(x).__name__ for x in widgets_in(panel.root)}
-    assert not kinds & {"FloatText", "BoundedFloatText"}
+    assert not kinds & {"FloatText", "BoundedFloatText", "IntText", "BoundedIntText"}
     for widget in widgets_in(panel.root):
         if isinstance(widget, w.FloatSlider):
             assert not widget.readout  # its editable readout would read `7o` as 7
@@ -140,6 +140,61 @@ def test_no_quantity_is_a_browser_number_input() -> None:
         for widget in widgets:
             if isinstance(widget, w.Text):
                 assert not widget.continuous_update  # read on Enter or leaving the field
+
+
+def message_after(panel: Workbench, entry: w.Text) -> w.HTML:
+    """The message line right after ``entry`` in its box."""
+    box = box_of(panel.root, entry)
+    assert box is not None
+    children = list(box.children)
+    line = children[children.index(entry) + 1]
+    assert isinstance(line, w.HTML) and "wb-msg" in line._dom_classes
+    return line
+
+
+@pytest.mark.parametrize(
+    ("typed", "words"),
+    [
+        ("7o", "'7o'"),
+        ("abc", "not a number"),
+        ("2.5", "not a whole number"),
+        ("1", "from 2 to 5,000, not 1"),
+        ("5,001", "not 5,001"),
+        ("12 mm", "'12 mm'"),
+    ],
+)
+def test_sweep_points_are_typed_text_refused_beside_the_field(typed: str, words: str) -> None:
+    panel = Workbench(simple_case())
+    panel.sweep_input.value = tuple(("shafts", 0, "segments", 0, "section", "diameter"))
+    entry = panel.sweep_points
+    assert isinstance(entry, w.Text) and not entry.continuous_update
+    line = message_after(panel, entry)
+    count = panel.solve_count
+    entry.value = typed
+    assert words in html.unescape(line.value)
+    assert "wb-bad" in entry._dom_classes
+    assert panel.solve_count == count and not panel.stale  # the case is untouched
+    panel.start_sweep()  # refused again when run: no sweep drawn
+    assert words in html.unescape(panel.sweep_message.value)
+    assert len(panel.sweep_line.y) == 0
+    entry.value = "1,000"  # thousands grouped, as a person writes it
+    assert line.value == "" and "wb-bad" not in entry._dom_classes
+    entry.value = "12"
+    panel.start_sweep()
+    assert len(panel.sweep_line.x) == 12 and panel.sweep_message.value == ""
+
+
+def test_sweep_support_is_typed_text_refused_beside_the_field() -> None:
+    panel = Workbench(simple_case())
+    entry = panel.sweep_support
+    assert isinstance(entry, w.Text)
+    line = message_after(panel, entry)
+    entry.value = "7o"
+    assert "'7o'" in html.unescape(line.value)
+    entry.value = "-1"
+    assert "from 0 to 99, not -1" in html.unescape(line.value)
+    entry.value = "0"
+    assert line.value == "" and "wb-bad" not in entry._dom_classes
 
 
 def stale_state(panel: Workbench) -> dict[str, bool]:
@@ -153,7 +208,7 @@ def test_every_derived_output_is_stale_says_why_and_points_at_the_field(tmp_path
     panel = open_demo(tmp_path)
     panel.pin_baseline()
     panel.sweep_input.value = tuple(("shafts", 0, "segments", 0, "section", "diameter"))
-    panel.sweep_points.value = 5
+    panel.sweep_points.value = "5"
     panel.start_sweep()
     sweep = list(panel.sweep_line.y)
     panel.open_modes()

@@ -4,13 +4,17 @@ Starts a private JupyterLab (:mod:`tests.browser.lab`), opens the demo notebook,
 types a bad diameter (its message must show beside the field, in the page), then a good one, and
 checks that a chart path and a result value change. Then types ``7o`` (a browser number input
 read it as 7): it must be refused beside the field, nothing redrawn, and every derived output
-marked stale with its reason. Screenshots of each state go to ``test-artifacts/``.
+marked stale with its reason ("NOT SOLVED: no verdict"). A second test makes a check fail (a
+thin diameter): the failing bars turn the failing colour, crosses mark the failures on the
+utilisation and stress charts and the check table says FAIL; a fit diameter clears every mark.
+Screenshots of each state go to ``test-artifacts/`` (their paths are printed into the test log).
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterator
 from pathlib import Path
+from typing import Any
 
 import pytest
 
@@ -19,6 +23,20 @@ from tests.browser.lab import ROOT, Lab, chromium, jupyter_lab, open_and_run_all
 ARTIFACTS = ROOT / "test-artifacts"
 DIAMETER = ".widget-text.wb-at-shafts-0-segments-0-section-diameter input"
 DIAMETER_MESSAGE = ".wb-msg-shafts-0-segments-0-section-diameter"
+#: The failing colour and the passing bar colour as the page computes them
+#: (workbench.panel.plotting FAIL = #a4036f, SHAFT = #3d5a80).
+FAIL_RGB, SHAFT_RGB = "rgb(164, 3, 111)", "rgb(61, 90, 128)"
+#: Page script: in a chart, the bar colours and how many failing-colour marks are visible.
+MARKS = """(figure) => {
+  const root = document.querySelector(figure);
+  const visible = (node) => getComputedStyle(node).visibility !== 'hidden'
+    && node.closest('[style*="display: none"]') === null
+    && parseFloat(getComputedStyle(node).opacity || '1') > 0;
+  const bars = [...root.querySelectorAll('rect.bar')].map((bar) => getComputedStyle(bar).fill);
+  const crosses = [...root.querySelectorAll('path.dot')]
+    .filter((dot) => getComputedStyle(dot).fill === 'FAIL_COLOUR' && visible(dot)).length;
+  return {bars, crosses};
+}""".replace("FAIL_COLOUR", FAIL_RGB)
 
 
 @pytest.fixture
@@ -41,6 +59,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         assert figures.count() >= 5
         stress_path = page.locator(".wb-chart-stress path.line").last
         value = page.locator(".wb-summary td.wb-value").nth(1)
+        settle(page)  # the notebook's last cells redraw the panel: let their updates land
         before_d, before_value = stress_path.get_attribute("d"), value.inner_text()
         entry = page.locator(DIAMETER).first  # the segment's entry and the drag line's
         # A bad value: the message shows beside the field, the charts keep the last good case.
@@ -75,6 +94,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         shot(page, "lab_panel.png")
 
         # Typed text that is no length: refused beside the field, nothing solved, all stale.
+        settle(page)
         after_d = stress_path.get_attribute("d")
         entry.fill("7o")
         entry.press("Enter")
@@ -86,7 +106,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         assert "'7o'" in message.inner_text()
         assert entry.input_value() == "7o"
         page.wait_for_selector(".wb-summary.wb-stale", timeout=15000)
-        assert "NOT SOLVED" in page.locator(".wb-summary").inner_text()
+        assert "NOT SOLVED: no verdict" in page.locator(".wb-summary").inner_text()
         assert "STALE" in page.locator(".wb-checks").inner_text()
         assert page.locator(".wb-charts .bqplot.figure.wb-stale").count() >= 5
         note = page.locator(".wb-charts .wb-stale-note").first
@@ -102,6 +122,91 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         )
         assert message.inner_text() == "" and entry.input_value() == "75"
         assert page.locator(".wb-stale").count() == 0
+
+
+@pytest.mark.browser
+def test_a_failing_check_is_marked_then_cleared(lab: Lab, tmp_path: Path) -> None:
+    from playwright.sync_api import sync_playwright
+
+    ARTIFACTS.mkdir(exist_ok=True)
+    with sync_playwright() as playwright, chromium(playwright, tmp_path / "browser") as context:
+        page = context.new_page()
+        open_and_run_all(page, lab)  # the notebook ends on a design that passes
+        entry = page.locator(DIAMETER).first
+        entry.scroll_into_view_if_needed()  # the notebook draws only the cells in view
+        page.wait_for_function(
+            "() => document.querySelector('.wb-summary').textContent.includes('checks pass')",
+            timeout=15000,
+        )
+        assert_unmarked(page)
+        # 30 mm where the demo has 60: the shear stress goes up eightfold and checks fail.
+        entry.fill("30")
+        entry.press("Enter")
+        page.wait_for_function(
+            "() => document.querySelector('.wb-summary').textContent.includes('SOME CHECKS FAIL')",
+            timeout=15000,
+        )
+        page.wait_for_function(
+            "([f, c]) => [...document.querySelectorAll(f + ' rect.bar')]"
+            ".some((bar) => getComputedStyle(bar).fill === c)",
+            arg=[".wb-chart-utilisation", FAIL_RGB],
+            timeout=15000,
+        )
+        bars = page.evaluate(MARKS, ".wb-chart-utilisation")
+        failing = bars["bars"].count(FAIL_RGB)
+        assert failing >= 1 and bars["crosses"] == failing  # a cross on each failing bar
+        assert set(bars["bars"]) <= {FAIL_RGB, SHAFT_RGB}
+        page.wait_for_function(
+            "([marks, f]) => eval(marks)(f).crosses > 0",
+            arg=[MARKS, ".wb-chart-stress"],
+            timeout=15000,
+        )
+        assert page.locator(".wb-checks .wb-fail").count() >= 1
+        assert page.locator(".wb-stale").count() == 0  # failing is a verdict, not stale
+        page.locator(".wb-chart-utilisation").scroll_into_view_if_needed()
+        shot(page, "lab_check_fails.png")
+
+        entry.fill("75 mm")
+        entry.press("Enter")
+        page.wait_for_function(
+            "() => !document.querySelector('.wb-summary').textContent.includes('FAIL')",
+            timeout=15000,
+        )
+        page.wait_for_function(
+            "([f, c]) => ![...document.querySelectorAll(f + ' rect.bar')]"
+            ".some((bar) => getComputedStyle(bar).fill === c)",
+            arg=[".wb-chart-utilisation", FAIL_RGB],
+            timeout=15000,
+        )
+        assert_unmarked(page)
+        page.locator(".wb-chart-utilisation").scroll_into_view_if_needed()
+        shot(page, "lab_check_fixed.png")
+
+
+def assert_unmarked(page: Any) -> None:
+    """No check fails on the page: no failing bar, no failing cross, no FAIL in the table."""
+    assert "FAIL" not in page.locator(".wb-summary").text_content()
+    bars = page.evaluate(MARKS, ".wb-chart-utilisation")
+    assert bars["bars"] and set(bars["bars"]) == {SHAFT_RGB}
+    assert bars["crosses"] == 0
+    assert page.evaluate(MARKS, ".wb-chart-stress")["crosses"] == 0
+    assert page.locator(".wb-checks .wb-fail").count() == 0
+
+
+def settle(page: Any, quiet_ms: int = 600) -> None:
+    """Wait until the stress line has not changed for ``quiet_ms`` (the page has drawn it all).
+
+    A chart's line is drawn with its new points, then again when its scale arrives: reading it
+    between the two would take a half-drawn chart for the state the page shows.
+    """
+    last = None
+    for _ in range(100):
+        now = page.locator(".wb-chart-stress path.line").last.get_attribute("d")
+        if now == last:
+            return
+        last = now
+        page.wait_for_timeout(quiet_ms)
+    raise AssertionError("the stress chart never settled")
 
 
 def shot(page: object, name: str) -> None:

@@ -33,9 +33,11 @@ from workbench.panel.plotting import (
     LegendEntry,
     bq,
     failing_mark,
+    fit_scale,
     held,
     name_tooltip,
     readout,
+    set_array,
     set_list,
     set_tooltip,
     xy_figure,
@@ -49,6 +51,8 @@ class ResultChart:
 
     def __init__(self, title: str, key: str) -> None:
         self.key = key
+        #: Readout points still to set: (mark, x, y) (see :meth:`set_curves`).
+        self._readouts: list[tuple[Any, Any, Any]] = []
         self.x_scale, self.y_scale = bq.LinearScale(), bq.LinearScale()
         scales = {"x": self.x_scale, "y": self.y_scale}
         extra = self.make_marks(scales)
@@ -95,13 +99,29 @@ class ResultChart:
         set_tooltip(self.baseline_readout, [x_label, "baseline " + y_label])
 
     def set_curves(self, x: Any, y: Any, base: tuple[Any, Any] | None) -> None:
-        """The curve now and the baseline's (``None``: no baseline), with their readouts."""
+        """The curve now and the baseline's (``None``: no baseline); readouts come later.
+
+        The readouts' points (invisible until hovered) are set by :meth:`draw_readouts`, after
+        everything seen: the page draws the curves first.
+        """
         self.now.x, self.now.y = x, y
-        self.now_readout.x, self.now_readout.y = x, y
+        self._readouts = [(self.now_readout, x, y)]
         if base is not None:
             self.baseline.x, self.baseline.y = base
-            self.baseline_readout.x, self.baseline_readout.y = base
+            self._readouts.append((self.baseline_readout, *base))
         self.baseline.visible = self.baseline_readout.visible = base is not None
+
+    def draw_readouts(self) -> None:
+        """Give the readouts the points of the curves last set (each in one message)."""
+        for mark, x, y in self._readouts:
+            with mark.hold_sync():
+                mark.x, mark.y = x, y
+        self._readouts = []
+
+    def seen(self) -> list[Any]:
+        """The marks drawn to be seen (the readouts are invisible points over the curves)."""
+        hidden = (self.now_readout, self.baseline_readout)
+        return [mark for mark in self.figure.marks if mark not in hidden]
 
     def entries(self, now_label: str) -> list[LegendEntry]:
         """The legend entries of the curve now and of the baseline when it is drawn."""
@@ -174,7 +194,7 @@ class StressChart(ResultChart):
         self.peaks.visible = bool(lines)
         if lines:
             self.peaks.x = x
-            self.peaks.y = units.from_si(stresses.peak[lines], "stress")
+            set_array(self.peaks, "y", units.from_si(stresses.peak[lines], "stress"))
             set_list(self.peaks, "colors", [DETAIL_STYLES[kind][1] for kind in lines])
             set_list(self.peaks, "labels", [self._detail_label(stresses, kind) for kind in lines])
             name_tooltip(self.peaks, "peak stress")
@@ -328,7 +348,10 @@ class Charts:
         shaft_number: int,
         baseline: tuple[Results, CheckReport] | None,
     ) -> None:
-        """Redraw every chart; each widget of a figure sends its changes in one message."""
+        """Redraw every chart; each widget of a figure sends its changes in one message.
+
+        The readouts follow when :meth:`draw_readouts` is called (the panel calls it last).
+        """
         units = model.units
         shaft = model.shafts[shaft_number]
         length_unit = unit_label(units, "length")
@@ -370,6 +393,8 @@ class Charts:
                 if chart is self.stress:
                     bounds = units.from_si(shaft.boundaries, "length")
                     self.stress.draw_checks(shaft_stresses(report, shaft.id, result), units, bounds)
+                fit_scale(chart.x_scale, chart.seen(), "x")
+                fit_scale(chart.y_scale, chart.seen(), "y")
             now_label = {
                 "torque": "internal torque",
                 "angle": "angle of twist",
@@ -381,6 +406,12 @@ class Charts:
             chart.legend.show(entries)
         with held(self.utilisation):
             self._draw_bars(report, shaft, result, baseline)
+            fit_scale(self.bar_y, self.utilisation.marks, "y", include=0.0)
+
+    def draw_readouts(self) -> None:
+        """The result charts' readouts, after everything seen is sent (see ``set_curves``)."""
+        for chart in (self.torque, self.angle, self.stress):
+            chart.draw_readouts()
 
     def _draw_bars(
         self,

@@ -280,6 +280,72 @@ class Form:
         field.observe(typed, "value")
         return field
 
+    def count(
+        self, key: str, description: str, value: int, low: int, high: int, width: str = "160px"
+    ) -> tuple[w.Text, w.HBox]:
+        """A text entry for a whole number that is no case field (a sweep's number of points).
+
+        What is typed is read at once (:meth:`read_count`); a refusal shows on the message line
+        beside the entry, the text kept as typed. Nothing is written to the case.
+
+        Parameters
+        ----------
+        key
+            The entry's name (``whatif.sweep.points``); its message line has the same key.
+        description
+            The words before the entry.
+        value
+            The number shown first.
+        low, high
+            The smallest and largest number taken (inclusive).
+        width
+            CSS width of the entry.
+
+        Returns
+        -------
+        tuple
+            The entry, and the row of the entry with its message line.
+        """
+        field = w.Text(
+            value=str(value),
+            description=description,
+            continuous_update=False,
+            layout=sized(width),
+            style=_initial(w.Text),
+        )
+        field.add_class(f"wb-at-{css_name(parse_path(key))}")
+        message = self.message(key)
+
+        def typed(change: dict[str, Any]) -> None:
+            try:
+                self.read_count(change["new"], low, high, key)
+            except InputError as error:
+                message.value = render("text", plain_words(error.message))
+                field.add_class("wb-bad")
+                return
+            message.value = ""
+            field.remove_class("wb-bad")
+
+        field.observe(typed, "value")
+        return field, w.HBox([field, message], layout=shared_layout(align_items="center"))
+
+    def read_count(self, text: str, low: int, high: int, field: str) -> int:
+        """A typed whole number from ``low`` to ``high`` (``50``, ``1,000``; no unit).
+
+        Raises
+        ------
+        InputError
+            Naming ``field``, for anything else (``7o``, ``2.5``, ``0`` below ``low``).
+        """
+        number = read_quantity(text, "ratio", self.state.units, field)
+        if not number.is_integer():
+            raise InputError(field, f"{text.strip()!r} is not a whole number")
+        if not low <= number <= high:
+            raise InputError(
+                field, f"give a whole number from {low:,} to {high:,}, not {number:,.0f}"
+            )
+        return int(number)
+
     def read(self, text: str, quantity: str | None, field: str) -> float:
         """A typed value (``60``, ``2 1/4 in``) in the document's units of ``quantity``.
 

@@ -19,6 +19,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import ipywidgets as w
+import numpy as np
 from ipywidgets import Layout
 
 from workbench.panel.markup import render
@@ -97,6 +98,48 @@ def set_list(mark: Any, trait: str, values: list[Any]) -> None:
     current = getattr(mark, trait)
     if current is None or list(current) != values:
         setattr(mark, trait, values)
+
+
+def set_array(mark: Any, trait: str, values: Any) -> None:
+    """Set an array trait (a mark's x or y) only when its values change, NaN equal to NaN.
+
+    The trait's own comparison takes NaN ≠ NaN, so an array with gaps (a detail's peak stress
+    where it has none) was sent to the page again on every redraw, unchanged.
+    """
+    values = np.asarray(values, dtype=float)
+    current = getattr(mark, trait)
+    # A mark keeps one line's y as 1-D: compare without the axes of length one.
+    same = current is not None and np.array_equal(
+        np.squeeze(np.asarray(current, dtype=float)), np.squeeze(values), equal_nan=True
+    )
+    if not same:
+        setattr(mark, trait, values)
+
+
+def fit_scale(scale: Any, marks: list[Any], axis: str = "y", include: float | None = None) -> None:
+    """Fix ``scale`` at the extent of the visible marks' ``axis`` data (NaN left out).
+
+    ``include``: a value the extent always holds (the 0 that bars stand on).
+
+    A scale left to follow its marks' data changes its domain as each mark's update reaches the
+    page, and every change redraws every mark and axis on it; fixed from here it changes once.
+    A flat extent is widened by 1 each way (as the page would show a single value, centred).
+    """
+    arrays = [
+        np.asarray(getattr(mark, axis), dtype=float).ravel() for mark in marks if mark.visible
+    ]
+    data = np.concatenate(arrays) if arrays else np.empty(0)
+    data = data[np.isfinite(data)]
+    if include is not None:
+        data = np.append(data, include)
+    if not len(data):
+        return
+    low, high = float(data.min()), float(data.max())
+    if low == high:
+        low, high = low - 1.0, high + 1.0
+    if (scale.min, scale.max) != (low, high):
+        with scale.hold_sync():
+            scale.min, scale.max = low, high
 
 
 def name_tooltip(mark: Any, label: str) -> None:

@@ -40,6 +40,10 @@ from workbench.panel.plotting import (
 
 #: The sweep's metric whose limit is 1 (a utilisation): the chart draws that line.
 UTILISATION_METRIC = "governing_utilisation"
+#: The numbers of points a sweep takes (smallest, largest).
+POINTS = (2, 5000)
+#: The support numbers the reaction sweep takes (smallest, largest).
+SUPPORT = (0, 99)
 
 
 class WhatIf:
@@ -81,16 +85,15 @@ class WhatIf:
         # Read with the input's unit when Run is clicked (Form.read: 60, 60 mm, 2 1/4 in).
         self.sweep_from = w.Text(description="from", layout=sized("160px"))
         self.sweep_to = w.Text(description="to", layout=sized("160px"))
-        self.sweep_points = w.BoundedIntText(
-            value=50, min=2, max=5000, description="points", layout=sized("160px")
-        )
+        # Whole numbers typed as text (a browser number input read `7o` as 7), refused beside.
+        self.sweep_points, points_row = form.count("whatif.sweep.points", "points", 50, *POINTS)
         self.sweep_metric = w.Dropdown(
             options=[(label, key) for key, (label, _) in METRICS.items()],
             description="follow",
             layout=sized("360px"),
         )
-        self.sweep_support = w.BoundedIntText(
-            value=0, min=0, max=99, description="support", layout=sized("140px")
+        self.sweep_support, support_row = form.count(
+            "whatif.sweep.support", "support", 0, *SUPPORT, width="140px"
         )
         self.sweep_run = w.Button(description="Run sweep", icon="play", button_style="info")
         self.sweep_run.on_click(lambda _: self.start_sweep())
@@ -161,8 +164,8 @@ class WhatIf:
                 self.difference,
                 w.HTML(render("heading", "Sweep", " one input over a range")),
                 self.sweep_input,
-                w.HBox([self.sweep_from, self.sweep_to, self.sweep_points]),
-                w.HBox([self.sweep_metric, self.sweep_support]),
+                w.HBox([self.sweep_from, self.sweep_to, points_row]),
+                w.HBox([self.sweep_metric, support_row]),
                 w.HBox(
                     [self.sweep_run, self.sweep_cancel, self.sweep_progress, self.sweep_message]
                 ),
@@ -205,13 +208,11 @@ class WhatIf:
             quantity = quantity_of(path)
             start = self.form.read(self.sweep_from.value, quantity, "sweep from")
             end = self.form.read(self.sweep_to.value, quantity, "sweep to")
-            values = tuple(np.linspace(start, end, self.sweep_points.value))
+            points = self.form.read_count(self.sweep_points.value, *POINTS, "sweep points")
+            support = self.form.read_count(self.sweep_support.value, *SUPPORT, "sweep support")
+            values = tuple(np.linspace(start, end, points))
             request = SweepRequest(
-                path,
-                values,
-                self.sweep_metric.value,
-                self._result_shown(),
-                self.sweep_support.value,
+                path, values, self.sweep_metric.value, self._result_shown(), support
             )
             chunks = sweep_chunks(clone(self._document), request)
         except InputError as error:

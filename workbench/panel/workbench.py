@@ -446,3 +446,4 @@ class Workbench:
             self.modes_section.draw(state.modes, state.why_no_modes, shaft, speeds, margin, units)
         elif opened == 1:
             self.fatigue_section.draw(model, report, shaft, units)
+        self.charts.draw_readouts()  # invisible hover points: after all that is seen
