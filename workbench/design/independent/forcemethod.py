@@ -35,6 +35,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from workbench.case.declaration import POSITION_TOLERANCE
 from workbench.design.independent.pieces import Pieces, cut_pieces, flexibility_moments
 from workbench.design.independent.reading import FloatArray, IntArray, NotCovered, System
 
@@ -85,14 +86,16 @@ class ForceMethod:
     def torque_at(self, shaft: int, x: FloatArray, *, left: bool = False) -> FloatArray:
         """Internal torque T (N·m), shape (len(x), n_results), at stations x (m) of a shaft.
 
-        At a cut point the value just right of it, or just left with ``left=True``.
+        At a cut point (within the position tolerance) the value just right of it, or just
+        left with ``left=True``.
         """
         pieces = self.pieces
         breaks = pieces.breaks[shaft]
+        tolerance = POSITION_TOLERANCE * breaks[-1]
         found = (
-            np.searchsorted(breaks, x, side="left")
+            np.searchsorted(breaks, x - tolerance, side="left")
             if left
-            else np.searchsorted(breaks, x, side="right")
+            else np.searchsorted(breaks, x + tolerance, side="right")
         )
         local = np.clip(found - 1, 0, len(breaks) - 2)
         number = pieces.first[shaft] + local

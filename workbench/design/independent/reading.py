@@ -160,8 +160,7 @@ def read_system(case: declared.CaseFile) -> System:
     segment_length = np.concatenate([np.asarray(row, dtype=float) for row in lengths])
     counts = np.array([len(row) for row in lengths])
     segment_shaft = np.repeat(np.arange(len(counts)), counts)
-    ends = np.concatenate([np.cumsum(row) for row in lengths])
-    segment_start = ends - segment_length
+    segment_start = np.concatenate([np.cumsum([0.0, *row[:-1]]) for row in lengths])
     shaft_lengths = np.array([float(np.sum(row)) for row in lengths])
 
     constant = np.zeros(len(segment_length))

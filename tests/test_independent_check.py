@@ -1,0 +1,345 @@
+"""The independent check (force method, workbench.design.independent) against the solver.
+
+Both are exact methods for these systems (piecewise-polynomial internal torque, exact or
+quadrature-converged flexibility integrals), so they must agree to round-off: a relative 1e-9
+of the largest torque of each result (AGREEMENT_TOLERANCE).
+"""
+
+from __future__ import annotations
+
+import collections
+import copy
+import inspect
+import itertools
+import json
+import subprocess
+import sys
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from tests.validation import (
+    test_closed_forms,
+    test_fatigue,
+    test_keyway_allowance,
+    test_modes,
+    test_worked_examples,
+)
+from workbench.case.errors import MechanismError
+from workbench.case.load import case_file_from_document
+from workbench.design.independent import (
+    AGREEMENT_TOLERANCE,
+    NotCovered,
+    compare,
+    independent_check,
+)
+from workbench.solver.analysis import solve
+from workbench.solver.io import parse_case
+
+DEMO = Path(__file__).parents[1] / "workbench" / "cases" / "press_drive.json"
+VALIDATION_MODULES = (
+    test_closed_forms,
+    test_fatigue,
+    test_keyway_allowance,
+    test_modes,
+    test_worked_examples,
+)
+
+
+def agreement(document: dict[str, Any]) -> float:
+    """Largest relative difference between the force method and the solver on a case."""
+    solution = independent_check(case_file_from_document(copy.deepcopy(document)))
+    results = solve(parse_case(copy.deepcopy(document)))
+    stations = [
+        [(result.shafts[shaft].x, result.shafts[shaft].torque) for shaft in results.shaft_ids]
+        for result in results
+    ]
+    comparison = compare(solution, results.reactions, stations)
+    assert len(comparison.rows) == len(results.names) * (
+        results.reactions.shape[1] + len(results.shaft_ids)
+    )
+    return comparison.worst
+
+
+def test_demo_two_geared_shafts_agree() -> None:
+    document = json.loads(DEMO.read_text("utf-8"))
+    assert agreement(document) <= AGREEMENT_TOLERANCE
+    solution = independent_check(case_file_from_document(document))
+    # One shaft on a fixed and a spring support, one hung from the mesh: one redundant.
+    assert solution.released == (("support", 1),)
+
+
+def _calls(function: Callable[..., Any]) -> list[dict[str, Any]]:
+    """Every argument set a test function runs with (its parametrize marks, crossed)."""
+    marks = [m for m in getattr(function, "pytestmark", []) if m.name == "parametrize"]
+    if not marks:
+        return [{}]
+    choices = []
+    for mark in marks:
+        names = (
+            [n.strip() for n in mark.args[0].split(",")]
+            if isinstance(mark.args[0], str)
+            else list(mark.args[0])
+        )
+        rows = [row if len(names) > 1 else (row,) for row in mark.args[1]]
+        choices.append([dict(zip(names, getattr(r, "values", r), strict=True)) for r in rows])
+    return [dict(collections.ChainMap(*combo)) for combo in itertools.product(*choices)]
+
+
+def validation_cases() -> list[tuple[str, dict[str, Any]]]:
+    """Every case document a test in tests/validation/ solves, caught at parse_case."""
+    caught: list[tuple[str, dict[str, Any]]] = []
+    for module in VALIDATION_MODULES:
+        original = module.parse_case
+        for name, function in inspect.getmembers(module, inspect.isfunction):
+            if not name.startswith("test_") or function.__module__ != module.__name__:
+                continue
+            if {"tmp_path", "monkeypatch", "capsys"} & set(inspect.signature(function).parameters):
+                continue
+
+            def catch(
+                document: Any,
+                *args: Any,
+                _name: str = f"{module.__name__}.{name}",
+                _original: Callable[..., Any] = original,
+                **kwargs: Any,
+            ) -> Any:
+                kept = copy.deepcopy(document)
+                model = _original(document, *args, **kwargs)  # bad input raises: not kept
+                if isinstance(kept, dict):
+                    caught.append((_name, kept))
+                return model
+
+            module.parse_case = catch
+            try:
+                for arguments in _calls(function):
+                    function(**arguments)
+            finally:
+                module.parse_case = original
+    return caught
+
+
+VALIDATION_CASES = validation_cases()
+
+
+def test_validation_cases_were_found() -> None:
+    # The worked examples alone hold six systems (Hibbeler, Beer & Johnston, Philpot twice, the
+    # gear pair, the three-shaft system); the closed forms add tapered, layered and loaded bars.
+    assert len(VALIDATION_CASES) >= 25
+    names = {name for name, _ in VALIDATION_CASES}
+    assert any("large_geared_system" in name for name in names)
+    assert any("gear_pair" in name for name in names)
+
+
+@pytest.mark.parametrize(
+    "document", [case for _, case in VALIDATION_CASES], ids=[n for n, _ in VALIDATION_CASES]
+)
+def test_every_validation_case_agrees_or_is_named_not_covered(document: dict[str, Any]) -> None:
+    if not document.get("load_cases") or not document.get("supports"):
+        # Vibration cases: nothing to solve statically, and the check says so.
+        with pytest.raises(NotCovered, match=r"without (load cases|supports)"):
+            independent_check(case_file_from_document(document))
+        return
+    try:
+        solve(parse_case(copy.deepcopy(document)))
+    except MechanismError:
+        # A shaft free to spin (a vibration case): the solver refuses, the check names it.
+        with pytest.raises(NotCovered, match="free to spin"):
+            independent_check(case_file_from_document(document))
+        return
+    assert agreement(document) <= AGREEMENT_TOLERANCE
+
+
+def test_textbook_two_material_shaft_fixed_at_both_ends() -> None:
+    # T. A. Philpot, MecMovies companion to *Mechanics of Materials: An Integrated Learning
+    # System*, example M6.20 (statically indeterminate coaxial shaft; edition not printed on the
+    # example): hollow steel shaft (1), G = 75 GPa, D = 50 mm, d = 40 mm, L = 1500 mm, joined at
+    # flange B to solid brass shaft (2), G = 40 GPa, d = 50 mm, L = 1000 mm, fixed at A and C,
+    # T = 1000 N·m at B. Printed: T1 = 424.63 N·m, T2 = −575.37 N·m, τ1 = 29.30 MPa,
+    # τ2 = 23.44 MPa.
+    document = {
+        "units": {"length": "mm", "torque": "N*m", "stress": "GPa"},
+        "materials": {"steel": {"shear_modulus": 75}, "brass": {"shear_modulus": 40}},
+        "shafts": [
+            {
+                "id": "ABC",
+                "segments": [
+                    {
+                        "length": 1500,
+                        "material": "steel",
+                        "section": {"shape": "tube", "outer_diameter": 50, "inner_diameter": 40},
+                    },
+                    {
+                        "length": 1000,
+                        "material": "brass",
+                        "section": {"shape": "solid", "diameter": 50},
+                    },
+                ],
+            }
+        ],
+        "supports": [{"shaft": "ABC", "x": 0}, {"shaft": "ABC", "x": 2500}],
+        "load_cases": [{"name": "T", "torques": [{"shaft": "ABC", "x": 1500, "torque": 1000}]}],
+    }
+    solution = independent_check(case_file_from_document(document))
+    t1 = float(solution.torque_at(0, [750.0e-3])[0, 0])
+    t2 = float(solution.torque_at(0, [2000.0e-3])[0, 0])
+    assert t1 == pytest.approx(424.63, abs=0.005)
+    assert t2 == pytest.approx(-575.37, abs=0.005)
+    # τ = T·c/J with J afresh: 362,265 mm⁴ and 613,592 mm⁴ as the example prints.
+    assert t1 * 25e-3 / 362_265e-12 / 1e6 == pytest.approx(29.30, abs=0.005)
+    assert abs(t2) * 25e-3 / 613_592e-12 / 1e6 == pytest.approx(23.44, abs=0.005)
+    assert solution.reactions[0] == pytest.approx([-424.63, -575.37], abs=0.005)
+    assert agreement(document) <= AGREEMENT_TOLERANCE
+
+
+def test_a_shaft_held_by_nothing_is_named() -> None:
+    document = json.loads(DEMO.read_text("utf-8"))
+    document["gears"] = []
+    with pytest.raises(NotCovered, match="'feeder' is held by no support or mesh"):
+        independent_check(case_file_from_document(document))
+
+
+def test_the_check_imports_no_solver_module() -> None:
+    code = (
+        "import sys, workbench.design.independent as i; "
+        "print(sorted(m for m in sys.modules if m.startswith('workbench.solver')))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "[]"
+
+
+# --- generated systems: geared, layered, spring-supported ------------------------------------
+
+SECTIONS = st.one_of(
+    st.builds(lambda d: {"shape": "solid", "diameter": d}, st.floats(20, 80)),
+    st.builds(
+        lambda d, f: {"shape": "tube", "outer_diameter": d, "inner_diameter": d * f},
+        st.floats(30, 90),
+        st.floats(0.3, 0.85),
+    ),
+    st.builds(
+        lambda a, b, f: {
+            "shape": "tapered",
+            "diameter_start": a,
+            "diameter_end": b,
+            "bore": f * min(a, b),
+        },
+        st.floats(20, 90),
+        st.floats(20, 90),
+        st.sampled_from([0.0, 0.3, 0.6]),
+    ),
+    st.builds(
+        lambda w, h: {"shape": "rectangle", "width": w, "height": h},
+        st.floats(20, 60),
+        st.floats(20, 60),
+    ),
+    st.builds(
+        # t = 0.035·min(w, h): inside the thin-wall limit t·P/(2·A_m) ≤ 0.1.
+        lambda w, h: {"shape": "box", "width": w, "height": h, "thickness": 0.035 * min(w, h)},
+        st.floats(40, 80),
+        st.floats(40, 80),
+    ),
+)
+
+
+@st.composite
+def segments(draw: st.DrawFn) -> dict[str, Any]:
+    length = draw(st.floats(50, 600))
+    if draw(st.booleans()):
+        outer = draw(st.floats(50, 90))
+        core = draw(st.floats(0.3, 0.8)) * outer
+        return {
+            "length": length,
+            "layers": [
+                {
+                    "material": "steel",
+                    "section": {"shape": "tube", "outer_diameter": outer, "inner_diameter": core},
+                },
+                {
+                    "material": draw(st.sampled_from(["bronze", "steel"])),
+                    "section": {"shape": "solid", "diameter": core},
+                },
+            ],
+        }
+    return {
+        "length": length,
+        "material": draw(st.sampled_from(["steel", "bronze"])),
+        "section": draw(SECTIONS),
+    }
+
+
+@st.composite
+def systems(draw: st.DrawFn) -> dict[str, Any]:
+    count = draw(st.integers(1, 3))
+    shafts = [
+        {"id": f"s{n}", "segments": draw(st.lists(segments(), min_size=1, max_size=4))}
+        for n in range(count)
+    ]
+    lengths = [sum(s["length"] for s in shaft["segments"]) for shaft in shafts]
+
+    def spot(shaft: int) -> float:
+        return draw(st.sampled_from([0.0, 0.25, 0.5, 0.8, 1.0])) * lengths[shaft]
+
+    def support(shaft: int) -> dict[str, Any]:
+        entry: dict[str, Any] = {"shaft": f"s{shaft}", "x": spot(shaft)}
+        if draw(st.booleans()):
+            entry |= {"kind": "spring", "stiffness": draw(st.floats(1e3, 1e6))}
+        if draw(st.booleans()):
+            entry["rotation"] = draw(st.floats(-2.0, 2.0))
+        return entry
+
+    supports = [support(0)]
+    gears = []
+    for shaft in range(1, count):  # each further shaft meshes with an earlier one
+        other = draw(st.integers(0, shaft - 1))
+        gears.append(
+            {
+                "a": {"shaft": f"s{other}", "x": spot(other), "radius": draw(st.floats(40, 150))},
+                "b": {"shaft": f"s{shaft}", "x": spot(shaft), "radius": draw(st.floats(40, 150))},
+                "mesh": draw(st.sampled_from(["external", "internal"])),
+            }
+        )
+    for _ in range(draw(st.integers(0, 3))):  # redundant supports
+        supports.append(support(draw(st.integers(0, count - 1))))
+    positions = {(s["shaft"], s["x"]) for s in supports}
+    if len(positions) < len(supports):  # two supports at one point: the solver refuses it
+        supports = list({(s["shaft"], s["x"]): s for s in supports}.values())
+
+    def load_case(name: str) -> dict[str, Any]:
+        torques = [
+            {"shaft": f"s{n}", "x": spot(n), "torque": draw(st.floats(-2000, 2000))}
+            for n in draw(st.lists(st.integers(0, count - 1), max_size=3))
+        ]
+        spreads = []
+        for n in draw(st.lists(st.integers(0, count - 1), max_size=2)):
+            start = draw(st.floats(0.0, 0.5)) * lengths[n]
+            spreads.append(
+                {
+                    "shaft": f"s{n}",
+                    "start": start,
+                    "end": start + draw(st.floats(0.2, 0.5)) * lengths[n],
+                    "intensity_start": draw(st.floats(-3.0, 3.0)),
+                    "intensity_end": draw(st.floats(-3.0, 3.0)),
+                }
+            )
+        return {"name": name, "torques": torques, "distributed": spreads}
+
+    return {
+        "units": {"length": "mm", "torque": "N*m", "stress": "MPa", "angle": "deg"},
+        "materials": {"steel": {"shear_modulus": 79.3e3}, "bronze": {"shear_modulus": 41.4e3}},
+        "shafts": shafts,
+        "supports": supports,
+        "gears": gears,
+        "load_cases": [load_case("one"), load_case("two")],
+        "combinations": [{"name": "both", "factors": {"one": 1.35, "two": -0.8}}],
+    }
+
+
+@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(systems())
+def test_generated_geared_layered_spring_systems_agree(document: dict[str, Any]) -> None:
+    assert agreement(document) <= AGREEMENT_TOLERANCE
