@@ -29,7 +29,7 @@ from tests.validation import (
     test_modes,
     test_worked_examples,
 )
-from workbench.case.errors import MechanismError
+from workbench.case.errors import InputError, MechanismError
 from workbench.case.load import case_file_from_document
 from workbench.design.independent import (
     AGREEMENT_TOLERANCE,
@@ -342,4 +342,37 @@ def systems(draw: st.DrawFn) -> dict[str, Any]:
 @settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(systems())
 def test_generated_geared_layered_spring_systems_agree(document: dict[str, Any]) -> None:
+    try:
+        solve(parse_case(copy.deepcopy(document)))
+    except InputError as error:
+        # Supports and meshes holding one rotation twice: the solver refuses, the check too.
+        assert "held" in str(error) or "redundant" in str(error), error
+        with pytest.raises(NotCovered, match="hold one rotation twice"):
+            independent_check(case_file_from_document(document))
+        return
     assert agreement(document) <= AGREEMENT_TOLERANCE
+
+
+def test_a_rotation_held_twice_is_named() -> None:
+    # Both gears of a mesh sit on fixed supports: the mesh holds what the supports already hold.
+    shaft = {
+        "segments": [
+            {"length": 1.0, "material": "steel", "section": {"shape": "solid", "diameter": 0.02}}
+        ]
+    }
+    document = {
+        "materials": {"steel": {"shear_modulus": 79.3e9}},
+        "shafts": [{"id": "p", **shaft}, {"id": "q", **shaft}],
+        "supports": [{"shaft": "p", "x": 0.0}, {"shaft": "q", "x": 0.0}],
+        "gears": [
+            {
+                "a": {"shaft": "p", "x": 0.0, "radius": 0.04},
+                "b": {"shaft": "q", "x": 0.0, "radius": 0.04},
+            }
+        ],
+        "load_cases": [{"name": "one", "torques": [{"shaft": "p", "x": 1.0, "torque": 10.0}]}],
+    }
+    with pytest.raises(InputError):
+        solve(parse_case(copy.deepcopy(document)))
+    with pytest.raises(NotCovered, match="hold one rotation twice"):
+        independent_check(case_file_from_document(document))

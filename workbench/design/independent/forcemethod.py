@@ -286,7 +286,7 @@ def solve_by_force_method(system: System) -> ForceMethod:
     target = np.where(released_support, system.support_rotation[numbers * released_support], 0.0)
     if n_red:
         if np.linalg.cond(flexibility) > _LARGEST_CONDITION:
-            msg = "meshes that close a rigid loop (redundants not independent)"
+            msg = "supports and meshes that hold one rotation twice (redundants not independent)"
             raise NotCovered(msg)
         redundants = np.linalg.solve(flexibility, target[:, None] - mismatch)
     else:
