@@ -20,6 +20,7 @@ References
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -140,8 +141,14 @@ def _tapered_rigidity(
     return rigidity
 
 
+@functools.cache
+def _gauss_rule(points: int) -> tuple[FloatArray, FloatArray]:
+    """Nodes and weights of the Gauss–Legendre rule on [−1, 1] (computed once per order)."""
+    return np.polynomial.legendre.leggauss(points)
+
+
 def _gauss_moments(system: System, pieces: Pieces, chosen: IntArray, points: int) -> FloatArray:
-    nodes, weights = np.polynomial.legendre.leggauss(points)
+    nodes, weights = _gauss_rule(points)
     half = 0.5 * pieces.length[chosen, None]
     xi = half * (nodes + 1.0)
     flexibility = half * weights / _tapered_rigidity(system, pieces, chosen, xi)

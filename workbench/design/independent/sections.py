@@ -94,7 +94,7 @@ def _ellipse_perimeter(major: float, minor: float) -> float:
         0.0,
         math.pi / 2.0,
         epsabs=0.0,
-        epsrel=1e-14,
+        epsrel=1e-13,
         limit=200,
     )
     return 4.0 * quarter
