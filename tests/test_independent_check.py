@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import collections
 import copy
+import doctest
+import importlib
 import inspect
 import itertools
 import json
@@ -513,3 +515,8 @@ def test_power_and_speed_torques_and_library_materials_agree() -> None:
     document["shafts"][1]["segments"][0]["material"] = "steel-1020-cd"
     del document["design"]
     assert agreement(document) <= AGREEMENT_TOLERANCE
+
+
+def test_the_docstring_example_runs() -> None:
+    module = importlib.import_module("workbench.design.independent.compare")
+    assert doctest.testmod(module, raise_on_error=True).attempted > 0

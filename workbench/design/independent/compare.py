@@ -55,7 +55,7 @@ def independent_check(case: CaseFile) -> ForceMethod:
     ...         {"length": 1.0, "material": "steel", "section": {"shape": "solid", "diameter": 0.04}}]}],
     ...     "supports": [{"shaft": "s", "x": 0}, {"shaft": "s", "x": 1.0}],
     ...     "load_cases": [{"name": "T", "torques": [{"shaft": "s", "x": 0.3, "torque": 500}]}]})
-    >>> [round(r, 9) for r in independent_check(case).reactions[0]]
+    >>> [round(float(r), 9) for r in independent_check(case).reactions[0]]
     [-350.0, -150.0]
     """
     return solve_by_force_method(read_system(case))
