@@ -81,6 +81,16 @@ def test_demo_two_geared_shafts_agree() -> None:
     solution = independent_check(case_file_from_document(document))
     # One shaft on a fixed and a spring support, one hung from the mesh: one redundant.
     assert solution.released == (("support", 1),)
+    # The exact largest |T| per shaft: here at piece ends, so the solver's stations hold it.
+    results = solve(parse_case(document))
+    largest, where = solution.governing()
+    for number, result in enumerate(results):
+        for shaft, name in enumerate(results.shaft_ids):
+            values = result.shafts[name]
+            peak = float(np.max(np.abs(values.torque)))
+            assert largest[number, shaft] == pytest.approx(peak, rel=1e-12, abs=1e-9)
+            at = values.x[np.argmax(np.abs(values.torque))]
+            assert abs(where[number, shaft] - at) <= 1e-12 or peak == 0.0
 
 
 def _calls(function: Callable[..., Any]) -> list[dict[str, Any]]:
