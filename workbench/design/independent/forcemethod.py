@@ -44,8 +44,8 @@ __all__ = ["ForceMethod", "solve_by_force_method"]
 #: Largest condition number of the flexibility matrix the check trusts (common practice, no
 #: source): beyond it the redundants are not independent (a rigid loop of meshes).
 _LARGEST_CONDITION = 1e12
-#: Largest number of array entries (pieces × columns) the check allocates at once.
-_LARGEST_ARRAY = 50_000_000
+#: Largest number of array entries (pieces × columns × 3) the check allocates at once (80 MB).
+_LARGEST_ARRAY = 10_000_000
 
 
 @dataclass(frozen=True)
