@@ -530,3 +530,15 @@ def test_power_and_speed_torques_and_library_materials_agree() -> None:
 def test_the_docstring_example_runs() -> None:
     module = importlib.import_module("workbench.design.independent.compare")
     assert doctest.testmod(module, raise_on_error=True).attempted > 0
+
+
+def test_a_system_too_large_for_dense_arrays_is_named() -> None:
+    document = json.loads(DEMO.read_text("utf-8"))
+    document["shafts"][1]["segments"] *= 2000  # 2,000 pieces on the feeder
+    document["load_cases"] = [
+        {"name": f"case {n}", "torques": [{"shaft": "auger", "x": 250, "torque": n}]}
+        for n in range(2000)
+    ]
+    del document["combinations"], document["design"], document["discs"]
+    with pytest.raises(NotCovered, match="too large"):
+        independent_check(case_file_from_document(document))
