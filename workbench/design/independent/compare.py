@@ -78,7 +78,8 @@ class ComparisonRow:
         The value by the force method and by the other solution (N·m).
     relative_difference
         For a reaction |a − b|; for a shaft the largest |T_a(x) − T_b(x)| over the other
-        solution's stations; either over the largest torque of the result.
+        solution's stations; either over the largest torque of the result (or the torque k·|r|
+        a spring's pre-twist stands for, when larger; 1 N·m when all are 0).
     """
 
     result: str
@@ -154,7 +155,7 @@ def compare(
             )
             shafts.append((mine_t, np.asarray(theirs_t, dtype=float)))
         scale = max(
-            [float(np.max(np.abs(mine_r), initial=0.0))]
+            [float(np.max(np.abs(mine_r), initial=0.0)), solution.pretwist_torque]
             + [float(np.max(np.abs(mine), initial=0.0)) for mine, _ in shafts]
         )
         scale = scale if scale > 0.0 else 1.0

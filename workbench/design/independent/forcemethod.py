@@ -72,6 +72,9 @@ class ForceMethod:
     torque
         (n_pieces, n_results, 3): T(x) = c₀ + c₁·ξ + c₂·ξ² on each piece, ξ = x − start (N·m,
         N·m/m, N·m/m²).
+    pretwist_torque
+        The largest k·|r| of a spring support's pre-twist (N·m; 0 without one): the size of the
+        torques a pre-twist stands for, even where it only turns the system rigidly.
     """
 
     names: tuple[str, ...]
@@ -82,6 +85,7 @@ class ForceMethod:
     gear_torques: FloatArray
     pieces: Pieces
     torque: FloatArray
+    pretwist_torque: float = 0.0
 
     def torque_at(self, shaft: int, x: FloatArray, *, left: bool = False) -> FloatArray:
         """Internal torque T (N·m), shape (len(x), n_results), at stations x (m) of a shaft.
@@ -311,6 +315,13 @@ def solve_by_force_method(system: System) -> ForceMethod:
         gear_torques=np.moveaxis(mesh[:, None, :] * system.gear_arm[:, :, None], -1, 0),
         pieces=pieces,
         torque=real,
+        pretwist_torque=float(
+            np.max(
+                np.abs(system.support_rotation)
+                / np.where(system.support_compliance > 0.0, system.support_compliance, np.inf),
+                initial=0.0,
+            )
+        ),
     )
 
 
