@@ -70,7 +70,8 @@ class Equation:
         What it states, shown beside it.
     group
         The record section that shows it: ``"statics"`` (Method and assumptions),
-        ``"vibration"`` (Torsional vibration) or ``"fatigue"`` (Fatigue).
+        ``"vibration"`` (Torsional vibration), ``"fatigue"`` (Fatigue) or ``"independent"``
+        (Independent check).
     """
 
     name: str
@@ -124,11 +125,14 @@ EQUATIONS: tuple[Equation, ...] = (
         "T(x) = −Σ T_i (x_i < x) − ∫₀ˣ t(s) ds",
         "internal torque from equilibrium",
     ),
+    # The 8th place: records signed before number the equations after it from 9.
     Equation(
-        "compatibility",
-        r"\theta_{B0} + R_B\,f_{BB} = r_B - \dfrac{R_B}{k_B}",
-        "θ_B0 + R_B·f_BB = r_B − R_B/k_B",
-        "compatibility at the released support (hand check)",
+        "force-compatibility",
+        r"\sum_j f_{ij}\,X_j = \delta_i - \Delta_{i0}",
+        "Σⱼ f_ij·X_j = δ_i − Δ_i0",
+        "compatibility at each released support or mesh: δ_i is the support's prescribed "
+        "rotation (minus X_i/k_i for a spring, in f_ii), 0 for a mesh",
+        "independent",
     ),
     Equation(
         "consistent-mass",
@@ -194,6 +198,17 @@ EQUATIONS: tuple[Equation, ...] = (
         "n_y = Ssy/(τa + τm); Ssu = 0.67·Sut, Ssy = Sy/√3",
         "first-cycle yield (Langer) and the torsional strengths",
         "fatigue",
+    ),
+    Equation(
+        "force-flexibility",
+        r"f_{ij} = \int \dfrac{t_i\,t_j}{G\,J}\,dx + \sum_s \dfrac{\rho_{is}\,\rho_{js}}{k_s},"
+        r"\qquad \Delta_{i0} = \int \dfrac{t_i\,T_0}{G\,J}\,dx + "
+        r"\sum_s \rho_{is} \left( \dfrac{R_{0s}}{k_s} - r_s \right)",
+        "f_ij = ∫t_i·t_j/(G·J) dx + Σ_s ρ_is·ρ_js/k_s; Δ_i0 = ∫t_i·T₀/(G·J) dx + "
+        "Σ_s ρ_is·(R₀s/k_s − r_s)",
+        "unit-load method on the primary structure: t_i, ρ_is internal torque and kept-support "
+        "reactions under X_i = 1; T₀, R₀s under the loads",
+        "independent",
     ),
 )
 

@@ -103,7 +103,7 @@ def record_sections(
         Where the case came from (``cell output`` or ``case file …``).
     """
     model, report = computation.model, computation.report
-    hand_check, hand_warnings = hand_check_view(computation.results)
+    hand_check, hand_warnings = hand_check_view(computation)
     warnings = [*report.notes, *hand_warnings]
     failing = [check for check in report.checks if not check.passes]
     if failing:
@@ -119,7 +119,7 @@ def record_sections(
         results,
         *extra,
         checks,
-        Section("hand-check", "Independent hand check", hand_check),
+        Section("hand-check", "Independent check", hand_check),
         Section("warnings", "Warnings", warnings),
         Section("caution", "Caution", CAUTION),
         Section("revisions", "Revision history", revisions_view(title_block)),

@@ -71,7 +71,7 @@ class Equation:
 
 @lru_cache(maxsize=4)
 def equations(group: str) -> tuple[Equation, ...]:
-    """The equations one section shows (``statics``, ``vibration``, ``fatigue``), built once."""
+    """The equations one section shows (``statics``, ``vibration``, ``fatigue``, ``independent``)."""
     rows = []
     for number_in_record, (equation, svg, width_pt, height_pt) in enumerate(
         load_equations(), start=1

@@ -1,78 +1,118 @@
-"""The Independent hand check section: support torques by the force method beside the solver's.
+"""The Independent check section: the force method beside the stiffness solution.
 
-The check itself is :mod:`workbench.design.handcheck`; this module only writes its numbers in
-the case's units and says where the two methods disagree.
+The check itself is :mod:`workbench.design.independent` (it never uses the solver); this module
+only sets its numbers beside the solver's, in the case's units, and says where they disagree or
+what the check does not cover.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-from workbench.design.handcheck import AGREEMENT_TOLERANCE, applicable, force_method_check
-from workbench.record.view_model.common import Rows, number
-from workbench.solver.analysis import Results
+from workbench.case.load import case_file_from_document
+from workbench.design.independent import (
+    AGREEMENT_TOLERANCE,
+    NotCovered,
+    compare,
+    independent_check,
+)
+from workbench.record.computation import Computation
+from workbench.record.view_model.common import Equation, Rows, equations, number
 
 __all__ = ["HandCheckView", "hand_check_view"]
+
+#: Largest number of redundants whose flexibility matrix the record prints.
+_PRINTED_MATRIX = 6
 
 
 @dataclass(frozen=True)
 class HandCheckView:
-    """What the hand-check section shows.
+    """What the independent-check section shows.
 
     Attributes
     ----------
-    not_applicable
-        Why the check does not apply to this case, or ``None`` when it does.
+    not_covered
+        Why the check does not cover this case, or ``None`` when it does.
     units
-        Labels of the angle and torque units.
+        Labels of the torque unit.
+    equations
+        The force method's equations.
+    released
+        Each redundant in words (the primary structure keeps every other link).
     flexibility
-        f_BB of the first result, rad/(N·m), as written.
+        The flexibility matrix f in SI, rows of formatted numbers (empty when large).
     tolerance
         The relative agreement required, as written.
     rows
-        Rows: result, θ_B0, R_A by hand and by the solver, R_B likewise, difference, verdict.
+        Rows: result, quantity, force method, stiffness solution, difference, verdict.
     """
 
-    not_applicable: str | None
+    not_covered: str | None
     units: dict[str, str]
-    flexibility: str = ""
+    equations: tuple[Equation, ...] = ()
+    released: tuple[str, ...] = ()
+    flexibility: Rows | None = None
     tolerance: str = ""
     rows: Rows | None = None
 
 
-def hand_check_view(results: Results) -> tuple[HandCheckView, list[str]]:
-    """The hand-check section of ``results`` and a warning for every result that disagrees."""
-    model = results.model
+def hand_check_view(computation: Computation) -> tuple[HandCheckView, list[str]]:
+    """The independent-check section of a computation and a warning for every disagreement."""
+    results, model = computation.results, computation.model
     units = model.units
-    labels = {"angle": units.label("angle"), "torque": units.label("torque")}
-    reason = applicable(model)
-    if reason is not None:
-        return HandCheckView(reason, labels), []
-    checks = force_method_check(model, results.reactions)
+    labels = {"torque": units.label("torque")}
+    try:
+        solution = independent_check(case_file_from_document(computation.case))
+    except NotCovered as reason:
+        return HandCheckView(str(reason), labels), [f"independent check: not covered: {reason}"]
+    stations = [
+        [(result.shafts[shaft].x, result.shafts[shaft].torque) for shaft in results.shaft_ids]
+        for result in results
+    ]
+    comparison = compare(solution, results.reactions, stations)
+
+    def where(quantity: str, index: int) -> str:
+        if quantity == "reaction":
+            support = model.supports[index]
+            x = number(units.from_si(support.x, "length"), 6)
+            return f"reaction {index + 1} ({support.shaft}, x = {x} {units.label('length')})"
+        return f"largest |T| on {results.shaft_ids[index]}"
+
+    def released(kind: str, index: int) -> str:
+        if kind == "support":
+            return where("reaction", index)
+        gear = model.gears[index]
+        return f"mesh {index + 1} ({gear.a.shaft}–{gear.b.shaft}): its tooth force"
+
     rows: Rows = []
     warnings = []
-    for check in checks:
+    for row in comparison.rows:
         rows.append(
             [
-                check.result,
-                number(units.from_si(check.theta_b0, "angle"), 6),
-                number(units.from_si(check.reactions[0], "torque"), 8),
-                number(units.from_si(check.solver_reactions[0], "torque"), 8),
-                number(units.from_si(check.reactions[1], "torque"), 8),
-                number(units.from_si(check.solver_reactions[1], "torque"), 8),
-                f"{check.relative_difference:.1e}",
-                "agrees" if check.agrees else "DISAGREES",
+                row.result,
+                where(row.quantity, row.index),
+                number(units.from_si(row.independent, "torque"), 9),
+                number(units.from_si(row.other, "torque"), 9),
+                f"{row.relative_difference:.1e}",
+                "agrees" if row.agrees else "DISAGREES",
             ]
         )
-        if not check.agrees:
+        if not row.agrees:
             warnings.append(
-                f"hand check of {check.result}: support torques differ from the stiffness "
-                f"solution by {check.relative_difference:.1e} (relative)"
+                f"independent check of {row.result}, {where(row.quantity, row.index)}: differs "
+                f"from the stiffness solution by {row.relative_difference:.1e} (relative)"
             )
+    matrix = solution.flexibility
     view = HandCheckView(
         None,
         labels,
-        flexibility=number(checks[0].flexibility, 6),
+        equations=equations("independent"),
+        released=tuple(released(kind, index) for kind, index in solution.released),
+        flexibility=(
+            [[number(value, 6) for value in line] for line in matrix]
+            if 0 < len(matrix) <= _PRINTED_MATRIX
+            else None
+        ),
         tolerance=f"{AGREEMENT_TOLERANCE:.0e}",
         rows=rows,
     )
