@@ -105,9 +105,14 @@ def render_section(section: Section) -> str:
     return render(section.template, section=section)
 
 
-def render_sections(computation: Computation) -> list[tuple[str, str]]:
-    """``(id, HTML)`` of the sections the verifier rebuilds: results, vibration, fatigue, checks."""
-    return [(section.ident, render_section(section)) for section in verified_sections(computation)]
+def render_sections(computation: Computation, earlier: bool = False) -> list[tuple[str, str]]:
+    """``(id, HTML)`` of the sections the verifier rebuilds: results, vibration, fatigue, checks.
+
+    ``earlier``: as records signed before units were printed by the unit library wrote them
+    (see :func:`workbench.record.view_model.verified_sections`).
+    """
+    sections = verified_sections(computation, earlier)
+    return [(section.ident, render_section(section)) for section in sections]
 
 
 def _script_json(value: Mapping[str, Any]) -> Markup:

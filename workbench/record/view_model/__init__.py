@@ -58,22 +58,28 @@ class Section:
         return f"sections/{self.ident}.html.j2"
 
 
-def extra_sections(computation: Computation) -> list[Section]:
+def extra_sections(computation: Computation, printed: bool = True) -> list[Section]:
     """The torsional vibration and fatigue sections, when the case asks for them."""
     out = []
     if computation.modes is not None or computation.modes_error is not None:
-        out.append(Section("vibration", "Torsional vibration", vibration_view(computation)))
+        view = vibration_view(computation, printed)
+        out.append(Section("vibration", "Torsional vibration", view))
     if computation.report.design.fatigue is not None:
-        out.append(Section("fatigue", "Fatigue", fatigue_view(computation.report)))
+        out.append(Section("fatigue", "Fatigue", fatigue_view(computation.report, printed)))
     return out
 
 
-def verified_sections(computation: Computation) -> list[Section]:
-    """The sections the verifier rebuilds from the signed case (results, checks, vibration…)."""
+def verified_sections(computation: Computation, earlier: bool = False) -> list[Section]:
+    """The sections the verifier rebuilds from the signed case (results, checks, vibration…).
+
+    ``earlier``: as records signed before units were printed by the unit library wrote them
+    (``N*m``, ``kg*m**2``; failing check rows not marked), so that those records still verify.
+    """
+    printed = not earlier
     return [
-        Section("results", "Results", results_view(computation.results)),
-        *extra_sections(computation),
-        Section("checks", "Design checks", checks_view(computation.report)),
+        Section("results", "Results", results_view(computation.results, printed)),
+        *extra_sections(computation, printed),
+        Section("checks", "Design checks", checks_view(computation.report, printed, printed)),
     ]
 
 
