@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from workbench.case.files import atomic_file
+from workbench.case.title_block import TEXT_FIELDS, TITLE_FIELDS
 from workbench.cli.output import output_file, writing
 from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
 
@@ -23,17 +24,10 @@ __all__ = ["EXIT_NOT_VERIFIED", "register"]
 #: ``workbench verify``: the record does not verify.
 EXIT_NOT_VERIFIED = EXIT_FAILED_CHECK
 
+#: Title-block options: every field of the title block, then purpose and scope.
 _TITLE_OPTIONS = (
-    ("project", "project name"),
-    ("calculation_number", "calculation number"),
-    ("revision", "revision"),
-    ("subject", "subject of the calculation"),
-    ("prepared_by", "who prepared it"),
-    ("date_prepared", "date prepared"),
-    ("checked_by", "who checked it"),
-    ("date_checked", "date checked"),
-    ("purpose", "purpose (one paragraph)"),
-    ("scope", "scope (one paragraph)"),
+    *((key, label.lower()) for key, label in TITLE_FIELDS.items()),
+    *((key, f"{key} (one paragraph)") for key in TEXT_FIELDS),
 )
 
 
@@ -46,7 +40,9 @@ def _title_overrides(arguments: argparse.Namespace) -> dict[str, Any]:
 
 
 def _add_title_options(parser: argparse.ArgumentParser) -> None:
-    group = parser.add_argument_group("title block (over the notebook's workbench.title_block)")
+    group = parser.add_argument_group(
+        "title block (over the notebook's title-block output and metadata)"
+    )
     for key, text in _TITLE_OPTIONS:
         group.add_argument(f"--{key.replace('_', '-')}", dest=key, metavar="TEXT", help=text)
     parser.add_argument("--signer", default="", help="signer's name (default: prepared by)")

@@ -18,14 +18,9 @@ from workbench.design.caution import CAUTION
 from workbench.record.computation import Computation
 from workbench.record.view_model.checks import checks_view
 from workbench.record.view_model.common import equations
+from workbench.record.view_model.cover import cover_view, heading
 from workbench.record.view_model.fatigue import fatigue_view
-from workbench.record.view_model.front import (
-    SignatureView,
-    heading,
-    purpose_view,
-    revisions_view,
-    title_view,
-)
+from workbench.record.view_model.front import SignatureView, purpose_view, revisions_view
 from workbench.record.view_model.hand_check import hand_check_view
 from workbench.record.view_model.inputs import inputs_view
 from workbench.record.view_model.results import results_view
@@ -118,7 +113,13 @@ def record_sections(
         warnings.append("the record is UNSIGNED")
     results, *extra, checks = verified_sections(computation)
     return [
-        Section("title", "Title block", title_view(title_block, model, fingerprint is not None)),
+        Section(
+            "title",
+            "Title block and verdict",
+            cover_view(
+                title_block, report, signer=signer, signed_at=signed_at, fingerprint=fingerprint
+            ),
+        ),
         Section("purpose", "Purpose and scope", purpose_view(title_block, model)),
         Section("inputs", "Inputs", inputs_view(model, report.design)),
         Section("method", "Method and assumptions", equations("statics")),
