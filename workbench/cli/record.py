@@ -18,6 +18,7 @@ from workbench.case.files import atomic_file
 from workbench.case.title_block import TEXT_FIELDS, TITLE_FIELDS
 from workbench.cli.output import output_file, writing
 from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
+from workbench.record.pdf import PAPER_SIZES
 
 __all__ = ["EXIT_NOT_VERIFIED", "register"]
 
@@ -109,6 +110,7 @@ def _command_package(arguments: argparse.Namespace) -> int:
             key_file=arguments.key,
             signer=arguments.signer,
             title_block=_title_overrides(arguments),
+            paper=None if arguments.no_pdf else arguments.paper,
         )
     names = ", ".join(entry["name"] for entry in manifest["files"])
     signed = "signed manifest" if arguments.key else "UNSIGNED manifest"
@@ -159,5 +161,12 @@ def register(commands: Any) -> None:
     package.add_argument("notebook", help="the notebook (.ipynb)")
     package.add_argument("-o", "--output", required=True, help="zip file to write")
     package.add_argument("--key", help="private key (PEM) to sign with")
+    package.add_argument(
+        "--paper",
+        choices=PAPER_SIZES,
+        default="A4",
+        help="paper of record.pdf, printed by headless Chromium (default A4)",
+    )
+    package.add_argument("--no-pdf", action="store_true", help="leave record.pdf out")
     _add_title_options(package)
     package.set_defaults(run=_command_package)

@@ -10,6 +10,7 @@ machine (the Debian package ``chromium``; never a browser download).
 from __future__ import annotations
 
 import os
+import re
 import shutil
 from collections.abc import Iterator
 from contextlib import contextmanager
@@ -92,7 +93,21 @@ def _refuse_outside(route: Any) -> None:
         route.abort()
 
 
-def print_pdf(record_html: str, paper: str = "A4", browser: Any = None) -> bytes:
+#: Chromium's time stamps in the PDF's information dictionary (UTC, as it writes them).
+_PDF_DATES = re.compile(rb"/(CreationDate|ModDate) \(D:\d{14}\+00'00'\)")
+
+
+def _stamped(pdf: bytes, created: str) -> bytes:
+    """``pdf`` with its creation and modification times set to ``created`` (ISO 8601 UTC).
+
+    The replacement has the same length as what it replaces, so the cross-reference table's
+    byte offsets stay right; the same record printed twice then gives the same bytes.
+    """
+    digits = re.sub(r"\D", "", created)[:14].ljust(14, "0").encode("ascii")
+    return _PDF_DATES.sub(lambda match: b"/" + match[1] + b" (D:" + digits + b"+00'00')", pdf)
+
+
+def print_pdf(record_html: str, paper: str = "A4", browser: Any = None, created: str = "") -> bytes:
     """The record printed to PDF on ``paper`` (one of :data:`PAPER_SIZES`).
 
     Parameters
@@ -103,6 +118,8 @@ def print_pdf(record_html: str, paper: str = "A4", browser: Any = None) -> bytes
         ``A4`` (210 × 297 mm) or ``Letter`` (8.5 × 11 in).
     browser
         An open :func:`printing_browser` to reuse; ``None`` opens one for this page.
+    created
+        ISO 8601 UTC time the PDF says it was made (the record's signing time); empty: now.
 
     Raises
     ------
@@ -113,7 +130,7 @@ def print_pdf(record_html: str, paper: str = "A4", browser: Any = None) -> bytes
         raise InputError("paper", f"must be one of {', '.join(PAPER_SIZES)}, not {paper[:20]!r}")
     if browser is None:
         with printing_browser() as opened:
-            return print_pdf(record_html, paper, opened)
+            return print_pdf(record_html, paper, opened, created)
     context = browser.new_context(java_script_enabled=False, offline=True)
     try:
         page = context.new_page()
@@ -121,6 +138,6 @@ def print_pdf(record_html: str, paper: str = "A4", browser: Any = None) -> bytes
         page.set_content(record_html, wait_until="load")
         page.emulate_media(media="print")
         pdf: bytes = page.pdf(format=paper, print_background=True)
-        return pdf
+        return _stamped(pdf, created) if created else pdf
     finally:
         context.close()
