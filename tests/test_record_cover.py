@@ -77,6 +77,22 @@ def test_editor_keeps_its_fields_as_the_output_the_record_reads() -> None:
     assert "Checked by: M. Okafor" in bundle["text/plain"]
 
 
+def test_editor_updates_its_output_on_every_edit() -> None:
+    class Handle:
+        def __init__(self) -> None:
+            self.shown: list[dict] = []
+
+        def update(self, bundle: dict, raw: bool) -> None:
+            assert raw
+            self.shown.append(bundle[TITLE_BLOCK_MIME_TYPE])
+
+    editor = TitleBlockEditor({"project": "P"})
+    editor._handle = Handle()
+    editor.fields["revision"].value = "C"
+    editor.fields["project"].value = ""
+    assert editor._handle.shown == [{"project": "P", "revision": "C"}, {"revision": "C"}]
+
+
 def _record(tmp_path: Path, case: dict, block: dict, **options: object) -> str:
     notebook = tmp_path / "calc.ipynb"
     nbformat.write(demo_notebook(case, title_block=block, executed=True), str(notebook))

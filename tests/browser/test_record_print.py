@@ -51,7 +51,7 @@ def browser() -> Any:
 
 @pytest.mark.parametrize("paper", PAPER_SIZES)
 def test_demo_record_prints_without_near_empty_pages_or_split_words(
-    demo_record: str, browser: Any, paper: str, tmp_path: Path
+    demo_record: str, browser: Any, paper: str, tmp_path: Path, record_property: Any
 ) -> None:
     import pypdfium2 as pdfium
 
@@ -63,6 +63,7 @@ def test_demo_record_prints_without_near_empty_pages_or_split_words(
     pdfium.PdfDocument(str(pdf))[0].render(scale=100 / 72).to_pil().save(picture)
     print(f"{paper}: {len(shares)} pages, blank shares {[round(s, 2) for s in shares]}")
     print(f"page 1 kept as {picture}")
+    record_property(f"page1_{paper}", str(picture))
 
     assert len(shares) >= 2
     near_empty = [(n, round(s, 2)) for n, s in enumerate(shares[:-1], start=1) if s > MOST_BLANK]
