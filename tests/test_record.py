@@ -327,8 +327,12 @@ def _cli(argv: list[str]) -> int:
     return cli.main(argv)
 
 
-def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
-    assert _cli(["keygen", "--out", str(tmp_path / "k")]) == 0
+def test_cli_keygen_export_verify_package(
+    tmp_path: Path, capsys: pytest.CaptureFixture, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setenv("RECORD_KEY_PASSPHRASE", "correct horse battery staple")
+    passphrase = ["--passphrase-env", "RECORD_KEY_PASSPHRASE"]
+    assert _cli(["keygen", "--out", str(tmp_path / "k"), *passphrase]) == 0
     printed = capsys.readouterr().out
     private, public = tmp_path / "k" / "private.pem", tmp_path / "k" / "public.pem"
     assert private.stat().st_mode & 0o077 == 0
@@ -356,6 +360,7 @@ def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.Capture
                 "--revision",
                 "C",
                 "--no-execute",
+                *passphrase,
             ]
         )
         == 0
@@ -368,10 +373,13 @@ def test_cli_keygen_export_verify_package(tmp_path: Path, capsys: pytest.Capture
     assert _cli(["verify", str(tmp_path / "missing.html")]) == 2
     assert _cli(["verify", str(tmp_path / "missing.zip")]) == 2
     assert "cannot read the package" in capsys.readouterr().err
-    assert _cli(["keygen", "--out", str(tmp_path / "k")]) == 2  # never overwrites a key
+    assert _cli(["keygen", "--out", str(tmp_path / "k"), *passphrase]) == 2  # never overwrites
 
     package = tmp_path / "pkg.zip"
-    assert _cli(["package", str(notebook), "-o", str(package), "--key", str(private)]) == 0
+    assert (
+        _cli(["package", str(notebook), "-o", str(package), "--key", str(private), *passphrase])
+        == 0
+    )
     assert not any(leftover.exists() for leftover in leftovers)
     assert not [path.name for path in tmp_path.iterdir() if path.name.endswith(".tmp")]
     with zipfile.ZipFile(package) as archive:

@@ -61,6 +61,14 @@ def run() -> list[Row]:
     ok = verify_text(data, None).ok
     elapsed = time.perf_counter() - start
     ratio = record_time.median / plain_time.median
+    from workbench.record.countersign import countersign_text
+
+    checked = countersign_text(data, generate_key(), role="checked", name="Checker").encode()
+    approved = countersign_text(checked, generate_key(), role="approved", name="Approver")
+    chained = approved.encode("utf-8")
+    chained_time, single_time = time_pair(
+        lambda: verify_text(chained, None), lambda: verify_text(data, None), repeats=7, warmup=1
+    )
     return [
         Row(
             "record export (signed, demo case), median",
@@ -76,6 +84,13 @@ def run() -> list[Row]:
             "s",
             VERIFY_TARGET_S,
             notes=(f"verified: {ok}, one cold-ish run {elapsed:.3f} s",),
+        ),
+        Row(
+            "verify, checked and approved (two countersignatures)",
+            chained_time.median,
+            "s",
+            VERIFY_TARGET_S,
+            notes=(f"{chained_time.median / single_time.median:.2f}× the same record unchained",),
         ),
         Row("record size", len(data) / 1e6, "MB", SIZE_TARGET_MB),
         *_print_rows(text),

@@ -1,19 +1,22 @@
 """Materials of torsion members: elastic constants, strengths and density, with their sources.
 
 A :class:`Material` is a frozen dataclass in SI (Pa, kg/m³). :data:`LIBRARY` holds a set of common
-engineering metals; every row names the publication and table its values come from, and says
-"(from memory)" for each value that was recalled rather than read from a checked copy. Strengths
-vary with grade, temper, product form and size: the library values are typical or minimum
-textbook values for a first pass, not a substitute for the certified properties of the stock
-actually bought.
+engineering metals. Every value of a row sits under the published table it was read from (book,
+edition, table, row), or, where no table could be read, under :data:`TYPICAL`; a record asks for
+the mill certificate of every material that carries that mark, and refuses a material whose
+source says a value was recalled (:data:`FROM_MEMORY`). Strengths vary with grade, temper,
+product form and size: the library values are textbook values for a first pass, not a substitute
+for the certified properties of the stock actually bought.
 
 References
 ----------
-.. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, McGraw-Hill,
-   Table A-5 (physical constants), Table A-20 (hot-rolled and cold-drawn carbon steels),
-   Table A-21 (heat-treated steels), Table A-24 (cast iron, aluminium alloys).
-.. [2] R. C. Hibbeler, *Mechanics of Materials*, Pearson, table of average mechanical properties
-   of typical engineering materials.
+.. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
+   McGraw-Hill, Table A-20 (hot-rolled and cold-drawn carbon steels, p. 1040), Table A-24
+   (grey cast iron, aluminium alloys, p. 1046).
+.. [2] R. C. Hibbeler, *Mechanics of Materials*, Pearson, table "Average Mechanical Properties of
+   Typical Engineering Materials (SI Units)".
+.. [3] W. D. Callister and D. G. Rethwisch, *Fundamentals of Materials Science and Engineering:
+   An Integrated Approach*, 3rd ed., Wiley, Table B.2 (moduli of elasticity).
 """
 
 from __future__ import annotations
@@ -117,213 +120,296 @@ class Material:
 
 
 # --- the library ---------------------------------------------------------------------------------
-_SHIGLEY_A5_STEEL = (
-    "Shigley's Mechanical Engineering Design, Table A-5, carbon steel: E 207 GPa, G 79.3 GPa, "
-    "ν 0.292; weight density 76.5 kN/m³ (from memory)"
+#: The mark of a library value that could not be read from a published table; the record asks
+#: for the mill certificate of every material carrying it. Defined here only.
+TYPICAL = "typical — state the certified value"
+
+#: Words that mark a recalled value; a record refuses to be written with them in a material.
+FROM_MEMORY = "from memory"
+
+_SHIGLEY = "R. G. Budynas and J. K. Nisbett, Shigley's Mechanical Engineering Design, 9th ed."
+_SHIGLEY_A20 = f"{_SHIGLEY}, Table A-20 (p. 1040)"
+_SHIGLEY_A24 = f"{_SHIGLEY}, Table A-24"
+_CALLISTER_B2 = (
+    "W. D. Callister and D. G. Rethwisch, Fundamentals of Materials Science and Engineering: "
+    "An Integrated Approach, 3rd ed., Table B.2"
 )
+_HIBBELER = (
+    "R. C. Hibbeler, Mechanics of Materials, table 'Average Mechanical Properties of Typical "
+    "Engineering Materials (SI Units)' (edition not shown in the copy read)"
+)
+_KPSI = 6.894757293168e6  # Pa per kpsi (NIST SP 811, exact from the pound and the inch)
+
+#: Field of :class:`Material` → (symbol, unit shown, Pa or kg/m³ per unit shown), in the order a
+#: source lists them.
+_SHOWN = {
+    "shear_modulus": ("G", "GPa", _GPA),
+    "elastic_modulus": ("E", "GPa", _GPA),
+    "poisson_ratio": ("ν", "", 1.0),
+    "density": ("ρ", "kg/m³", 1.0),
+    "yield_strength": ("Sy", "MPa", _MPA),
+    "ultimate_strength": ("Su", "MPa", _MPA),
+}
+
+_STEEL_TYPICAL = {
+    "shear_modulus": 79.3 * _GPA,
+    "poisson_ratio": 0.292,
+    "density": 76.5e3 / STANDARD_GRAVITY,
+}
+
+#: Library rows: key → (name, {reference: {field: value in SI}}). Every value sits under the
+#: published table it was read from, or under :data:`TYPICAL`.
+_ROWS: dict[str, tuple[str, dict[str, dict[str, float]]]] = {
+    "steel-1020-hr": (
+        "AISI 1020 hot-rolled steel",
+        {
+            f"{_SHIGLEY_A20}, 1020 HR": {
+                "yield_strength": 210 * _MPA,
+                "ultimate_strength": 380 * _MPA,
+            },
+            f"{_CALLISTER_B2}, steel alloy 1020": {"elastic_modulus": 207 * _GPA},
+            TYPICAL: _STEEL_TYPICAL,
+        },
+    ),
+    "steel-1020-cd": (
+        "AISI 1020 cold-drawn steel",
+        {
+            f"{_SHIGLEY_A20}, 1020 CD": {
+                "yield_strength": 390 * _MPA,
+                "ultimate_strength": 470 * _MPA,
+            },
+            f"{_CALLISTER_B2}, steel alloy 1020": {"elastic_modulus": 207 * _GPA},
+            TYPICAL: _STEEL_TYPICAL,
+        },
+    ),
+    "steel-1040-hr": (
+        "AISI 1040 hot-rolled steel",
+        {
+            f"{_SHIGLEY_A20}, 1040 HR": {
+                "yield_strength": 290 * _MPA,
+                "ultimate_strength": 520 * _MPA,
+            },
+            f"{_CALLISTER_B2}, steel alloy 1040": {"elastic_modulus": 207 * _GPA},
+            TYPICAL: _STEEL_TYPICAL,
+        },
+    ),
+    "steel-1040-cd": (
+        "AISI 1040 cold-drawn steel",
+        {
+            f"{_SHIGLEY_A20}, 1040 CD": {
+                "yield_strength": 490 * _MPA,
+                "ultimate_strength": 590 * _MPA,
+            },
+            f"{_CALLISTER_B2}, steel alloy 1040": {"elastic_modulus": 207 * _GPA},
+            TYPICAL: _STEEL_TYPICAL,
+        },
+    ),
+    "steel-1045-cd": (
+        "AISI 1045 cold-drawn steel",
+        {
+            f"{_SHIGLEY_A20}, 1045 CD": {
+                "yield_strength": 530 * _MPA,
+                "ultimate_strength": 630 * _MPA,
+            },
+            TYPICAL: {"elastic_modulus": 207 * _GPA, **_STEEL_TYPICAL},
+        },
+    ),
+    "steel-4140-qt650": (
+        "AISI 4140 alloy steel, quenched and tempered at 650 °C",
+        {
+            f"{_CALLISTER_B2}, steel alloy 4140": {"elastic_modulus": 207 * _GPA},
+            TYPICAL: {
+                "yield_strength": 655 * _MPA,
+                "ultimate_strength": 758 * _MPA,
+                **_STEEL_TYPICAL,
+            },
+        },
+    ),
+    "steel-a36": (
+        "ASTM A-36 structural steel",
+        {
+            f"{_HIBBELER}, structural steel A-36": {
+                "shear_modulus": 75 * _GPA,
+                "elastic_modulus": 200 * _GPA,
+                "poisson_ratio": 0.32,
+                "density": 7850.0,
+                "yield_strength": 250 * _MPA,
+                "ultimate_strength": 400 * _MPA,
+            },
+        },
+    ),
+    "stainless-304": (
+        "AISI 304 stainless steel",
+        {
+            f"{_HIBBELER}, stainless 304": {
+                "shear_modulus": 75 * _GPA,
+                "elastic_modulus": 193 * _GPA,
+                "poisson_ratio": 0.27,
+                "density": 7860.0,
+                "yield_strength": 207 * _MPA,
+                "ultimate_strength": 517 * _MPA,
+            },
+        },
+    ),
+    "aluminium-6061-t6": (
+        "Aluminium alloy 6061-T6",
+        {
+            f"{_HIBBELER}, wrought aluminium 6061-T6": {
+                "shear_modulus": 26 * _GPA,
+                "elastic_modulus": 68.9 * _GPA,
+                "poisson_ratio": 0.35,
+                "density": 2710.0,
+                "yield_strength": 255 * _MPA,
+                "ultimate_strength": 290 * _MPA,
+            },
+        },
+    ),
+    "aluminium-2024-t3": (
+        "Aluminium alloy 2024-T3",
+        {
+            f"{_SHIGLEY_A24}(b) (p. 1046), wrought 2024 T3": {
+                "yield_strength": 345 * _MPA,
+                "ultimate_strength": 482 * _MPA,
+            },
+            TYPICAL: {
+                "shear_modulus": 26.2 * _GPA,
+                "elastic_modulus": 71.0 * _GPA,
+                "poisson_ratio": 0.334,
+                "density": 26.6e3 / STANDARD_GRAVITY,
+            },
+        },
+    ),
+    "titanium-6al-4v": (
+        "Titanium alloy Ti-6Al-4V",
+        {
+            f"{_HIBBELER}, titanium alloy Ti-6Al-4V": {
+                "shear_modulus": 44 * _GPA,
+                "elastic_modulus": 120 * _GPA,
+                "poisson_ratio": 0.36,
+                "density": 4430.0,
+                "yield_strength": 924 * _MPA,
+                "ultimate_strength": 1000 * _MPA,
+            },
+        },
+    ),
+    "brass-red-c83400": (
+        "Red brass C83400",
+        {
+            f"{_HIBBELER}, red brass C83400": {
+                "shear_modulus": 37 * _GPA,
+                "elastic_modulus": 101 * _GPA,
+                "poisson_ratio": 0.35,
+                "density": 8740.0,
+                "yield_strength": 70 * _MPA,
+                "ultimate_strength": 241 * _MPA,
+            },
+        },
+    ),
+    "bronze-c86100": (
+        "Bronze C86100",
+        {
+            f"{_HIBBELER}, bronze C86100": {
+                "shear_modulus": 38 * _GPA,
+                "elastic_modulus": 103 * _GPA,
+                "poisson_ratio": 0.34,
+                "density": 8830.0,
+                "yield_strength": 345 * _MPA,
+                "ultimate_strength": 655 * _MPA,
+            },
+        },
+    ),
+    "brass": (
+        "Brass (strength not given: depends on alloy and temper)",
+        {
+            TYPICAL: {
+                "shear_modulus": 40.1 * _GPA,
+                "elastic_modulus": 106 * _GPA,
+                "poisson_ratio": 0.324,
+                "density": 83.8e3 / STANDARD_GRAVITY,
+            },
+        },
+    ),
+    "phosphor-bronze": (
+        "Phosphor bronze (strength not given: depends on alloy and temper)",
+        {
+            TYPICAL: {
+                "shear_modulus": 41.4 * _GPA,
+                "elastic_modulus": 111 * _GPA,
+                "poisson_ratio": 0.349,
+                "density": 80.1e3 / STANDARD_GRAVITY,
+            },
+        },
+    ),
+    "copper": (
+        "Copper (strength not given: depends on temper)",
+        {
+            TYPICAL: {
+                "shear_modulus": 44.7 * _GPA,
+                "elastic_modulus": 119 * _GPA,
+                "poisson_ratio": 0.326,
+                "density": 87.3e3 / STANDARD_GRAVITY,
+            },
+        },
+    ),
+    "cast-iron-grey-30": (
+        "Grey cast iron, ASTM class 30 (no yield point)",
+        {
+            f"{_SHIGLEY_A24}(a) (p. 1046), ASTM 30, Sut 31 kpsi": {"ultimate_strength": 31 * _KPSI},
+            TYPICAL: {
+                "shear_modulus": 41.4 * _GPA,
+                "elastic_modulus": 100 * _GPA,
+                "poisson_ratio": 0.211,
+                "density": 70.6e3 / STANDARD_GRAVITY,
+            },
+        },
+    ),
+}
 
 
-def _shigley_carbon_steel(
-    name: str, table_row: str, yield_mpa: float, ultimate_mpa: float
-) -> Material:
+def _shown(field: str, value: float) -> str:
+    symbol, unit, scale = _SHOWN[field]
+    return f"{symbol} {value / scale:.4g}" + (f" {unit}" if unit else "")
+
+
+def _library_material(name: str, references: dict[str, dict[str, float]]) -> Material:
+    values: dict[str, float] = {}
+    parts = []
+    for reference, cited in references.items():
+        values.update(cited)
+        shown = [_shown(field, cited[field]) for field in _SHOWN if field in cited]
+        parts.append(f"{', '.join(shown)}: {reference}")
     return Material(
         name=name,
-        shear_modulus=79.3 * _GPA,
-        yield_strength=yield_mpa * _MPA,
-        ultimate_strength=ultimate_mpa * _MPA,
-        elastic_modulus=207.0 * _GPA,
-        poisson_ratio=0.292,
-        density=76.5e3 / STANDARD_GRAVITY,
-        source=(
-            f"{_SHIGLEY_A5_STEEL}; strengths: Shigley Table A-20, {table_row}: "
-            f"Sy {yield_mpa:g} MPa, Su {ultimate_mpa:g} MPa (from memory)"
-        ),
+        shear_modulus=values.pop("shear_modulus"),
+        yield_strength=values.pop("yield_strength", None),
+        ultimate_strength=values.pop("ultimate_strength", None),
+        source="; ".join(parts),
+        **values,
     )
 
 
-LIBRARY: dict[str, Material] = {
-    "steel-1020-hr": _shigley_carbon_steel(
-        "AISI 1020 hot-rolled steel", "AISI 1020 HR", 210.0, 380.0
-    ),
-    "steel-1020-cd": _shigley_carbon_steel(
-        "AISI 1020 cold-drawn steel", "AISI 1020 CD", 390.0, 470.0
-    ),
-    "steel-1040-hr": _shigley_carbon_steel(
-        "AISI 1040 hot-rolled steel", "AISI 1040 HR", 290.0, 520.0
-    ),
-    "steel-1040-cd": _shigley_carbon_steel(
-        "AISI 1040 cold-drawn steel", "AISI 1040 CD", 490.0, 590.0
-    ),
-    "steel-1045-cd": _shigley_carbon_steel(
-        "AISI 1045 cold-drawn steel", "AISI 1045 CD", 530.0, 630.0
-    ),
-    "steel-4140-qt650": Material(
-        name="AISI 4140 alloy steel, quenched and tempered at 650 °C",
-        shear_modulus=79.3 * _GPA,
-        yield_strength=655.0 * _MPA,
-        ultimate_strength=758.0 * _MPA,
-        elastic_modulus=207.0 * _GPA,
-        poisson_ratio=0.292,
-        density=76.5e3 / STANDARD_GRAVITY,
-        source=(
-            "Shigley's Mechanical Engineering Design, Table A-5, alloy steel: E 207 GPa, "
-            "G 79.3 GPa, ν 0.292, weight density 76.5 kN/m³ (from memory: same row values as "
-            "carbon steel); strengths: Shigley Table A-21, AISI 4140 Q&T 650 °C: Sy 655 MPa, "
-            "Su 758 MPa (from memory)"
-        ),
-    ),
-    "steel-a36": Material(
-        name="ASTM A-36 structural steel",
-        shear_modulus=75.0 * _GPA,
-        yield_strength=250.0 * _MPA,
-        ultimate_strength=400.0 * _MPA,
-        elastic_modulus=200.0 * _GPA,
-        poisson_ratio=0.32,
-        density=7850.0,
-        source=(
-            "Hibbeler, Mechanics of Materials, average mechanical properties table, structural "
-            "A-36 steel: G 75 GPa, Sy 250 MPa, Su 400 MPa; E 200 GPa, ν 0.32, "
-            "density 7.85 Mg/m³ (from memory)"
-        ),
-    ),
-    "stainless-304": Material(
-        name="AISI 304 stainless steel",
-        shear_modulus=75.0 * _GPA,
-        yield_strength=207.0 * _MPA,
-        ultimate_strength=517.0 * _MPA,
-        elastic_modulus=193.0 * _GPA,
-        poisson_ratio=0.27,
-        density=7860.0,
-        source=(
-            "Hibbeler, Mechanics of Materials, average mechanical properties table, stainless "
-            "304: G 75 GPa, Sy 207 MPa; Su 517 MPa, E 193 GPa, ν 0.27, density 7.86 Mg/m³ "
-            "(from memory)"
-        ),
-    ),
-    "aluminium-6061-t6": Material(
-        name="Aluminium alloy 6061-T6",
-        shear_modulus=26.0 * _GPA,
-        yield_strength=255.0 * _MPA,
-        ultimate_strength=290.0 * _MPA,
-        elastic_modulus=68.9 * _GPA,
-        poisson_ratio=0.35,
-        density=2710.0,
-        source=(
-            "Hibbeler, Mechanics of Materials, average mechanical properties table, wrought "
-            "aluminium 6061-T6: G 26 GPa, Sy 255 MPa, Su 290 MPa; E 68.9 GPa, ν 0.35, "
-            "density 2.71 Mg/m³ (from memory)"
-        ),
-    ),
-    "aluminium-2024-t3": Material(
-        name="Aluminium alloy 2024-T3",
-        shear_modulus=26.2 * _GPA,
-        yield_strength=345.0 * _MPA,
-        ultimate_strength=483.0 * _MPA,
-        elastic_modulus=71.0 * _GPA,
-        poisson_ratio=0.334,
-        density=26.6e3 / STANDARD_GRAVITY,
-        source=(
-            "Shigley's Mechanical Engineering Design, Table A-5, aluminium alloys: E 71.0 GPa, "
-            "G 26.2 GPa, ν 0.334; weight density 26.6 kN/m³ (from memory); strengths: Shigley "
-            "Table A-24, 2024-T3: Sy 345 MPa, Su 483 MPa (from memory)"
-        ),
-    ),
-    "titanium-6al-4v": Material(
-        name="Titanium alloy Ti-6Al-4V",
-        shear_modulus=44.0 * _GPA,
-        yield_strength=924.0 * _MPA,
-        ultimate_strength=1000.0 * _MPA,
-        elastic_modulus=120.0 * _GPA,
-        poisson_ratio=0.36,
-        density=4430.0,
-        source=(
-            "Hibbeler, Mechanics of Materials, average mechanical properties table, Ti-6Al-4V: "
-            "G 44 GPa, Sy 924 MPa, Su 1000 MPa; E 120 GPa, ν 0.36, density 4.43 Mg/m³ "
-            "(from memory)"
-        ),
-    ),
-    "brass-red-c83400": Material(
-        name="Red brass C83400",
-        shear_modulus=37.0 * _GPA,
-        yield_strength=70.0 * _MPA,
-        ultimate_strength=241.0 * _MPA,
-        elastic_modulus=101.0 * _GPA,
-        poisson_ratio=0.35,
-        density=8740.0,
-        source=(
-            "Hibbeler, Mechanics of Materials, average mechanical properties table, red brass "
-            "C83400: G 37 GPa, Sy 70 MPa, Su 241 MPa, E 101 GPa, ν 0.35, density 8.74 Mg/m³ "
-            "(all from memory)"
-        ),
-    ),
-    "bronze-c86100": Material(
-        name="Bronze C86100",
-        shear_modulus=38.0 * _GPA,
-        yield_strength=345.0 * _MPA,
-        ultimate_strength=655.0 * _MPA,
-        elastic_modulus=103.0 * _GPA,
-        poisson_ratio=0.34,
-        density=8830.0,
-        source=(
-            "Hibbeler, Mechanics of Materials, average mechanical properties table, bronze "
-            "C86100: G 38 GPa, Sy 345 MPa, Su 655 MPa, E 103 GPa, ν 0.34, density 8.83 Mg/m³ "
-            "(all from memory)"
-        ),
-    ),
-    "brass": Material(
-        name="Brass (strength not given: depends on alloy and temper)",
-        shear_modulus=40.1 * _GPA,
-        yield_strength=None,
-        ultimate_strength=None,
-        elastic_modulus=106.0 * _GPA,
-        poisson_ratio=0.324,
-        density=83.8e3 / STANDARD_GRAVITY,
-        source=(
-            "Shigley's Mechanical Engineering Design, Table A-5, brass: E 106 GPa, G 40.1 GPa; "
-            "ν 0.324, weight density 83.8 kN/m³ (from memory)"
-        ),
-    ),
-    "phosphor-bronze": Material(
-        name="Phosphor bronze (strength not given: depends on alloy and temper)",
-        shear_modulus=41.4 * _GPA,
-        yield_strength=None,
-        ultimate_strength=None,
-        elastic_modulus=111.0 * _GPA,
-        poisson_ratio=0.349,
-        density=80.1e3 / STANDARD_GRAVITY,
-        source=(
-            "Shigley's Mechanical Engineering Design, Table A-5, phosphor bronze: E 111 GPa, "
-            "G 41.4 GPa; ν 0.349, weight density 80.1 kN/m³ (from memory)"
-        ),
-    ),
-    "copper": Material(
-        name="Copper (strength not given: depends on temper)",
-        shear_modulus=44.7 * _GPA,
-        yield_strength=None,
-        ultimate_strength=None,
-        elastic_modulus=119.0 * _GPA,
-        poisson_ratio=0.326,
-        density=87.3e3 / STANDARD_GRAVITY,
-        source=(
-            "Shigley's Mechanical Engineering Design, Table A-5, copper: E 119 GPa, G 44.7 GPa; "
-            "ν 0.326, weight density 87.3 kN/m³ (from memory)"
-        ),
-    ),
-    "cast-iron-grey-30": Material(
-        name="Grey cast iron, ASTM class 30 (no yield point)",
-        shear_modulus=41.4 * _GPA,
-        yield_strength=None,
-        ultimate_strength=214.0 * _MPA,
-        elastic_modulus=100.0 * _GPA,
-        poisson_ratio=0.211,
-        density=70.6e3 / STANDARD_GRAVITY,
-        source=(
-            "Shigley's Mechanical Engineering Design, Table A-5, grey cast iron: E 100 GPa, "
-            "G 41.4 GPa; ν 0.211, weight density 70.6 kN/m³ (from memory); tensile strength: "
-            "Shigley Table A-24, ASTM 30: Su 214 MPa (from memory)"
-        ),
-    ),
+LIBRARY: dict[str, Material] = {key: _library_material(*row) for key, row in _ROWS.items()}
+
+#: For each library key, the reference (or :data:`TYPICAL`) of each value it gives.
+PROVENANCE: dict[str, dict[str, str]] = {
+    key: {field: reference for reference, cited in references.items() for field in cited}
+    for key, (_, references) in _ROWS.items()
 }
+
+
+def needs_certificate(material: Material) -> bool:
+    """Whether ``material`` carries a value marked :data:`TYPICAL` (its mill certificate is due).
+
+    References
+    ----------
+    .. [1] See :data:`TYPICAL`.
+    """
+    return TYPICAL in material.source
+
+
+def recalled(material: Material) -> bool:
+    """Whether ``material``'s source says a value was recalled (:data:`FROM_MEMORY`)."""
+    return FROM_MEMORY in material.source.lower()
 
 
 def closest_names(name: str, names: Iterable[str]) -> str:

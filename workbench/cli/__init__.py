@@ -42,6 +42,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "workbench.cli.modes",
     "workbench.cli.lab",
     "workbench.cli.record",
+    "workbench.cli.compare",
 )
 
 

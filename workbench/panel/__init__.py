@@ -15,7 +15,8 @@ The modules, from the document up (the panel calls the solver and never computes
 - sweeps are computed in the design layer (:mod:`workbench.design.sweep`, the batch path);
 - ``plotting``, ``charts``, ``modes_section``, ``fatigue_section``, ``summary``: what is drawn;
   ``markup`` and ``templates/``: all the panel's HTML, autoescaped;
-- ``workbench``: the :class:`Workbench` widget composing them.
+- ``workbench``: the :class:`Workbench` widget composing them;
+- ``record_status``: :class:`RecordStatus`, a loaded record's signature status in one line.
 """
 
 from __future__ import annotations
@@ -24,7 +25,7 @@ from typing import Any
 
 from workbench.case import CASE_MIME_TYPE
 
-__all__ = ["CASE_MIME_TYPE", "Workbench"]
+__all__ = ["CASE_MIME_TYPE", "RecordStatus", "Workbench"]
 
 
 def __getattr__(name: str) -> Any:
@@ -32,5 +33,9 @@ def __getattr__(name: str) -> Any:
         from workbench.panel.workbench import Workbench  # noqa: PLC0415
 
         return Workbench
+    if name == "RecordStatus":
+        from workbench.panel.record_status import RecordStatus  # noqa: PLC0415
+
+        return RecordStatus
     msg = f"module {__name__!r} has no attribute {name!r}"
     raise AttributeError(msg)

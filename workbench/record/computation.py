@@ -20,6 +20,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from workbench.case.errors import InputError
+from workbench.case.materials import FROM_MEMORY, Material, recalled
 from workbench.design.checks import CheckReport, check_document, run_checks
 from workbench.signing import canonicalize
 from workbench.solver.analysis import Results, solve
@@ -189,3 +190,36 @@ def compute(case: Mapping[str, Any]) -> Computation:
         modes,
         modes_error,
     )
+
+
+def used_materials(model: Model) -> dict[str, Material]:
+    """The materials ``model``'s segments and layers use, by name, in the order first used."""
+    found: dict[str, Material] = {}
+    for shaft in model.shafts:
+        for segment in shaft.segments:
+            for layer in segment.layers:
+                found.setdefault(layer.material.name, layer.material)
+    return found
+
+
+def refuse_recalled_materials(model: Model) -> None:
+    """Refuse a record whose material data says it was recalled rather than read.
+
+    Raises
+    ------
+    InputError
+        On ``materials.NAME.source`` of the first material whose source holds
+        :data:`workbench.case.materials.FROM_MEMORY`.
+
+    References
+    ----------
+    .. [1] See :mod:`workbench.case.materials` (every library value cites its table or is marked
+       typical); the project's rule that no recalled value reaches a signed record.
+    """
+    for name, material in used_materials(model).items():
+        if recalled(material):
+            msg = (
+                f"says its values are '{FROM_MEMORY}': a record takes material data read from a "
+                "published table or a mill certificate; state that source"
+            )
+            raise InputError(field=f"materials.{name}.source", message=msg)

@@ -32,14 +32,18 @@ and the templates under ``templates/workbench_record/``), digests and signs.
 
 from __future__ import annotations
 
-import hashlib
 import os
 import time
 from collections.abc import Mapping
 from typing import Any
 
 import workbench
-from workbench.record.computation import Computation, compute, results_digest
+from workbench.record.computation import (
+    Computation,
+    compute,
+    refuse_recalled_materials,
+    results_digest,
+)
 from workbench.record.render import (
     BLOCK_END,
     BLOCK_START,
@@ -51,7 +55,7 @@ from workbench.record.render import (
 )
 from workbench.record.templating import templates_dir
 from workbench.record.view_model import heading, record_sections
-from workbench.signing import canonicalize
+from workbench.signing import canonicalize, content_digest
 
 __all__ = [
     "BLOCK_END",
@@ -71,11 +75,6 @@ __all__ = [
 
 FORMAT = "workbench-calculation-record"
 FORMAT_VERSION = 1
-
-
-def content_digest(text_without_block: str) -> str:
-    """``sha256:<hex>`` of the record's bytes outside the signature block."""
-    return "sha256:" + hashlib.sha256(text_without_block.encode("utf-8")).hexdigest()
 
 
 def signing_time() -> str:
@@ -122,9 +121,15 @@ def render_record(
     -------
     str
         The record file's text.
+
+    Raises
+    ------
+    InputError
+        A material's source says its values were recalled ("from memory").
     """
     from workbench.signing import jwk_thumbprint, public_jwk, sign_compact  # noqa: PLC0415
 
+    refuse_recalled_materials(computation.model)
     signed_at = signed_at or signing_time()
     signer = signer or str(title_block.get("prepared_by", ""))
     jwk = public_jwk(private_key.public_key()) if private_key is not None else None

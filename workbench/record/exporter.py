@@ -62,6 +62,8 @@ class RecordExporter(HTMLExporter):
     execute = Bool(True, help="Execute the notebook when it holds no case output.").tag(config=True)
     title_block = Dict(help="Title-block fields over the notebook's metadata.").tag(config=True)
     signed_at = Unicode("", help="ISO 8601 UTC signing time (default: now).").tag(config=True)
+    #: Passphrase of an encrypted key file; set from Python only, never from a config file.
+    key_passphrase: bytes | None = None
 
     @default("template_name")
     def _template_name_default(self) -> str:
@@ -98,7 +100,9 @@ class RecordExporter(HTMLExporter):
         case, source = find_case(nb, folder)
         computation = compute(case)
         title_block = title_block_from(nb, dict(self.title_block))
-        private_key = load_private_key(self.key_file) if self.key_file else None
+        private_key = (
+            load_private_key(self.key_file, self.key_passphrase) if self.key_file else None
+        )
         cells_html, resources = super().from_notebook_node(nb, resources, **kw)
         inlined = "\n".join(resources.get("inlining", {}).get("css", []))
         name = (resources.get("metadata") or {}).get("name") or ""
@@ -122,12 +126,15 @@ def export_file(
     notebook: str | Path,
     *,
     key_file: str | Path | None = None,
+    key_passphrase: bytes | None = None,
     signer: str = "",
     title_block: dict[str, Any] | None = None,
     execute: bool = True,
     signed_at: str = "",
 ) -> tuple[str, dict[str, Any]]:
     """Export a notebook file as a record; returns ``(record text, resources)``.
+
+    ``key_passphrase`` opens an encrypted key file (``None`` for an unencrypted one).
 
     Raises
     ------
@@ -151,5 +158,6 @@ def export_file(
         execute=execute,
         signed_at=signed_at,
     )
+    exporter.key_passphrase = key_passphrase
     resources = {"metadata": {"path": str(path.parent.resolve()), "name": path.stem}}
     return exporter.from_notebook_node(nb, resources)

@@ -56,6 +56,7 @@ def build_package(
     output: str | Path,
     *,
     key_file: str | Path | None = None,
+    key_passphrase: bytes | None = None,
     signer: str = "",
     title_block: dict[str, Any] | None = None,
     paper: str | None = "A4",
@@ -68,6 +69,8 @@ def build_package(
         The notebook (.ipynb) and the zip file to write.
     key_file
         Private key (PEM) that signs the record and the manifest; ``None``: unsigned.
+    key_passphrase
+        Opens an encrypted key file (``None`` for an unencrypted one).
     signer, title_block
         The signer's name and title-block fields over the notebook's.
     paper
@@ -89,7 +92,12 @@ def build_package(
         raise InputError("paper", f"must be one of {', '.join(PAPER_SIZES)}, not {paper[:20]!r}")
     signed_at = signing_time()
     record, resources = export_file(
-        notebook, key_file=key_file, signer=signer, title_block=title_block, signed_at=signed_at
+        notebook,
+        key_file=key_file,
+        key_passphrase=key_passphrase,
+        signer=signer,
+        title_block=title_block,
+        signed_at=signed_at,
     )
     case = resources["workbench_case"]
     computation = compute(case)
@@ -122,7 +130,7 @@ def build_package(
     members["manifest.json"] = canonicalize(manifest)
     if key_file:
         members["manifest.jws"] = sign_compact(
-            members["manifest.json"], load_private_key(key_file), {"typ": "JOSE"}
+            members["manifest.json"], load_private_key(key_file, key_passphrase), {"typ": "JOSE"}
         ).encode("ascii")
     # Whole or not at all: a package cut short by a kill would still look like a zip.
     with (

@@ -11,7 +11,7 @@ elements (:func:`signature_block`).
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from functools import lru_cache
 from typing import Any
 
@@ -20,7 +20,7 @@ from markupsafe import Markup
 from workbench.record.computation import Computation
 from workbench.record.templating import record_css, render
 from workbench.record.view_model import Section, record_sections, verified_sections
-from workbench.signing import canonicalize
+from workbench.signing import BLOCK_END, BLOCK_MARKER, BLOCK_START, Link, canonicalize
 
 __all__ = [
     "BLOCK_END",
@@ -38,11 +38,6 @@ __all__ = [
 
 #: The record's Content-Security-Policy: no fetch of any kind, no script at all.
 CSP = "default-src 'none'; img-src data:; style-src 'unsafe-inline'"
-
-#: Name of the comments that open and close the signature block.
-BLOCK_MARKER = "workbench-record-signature-block"
-BLOCK_START = f"<!-- {BLOCK_MARKER} -->"
-BLOCK_END = f"<!-- /{BLOCK_MARKER} -->"
 
 # Where the page template places the signature block. Escaping leaves it as it is, and the page
 # is split at its last occurrence: whatever a case or a notebook holds comes before it.
@@ -166,10 +161,13 @@ def signature_block(
     token: str | None,
     jwk: Mapping[str, str] | None,
     fingerprint: str | None,
+    countersignatures: Sequence[Link] = (),
 ) -> str:
     """The signature block: verification details, the JWS and the public key (or the payload).
 
     The verifier rebuilds this text from the token and key and compares it byte for byte.
+    Countersignatures (:mod:`workbench.signing.chain`) go at its end, before the closing
+    comment; without any, the block is exactly what it was before countersignatures existed.
     """
     facts = {
         "signer": str(payload.get("signer") or "not named"),
@@ -179,7 +177,7 @@ def signature_block(
         "software": str(payload.get("software", {}).get("workbench", "")),
     }
     signed = token is not None and jwk is not None
-    return render(
+    block = render(
         "signature_block.html.j2",
         marker=BLOCK_MARKER,
         facts=facts,
@@ -188,6 +186,24 @@ def signature_block(
         jwk=_script_json(jwk) if signed and jwk is not None else None,
         payload=None if signed else _script_json(payload),
     )
+    if not countersignatures:
+        return block
+    end = block.rindex(BLOCK_END)
+    added = render(
+        "countersignatures.html.j2",
+        rows=[
+            ["prepared", facts["signer"], facts["signed_at"], fingerprint or "—"],
+            *(
+                [link.role, link.name, link.signed_at, link.fingerprint or "?"]
+                for link in countersignatures
+            ),
+        ],
+        countersignatures=[
+            {"token": link.token or "", "jwk": _script_json(link.jwk or {})}
+            for link in countersignatures
+        ],
+    )
+    return block[:end] + added + block[end:]
 
 
 @lru_cache(maxsize=1)

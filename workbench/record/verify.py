@@ -14,7 +14,10 @@ script, no template). It
 5. re-runs the solver and the checks from the signed case and compares the results digest,
    (natural modes and fatigue cycles included), and compares the results, checks, torsional
    vibration and fatigue sections written in the record with those rebuilt from the
-   recomputation.
+   recomputation;
+6. checks the chain of countersignatures (:mod:`workbench.signing.chain`): each signs the one
+   before and the content digest, in the order prepared → checked → approved, by a key the
+   reader gave (when keys are given) and on the reader's trusted-signers list (when given).
 
 A calculation package (zip, see :mod:`workbench.record.package`) is checked by
 :func:`verify_package`: the manifest's signature, every file's size and SHA-256 against the
@@ -27,16 +30,15 @@ from __future__ import annotations
 import hashlib
 import io
 import json
-import re
 import zipfile
 import zlib
 from collections import Counter
+from collections.abc import Sequence
 from dataclasses import dataclass, field
-from html.parser import HTMLParser
 from pathlib import Path
 from typing import Any
 
-from workbench.case.errors import InputError, WorkbenchError
+from workbench.case.errors import WorkbenchError
 from workbench.record.document import (
     BLOCK_END,
     BLOCK_START,
@@ -45,7 +47,9 @@ from workbench.record.document import (
     content_digest,
     signature_block,
 )
+from workbench.record.reader_keys import as_list, pick, read_trusted, read_with_key
 from workbench.record.render import document_end, render_sections
+from workbench.signing import JWK_SCRIPT, PAYLOAD_SCRIPT, TOKEN_SCRIPT, BlockData
 
 __all__ = [
     "PACKAGE_FORMAT",
@@ -80,11 +84,6 @@ _ZIP_FAULTS = (
     NotImplementedError,
 )
 
-#: The signature block's data: (element id, type, what its text must match entirely).
-_TOKEN = ("record-signature", "application/jose", re.compile(r"[A-Za-z0-9_.-]*"))
-_JWK = ("record-public-key", "application/jwk+json", re.compile(r"\{[^<]*\}"))
-_PAYLOAD = ("record-payload", "application/json", re.compile(r"[^<]*"))
-
 #: What the verifier says of each section it rebuilds from the case, by the section's id.
 _REBUILT = {
     "results": "results",
@@ -92,42 +91,6 @@ _REBUILT = {
     "vibration": "torsional vibration section",
     "fatigue": "fatigue section",
 }
-
-
-class _BlockData(HTMLParser):
-    """The text of every script element of a signature block, by id (the first of each)."""
-
-    def __init__(self, block: str) -> None:
-        super().__init__(convert_charrefs=False)
-        self.scripts: dict[str, tuple[str, str]] = {}
-        self._open: tuple[str, str] | None = None
-        self._text: list[str] = []
-        self.feed(block)
-        self.close()
-
-    def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
-        if tag == "script":
-            attributes = dict(attrs)
-            self._open = (attributes.get("id") or "", attributes.get("type") or "")
-            self._text = []
-
-    def handle_data(self, data: str) -> None:
-        if self._open is not None:
-            self._text.append(data)
-
-    def handle_endtag(self, tag: str) -> None:
-        if tag == "script" and self._open is not None:
-            ident, kind = self._open
-            self.scripts.setdefault(ident, (kind, "".join(self._text)))
-            self._open = None
-
-    def get(self, what: tuple[str, str, re.Pattern[str]]) -> str | None:
-        """The text of the script element ``what`` names, when its type and text are right."""
-        ident, kind, pattern = what
-        found = self.scripts.get(ident)
-        if found is None or found[0] != kind or not pattern.fullmatch(found[1]):
-            return None
-        return found[1]
 
 
 @dataclass
@@ -157,48 +120,46 @@ class Verification:
         return [*self.facts, *(f"FAILED: {p}" for p in self.problems), verdict]
 
 
-def _read_with_key(
-    path: str | Path, what: str, public_key_path: str | Path | None
-) -> tuple[bytes, Any]:
-    """The file's bytes and the public key to check it with (``None``: the embedded one)."""
-    file = Path(path)
-    try:
-        data = file.read_bytes()
-    except OSError as error:
-        msg = f"cannot read the {what}: {error.strerror or error}"
-        raise InputError(str(file), msg) from None
-    public_key = None
-    if public_key_path is not None:
-        from workbench.signing import SigningError, load_public_key  # noqa: PLC0415
-
-        try:
-            public_key = load_public_key(public_key_path)
-        except SigningError as error:  # bad input of the option that named the key
-            raise InputError("--public-key", str(error)) from None
-    return data, public_key
-
-
-def verify_record(path: str | Path, public_key_path: str | Path | None = None) -> Verification:
+def verify_record(
+    path: str | Path,
+    public_key_path: str | Path | Sequence[str | Path] | None = None,
+    trusted_path: str | Path | None = None,
+) -> Verification:
     """Check a record file; see :func:`verify_text`.
+
+    Parameters
+    ----------
+    path
+        The record file.
+    public_key_path
+        One public key file, or several (the preparer's and the countersigners').
+    trusted_path
+        A trusted-signers file (:mod:`workbench.signing.trusted`).
 
     Raises
     ------
     InputError
-        When the file (or the key file) cannot be read.
+        When the file, a key file or the trusted-signers file cannot be read.
     """
-    return verify_text(*_read_with_key(path, "record", public_key_path))
+    trusted = read_trusted(trusted_path)
+    return verify_text(*read_with_key(path, "record", public_key_path), trusted)
 
 
-def verify_text(data: bytes, public_key: Any = None) -> Verification:
-    """Check the bytes of a record.
+def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Verification:
+    """Check the bytes of a record and the chain of its signatures.
 
     Parameters
     ----------
     data
         The record file's bytes.
     public_key
-        The signer's Ed25519 public key, or ``None`` to use the key embedded in the record
-        (then only the reported fingerprint ties it to a person).
+        The signer's Ed25519 public key, a list of keys (the preparer's and the
+        countersigners'), or ``None`` to use the keys embedded in the record (then only the
+        reported fingerprints tie them to people). A countersignature by a key not given fails.
+    trusted
+        Trusted signers by fingerprint (:func:`workbench.signing.read_trusted_signers`): each
+        signature is named after its signer, and one by a key not on the list, or in a role
+        the list does not give its signer, fails.
 
     Returns
     -------
@@ -206,7 +167,10 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
         Facts and problems; ``ok`` only when all holds.
     """
     from workbench.signing import (  # noqa: PLC0415
+        Link,
         SigningError,
+        chain_links,
+        chain_report,
         jwk_thumbprint,
         public_key_from_jwk,
         verify_compact,
@@ -214,6 +178,8 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
 
     outcome = Verification()
     problems = outcome.problems
+    public_keys = as_list(public_key)
+    given = [jwk_thumbprint(key) for key in public_keys] if public_keys else None
     try:
         text = data.decode("utf-8")
     except UnicodeDecodeError:
@@ -240,8 +206,8 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
     if text[end:] != document_end() and not problems:
         problems.append("something follows the signature block besides </body></html>")
 
-    data_in_block = _BlockData(block)
-    token, jwk_text = data_in_block.get(_TOKEN), data_in_block.get(_JWK)
+    data_in_block = BlockData(block)
+    token, jwk_text = data_in_block.get(TOKEN_SCRIPT), data_in_block.get(JWK_SCRIPT)
     signed = token is not None
     jwk: dict[str, Any] | None = None
     fingerprint: str | None = None
@@ -257,22 +223,22 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
             return outcome
         fingerprint = jwk_thumbprint(embedded)
         key = embedded
-        if public_key is not None:
-            expected = jwk_thumbprint(public_key)
-            if expected != fingerprint:
+        if given is not None:
+            key = pick(public_keys, fingerprint)
+            if jwk_thumbprint(key) != fingerprint:
                 problems.append(
                     f"the record was signed with key {fingerprint}, not with the expected key "
-                    f"{expected}: it was re-signed by someone else, or the wrong key was given"
+                    f"{', '.join(given)}: it was re-signed by someone else, or the wrong key "
+                    "was given"
                 )
                 return outcome
-            key = public_key
         try:
             _, payload_bytes = verify_compact(token, key)
         except SigningError as error:
             problems.append(f"the signature does not hold: {error}")
             return outcome
         outcome.facts.append(f"Signature: valid EdDSA (Ed25519) signature by key {fingerprint}")
-        if public_key is None:
+        if given is None:
             outcome.facts.append(
                 "Key: taken from the record itself; compare the fingerprint with the one the "
                 "signer published (or pass --public-key)"
@@ -280,11 +246,12 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
         else:
             outcome.facts.append("Key: matches the public key given")
     else:
-        payload_text = data_in_block.get(_PAYLOAD)
+        payload_text = data_in_block.get(PAYLOAD_SCRIPT)
         if payload_text is None:
             problems.append("the record carries neither a signature nor a payload: damaged")
             return outcome
         payload_bytes = payload_text.encode("utf-8")
+        outcome.facts.append("Signature: unsigned")
         problems.append("the record is UNSIGNED: nothing proves who made it")
     try:
         payload = json.loads(payload_bytes)
@@ -295,11 +262,12 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
         problems.append("the payload is not a workbench calculation record")
         return outcome
     outcome.payload = payload
-    outcome.facts += [
-        f"Signed by: {payload.get('signer') or 'not named'}",
-        f"Signed at: {payload.get('signed_at', '?')} (UTC)",
-        f"Software: workbench {payload.get('software', {}).get('workbench', '?')}",
-    ]
+    if signed:
+        outcome.facts += [
+            f"Signed by: {payload.get('signer') or 'not named'}",
+            f"Signed at: {payload.get('signed_at', '?')} (UTC)",
+        ]
+    outcome.facts.append(f"Software: workbench {payload.get('software', {}).get('workbench', '?')}")
     title_block = payload.get("title_block") or {}
     if title_block:
         outcome.facts.append(
@@ -317,7 +285,22 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
             "the record's content was altered after signing: its visible text, numbers or "
             "styles differ from what was signed (content digest mismatch)"
         )
-    if block != signature_block(payload, token, jwk, fingerprint):
+    links: list[Link] = []
+    if token is not None:
+        first = Link(
+            "prepared",
+            str(payload.get("signer") or "not named"),
+            str(payload.get("signed_at", "?")),
+            fingerprint,
+            token,
+            jwk,
+        )
+        links = chain_links(first, data_in_block.countersignatures(), content_digest(outside))
+    if len(links) > 1 or trusted is not None:
+        chain_facts, chain_problems = chain_report(links, given, trusted)
+        outcome.facts += chain_facts
+        problems += chain_problems
+    if block != signature_block(payload, token, jwk, fingerprint, links[1:]):
         problems.append("the verification details at the end of the record were altered")
     try:
         computation = compute(payload.get("case") or {})
@@ -361,7 +344,9 @@ def verify_text(data: bytes, public_key: Any = None) -> Verification:
 # --- calculation package -------------------------------------------------------------------
 
 
-def verify_package(path: str | Path, public_key_path: str | Path | None = None) -> Verification:
+def verify_package(
+    path: str | Path, public_key_path: str | Path | Sequence[str | Path] | None = None
+) -> Verification:
     """Check a calculation package (zip); see :func:`verify_package_bytes`.
 
     Raises
@@ -369,7 +354,7 @@ def verify_package(path: str | Path, public_key_path: str | Path | None = None) 
     InputError
         When the file (or the key file) cannot be read.
     """
-    return verify_package_bytes(*_read_with_key(path, "package", public_key_path))
+    return verify_package_bytes(*read_with_key(path, "package", public_key_path))
 
 
 def _read_members(
@@ -433,6 +418,7 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
 
     outcome = Verification()
     facts, problems = outcome.facts, outcome.problems
+    public_keys = as_list(public_key)
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
     except _ZIP_FAULTS as error:  # zipfile raises more than BadZipFile on a damaged directory
@@ -474,7 +460,7 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
     embedded = _record_key(record) if record is not None else None
     token_bytes = head.get(MANIFEST_SIGNATURE)
     signed = token_bytes is not None
-    key = public_key
+    key = None
     if token_bytes is None:
         problems.append(f"the package is UNSIGNED: it has no {MANIFEST_SIGNATURE}")
     else:
@@ -484,7 +470,9 @@ def verify_package_bytes(data: bytes, public_key: Any = None) -> Verification:
         except SigningError as error:
             problems.append(f"{MANIFEST_SIGNATURE} is not a readable signature: {error}")
             return outcome
-        if key is None and embedded is not None:
+        if public_keys:
+            key = pick(public_keys, kid)
+        elif embedded is not None:
             try:
                 key = public_key_from_jwk(embedded)
             except SigningError as error:
@@ -561,7 +549,7 @@ def _record_key(record: bytes) -> dict[str, Any] | None:
     start, end = text.find(BLOCK_START), text.find(BLOCK_END)
     if start < 0 or end < start:
         return None
-    jwk_text = _BlockData(text[start:end]).get(_JWK)
+    jwk_text = BlockData(text[start:end]).get(JWK_SCRIPT)
     if jwk_text is None:
         return None
     try:

@@ -10,6 +10,8 @@ from dataclasses import dataclass
 from typing import Any
 
 from workbench.case.design import DesignCriteria
+from workbench.case.materials import TYPICAL, needs_certificate
+from workbench.record.computation import used_materials
 from workbench.record.drawing import data_uri
 from workbench.record.elevation import elevation_svg
 from workbench.record.view_model.common import Rows, number, unit_label, unit_labels
@@ -31,6 +33,11 @@ class InputsView:
         The to-scale elevation as a ``data:`` URI.
     segments, materials, supports, gears, combinations, criteria
         Table rows (``gears`` and ``combinations`` empty when the case has none).
+    certificates
+        Names of the materials with a value marked ``typical_mark``: the record asks for their
+        mill certificates.
+    typical_mark
+        :data:`workbench.case.materials.TYPICAL`.
     load_cases
         ``(name, rows)`` of every load case: its point and distributed torques.
     """
@@ -44,6 +51,8 @@ class InputsView:
     load_cases: list[tuple[str, Rows]]
     combinations: Rows
     criteria: Rows
+    certificates: list[str]
+    typical_mark: str = TYPICAL
 
 
 def _notch_text(notch: Notch, units: Any) -> str:
@@ -172,11 +181,7 @@ def inputs_view(model: Model, design: DesignCriteria) -> InputsView:
     def optional(value: float | None, quantity: str) -> str:
         return "—" if value is None else number(units.from_si(value, quantity))
 
-    materials: dict[str, Any] = {}
-    for shaft in model.shafts:
-        for segment in shaft.segments:
-            for layer in segment.layers:
-                materials.setdefault(layer.material.name, layer.material)
+    materials = used_materials(model)
     return InputsView(
         units=unit_labels(
             units, "length", "torque", "stress", "angle", "stiffness", "distributed_torque"
@@ -222,4 +227,5 @@ def inputs_view(model: Model, design: DesignCriteria) -> InputsView:
             for combination in model.combinations
         ],
         criteria=_criteria_rows(design, units),
+        certificates=[name for name, material in materials.items() if needs_certificate(material)],
     )
