@@ -500,11 +500,11 @@ def test_elevation_labels_supports_gears_and_loads() -> None:
         "shaft auger",
         "shaft feeder",
         "S0 fixed",
-        "S1 spring 500 N*m/deg",
-        "900 N*m (pressing)",
-        "1400 N*m (jam)",
-        "\u2212250 N*m (jam)",
-        "\u22120.6 → \u22121.2 N*m/mm (pressing)",
+        "S1 spring 500 N·m/°",
+        "900 N·m (pressing)",
+        "1400 N·m (jam)",
+        "\u2212250 N·m (jam)",
+        "\u22120.6 → \u22121.2 N·m/mm (pressing)",
         "gear 0, r 60 (meshes feeder at x 0)",
         "gear 0, r 90 (meshes auger at x 550)",
         "Ø60",
@@ -541,7 +541,7 @@ def test_elevation_escapes_every_user_string() -> None:
     root = ElementTree.fromstring(svg)  # well-formed: nothing broke out of its text node
     texts = [text.text for text in root.iter(f"{SVG}text")]
     assert f"shaft {name}" in texts
-    assert f"900 N*m ({ALERT})" in texts
+    assert f"900 N·m ({ALERT})" in texts
     assert not [e for e in root.iter() if e.tag.rsplit("}", 1)[-1] != "svg" and "script" in e.tag]
     assert ALERT not in svg
 

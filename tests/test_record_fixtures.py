@@ -107,8 +107,8 @@ def test_a_shown_number_that_differs_on_re_solving_fails(monkeypatch: pytest.Mon
         computation = real_compute(case)  # type: ignore[arg-type]
         return dataclasses.replace(computation, results_digest="sha256:" + "0" * 64)
 
-    def one_number_differs(computation: object) -> list[tuple[str, str]]:
-        sections = list(real_sections(computation))  # type: ignore[arg-type]
+    def one_number_differs(computation: object, earlier: bool = False) -> list[tuple[str, str]]:
+        sections = list(real_sections(computation, earlier))  # type: ignore[arg-type]
         ident, section = sections[0]
         return [(ident, section + "1"), *sections[1:]]
 

@@ -93,4 +93,29 @@ def run() -> list[Row]:
             notes=(f"{chained_time.median / single_time.median:.2f}× the same record unchained",),
         ),
         Row("record size", len(data) / 1e6, "MB", SIZE_TARGET_MB),
+        *_print_rows(text),
     ]
+
+
+def _print_rows(text: str) -> list[Row]:
+    """The record printed to PDF by headless Chromium (the package's record.pdf): time, pages."""
+    import pypdfium2 as pdfium
+
+    from workbench.record.pdf import print_pdf, printing_browser
+
+    rows = []
+    with printing_browser() as browser:
+        for paper in ("A4", "Letter"):
+            start = time.perf_counter()
+            pdf = print_pdf(text, paper, browser)
+            elapsed = time.perf_counter() - start
+            pages = len(pdfium.PdfDocument(pdf))
+            rows.append(
+                Row(
+                    f"record printed to PDF ({paper}, warm browser)",
+                    elapsed,
+                    "s",
+                    notes=(f"{pages} pages, {len(pdf) / 1e6:.2f} MB",),
+                )
+            )
+    return rows

@@ -23,18 +23,12 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from workbench.record.pdf import CHROMIUM_FLAGS
+
 ROOT = Path(__file__).resolve().parents[2]
 CHROMIUM = "/usr/bin/chromium"
-FLAGS = [
-    "--headless",
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-quic",
-    "--no-first-run",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-]
+#: Chromium's switches: headless, offline, no sandbox or GPU (the ones the record prints with).
+FLAGS = list(CHROMIUM_FLAGS)
 #: Files the demo notebook needs beside it.
 DEMO_FILES = (ROOT / "notebooks" / "demo.ipynb", ROOT / "notebooks" / "press_drive.json")
 

@@ -1,9 +1,17 @@
-"""The ``workbench lab`` command: JupyterLab on the notebooks folder, opening the demo notebook."""
+"""The ``workbench lab`` command: JupyterLab on the demo notebook.
+
+In a source checkout it opens ``notebooks/`` as it is. Installed from a wheel, the demo notebook
+and its case ship inside the package (``workbench/notebooks/demo.ipynb``,
+``workbench/cases/press_drive.json``), where they are not meant to be edited: the command copies
+them into a working folder (``workbench-demo`` in the current folder, or ``--folder``) and opens
+that; files already there are kept as they are, so edits and saved cases survive the next run.
+"""
 
 from __future__ import annotations
 
 import argparse
 import os
+import shutil
 import signal
 import subprocess
 import sys
@@ -11,8 +19,41 @@ import threading
 from pathlib import Path
 from typing import Any
 
+#: The package folder (``workbench/``).
+PACKAGE = Path(__file__).resolve().parents[1]
 #: The demo notebooks (a scenario of our own), beside the package in a source checkout.
-NOTEBOOKS = Path(__file__).resolve().parents[2] / "notebooks"
+NOTEBOOKS = PACKAGE.parent / "notebooks"
+#: The demo notebook and its case as the wheel ships them (see pyproject.toml, force-include).
+SHIPPED_DEMO = (PACKAGE / "notebooks" / "demo.ipynb", PACKAGE / "cases" / "press_drive.json")
+#: The working folder made for the demo when run outside a checkout (in the current folder).
+WORKING_FOLDER = "workbench-demo"
+
+
+def in_checkout() -> bool:
+    """Whether this package runs from a source checkout (its ``notebooks/`` beside it)."""
+    return (NOTEBOOKS / "demo.ipynb").is_file() and (PACKAGE.parent / "pyproject.toml").is_file()
+
+
+def demo_folder(folder: str | None) -> Path:
+    """The folder to open: ``folder``; else the checkout's ``notebooks/``; else a working copy.
+
+    Outside a checkout the shipped demo notebook and case are copied into ``folder`` (default
+    :data:`WORKING_FOLDER` in the current folder) unless a file of that name is already there.
+    """
+    if folder is None and in_checkout():
+        return NOTEBOOKS
+    target = Path(folder or WORKING_FOLDER).resolve()
+    if folder is not None and in_checkout():
+        return target
+    if not all(path.is_file() for path in SHIPPED_DEMO):
+        return target
+    target.mkdir(parents=True, exist_ok=True)
+    for source in SHIPPED_DEMO:
+        if not (target / source.name).exists():
+            shutil.copyfile(source, target / source.name)
+            sys.stderr.write(f"copied {source.name} into {target}\n")
+    return target
+
 
 #: Flags that keep JupyterLab from reaching the network (no news, no update checks).
 OFFLINE_FLAGS = (
@@ -33,7 +74,11 @@ def lab_command(folder: Path, notebook: str = "demo.ipynb", port: int | None = N
 
 
 def _command_lab(arguments: argparse.Namespace) -> int:
-    folder = Path(arguments.folder).resolve()
+    try:
+        folder = demo_folder(arguments.folder)
+    except OSError as error:
+        sys.stderr.write(f"--folder: cannot make the working folder: {error.strerror or error}\n")
+        return 2
     if not (folder / arguments.notebook).is_file():
         sys.stderr.write(f"{folder / arguments.notebook}: no such notebook\n")
         return 2
@@ -71,7 +116,12 @@ def run_until_stopped(command: list[str]) -> int:
 def register(commands: Any) -> None:
     """Add the ``lab`` sub-command to an argparse sub-parsers object."""
     parser = commands.add_parser("lab", help="open JupyterLab on the demo notebook")
-    parser.add_argument("--folder", default=str(NOTEBOOKS), help="notebooks folder")
+    parser.add_argument(
+        "--folder",
+        default=None,
+        help="notebooks folder (default: the checkout's notebooks/, else a working copy of the "
+        f"demo in ./{WORKING_FOLDER})",
+    )
     parser.add_argument("--notebook", default="demo.ipynb", help="notebook to open")
     parser.add_argument("--port", type=int, default=None, help="port for the server")
     parser.set_defaults(run=_command_lab)

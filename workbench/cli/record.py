@@ -16,26 +16,21 @@ from typing import Any
 
 from workbench.case.errors import InputError
 from workbench.case.files import atomic_file
+from workbench.case.title_block import TEXT_FIELDS, TITLE_FIELDS
 from workbench.cli.output import output_file, writing
 from workbench.cli.passphrase import add_passphrase_option, key_passphrase, new_key_passphrase
 from workbench.cli.status import EXIT_FAILED_CHECK, EXIT_OK
+from workbench.record.pdf import PAPER_SIZES
 
 __all__ = ["EXIT_NOT_VERIFIED", "register"]
 
 #: ``workbench verify``: the record does not verify.
 EXIT_NOT_VERIFIED = EXIT_FAILED_CHECK
 
+#: Title-block options: every field of the title block, then purpose and scope.
 _TITLE_OPTIONS = (
-    ("project", "project name"),
-    ("calculation_number", "calculation number"),
-    ("revision", "revision"),
-    ("subject", "subject of the calculation"),
-    ("prepared_by", "who prepared it"),
-    ("date_prepared", "date prepared"),
-    ("checked_by", "who checked it"),
-    ("date_checked", "date checked"),
-    ("purpose", "purpose (one paragraph)"),
-    ("scope", "scope (one paragraph)"),
+    *((key, label.lower()) for key, label in TITLE_FIELDS.items()),
+    *((key, f"{key} (one paragraph)") for key in TEXT_FIELDS),
 )
 
 
@@ -48,7 +43,9 @@ def _title_overrides(arguments: argparse.Namespace) -> dict[str, Any]:
 
 
 def _add_title_options(parser: argparse.ArgumentParser) -> None:
-    group = parser.add_argument_group("title block (over the notebook's workbench.title_block)")
+    group = parser.add_argument_group(
+        "title block (over the notebook's title-block output and metadata)"
+    )
     for key, text in _TITLE_OPTIONS:
         group.add_argument(f"--{key.replace('_', '-')}", dest=key, metavar="TEXT", help=text)
     parser.add_argument("--signer", default="", help="signer's name (default: prepared by)")
@@ -159,6 +156,7 @@ def _command_package(arguments: argparse.Namespace) -> int:
             key_passphrase=_passphrase(arguments),
             signer=arguments.signer,
             title_block=_title_overrides(arguments),
+            paper=None if arguments.no_pdf else arguments.paper,
         )
     names = ", ".join(entry["name"] for entry in manifest["files"])
     signed = "signed manifest" if arguments.key else "UNSIGNED manifest"
@@ -241,6 +239,13 @@ def register(commands: Any) -> None:
     package.add_argument("notebook", help="the notebook (.ipynb)")
     package.add_argument("-o", "--output", required=True, help="zip file to write")
     package.add_argument("--key", help="private key (PEM) to sign with")
+    package.add_argument(
+        "--paper",
+        choices=PAPER_SIZES,
+        default="A4",
+        help="paper of record.pdf, printed by headless Chromium (default A4)",
+    )
+    package.add_argument("--no-pdf", action="store_true", help="leave record.pdf out")
     add_passphrase_option(package, "--key, when it is encrypted")
     _add_title_options(package)
     package.set_defaults(run=_command_package)

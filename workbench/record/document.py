@@ -48,6 +48,7 @@ from workbench.record.render import (
     BLOCK_END,
     BLOCK_START,
     CSP,
+    footer_css,
     render_body,
     render_page,
     signature_block,
@@ -142,7 +143,9 @@ def render_record(
         fingerprint=fingerprint,
         case_source=case_source,
     )
-    before, after = render_page(sections, heading(title_block, computation.model), extra_css)
+    before, after = render_page(
+        sections, heading(title_block, computation.model), extra_css, footer_css(title_block)
+    )
     payload = {
         "format": FORMAT,
         "format_version": FORMAT_VERSION,

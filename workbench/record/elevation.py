@@ -17,6 +17,7 @@ from typing import Any
 
 import numpy as np
 
+from workbench.case.display import unit_symbol
 from workbench.record.drawing import FONT_FAMILY, nice, nice_step, points, text_width
 from workbench.record.templating import render
 from workbench.solver.model import Model, Segment, Shaft
@@ -294,7 +295,10 @@ class _Elevation:
 
     def _above(self, shaft: Shaft) -> list[_Label]:
         units, font, width = self.units, self.font, self.width
-        torque_unit, distributed_unit = units.label("torque"), units.label("distributed_torque")
+        torque_unit, distributed_unit = (
+            unit_symbol(units.label("torque")),
+            unit_symbol(units.label("distributed_torque")),
+        )
         labels = []
         for case in self.model.load_cases:
             for torque in case.torques:
@@ -338,10 +342,10 @@ class _Elevation:
             text = f"S{number} {support.kind}"
             if support.kind == "spring" and support.stiffness is not None:
                 stiffness = nice(float(units.from_si(support.stiffness, "stiffness")))
-                text += f" {stiffness} {units.label('stiffness')}"
+                text += f" {stiffness} {unit_symbol(units.label('stiffness'))}"
             if support.rotation:
                 rotation = nice(float(units.from_si(support.rotation, "angle")))
-                text += f", θ {rotation} {units.label('angle')}"
+                text += f", θ {rotation} {unit_symbol(units.label('angle'))}"
             labels.append(_centred(self.px(support.x), text, font, width, "support", "support"))
         inside = []
         bounds = shaft.boundaries
@@ -542,5 +546,5 @@ def elevation_svg(model: Model, width: int = 720, font_size: float = 11.0) -> st
         scale_bar=bar,
         scale_ticks=ticks,
         scale_length=length,
-        length_unit=model.units.label("length"),
+        length_unit=unit_symbol(model.units.label("length")),
     )

@@ -1,8 +1,9 @@
 """The nbconvert exporter of the calculation record (``--to workbench_record``).
 
 The exporter executes the notebook when it holds no case output, takes the case the panel
-holds (see :mod:`workbench.record.notebook`), recomputes every result and check from it and
-writes one self-contained HTML record, signed when a key is given. The notebook's own cells
+holds and the title block (metadata, then the title-block editor's output, then the
+``title_block`` option: see :mod:`workbench.record.notebook`), recomputes every result and check
+from the case and writes one self-contained HTML record, signed when a key is given. The notebook's own cells
 follow the record, sanitized: nothing from them can run or fetch.
 """
 

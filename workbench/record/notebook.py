@@ -19,45 +19,34 @@ from workbench.solver.io import decode_case_text
 
 __all__ = [
     "CASE_MIME_TYPE",
+    "TEXT_FIELDS",
+    "TITLE_BLOCK_MIME_TYPE",
     "TITLE_FIELDS",
     "find_case",
     "has_case_output",
     "title_block_from",
 ]
 
-from workbench.case import CASE_MIME_TYPE
-
-#: Title-block fields, in the order the record shows them, with their labels.
-TITLE_FIELDS: dict[str, str] = {
-    "project": "Project",
-    "calculation_number": "Calculation number",
-    "revision": "Revision",
-    "subject": "Subject",
-    "prepared_by": "Prepared by",
-    "date_prepared": "Date prepared",
-    "checked_by": "Checked by",
-    "date_checked": "Date checked",
-}
-
-#: Free-text fields of the title block shown as their own sections.
-TEXT_FIELDS = ("purpose", "scope")
+from workbench.case import CASE_MIME_TYPE, TITLE_BLOCK_MIME_TYPE
+from workbench.case.title_block import HISTORY_FIELDS, TEXT_FIELDS, TITLE_FIELDS
 
 
-def _case_outputs(nb: Any) -> list[Any]:
+def _outputs(nb: Any, mime_type: str = CASE_MIME_TYPE) -> list[Any]:
+    """The data of every code cell output of ``mime_type``, in order."""
     found = []
     for cell in nb.get("cells", []):
         if cell.get("cell_type") != "code":
             continue
         for output in cell.get("outputs", []):
             data = output.get("data") or {}
-            if CASE_MIME_TYPE in data:
-                found.append(data[CASE_MIME_TYPE])
+            if mime_type in data:
+                found.append(data[mime_type])
     return found
 
 
 def has_case_output(nb: Any) -> bool:
     """Whether any code cell output carries the panel's case."""
-    return bool(_case_outputs(nb))
+    return bool(_outputs(nb))
 
 
 def find_case(nb: Any, notebook_dir: Path | None) -> tuple[dict[str, Any], str]:
@@ -81,7 +70,7 @@ def find_case(nb: Any, notebook_dir: Path | None) -> tuple[dict[str, Any], str]:
     InputError
         When the notebook holds no case output and names no readable case file.
     """
-    outputs = _case_outputs(nb)
+    outputs = _outputs(nb)
     if outputs:
         data = outputs[-1]
         if isinstance(data, str):  # some front ends store JSON MIME data as text
@@ -112,12 +101,25 @@ def find_case(nb: Any, notebook_dir: Path | None) -> tuple[dict[str, Any], str]:
     return data, f"case file {case_file}"
 
 
-def title_block_from(nb: Any, overrides: dict[str, Any] | None = None) -> dict[str, Any]:
-    """The title block: notebook metadata ``workbench.title_block``, then ``overrides``.
+def _json_object(data: Any, field: str) -> dict[str, Any]:
+    """An output's JSON object (some front ends store JSON MIME data as text)."""
+    if isinstance(data, str):
+        try:
+            data = json.loads(data)
+        except ValueError:
+            raise InputError(field, "is not valid JSON") from None
+    if not isinstance(data, dict):
+        raise InputError(field, f"must be a JSON object, not {type(data).__name__}")
+    return dict(data)
 
-    Only known keys are kept (:data:`TITLE_FIELDS`, :data:`TEXT_FIELDS` and
-    ``revision_history``, a list of ``{"revision", "date", "by", "description"}``); every value
-    is text.
+
+def title_block_from(nb: Any, overrides: dict[str, Any] | None = None) -> dict[str, Any]:
+    """The title block: metadata, then the title-block editor's output, then ``overrides``.
+
+    The notebook metadata ``workbench.title_block`` first, then the last output of type
+    :data:`TITLE_BLOCK_MIME_TYPE` (the panel's title-block editor), then ``overrides``. Each source replaces the fields it gives. Only known keys are kept (:data:`TITLE_FIELDS`,
+    :data:`TEXT_FIELDS` and ``revision_history``, a list of ``{"revision", "date", "by",
+    "description"}``); every value is text.
 
     Raises
     ------
@@ -125,7 +127,11 @@ def title_block_from(nb: Any, overrides: dict[str, Any] | None = None) -> dict[s
         For a title block that is not an object or a revision history that is not a list.
     """
     metadata = (nb.get("metadata") or {}).get("workbench") or {}
-    raw = dict(metadata.get("title_block") or {})
+    raw = _json_object(metadata.get("title_block") or {}, "metadata.workbench.title_block")
+    outputs = _outputs(nb, TITLE_BLOCK_MIME_TYPE)
+    if outputs:
+        edited = _json_object(outputs[-1], TITLE_BLOCK_MIME_TYPE)
+        raw.update({key: value for key, value in edited.items() if value not in (None, "")})
     raw.update({key: value for key, value in (overrides or {}).items() if value is not None})
     block: dict[str, Any] = {}
     for key in (*TITLE_FIELDS, *TEXT_FIELDS):
@@ -139,9 +145,7 @@ def title_block_from(nb: Any, overrides: dict[str, Any] | None = None) -> dict[s
         if not isinstance(item, dict):
             msg = f"must be an object, not {type(item).__name__}"
             raise InputError(f"title_block.revision_history[{number}]", msg)
-        rows.append(
-            {key: str(item.get(key, "")) for key in ("revision", "date", "by", "description")}
-        )
+        rows.append({key: str(item.get(key, "")) for key in HISTORY_FIELDS})
     if rows:
         block["revision_history"] = rows
     return json.loads(json.dumps(block))

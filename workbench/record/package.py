@@ -1,9 +1,11 @@
 """The calculation package: notebook, case file, record, results table and a signed manifest.
 
-The zip holds ``notebook.ipynb``, ``case.json``, ``record.html``, ``results.csv`` (and
-``results.xlsx`` when openpyxl is installed), ``manifest.json`` listing the SHA-256 and size of
-every other file, and ``manifest.jws``: a compact JWS (EdDSA) over the RFC 8785 canonical
-manifest. Entries carry a fixed time stamp so the same inputs give the same zip.
+The zip holds ``notebook.ipynb``, ``case.json``, ``record.html``, ``record.pdf`` (the record
+printed by headless Chromium, :mod:`workbench.record.pdf`; left out on request), ``results.csv``
+(and ``results.xlsx`` when openpyxl is installed), ``manifest.json`` listing the SHA-256 and
+size of every other file, and ``manifest.jws``: a compact JWS (EdDSA) over the RFC 8785
+canonical manifest. Entries carry a fixed time stamp, and the PDF the record's signing time, so
+the same inputs signed at the same time give the same zip.
 """
 
 from __future__ import annotations
@@ -15,8 +17,10 @@ import zipfile
 from pathlib import Path
 from typing import Any
 
+from workbench.case.errors import InputError
 from workbench.case.files import atomic_file
-from workbench.record.document import FORMAT, compute
+from workbench.record.document import FORMAT, compute, signing_time
+from workbench.record.pdf import PAPER_SIZES, print_pdf
 from workbench.signing import canonicalize
 
 __all__ = ["build_package"]
@@ -55,15 +59,28 @@ def build_package(
     key_passphrase: bytes | None = None,
     signer: str = "",
     title_block: dict[str, Any] | None = None,
+    paper: str | None = "A4",
 ) -> dict[str, Any]:
     """Write the calculation package of a notebook; return the manifest.
 
-    ``key_passphrase`` opens an encrypted key file (``None`` for an unencrypted one).
+    Parameters
+    ----------
+    notebook, output
+        The notebook (.ipynb) and the zip file to write.
+    key_file
+        Private key (PEM) that signs the record and the manifest; ``None``: unsigned.
+    key_passphrase
+        Opens an encrypted key file (``None`` for an unencrypted one).
+    signer, title_block
+        The signer's name and title-block fields over the notebook's.
+    paper
+        Paper size of ``record.pdf`` (``A4`` or ``Letter``); ``None`` leaves the PDF out.
 
     Raises
     ------
     InputError
-        When the notebook holds no valid case or cannot be read.
+        When the notebook holds no valid case or cannot be read, or the PDF cannot be printed
+        (no Chromium, no playwright).
     SigningError
         When the key cannot be read.
     """
@@ -71,12 +88,16 @@ def build_package(
     from workbench.signing import load_private_key, sign_compact  # noqa: PLC0415
 
     notebook = Path(notebook)
+    if paper is not None and paper not in PAPER_SIZES:
+        raise InputError("paper", f"must be one of {', '.join(PAPER_SIZES)}, not {paper[:20]!r}")
+    signed_at = signing_time()
     record, resources = export_file(
         notebook,
         key_file=key_file,
         key_passphrase=key_passphrase,
         signer=signer,
         title_block=title_block,
+        signed_at=signed_at,
     )
     case = resources["workbench_case"]
     computation = compute(case)
@@ -87,6 +108,8 @@ def build_package(
         "record.html": record.encode("utf-8"),
         "results.csv": frame.to_csv(index=False, lineterminator="\n").encode("utf-8"),
     }
+    if paper is not None:
+        files["record.pdf"] = print_pdf(record, paper, created=signed_at)
     try:
         import openpyxl  # noqa: F401, PLC0415
     except ImportError:

@@ -27,7 +27,9 @@ __all__ = [
     "BLOCK_MARKER",
     "BLOCK_START",
     "CSP",
+    "css_string",
     "document_end",
+    "footer_css",
     "render_body",
     "render_page",
     "render_sections",
@@ -68,7 +70,37 @@ def render_body(
     return render("body.html.j2", sections=sections)
 
 
-def render_page(sections: list[Section], title: Any, extra_css: str = "") -> tuple[str, str]:
+def css_string(text: str) -> str:
+    """``text`` as a quoted CSS string that nothing in it can end early.
+
+    Letters, digits and spaces stand as they are; every other character is written as a CSS
+    escape of six hexadecimal digits and a space, which the escape consumes (CSS Syntax Level 3,
+    § 4.3.7), so no quote, backslash, ``<`` or line break of a title block can close the string,
+    the rule or the style element.
+    """
+    escaped = "".join(
+        char if char.isalnum() or char == " " else f"\\{ord(char):06x} " for char in text
+    )
+    return f'"{escaped}"'
+
+
+def footer_css(title_block: Mapping[str, Any]) -> str:
+    """The printed pages' footer: project, calculation number and revision (bottom left).
+
+    The page number and count (bottom right) are in the record's stylesheet.
+    """
+    parts = [str(title_block["project"])] if title_block.get("project") else []
+    if title_block.get("calculation_number"):
+        parts.append(f"calculation {title_block['calculation_number']}")
+    if title_block.get("revision"):
+        parts.append(f"revision {title_block['revision']}")
+    text = " · ".join(parts) or "Calculation record"
+    return render("page_footer.css.j2", footer=Markup(css_string(text)))
+
+
+def render_page(
+    sections: list[Section], title: Any, extra_css: str = "", footer: str = ""
+) -> tuple[str, str]:
     """The whole page but its signature block: ``(text before the block, text after it)``.
 
     Parameters
@@ -79,8 +111,11 @@ def render_page(sections: list[Section], title: Any, extra_css: str = "") -> tup
         The page's title (the record's heading).
     extra_css
         The notebook cells' stylesheets, from nbconvert's templates (never from the notebook).
+    footer
+        The page footer's rules, from :func:`footer_css`.
     """
     css = (extra_css + "\n" + record_css()) if extra_css else record_css()
+    css += "\n" + footer if footer else ""
     page = render(
         "record.html.j2",
         title=title,
@@ -100,9 +135,14 @@ def render_section(section: Section) -> str:
     return render(section.template, section=section)
 
 
-def render_sections(computation: Computation) -> list[tuple[str, str]]:
-    """``(id, HTML)`` of the sections the verifier rebuilds: results, vibration, fatigue, checks."""
-    return [(section.ident, render_section(section)) for section in verified_sections(computation)]
+def render_sections(computation: Computation, earlier: bool = False) -> list[tuple[str, str]]:
+    """``(id, HTML)`` of the sections the verifier rebuilds: results, vibration, fatigue, checks.
+
+    ``earlier``: as records signed before units were printed by the unit library wrote them
+    (see :func:`workbench.record.view_model.verified_sections`).
+    """
+    sections = verified_sections(computation, earlier)
+    return [(section.ident, render_section(section)) for section in sections]
 
 
 def _script_json(value: Mapping[str, Any]) -> Markup:

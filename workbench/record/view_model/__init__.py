@@ -18,14 +18,9 @@ from workbench.design.caution import CAUTION
 from workbench.record.computation import Computation
 from workbench.record.view_model.checks import checks_view
 from workbench.record.view_model.common import equations
+from workbench.record.view_model.cover import cover_view, heading
 from workbench.record.view_model.fatigue import fatigue_view
-from workbench.record.view_model.front import (
-    SignatureView,
-    heading,
-    purpose_view,
-    revisions_view,
-    title_view,
-)
+from workbench.record.view_model.front import SignatureView, purpose_view, revisions_view
 from workbench.record.view_model.hand_check import hand_check_view
 from workbench.record.view_model.inputs import inputs_view
 from workbench.record.view_model.results import results_view
@@ -58,22 +53,28 @@ class Section:
         return f"sections/{self.ident}.html.j2"
 
 
-def extra_sections(computation: Computation) -> list[Section]:
+def extra_sections(computation: Computation, printed: bool = True) -> list[Section]:
     """The torsional vibration and fatigue sections, when the case asks for them."""
     out = []
     if computation.modes is not None or computation.modes_error is not None:
-        out.append(Section("vibration", "Torsional vibration", vibration_view(computation)))
+        view = vibration_view(computation, printed)
+        out.append(Section("vibration", "Torsional vibration", view))
     if computation.report.design.fatigue is not None:
-        out.append(Section("fatigue", "Fatigue", fatigue_view(computation.report)))
+        out.append(Section("fatigue", "Fatigue", fatigue_view(computation.report, printed)))
     return out
 
 
-def verified_sections(computation: Computation) -> list[Section]:
-    """The sections the verifier rebuilds from the signed case (results, checks, vibration…)."""
+def verified_sections(computation: Computation, earlier: bool = False) -> list[Section]:
+    """The sections the verifier rebuilds from the signed case (results, checks, vibration…).
+
+    ``earlier``: as records signed before units were printed by the unit library wrote them
+    (``N*m``, ``kg*m**2``; failing check rows not marked), so that those records still verify.
+    """
+    printed = not earlier
     return [
-        Section("results", "Results", results_view(computation.results)),
-        *extra_sections(computation),
-        Section("checks", "Design checks", checks_view(computation.report)),
+        Section("results", "Results", results_view(computation.results, printed)),
+        *extra_sections(computation, printed),
+        Section("checks", "Design checks", checks_view(computation.report, printed, printed)),
     ]
 
 
@@ -112,7 +113,13 @@ def record_sections(
         warnings.append("the record is UNSIGNED")
     results, *extra, checks = verified_sections(computation)
     return [
-        Section("title", "Title block", title_view(title_block, model, fingerprint is not None)),
+        Section(
+            "title",
+            "Title block and verdict",
+            cover_view(
+                title_block, report, signer=signer, signed_at=signed_at, fingerprint=fingerprint
+            ),
+        ),
         Section("purpose", "Purpose and scope", purpose_view(title_block, model)),
         Section("inputs", "Inputs", inputs_view(model, report.design)),
         Section("method", "Method and assumptions", equations("statics")),

@@ -30,6 +30,9 @@ class ChecksView:
         One row per check: result, shaft, segment, check, value, limit, utilisation, verdict.
     allowables
         How each allowable shear stress was found (one line each, sorted).
+    row_classes
+        The class of each row: ``fail`` for a failing check (shown marked on screen and in
+        print), ``""`` otherwise; empty when rows are not marked.
     """
 
     passes: bool
@@ -37,10 +40,21 @@ class ChecksView:
     units: dict[str, str]
     rows: Rows
     allowables: list[str]
+    row_classes: list[str]
 
 
-def checks_view(report: CheckReport) -> ChecksView:
-    """The Design checks section of ``report``, values in the case's units."""
+def checks_view(report: CheckReport, printed: bool = True, marked: bool = True) -> ChecksView:
+    """The Design checks section of ``report``, values in the case's units.
+
+    Parameters
+    ----------
+    report
+        The checks.
+    printed
+        Units as the unit library prints them (``N·m``), else as the case file writes them.
+    marked
+        Whether failing rows carry the class ``fail``.
+    """
     units = report.results.model.units
     rows: Rows = []
     for check in report.checks:
@@ -69,9 +83,10 @@ def checks_view(report: CheckReport) -> ChecksView:
             "result": governing.result,
             "utilisation": f"{governing.utilisation:.3f}",
         },
-        units=unit_labels(units, "stress", "twist_rate", "angle"),
+        units=unit_labels(units, "stress", "twist_rate", "angle", printed=printed),
         rows=rows,
         allowables=sorted(
             {check.note for check in report.checks if check.kind == "shear_stress" and check.note}
         ),
+        row_classes=[("" if check.passes else "fail") for check in report.checks] if marked else [],
     )

@@ -12,10 +12,11 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import Any
 
+from workbench.case.display import unit_symbol
 from workbench.record.drawing import data_uri
 from workbench.record.equations import load_equations
 
-__all__ = ["Equation", "equations", "factor", "number", "rpm", "unit_labels"]
+__all__ = ["Equation", "equations", "factor", "number", "rpm", "unit_label", "unit_labels"]
 
 #: Rows of a table: one list of cells (formatted strings, or whole numbers) per row.
 Rows = list[list[Any]]
@@ -38,9 +39,19 @@ def rpm(angular: float) -> float:
     return angular * 60.0 / (2.0 * math.pi)
 
 
-def unit_labels(units: Any, *quantities: str) -> dict[str, str]:
-    """The labels of the case's units for ``quantities`` (``{"length": "mm", …}``)."""
-    return {quantity: units.label(quantity) for quantity in quantities}
+def unit_label(units: Any, quantity: str, printed: bool = True) -> str:
+    """The case's unit of ``quantity`` as the unit library prints it (``N·m``, ``kg·m²``).
+
+    ``printed=False`` gives the unit as the case file writes it (``N*m``, ``kg*m**2``): records
+    signed before the printed form wrote it so in the sections a verifier rebuilds.
+    """
+    label: str = units.label(quantity)
+    return unit_symbol(label) if printed else label
+
+
+def unit_labels(units: Any, *quantities: str, printed: bool = True) -> dict[str, str]:
+    """The labels of the case's units for ``quantities`` (``{"torque": "N·m", …}``)."""
+    return {quantity: unit_label(units, quantity, printed) for quantity in quantities}
 
 
 @dataclass(frozen=True)

@@ -20,6 +20,7 @@ from workbench.record.view_model.common import (
     equations,
     factor,
     number,
+    unit_label,
     unit_labels,
 )
 
@@ -76,13 +77,16 @@ class FatigueView:
     diagrams: list[tuple[str, int, str]]
 
 
-def fatigue_view(report: CheckReport) -> FatigueView:
-    """The Fatigue section of a report whose design has ``fatigue`` criteria."""
+def fatigue_view(report: CheckReport, printed: bool = True) -> FatigueView:
+    """The Fatigue section of a report whose design has ``fatigue`` criteria.
+
+    ``printed``: units as the unit library prints them, else as the case file writes them.
+    """
     criteria = report.design.fatigue
     assert criteria is not None
     model = report.results.model
     units = model.units
-    stress = units.label("stress")
+    stress = unit_label(units, "stress", printed)
     nominal_mean = criteria.mean_concentration == "none"
     settings: Rows = [
         ["criterion", criteria.criterion.replace("_", "-")],
@@ -162,7 +166,7 @@ def fatigue_view(report: CheckReport) -> FatigueView:
         diagrams.append((point.shaft, point.segment, data_uri(svg)))
     first, second = criteria.result_names
     return FatigueView(
-        units=unit_labels(units, "length", "stress"),
+        units=unit_labels(units, "length", "stress", printed=printed),
         first=first,
         second=second,
         extremes=criteria.extremes is not None,

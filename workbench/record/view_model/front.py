@@ -1,4 +1,4 @@
-"""The record's framing sections: title block, purpose and scope, revisions, signature."""
+"""The record's framing sections: purpose and scope, revisions, signature (the cover: ``cover``)."""
 
 from __future__ import annotations
 
@@ -7,26 +7,15 @@ from dataclasses import dataclass
 from typing import Any
 
 from workbench.record.computation import has_inertia
-from workbench.record.notebook import TEXT_FIELDS, TITLE_FIELDS
+from workbench.record.notebook import TEXT_FIELDS
 from workbench.record.view_model.common import Rows
 from workbench.solver.model import Model
 
 __all__ = [
     "SignatureView",
-    "TitleView",
     "purpose_view",
     "revisions_view",
-    "title_view",
 ]
-
-
-@dataclass(frozen=True)
-class TitleView:
-    """The title block: whether the record is signed, its heading and the labelled fields."""
-
-    signed: bool
-    heading: Any
-    fields: Rows
 
 
 @dataclass(frozen=True)
@@ -36,20 +25,6 @@ class SignatureView:
     signer: str
     signed_at: str
     fingerprint: str | None
-
-
-def heading(title_block: Mapping[str, Any], model: Model) -> Any:
-    """The record's heading (and page title): the subject, else the case's title."""
-    return title_block.get("subject") or model.title or "Calculation record"
-
-
-def title_view(title_block: Mapping[str, Any], model: Model, signed: bool) -> TitleView:
-    """The title block; a field the notebook leaves out shows as ``—``."""
-    return TitleView(
-        signed,
-        heading(title_block, model),
-        [[label, title_block.get(key, "—")] for key, label in TITLE_FIELDS.items()],
-    )
 
 
 def _default_scope(model: Model) -> str:

@@ -14,7 +14,7 @@ from workbench.case.materials import TYPICAL, needs_certificate
 from workbench.record.computation import used_materials
 from workbench.record.drawing import data_uri
 from workbench.record.elevation import elevation_svg
-from workbench.record.view_model.common import Rows, number, unit_labels
+from workbench.record.view_model.common import Rows, number, unit_label, unit_labels
 from workbench.solver.model import Model, Notch
 
 __all__ = ["InputsView", "inputs_view"]
@@ -71,7 +71,7 @@ def _section_text(section: Any, units: Any) -> str:
     def length(value: float) -> str:
         return number(units.from_si(value, "length"))
 
-    label = units.label("length")
+    label = unit_label(units, "length")
     shape = section.shape
     if shape == "solid":
         return f"solid Ø{length(section.diameter)} {label}"
@@ -122,7 +122,7 @@ def _segment_rows(model: Model) -> Rows:
 
 def _load_rows(model: Model) -> list[tuple[str, Rows]]:
     units = model.units
-    torque, distributed = units.label("torque"), units.label("distributed_torque")
+    torque, distributed = unit_label(units, "torque"), unit_label(units, "distributed_torque")
     cases = []
     for case in model.load_cases:
         rows: Rows = [
@@ -158,17 +158,17 @@ def _criteria_rows(design: DesignCriteria, units: Any) -> Rows:
     ]
     if design.allowable_shear_stress is not None:
         stress = number(units.from_si(design.allowable_shear_stress, "stress"))
-        rows.append(["stated allowable shear stress", f"{stress} {units.label('stress')}"])
+        rows.append(["stated allowable shear stress", f"{stress} {unit_label(units, 'stress')}"])
     if design.max_twist_rate is not None:
         rate = number(units.from_si(design.max_twist_rate, "twist_rate"))
-        rows.append(["largest rate of twist", f"{rate} {units.label('twist_rate')}"])
+        rows.append(["largest rate of twist", f"{rate} {unit_label(units, 'twist_rate')}"])
     for limit in design.rotation_limits:
         rows.append(
             [
                 f"rotation limit, shaft {limit.shaft}",
                 f"|θ({number(units.from_si(limit.end, 'length'))}) − "
                 f"θ({number(units.from_si(limit.start, 'length'))})| ≤ "
-                f"{number(units.from_si(limit.limit, 'angle'))} {units.label('angle')}",
+                f"{number(units.from_si(limit.limit, 'angle'))} {unit_label(units, 'angle')}",
             ]
         )
     return rows

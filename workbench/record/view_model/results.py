@@ -52,11 +52,11 @@ class ResultsView:
     blocks: list[ResultBlock]
 
 
-def results_view(results: Results) -> ResultsView:
-    """The Results section of solved ``results``."""
+def results_view(results: Results, printed: bool = True) -> ResultsView:
+    """The Results section of solved ``results`` (``printed``: units as the unit library prints them, else as the case file writes them)."""
     model = results.model
     units = model.units
-    labels = unit_labels(units, "length", "torque", "stress", "angle")
+    labels = unit_labels(units, "length", "torque", "stress", "angle", printed=printed)
     blocks = []
     for result in results:
         reactions: Rows = [

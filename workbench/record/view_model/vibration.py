@@ -123,8 +123,11 @@ def _separation(computation: Computation) -> Separation | None:
     )
 
 
-def vibration_view(computation: Computation) -> VibrationView:
-    """The Torsional vibration section of a computation with inertia."""
+def vibration_view(computation: Computation, printed: bool = True) -> VibrationView:
+    """The Torsional vibration section of a computation with inertia.
+
+    ``printed``: units as the unit library prints them, else as the case file writes them.
+    """
     model, modes = computation.model, computation.modes
     units = model.units
     densities: dict[str, float | None] = {}
@@ -133,7 +136,7 @@ def vibration_view(computation: Computation) -> VibrationView:
             for layer in segment.layers:
                 densities.setdefault(layer.material.name, layer.material.density)
     view = VibrationView(
-        units=unit_labels(units, "length", "inertia", "density"),
+        units=unit_labels(units, "length", "inertia", "density", printed=printed),
         discs=[
             [
                 index,
@@ -174,7 +177,7 @@ def vibration_view(computation: Computation) -> VibrationView:
             ]
         )
     discs = [(disc.shaft, float(units.from_si(disc.x, "length"))) for disc in model.discs]
-    length = units.label("length")
+    length = view.units["length"]
     shapes: list[tuple[int, str]] = []
     flexible = [mode for mode in range(len(modes)) if not modes.rigid_body[mode]]
     for mode in flexible[:DRAWN_MODES]:
