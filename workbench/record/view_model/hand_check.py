@@ -17,7 +17,14 @@ from workbench.design.independent import (
     independent_check,
 )
 from workbench.record.computation import Computation
-from workbench.record.view_model.common import Equation, Rows, equations, number
+from workbench.record.view_model.common import (
+    Equation,
+    Rows,
+    equations,
+    number,
+    unit_label,
+    unit_labels,
+)
 
 __all__ = ["HandCheckView", "hand_check_view"]
 
@@ -60,7 +67,7 @@ def hand_check_view(computation: Computation) -> tuple[HandCheckView, list[str]]
     """The independent-check section of a computation and a warning for every disagreement."""
     results, model = computation.results, computation.model
     units = model.units
-    labels = {"torque": units.label("torque")}
+    labels = unit_labels(units, "torque")
     try:
         solution = independent_check(case_file_from_document(computation.case))
     except NotCovered as reason:
@@ -75,7 +82,7 @@ def hand_check_view(computation: Computation) -> tuple[HandCheckView, list[str]]
         if quantity == "reaction":
             support = model.supports[index]
             x = number(units.from_si(support.x, "length"), 6)
-            return f"reaction {index + 1} ({support.shaft}, x = {x} {units.label('length')})"
+            return f"reaction {index + 1} ({support.shaft}, x = {x} {unit_label(units, 'length')})"
         return f"largest |T| on {results.shaft_ids[index]}"
 
     def released(kind: str, index: int) -> str:
