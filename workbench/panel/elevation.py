@@ -120,6 +120,17 @@ class Elevation:
             visible=False,
             labels_visibility="label",
         )
+        self.discs = bq.Scatter(
+            x=[],
+            y=[],
+            scales=scales,
+            marker="ellipse",
+            colors=[SHAFT],
+            stroke=SUPPORT,
+            default_size=110,
+            display_names=True,
+            visible=False,
+        )
         self.failing = failing_mark(
             scales, bq.Tooltip(fields=["name"], labels=["fails"], formats=[""])
         )
@@ -131,6 +142,7 @@ class Elevation:
                 self.gears,
                 self.distributed,
                 *self.supports.values(),
+                self.discs,
                 self.torques,
                 self.failing,
             ],
@@ -181,6 +193,7 @@ class Elevation:
         marker_y = -max(radius_max * 1.25, 0.08 * half_height)
         entries += self._draw_supports(model, shaft.id, units, marker_y)
         entries += self._draw_gears(model, shaft.id, units)
+        entries += self._draw_discs(model, shaft.id, units, 0.5 * marker_y)
         load_y = max(radius_max * 1.35, 0.1 * half_height)
         self.marker_y, self.load_y = marker_y, load_y
         entries += self._draw_loads(model, shaft.id, result, units, load_y)
@@ -254,6 +267,22 @@ class Elevation:
         set_list(self.gears, "labels", names)
         name_tooltip(self.gears, "gear (pitch diameter)")
         return [LegendEntry("gear (pitch diameter)", SUPPORT, "solid")]
+
+    def _draw_discs(
+        self, model: Model, shaft_id: str, units: Any, disc_y: float
+    ) -> list[LegendEntry]:
+        """The discs (for vibration) on the shaft, below its axis, each named with its inertia."""
+        discs = [disc for disc in model.discs if disc.shaft == shaft_id]
+        self.discs.visible = bool(discs)
+        if not discs:
+            return []
+        self.discs.x = units.from_si(np.array([disc.x for disc in discs], dtype=float), "length")
+        self.discs.y = np.full(len(discs), disc_y)
+        inertia = units.from_si(np.array([disc.inertia for disc in discs], dtype=float), "inertia")
+        unit = unit_label(units, "inertia")
+        set_list(self.discs, "names", [f"disc {format_number(j)} {unit}" for j in inertia.tolist()])
+        set_tooltip(self.discs, [f"disc at x [{unit_label(units, 'length')}]"], ("x",))
+        return [LegendEntry("disc (vibration)", SHAFT, "", "ellipse")]
 
     def _draw_loads(
         self, model: Model, shaft_id: str, result: str, units: Any, load_y: float
