@@ -232,6 +232,19 @@ def test_parts_list_picks_and_the_inspector_edits_without_a_mouse(demo: Workbenc
     assert demo.document["load_cases"][1]["torques"][0]["torque"] == 1250 and not demo.stale
 
 
+def test_the_finder_picks_a_part_by_its_name_typed(demo: Workbench) -> None:
+    editor = demo.drawing_editor
+    assert "support 1" in editor.finder.options and editor.finder.ensure_option
+    editor.finder.value = "support 1"  # typed, then Enter
+    assert editor.selected == Part("support", ("supports", 1))
+    assert editor.parts_list.value == "supports/1"
+    _inspector_entry(demo, "supports[1].x").value = "850"
+    assert demo.document["supports"][1]["x"] == 850 and not demo.stale
+    # The drawing names its handles by the parts' names (unique: the page matches points so).
+    names = list(editor.handles.places.names)
+    assert len(set(names)) == len(names) and "support 1" in names
+
+
 def test_charts_along_the_shaft_share_the_drawings_x_scale(demo: Workbench) -> None:
     charts = demo.charts
     scale = charts.drawing.x_scale

@@ -1,8 +1,9 @@
 """The drawing as the editor: the elevation's handles, the parts list, the inspector, the palette.
 
 One part is picked at a time (:attr:`DrawingEditor.selected`): by a click on the drawing, by the
-parts list (a ``Select``: arrow keys move through it, so a part is picked without a mouse), or by
-the palette after it adds one. The pick is outlined on the drawing, chosen in the list and shown
+parts list (a ``Select``), by typing its name into the finder above the list (a text entry that
+offers the parts' names; Enter picks: a part is picked without a mouse, and in JupyterLab, whose
+notebook takes arrow keys from a list, keys reach an entry), or by the palette after it adds one. The pick is outlined on the drawing, chosen in the list and shown
 in the inspector; every edit goes through the :class:`~workbench.panel.form.Form` as typed
 values do, so the solve, the stale marks and the charts follow alike.
 """
@@ -53,6 +54,15 @@ class DrawingEditor:
         )
         self.parts_list.add_class("wb-parts")
         self.parts_list.observe(self._listed, "value")
+        self.finder = w.Combobox(
+            placeholder="type a part's name, Enter",
+            options=[],
+            ensure_option=True,
+            continuous_update=False,
+            layout=w.Layout(width="300px"),
+        )
+        self.finder.add_class("wb-part-finder")
+        self.finder.observe(self._found, "value")
         self.parts: list[Part] = []
         self.selected: Part | None = None
         self._muted = False
@@ -68,8 +78,11 @@ class DrawingEditor:
             self.selected = None
         self._muted = True
         try:
-            self.parts_list.options = [(part_label(p, document), p.key) for p in self.parts]
+            labels = [part_label(p, document) for p in self.parts]
+            self.parts_list.options = list(zip(labels, [p.key for p in self.parts], strict=True))
             self.parts_list.value = self.selected.key if self.selected is not None else None
+            self.finder.options = labels
+            self.finder.value = self._label(self.selected)
         finally:
             self._muted = False
         self.palette.refresh()
@@ -92,6 +105,7 @@ class DrawingEditor:
         self._muted = True
         try:
             self.parts_list.value = part.key if part is not None else None
+            self.finder.value = self._label(part)
         finally:
             self._muted = False
         self.handles.selected = part
@@ -99,6 +113,17 @@ class DrawingEditor:
         if part is not None:
             self.palette.put_at(station(part, self.form.document))
         self.inspector.show(part)
+
+    def _label(self, part: Part | None) -> str:
+        return part_label(part, self.form.document) if part is not None else ""
+
+    def _found(self, change: dict[str, Any]) -> None:
+        if self._muted:
+            return
+        document = self.form.document
+        chosen = next((p for p in self.parts if part_label(p, document) == change["new"]), None)
+        if chosen is not None:
+            self.pick(chosen)
 
     def _listed(self, change: dict[str, Any]) -> None:
         if self._muted:

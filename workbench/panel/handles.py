@@ -30,7 +30,14 @@ from workbench.panel.elevation import Elevation
 from workbench.panel.form import Bound, Form, clean_number
 from workbench.panel.keys import quantity_of
 from workbench.panel.plotting import HANDLE, SELECTED, bq, set_list
-from workbench.panel.selection import Part, boundaries, cases_behind, parts_of, station
+from workbench.panel.selection import (
+    Part,
+    boundaries,
+    cases_behind,
+    part_label,
+    parts_of,
+    station,
+)
 
 #: The keys that set a circular section's outside, and the bore each must stay clear of.
 OUTSIDE_KEYS = {
@@ -93,11 +100,13 @@ class Handles(Bound):
         self.edges = _handles(scales, "square", 60, restrict_y=True)
         self.shoulders = _handles(scales, "rectangle", 90, restrict_x=True)
         self.places = _handles(scales, "circle", 320, restrict_x=True)
+        # A translucent disc, not a ring: it can be grabbed anywhere round the marker it holds.
+        self.places.fill, self.places.opacities = True, [0.3]
         for mark, tip in (
             (self.segment_marks, "segment (click to pick)"),
             (self.edges, "outer radius (drag up or down)"),
             (self.shoulders, "shoulder (drag along the shaft)"),
-            (self.places, "drag along the shaft"),
+            (self.places, "drag along the shaft:"),
         ):
             mark.tooltip = bq.Tooltip(fields=["name"], labels=[tip], formats=[""])
             mark.on_element_click(self._clicked)
@@ -154,7 +163,8 @@ class Handles(Bound):
                 y.append(heights[part.kind])
         self.place_parts = places
         self.places.x, self.places.y = np.array(x, dtype=float), np.array(y, dtype=float)
-        set_list(self.places, "names", [part.kind for part in places])
+        # Unique names: bqplot's front end matches points to their data by name.
+        set_list(self.places, "names", [part_label(part, document) for part in places])
         self.show_selected()
 
     def show_selected(self) -> None:
@@ -196,14 +206,14 @@ class Handles(Bound):
         return None
 
     def _clicked(self, mark: Any, event: dict[str, Any]) -> None:
-        index = event.get("index", (event.get("data") or {}).get("index"))
-        part = self.part_at(mark, int(index)) if isinstance(index, int) else None
+        index = point_index(event)
+        part = self.part_at(mark, index) if index is not None else None
         if part is not None:
             self.pick(part)
 
     def _dragged(self, mark: Any, event: dict[str, Any]) -> None:
-        index, point = event.get("index"), event.get("point") or {}
-        if not isinstance(index, int):
+        index, point = point_index(event), event.get("point") or {}
+        if index is None:
             return
         if mark is self.edges and isinstance(point.get("y"), (int, float)):
             self.move_edge(index, float(point["y"]))
@@ -272,6 +282,19 @@ class Handles(Bound):
                 _scaled(layer.get("section"), (*base, "layers", number, "section"), scale, values)
             _scaled(section, (*base, "section"), scale, values)
         self.form.write_many(values)
+
+
+def point_index(event: dict[str, Any]) -> int | None:
+    """The number of the point a bqplot message is about, or ``None``.
+
+    bqplot 0.13's front end names a dragged point by ``index``; a click sends the point's data,
+    which holds its ``index``.
+    """
+    data = event.get("data")
+    for found in (event.get("index"), data.get("index") if isinstance(data, dict) else None):
+        if isinstance(found, int) and not isinstance(found, bool):
+            return found
+    return None
 
 
 def _scaled(section: Any, path: Path, scale: float, values: dict[Path, Any]) -> None:

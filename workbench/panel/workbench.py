@@ -300,13 +300,15 @@ class Workbench:
                 ),
                 w.VBox(
                     [
-                        w.HTML(render("heading", "Parts", " (arrow keys pick; Tab to the fields)")),
+                        w.HTML(render("heading", "Parts", " (type a name and Enter, or click)")),
+                        editing.finder,
                         editing.parts_list,
                         editing.inspector.box,
                     ]
                 ),
             ]
         )
+        self.drawing_box.layout = w.Layout(flex_flow="row wrap")  # narrow pages: parts below
         self.drawing_box.add_class("wb-drawing")
         self.table_view = w.Accordion(
             children=[self.editors],
