@@ -14,8 +14,10 @@ markers at.
   layers of a bonded segment, are scaled as a whole.
 * Shoulder handles (between two segments) move along x only: the two lengths beside it change,
   their sum kept.
-* Place handles (rings round supports, gear ends, torques, distributed torques, discs) move
-  along x only: the part's position (a distributed torque keeps its span).
+* Place handles (translucent discs round supports, gear ends, torques, distributed torques,
+  discs) move along x only: the part's position (a distributed torque keeps its span). Each is
+  named by its part's name: bqplot's front end matches points to their data by name, so names
+  must differ.
 """
 
 from __future__ import annotations

@@ -5,8 +5,10 @@
 * :class:`~workbench.panel.state.CaseState`: the case document, its solve, the coalescing of
   edit bursts, the current results and whether they are stale (no widgets);
 * :class:`~workbench.panel.form.Form`: fields bound to the document, messages beside them;
-* the editor tabs (:mod:`workbench.panel.editors`) and the What-if tab
-  (:mod:`workbench.panel.whatif`);
+* the drawing as the editor (:mod:`workbench.panel.drawing`): handles on the elevation, the
+  parts list and finder, the inspector and the palette, beside the drawing;
+* the table view: the editor tabs (:mod:`workbench.panel.editors`) for bulk entry and the
+  What-if tab (:mod:`workbench.panel.whatif`);
 * the charts (:mod:`workbench.panel.charts`, :mod:`~workbench.panel.modes_section`,
   :mod:`~workbench.panel.fatigue_section`) and the tables (:mod:`workbench.panel.summary`).
 
