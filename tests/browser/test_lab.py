@@ -41,6 +41,8 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         assert figures.count() >= 5
         stress_path = page.locator(".wb-chart-stress path.line").last
         value = page.locator(".wb-summary td.wb-value").nth(1)
+        page.locator(DIAMETER).first.scroll_into_view_if_needed()
+        settled(page, stress_path)  # a loaded machine may still be laying the page out
         before_d, before_value = stress_path.get_attribute("d"), value.inner_text()
         entry = page.locator(DIAMETER).first  # the segment's entry and the drag line's
         # A bad value: the message shows beside the field, the charts keep the last good case.
@@ -102,6 +104,17 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         )
         assert message.inner_text() == "" and entry.input_value() == "75"
         assert page.locator(".wb-stale").count() == 0
+
+
+def settled(page: object, path: object, quiet_ms: int = 700, tries: int = 20) -> None:
+    """Wait until a chart path's ``d`` stays the same for ``quiet_ms`` (the page is drawn)."""
+    last = path.get_attribute("d")  # type: ignore[attr-defined]
+    for _ in range(tries):
+        page.wait_for_timeout(quiet_ms)  # type: ignore[attr-defined]
+        now = path.get_attribute("d")  # type: ignore[attr-defined]
+        if now == last:
+            return
+        last = now
 
 
 def shot(page: object, name: str) -> None:

@@ -34,7 +34,7 @@ from workbench.case.declaration import (
     field_type,
     structs_in,
 )
-from workbench.panel.document import Path, get_at, set_at
+from workbench.panel.document import Path, field_words, get_at, set_at
 from workbench.panel.form import Bound, Form, button
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
@@ -182,7 +182,7 @@ class Inspector(Bound):
                     ]
                 return rows
             inner = value if isinstance(value, dict) else {}
-            heading = w.HTML(render("text", words))
+            heading = w.HTML(render("heading", field_words(path).split(" · ")[-1], ""))
             return [heading, *self._rows(structs[0], path, inner)]
         if bool in declared.bases:
             return [_tip(form.flag(path, words), tip)]
