@@ -212,7 +212,7 @@ def unit_switch_row() -> Row:
         panel.units.value = next(systems)
 
     before = len(widget_module._instances)
-    switch()  # to US and back: the widgets a switch makes (they reach the page as models)
+    switch()  # to US and back: the widgets a switch leaves open (models kept on the page)
     switch()
     made = (len(widget_module._instances) - before) / 2
     timing = time_calls(switch, repeats=40, warmup=2)
@@ -223,8 +223,8 @@ def unit_switch_row() -> Row:
         "ms",
         300.0,
         notes=(
-            f"median {timing.median * 1e3:.1f} ms; about {made:,.0f} widget models made per "
-            "switch (kernel side; the page then draws them)",
+            f"median {timing.median * 1e3:.1f} ms; {made:,.0f} widget models left open per "
+            "switch (the editors' old widgets are closed as new ones are made)",
         ),
     )
 
