@@ -69,4 +69,11 @@ def message_beside(panel: Workbench, path: str) -> w.HTML:
 
 
 def shown_messages(panel: Workbench) -> list[str]:
-    return [line.value for lines in panel.form.messages.values() for line in lines if line.value]
+    """The message shown on each field, row or list that shows one (a field shown both in the
+    table view and in the inspector counts once; both its lines say the same)."""
+    shown = []
+    for lines in panel.form.messages.values():
+        texts = {line.value for line in lines if line.value}
+        assert len(texts) <= 1, texts
+        shown += sorted(texts)
+    return shown

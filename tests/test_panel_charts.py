@@ -106,7 +106,8 @@ def test_failing_marks_differ_from_passing_ones_in_colour_and_shape(demo: Workbe
     # Bars: segment 0 fails (keyseat) in the failing colour, with a cross over it.
     assert charts.bars.colors[0] == FAIL
     assert all(colour != FAIL for colour in charts.bars.colors[1:])
-    assert charts.bar_failing.visible and list(charts.bar_failing.x) == [0]
+    # Drawn along the shaft: the cross over the middle of segment 0 (0 to 250 mm).
+    assert charts.bar_failing.visible and list(charts.bar_failing.x) == [125.0]
     assert charts.bar_failing.marker == FAIL_MARKER
     assert float(charts.bar_failing.y[0]) == _row(demo, "keyseat_stress", 0).utilisation
     # Stress chart: a cross on the failing check, none on the passing shoulder.
@@ -182,7 +183,7 @@ def _hovered(mark: Any) -> list[dict[str, Any]]:
         count = len(y) if y.ndim == 2 else 1
         labels = list(mark.labels) + [f"C{i + 1}" for i in range(len(mark.labels), count)]
         return [{"name": labels[i], "index": i} for i in range(count)]
-    names = list(getattr(mark, "names", None) or [])
+    names = list(getattr(mark, "names", None) if getattr(mark, "names", None) is not None else [])
     x, y = np.asarray(mark.x), np.asarray(mark.y, dtype=float)
     return [
         {"x": x[i], "y": y[i], "name": names[i] if names else f"Dot{i}", "index": i}
@@ -262,7 +263,12 @@ def test_modes_legend_has_the_rigid_body_mode_when_there_is_one() -> None:
 
 def test_elevation_markers_are_labelled(demo: Workbench) -> None:
     charts = demo.charts
-    drawn = [mark for mark in charts.elevation.marks if mark.visible]
+    handles = demo.drawing_editor.handles
+    # The drag handles are not markers: each names what it does in its tooltip instead.
+    moved = (handles.edges, handles.shoulders, handles.places)
+    for mark in moved:
+        assert mark.enable_move and mark.tooltip is not None and mark.tooltip.labels[0]
+    drawn = [mark for mark in charts.elevation.marks if mark.visible and mark not in moved]
     for mark in drawn:
         if isinstance(mark, bq.Scatter) and len(mark.x):
             assert mark.display_names and len(mark.names) == len(mark.x), mark.marker

@@ -26,17 +26,20 @@ DIAMETER_MESSAGE = ".wb-msg-shafts-0-segments-0-section-diameter"
 #: The failing colour and the passing bar colour as the page computes them
 #: (workbench.panel.plotting FAIL = #a4036f, SHAFT = #3d5a80).
 FAIL_RGB, SHAFT_RGB = "rgb(164, 3, 111)", "rgb(61, 90, 128)"
-#: Page script: in a chart, the bar colours and how many failing-colour marks are visible.
+#: The utilisation = 1 line's colour (LIMIT = #9e2a2b), left out of the segments' colours.
+LIMIT_RGB = "rgb(158, 42, 43)"
+#: Page script: in a chart, the segments' line colours and how many failing-colour marks are visible.
 MARKS = """(figure) => {
   const root = document.querySelector(figure);
   const visible = (node) => getComputedStyle(node).visibility !== 'hidden'
     && node.closest('[style*="display: none"]') === null
     && parseFloat(getComputedStyle(node).opacity || '1') > 0;
-  const bars = [...root.querySelectorAll('rect.bar')].map((bar) => getComputedStyle(bar).fill);
+  const bars = [...root.querySelectorAll('path.line')].map((bar) => getComputedStyle(bar).stroke)
+    .filter((colour) => colour !== 'LIMIT_COLOUR');
   const crosses = [...root.querySelectorAll('path.dot')]
     .filter((dot) => getComputedStyle(dot).fill === 'FAIL_COLOUR' && visible(dot)).length;
   return {bars, crosses};
-}""".replace("FAIL_COLOUR", FAIL_RGB)
+}""".replace("FAIL_COLOUR", FAIL_RGB).replace("LIMIT_COLOUR", LIMIT_RGB)
 
 
 @pytest.fixture
@@ -59,6 +62,7 @@ def test_demo_notebook_in_lab(lab: Lab, tmp_path: Path) -> None:
         assert figures.count() >= 5
         stress_path = page.locator(".wb-chart-stress path.line").last
         value = page.locator(".wb-summary td.wb-value").nth(1)
+        page.locator(DIAMETER).first.scroll_into_view_if_needed()
         settle(page)  # the notebook's last cells redraw the panel: let their updates land
         before_d, before_value = stress_path.get_attribute("d"), value.inner_text()
         entry = page.locator(DIAMETER).first  # the segment's entry and the drag line's
@@ -147,8 +151,8 @@ def test_a_failing_check_is_marked_then_cleared(lab: Lab, tmp_path: Path) -> Non
             timeout=15000,
         )
         page.wait_for_function(
-            "([f, c]) => [...document.querySelectorAll(f + ' rect.bar')]"
-            ".some((bar) => getComputedStyle(bar).fill === c)",
+            "([f, c]) => [...document.querySelectorAll(f + ' path.line')]"
+            ".some((bar) => getComputedStyle(bar).stroke === c)",
             arg=[".wb-chart-utilisation", FAIL_RGB],
             timeout=15000,
         )
@@ -173,8 +177,8 @@ def test_a_failing_check_is_marked_then_cleared(lab: Lab, tmp_path: Path) -> Non
             timeout=15000,
         )
         page.wait_for_function(
-            "([f, c]) => ![...document.querySelectorAll(f + ' rect.bar')]"
-            ".some((bar) => getComputedStyle(bar).fill === c)",
+            "([f, c]) => ![...document.querySelectorAll(f + ' path.line')]"
+            ".some((bar) => getComputedStyle(bar).stroke === c)",
             arg=[".wb-chart-utilisation", FAIL_RGB],
             timeout=15000,
         )

@@ -49,11 +49,11 @@ from workbench.solver.model import Model
 class ResultChart:
     """One x–y result chart along the chosen shaft: now, baseline, readouts, legend beneath."""
 
-    def __init__(self, title: str, key: str) -> None:
+    def __init__(self, title: str, key: str, x_scale: Any) -> None:
         self.key = key
         #: Readout points still to set: (mark, x, y) (see :meth:`set_curves`).
         self._readouts: list[tuple[Any, Any, Any]] = []
-        self.x_scale, self.y_scale = bq.LinearScale(), bq.LinearScale()
+        self.x_scale, self.y_scale = x_scale, bq.LinearScale()
         scales = {"x": self.x_scale, "y": self.y_scale}
         extra = self.make_marks(scales)
         self.baseline = bq.Lines(
@@ -79,7 +79,9 @@ class ResultChart:
         self.baseline_readout = readout(scales, BASELINE)
         self.baseline_readout.visible = False
         marks = [self.baseline, *extra, self.now, self.baseline_readout, self.now_readout]
-        self.figure = xy_figure(marks, self.x_scale, self.y_scale, "x", title, title)
+        self.figure = xy_figure(
+            marks, self.x_scale, self.y_scale, "x", title, title, 180, along=True
+        )
         self.figure.add_class(f"wb-chart-{key}")
         self.legend = Legend(key)
         self.box = w.VBox([self.figure, self.legend.widget])
@@ -134,10 +136,10 @@ class ResultChart:
 class StressChart(ResultChart):
     """The shear stress chart: nominal τ, each detail's peak K·τ_nom, allowables, failures."""
 
-    def __init__(self) -> None:
+    def __init__(self, x_scale: Any) -> None:
         #: The detail kinds drawn: (kind, legend label, drawn as a line too).
         self.drawn: list[tuple[int, str, bool]] = []
-        super().__init__("Shear stress", "stress")
+        super().__init__("Shear stress", "stress", x_scale)
 
     def make_marks(self, scales: dict[str, Any]) -> tuple[Any, ...]:
         """The allowable, the detail peaks, each detail's check and the failing crosses."""
@@ -271,26 +273,28 @@ class Charts:
         self.prescribed = self.drawing.supports["prescribed"]
         self.gears, self.torques = self.drawing.gears, self.drawing.torques
         self.distributed = self.drawing.distributed
-        self.torque = ResultChart("Internal torque", "torque")
-        self.angle = ResultChart("Angle of twist", "angle")
-        self.stress = StressChart()
-        self.bar_x, self.bar_y = bq.OrdinalScale(), bq.LinearScale(min=0.0)
+        #: The drawing's x scale: every chart along the shaft is drawn on it.
+        self.x_scale = self.drawing.x_scale
+        self.torque = ResultChart("Internal torque", "torque", self.x_scale)
+        self.angle = ResultChart("Angle of twist", "angle", self.x_scale)
+        self.stress = StressChart(self.x_scale)
+        self.bar_x, self.bar_y = self.x_scale, bq.LinearScale(min=0.0)
         bar_scales = {"x": self.bar_x, "y": self.bar_y}
-        self.bars = bq.Bars(
-            x=[0],
-            y=[0.0],
+        # One filled step over each segment's own stretch of the shaft, its height the
+        # segment's governing utilisation.
+        self.bars = bq.Lines(
+            x=[[0.0, 1.0]],
+            y=[[0.0, 0.0]],
             scales=bar_scales,
             colors=[SHAFT],
-            padding=0.25,
-            tooltip=bq.Tooltip(
-                fields=["x", "y"], labels=["segment", "utilisation"], formats=["", ".3f"]
-            ),
+            fill="bottom",
+            fill_colors=[SHAFT_FILL],
+            fill_opacities=[0.7],
+            stroke_width=2,
         )
         self.bar_failing = failing_mark(
             bar_scales,
-            bq.Tooltip(
-                fields=["x", "y"], labels=["segment fails", "utilisation"], formats=["", ".3f"]
-            ),
+            bq.Tooltip(fields=["name"], labels=["fails"], formats=[""]),
         )
         self.bar_baseline = bq.Scatter(
             x=[],
@@ -300,9 +304,7 @@ class Charts:
             colors=[BASELINE],
             default_size=60,
             visible=False,
-            tooltip=bq.Tooltip(
-                fields=["x", "y"], labels=["segment", "baseline"], formats=["", ".3f"]
-            ),
+            tooltip=bq.Tooltip(fields=["name"], labels=["baseline"], formats=[""]),
         )
         self.bar_limit = bq.Lines(
             x=[0],
@@ -317,9 +319,11 @@ class Charts:
             [self.bars, self.bar_limit, self.bar_baseline, self.bar_failing],
             self.bar_x,
             self.bar_y,
-            "segment",
+            "x",
             "utilisation",
             "Governing utilisation by segment",
+            180,
+            along=True,
         )
         self.utilisation.add_class("wb-chart-utilisation")
         self.utilisation_legend = Legend("utilisation")
@@ -393,7 +397,7 @@ class Charts:
                 if chart is self.stress:
                     bounds = units.from_si(shaft.boundaries, "length")
                     self.stress.draw_checks(shaft_stresses(report, shaft.id, result), units, bounds)
-                fit_scale(chart.x_scale, chart.seen(), "x")
+                # x is the drawing's scale, set once by the drawing for every chart
                 fit_scale(chart.y_scale, chart.seen(), "y")
             now_label = {
                 "torque": "internal torque",
@@ -405,7 +409,7 @@ class Charts:
                 entries += self.stress.check_entries()
             chart.legend.show(entries)
         with held(self.utilisation):
-            self._draw_bars(report, shaft, result, baseline)
+            self._draw_bars(report, shaft, units, result, baseline)
             fit_scale(self.bar_y, self.utilisation.marks, "y", include=0.0)
 
     def draw_readouts(self) -> None:
@@ -417,22 +421,42 @@ class Charts:
         self,
         report: CheckReport,
         shaft: Any,
+        units: Any,
         result: str,
         baseline: tuple[Results, CheckReport] | None,
     ) -> None:
         labels, now, fails = segment_utilisation(report, shaft.id, len(shaft.segments), result)
-        self.bars.x, self.bars.y = labels, now
-        set_list(self.bars, "colors", np.where(fails, FAIL, SHAFT).tolist())
-        self.bar_failing.x, self.bar_failing.y = labels[fails], now[fails]
+        bounds = units.from_si(shaft.boundaries, "length")
+        middles = 0.5 * (bounds[:-1] + bounds[1:])
+        self.bars.x = np.column_stack([bounds[:-1], bounds[1:]])
+        self.bars.y = np.column_stack([now, now])
+        colours = np.where(fails, FAIL, SHAFT).tolist()
+        set_list(self.bars, "colors", colours)
+        set_list(self.bars, "fill_colors", np.where(fails, FAIL, SHAFT_FILL).tolist())
+        words = [
+            f"segment {k}: {u:.3f}" for k, u in zip(labels.tolist(), now.tolist(), strict=True)
+        ]
+        set_list(self.bars, "labels", words)
+        name_tooltip(self.bars, "utilisation")
+        self.bar_failing.x, self.bar_failing.y = middles[fails], now[fails]
+        set_list(self.bar_failing, "names", [words[k] for k in np.flatnonzero(fails).tolist()])
         self.bar_failing.visible = bool(fails.any())
-        self.bar_limit.x, self.bar_limit.y = labels, np.ones(len(labels))
+        self.bar_limit.x, self.bar_limit.y = bounds[[0, -1]], np.ones(2)
+        self.utilisation.axes[0].label = f"x [{unit_label(units, 'length')}]"
         if baseline is not None:
             base_labels, base_values, _ = segment_utilisation(
                 baseline[1], shaft.id, len(shaft.segments), result
             )
-            self.bar_baseline.x, self.bar_baseline.y = base_labels, base_values
+            self.bar_baseline.x, self.bar_baseline.y = middles[base_labels], base_values
+            names = [
+                f"segment {k}: {u:.3f}"
+                for k, u in zip(base_labels.tolist(), base_values.tolist(), strict=True)
+            ]
+            set_list(self.bar_baseline, "names", names)
         self.bar_baseline.visible = baseline is not None
-        entries = [LegendEntry(f"governing utilisation, {result}", SHAFT, "", "square")]
+        entries = [
+            LegendEntry(f"governing utilisation over each segment, {result}", SHAFT, "solid")
+        ]
         if fails.any():
             entries.append(LegendEntry("fails (a check above its limit)", FAIL, "", FAIL_MARKER))
         entries.append(LegendEntry("utilisation = 1", LIMIT, "dash_dotted"))

@@ -17,6 +17,8 @@ from workbench.case.display import format_number
 from workbench.design.checks import CheckReport
 from workbench.panel.document import unit_label
 from workbench.panel.plotting import (
+    ALONG_MARGIN,
+    ALONG_WIDTH,
     FAIL,
     FAIL_MARKER,
     LIMIT,
@@ -36,8 +38,8 @@ from workbench.panel.plotting import (
 from workbench.solver.model import Model
 
 #: Plot area of the elevation (px): the y range is set so lengths draw at one scale on both axes.
-_ELEVATION_WIDTH, _ELEVATION_HEIGHT = 760, 210
-_ELEVATION_MARGIN = {"top": 20, "bottom": 36, "left": 60, "right": 20}
+_ELEVATION_WIDTH, _ELEVATION_HEIGHT = ALONG_WIDTH, 210
+_ELEVATION_MARGIN = {"top": 20, "bottom": 36, **ALONG_MARGIN}
 _PLOT_RATIO = (_ELEVATION_HEIGHT - 56) / (_ELEVATION_WIDTH - 80)
 _SAMPLES = 17
 #: The support kinds drawn, their marker, and the words of their label and legend.
@@ -118,6 +120,17 @@ class Elevation:
             visible=False,
             labels_visibility="label",
         )
+        self.discs = bq.Scatter(
+            x=[],
+            y=[],
+            scales=scales,
+            marker="ellipse",
+            colors=[SHAFT],
+            stroke=SUPPORT,
+            default_size=110,
+            display_names=True,
+            visible=False,
+        )
         self.failing = failing_mark(
             scales, bq.Tooltip(fields=["name"], labels=["fails"], formats=[""])
         )
@@ -129,6 +142,7 @@ class Elevation:
                 self.gears,
                 self.distributed,
                 *self.supports.values(),
+                self.discs,
                 self.torques,
                 self.failing,
             ],
@@ -144,6 +158,10 @@ class Elevation:
         )
         self.figure.add_class("wb-chart-elevation")
         self.legend = Legend("elevation")
+        #: Heights (panel units) the markers were last drawn at: supports below the shaft,
+        #: loads above it; and the outer radius at each segment's middle.
+        self.marker_y = self.load_y = 0.0
+        self.mid_radius = np.zeros(0)
 
     def draw(self, model: Model, shaft_number: int, result: str, report: CheckReport) -> None:
         """Draw one shaft of ``model`` with the loads of ``result`` and the failing segments."""
@@ -171,10 +189,13 @@ class Elevation:
         self.figure.axes[1].label = f"r [{length_unit}]"
         entries = [LegendEntry("shaft (to scale)", SHAFT, "solid")]
         entries += self._draw_failing(report, shaft, units, len(shaft.segments))
+        self.mid_radius = np.array(outlines_y)[:, _SAMPLES // 2]  # fraction 0.5 of each
         marker_y = -max(radius_max * 1.25, 0.08 * half_height)
         entries += self._draw_supports(model, shaft.id, units, marker_y)
         entries += self._draw_gears(model, shaft.id, units)
+        entries += self._draw_discs(model, shaft.id, units, 0.5 * marker_y)
         load_y = max(radius_max * 1.35, 0.1 * half_height)
+        self.marker_y, self.load_y = marker_y, load_y
         entries += self._draw_loads(model, shaft.id, result, units, load_y)
         self.legend.show(entries)
 
@@ -246,6 +267,22 @@ class Elevation:
         set_list(self.gears, "labels", names)
         name_tooltip(self.gears, "gear (pitch diameter)")
         return [LegendEntry("gear (pitch diameter)", SUPPORT, "solid")]
+
+    def _draw_discs(
+        self, model: Model, shaft_id: str, units: Any, disc_y: float
+    ) -> list[LegendEntry]:
+        """The discs (for vibration) on the shaft, below its axis, each named with its inertia."""
+        discs = [disc for disc in model.discs if disc.shaft == shaft_id]
+        self.discs.visible = bool(discs)
+        if not discs:
+            return []
+        self.discs.x = units.from_si(np.array([disc.x for disc in discs], dtype=float), "length")
+        self.discs.y = np.full(len(discs), disc_y)
+        inertia = units.from_si(np.array([disc.inertia for disc in discs], dtype=float), "inertia")
+        unit = unit_label(units, "inertia")
+        set_list(self.discs, "names", [f"disc {format_number(j)} {unit}" for j in inertia.tolist()])
+        set_tooltip(self.discs, [f"disc at x [{unit_label(units, 'length')}]"], ("x",))
+        return [LegendEntry("disc (vibration)", SHAFT, "", "ellipse")]
 
     def _draw_loads(
         self, model: Model, shaft_id: str, result: str, units: Any, load_y: float

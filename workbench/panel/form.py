@@ -10,7 +10,6 @@ else its list), and the field is marked. :class:`Editor` is the base of each edi
 
 from __future__ import annotations
 
-import functools
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import Any
@@ -36,33 +35,11 @@ from workbench.panel.document import (
 )
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
+from workbench.panel.shared import shared_layout, shared_style, sized
 from workbench.panel.state import CaseState
 
 #: Message lines whose key starts so are not an editor's: they outlive a rebuild of the editors.
 _KEPT_MESSAGES = "whatif"
-
-
-# Layouts and styles are widgets of their own, each a model the browser must create: every field
-# made with one of its own costs three models. The editors' fields share them instead (they are
-# never changed once made), so rebuilding the editors — on a unit switch, a new segment — sends
-# about a third as many models to the page.
-
-
-@functools.cache
-def shared_layout(**css: str) -> w.Layout:
-    """One layout per set of CSS properties, shared by every widget that uses it (never changed)."""
-    return w.Layout(**css)
-
-
-@functools.cache
-def shared_style(widget: Any, **properties: str) -> w.Widget:
-    """One style for widgets of class ``widget`` per set of properties, shared (never changed)."""
-    return widget.class_traits()["style"].klass(**properties)
-
-
-def sized(width: str) -> w.Layout:
-    """The shared widget layout of the given CSS width."""
-    return shared_layout(width=width)
 
 
 def _initial(widget: type) -> w.Widget:
@@ -116,6 +93,8 @@ class Form:
         self.muted = False
         #: The field edited last: an error no message line of its own can show is shown there.
         self.edited: Path | None = None
+        # While a block runs under :meth:`recording`: the (key, widget) pairs bound in it.
+        self._recorded: list[tuple[str, w.Widget]] | None = None
 
     @property
     def document(self) -> dict[str, Any]:
@@ -146,6 +125,25 @@ class Form:
         finally:
             self.muted = False
 
+    @contextmanager
+    def recording(self) -> Iterator[list[tuple[str, w.Widget]]]:
+        """The fields and message lines made inside the block, to :meth:`unbind` them later."""
+        made: list[tuple[str, w.Widget]] = []
+        self._recorded = made
+        try:
+            yield made
+        finally:
+            self._recorded = None
+
+    def unbind(self, made: list[tuple[str, w.Widget]]) -> None:
+        """Unbind the fields and message lines a :meth:`recording` made (they are replaced)."""
+        for key, widget in made:
+            for table in (self.fields, self.messages):
+                if widget in table.get(key, ()):
+                    table[key] = [x for x in table[key] if x is not widget]
+        self._shown = [x for x in self._shown if x.comm is not None]
+        self._bad = [x for x in self._bad if x.comm is not None]
+
     def reset(self) -> None:
         """Forget the editors' fields and message lines (they are about to be rebuilt)."""
         self.fields.clear()
@@ -157,6 +155,8 @@ class Form:
     def register(self, path: Path, widget: w.Widget) -> None:
         """Bind ``widget`` to the field at ``path`` (its errors mark it; its edits mirror)."""
         self.fields.setdefault(path_text(path), []).append(widget)
+        if self._recorded is not None:
+            self._recorded.append((path_text(path), widget))
         widget.add_class(f"wb-at-{css_name(path)}")  # lets a page find the field by its path
 
     def forget(self, path: Path, *widgets: w.Widget) -> None:
@@ -172,6 +172,8 @@ class Form:
         label.add_class("wb-msg")
         label.add_class(f"wb-msg-{css_name(parse_path(key))}")
         self.messages.setdefault(key, []).append(label)
+        if self._recorded is not None:
+            self._recorded.append((key, label))
         return label
 
     def beside(self, widget: w.Widget, path: Path, *extra: w.Widget) -> w.HBox:
@@ -212,8 +214,10 @@ class Form:
 
         field = self.entry(path, description, take, width=width, default=default, empty=optional)
         unit = self.unit(quantity_of(path))
-        label = [w.Label(unit, layout=shared_layout(), style=shared_style(w.Label))]
-        return self.beside(field, path, *(label if unit else []))
+        if not unit:
+            return self.beside(field, path)
+        label = w.Label(unit, layout=shared_layout(), style=shared_style(w.Label))
+        return self.beside(field, path, label)
 
     def entry(
         self,
@@ -492,20 +496,34 @@ class Form:
 
     def write(self, path: Path, value: Any, source: w.Widget | None = None) -> None:
         """Store an edit in the document, mirror it in other widgets of the field, re-solve."""
-        if self.muted:
+        self.write_many({path: value}, source)
+
+    def write_many(self, values: dict[Path, Any], source: w.Widget | None = None) -> None:
+        """Store edits of several fields as one (the two lengths beside a shoulder), re-solve once.
+
+        Parameters
+        ----------
+        values
+            The new value of each field (document units); ``None`` removes the key.
+        source
+            The widget the edit came from (not mirrored into).
+        """
+        if self.muted or not values:
             return
-        self.edited = path
-        set_at(self.document, path, value)
-        with self.quiet():
-            for other in self.fields.get(path_text(path), []):
-                if other is not source and value is not None:
-                    if isinstance(other, w.FloatSlider):
-                        other.min, other.max = min(other.min, value), max(other.max, value)
-                    other.value = (
-                        self.shown_text(value, quantity_of(path))
-                        if isinstance(other, w.Text)
-                        else value
-                    )
+        for path, value in values.items():
+            self.edited = path
+            set_at(self.document, path, value)
+            self.state.accept(path_text(path))
+            with self.quiet():
+                for other in self.fields.get(path_text(path), []):
+                    if other is not source and value is not None:
+                        if isinstance(other, w.FloatSlider):
+                            other.min, other.max = min(other.min, value), max(other.max, value)
+                        other.value = (
+                            self.shown_text(value, quantity_of(path))
+                            if isinstance(other, w.Text)
+                            else value
+                        )
         self.state.edited()
 
     def structural(self, change: Callable[[], Any]) -> None:
@@ -567,7 +585,18 @@ class Form:
         self._shown, self._bad = [], []
 
 
-class Editor:
+class Bound:
+    """A part of the panel that edits the case document through its :class:`Form`."""
+
+    form: Form
+
+    @property
+    def document(self) -> dict[str, Any]:
+        """The case document edited."""
+        return self.form.document
+
+
+class Editor(Bound):
     """One editor tab: a box rebuilt from the document after every structural change.
 
     Parameters
@@ -585,11 +614,6 @@ class Editor:
         self.form = form
         self.shown_shaft = shown_shaft
         self.box = w.VBox()
-
-    @property
-    def document(self) -> dict[str, Any]:
-        """The case document edited."""
-        return self.form.document
 
     def shaft_ids(self) -> list[str]:
         """The ids of the document's shafts, in order."""

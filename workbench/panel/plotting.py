@@ -38,6 +38,9 @@ BASELINE = "#9a9a9a"
 LIMIT = "#9e2a2b"
 CURRENT = "#3d5a80"
 FAIL = "#a4036f"
+#: The part picked on the drawing (its outline or station, thick) and the handles one drags.
+SELECTED = "#2f9e44"
+HANDLE = "#5c677d"
 #: The mark of what fails its check, beside its colour.
 FAIL_MARKER = "cross"
 #: Colour and shape of each detail's peak stress, in the order of the checks' concentration
@@ -147,7 +150,16 @@ def name_tooltip(mark: Any, label: str) -> None:
     tooltip = mark.tooltip
     if tooltip is not None and list(tooltip.labels) == [label] and list(tooltip.fields) == ["name"]:
         return
-    mark.tooltip = bq.Tooltip(fields=["name"], labels=[label], formats=[""])
+    _replace_tooltip(mark, bq.Tooltip(fields=["name"], labels=[label], formats=[""]))
+
+
+def _replace_tooltip(mark: Any, tooltip: Any) -> None:
+    """Give a mark a new tooltip and close the one it had (a widget of its own, with a layout)."""
+    old = mark.tooltip
+    mark.tooltip = tooltip
+    if old is not None:
+        old.layout.close()
+        old.close()
 
 
 def failing_mark(scales: dict[str, Any], tooltip: Any) -> Any:
@@ -220,7 +232,16 @@ def set_tooltip(
     tooltip = mark.tooltip
     if tooltip is not None and list(tooltip.labels) == labels and tuple(tooltip.fields) == fields:
         return
-    mark.tooltip = bq.Tooltip(fields=list(fields), labels=labels, formats=[fmt] * len(fields))
+    _replace_tooltip(
+        mark, bq.Tooltip(fields=list(fields), labels=labels, formats=[fmt] * len(fields))
+    )
+
+
+#: Width (px) and side margins of the drawing and of every chart drawn along the shaft beneath
+#: it: with one x scale, the same plot width and the same margins, a station lines up top to
+#: bottom.
+ALONG_WIDTH = 760
+ALONG_MARGIN = {"left": 60, "right": 20}
 
 
 def xy_figure(
@@ -231,18 +252,29 @@ def xy_figure(
     y_label: str,
     title: str,
     height: int = 220,
+    *,
+    along: bool = False,
 ) -> bq.Figure:
-    """An x–y figure of the panel's look: axes labelled, grid dashed, no animation."""
+    """An x–y figure of the panel's look: axes labelled, grid dashed, no animation.
+
+    ``along``: a chart along the shaft beneath the drawing (its width and side margins).
+    """
     axes = [
         number_axis(x_scale, x_label, grid_lines="none"),
         number_axis(y_scale, y_label, side="left", grid_lines="dashed", label_offset="45px"),
     ]
+    sides = ALONG_MARGIN if along else {"left": 65, "right": 15}
+    size = (
+        Layout(width=f"{ALONG_WIDTH}px", height=f"{height}px")
+        if along
+        else Layout(width="100%", min_width="340px", height=f"{height}px")
+    )
     return bq.Figure(
         marks=marks,
         axes=axes,
         title=title,
         animation_duration=0,
-        fig_margin={"top": 30, "bottom": 40, "left": 65, "right": 15},
-        layout=Layout(width="100%", min_width="340px", height=f"{height}px"),
+        fig_margin={"top": 30, "bottom": 40, **sides},
+        layout=size,
         title_style={"font-size": "13px"},
     )

@@ -5,8 +5,10 @@
 * :class:`~workbench.panel.state.CaseState`: the case document, its solve, the coalescing of
   edit bursts, the current results and whether they are stale (no widgets);
 * :class:`~workbench.panel.form.Form`: fields bound to the document, messages beside them;
-* the editor tabs (:mod:`workbench.panel.editors`) and the What-if tab
-  (:mod:`workbench.panel.whatif`);
+* the drawing as the editor (:mod:`workbench.panel.drawing`): handles on the elevation, the
+  parts list and finder, the inspector and the palette, beside the drawing;
+* the table view: the editor tabs (:mod:`workbench.panel.editors`) for bulk entry and the
+  What-if tab (:mod:`workbench.panel.whatif`);
 * the charts (:mod:`workbench.panel.charts`, :mod:`~workbench.panel.modes_section`,
   :mod:`~workbench.panel.fatigue_section`) and the tables (:mod:`workbench.panel.summary`).
 
@@ -27,6 +29,7 @@ from workbench.case.errors import InputError
 from workbench.design.checks import CheckReport
 from workbench.panel.charts import Charts
 from workbench.panel.document import UNIT_CHOICES, result_names
+from workbench.panel.drawing import DrawingEditor
 from workbench.panel.editors import (
     CombinationsEditor,
     DesignEditor,
@@ -40,6 +43,8 @@ from workbench.panel.fatigue_section import FatigueSection
 from workbench.panel.form import Editor, Form, sized
 from workbench.panel.markup import render
 from workbench.panel.modes_section import ModesSection
+from workbench.panel.plotting import held
+from workbench.panel.shared import close_tree
 from workbench.panel.stale import StaleMarks
 from workbench.panel.state import CaseState
 from workbench.panel.summary import ResultTables, difference_html, key_values
@@ -152,7 +157,12 @@ class Workbench:
         self.whatif = WhatIf(
             self.form, lambda: self.result.value, self.pin_baseline, self.clear_baseline
         )
+        self.drawing_editor = DrawingEditor(
+            self.charts.drawing, self.form, shown, lambda: self.result.value
+        )
         self._build()
+        parts = self.drawing_editor.parts
+        self.drawing_editor.pick(parts[0] if parts else None)  # the first segment, to start
         self.refresh()
 
     @property
@@ -284,20 +294,38 @@ class Workbench:
             selected_index=None,
         )
         self.more_charts.observe(lambda _: self._redraw(), "selected_index")
+        editing = self.drawing_editor
+        self.drawing_box = w.HBox(
+            [
+                w.VBox(
+                    [editing.palette.box, self.charts.elevation, self.charts.drawing.legend.widget]
+                ),
+                w.VBox(
+                    [
+                        w.HTML(render("heading", "Parts", " (type a name and Enter, or click)")),
+                        editing.finder,
+                        editing.parts_list,
+                        editing.inspector.box,
+                    ]
+                ),
+            ]
+        )
+        self.drawing_box.layout = w.Layout(flex_flow="row wrap")  # narrow pages: parts below
+        self.drawing_box.add_class("wb-drawing")
+        self.table_view = w.Accordion(
+            children=[self.editors],
+            titles=("Table view: every part in rows, for bulk entry; what-if and sweeps",),
+            selected_index=0,
+        )
         self.charts_box = w.VBox(
             [
                 marks.note("These charts are those"),
-                self.charts.elevation,
-                self.charts.drawing.legend.widget,
-                w.GridBox(
-                    [
-                        self.charts.torque.box,
-                        self.charts.angle.box,
-                        self.charts.stress.box,
-                        self.charts.utilisation_box,
-                    ],
-                    layout=w.Layout(grid_template_columns="1fr 1fr", width="100%"),
-                ),
+                self.drawing_box,
+                # Along the shaft, one column on the drawing's x scale: a station lines up.
+                self.charts.torque.box,
+                self.charts.angle.box,
+                self.charts.stress.box,
+                self.charts.utilisation_box,
                 self.more_charts,
             ]
         )
@@ -309,7 +337,6 @@ class Workbench:
                 w.HBox([self.units, self.shaft, self.result]),
                 w.HBox([self.save_button, self.save_message]),
                 self.status,
-                self.editors,
                 self.summary,
                 self.charts_box,
                 w.HTML(
@@ -317,6 +344,7 @@ class Workbench:
                 ),
                 self.check_table,
                 self.caution,
+                self.table_view,
             ]
         )
         self.root.add_class("wb-panel")
@@ -336,9 +364,13 @@ class Workbench:
             current = self.result.value
             self.result.options = names
             self.result.value = current if current in names else (names[0] if names else None)
+            old = [child for editor in self._editors for child in editor.box.children]
             for editor in self._editors:
                 editor.build()
+            kept = {id(child) for editor in self._editors for child in editor.box.children}
+            close_tree(*(child for child in old if id(child) not in kept))
             self.whatif.refresh_inputs()
+            self.drawing_editor.build()
 
     # --- what the state tells ---------------------------------------------------------------
 
@@ -435,6 +467,8 @@ class Workbench:
         shaft = min(self.shaft.value or 0, len(model.shafts) - 1)
         units = state.units
         self.charts.draw(model, results, report, result, shaft, state.baseline)
+        with held(self.charts.elevation):
+            self.drawing_editor.draw(result)
         values = key_values(results, report, result, units)
         self.tables.draw(values, report, result, units, stale=self.stale_marks.reason)
         baseline = state.baseline

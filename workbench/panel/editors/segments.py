@@ -10,6 +10,7 @@ import ipywidgets as w
 from workbench.panel.document import Path, clone, get_at, set_at
 from workbench.panel.form import Editor, Form, button, row, sized
 from workbench.panel.markup import render
+from workbench.panel.shared import close_tree
 
 #: The section shapes edited in a row, with their size keys (other shapes: in the case file).
 SHAPE_KEYS = {
@@ -102,6 +103,7 @@ class SegmentsEditor(Editor):
             self._drag = None
         path = self.dimension.value
         if path is None:
+            close_tree(*self.dimension_box.children)
             self.dimension_box.children = []
             return
         value = float(get_at(self.document, path) or 1.0)
@@ -109,7 +111,10 @@ class SegmentsEditor(Editor):
             path, "size", 0.5 * value, 1.5 * value, width="360px"
         )
         self._drag = (path, tuple(line.children))
+        close_tree(*self.dimension_box.children)  # the slider replaced, with its entry
         self.dimension_box.children = list(line.children)
+        line.children = ()
+        line.close()
         self.form.state.show_current_error()
 
     def set_shape(self, base: Path, shape: str) -> None:
