@@ -20,6 +20,7 @@ import pytest
 from hypothesis import example, given
 from hypothesis import strategies as st
 
+from tests.fuzz.open_defects import ONE_SPRING_BESIDE
 from tests.panel_cases import shown_messages, simple_case
 from tests.test_batch import _RandomFamily
 from tests.test_properties import (
@@ -127,6 +128,22 @@ def test_springs_of_1e_6_are_solved_in_equilibrium_with_a_rotation_warning(tmp_p
     np.testing.assert_allclose(reactions, [-50.0, -50.0], rtol=1e-8)
     assert document["warnings"] == [err.removeprefix("warning: ").rstrip("\n")]
     assert "(5e+07 rad;" in err
+
+
+def test_a_shaft_on_one_spring_is_balanced_by_its_own_loads_not_its_neighbours(tmp_path, capsys):
+    # Source: equilibrium of the shaft as a free body (Gere & Goodno, Mechanics of Materials,
+    # 8th ed., §3.8): its one spring carries its whole load, the resultant of a linearly varying
+    # distributed torque ½·t₀·(b − a). A 2862 N·m torque on another shaft (no gear joins them)
+    # once set the allowance, and this shaft's reaction was 4.6e-8 of its load off.
+    case = ONE_SPRING_BESIDE
+    path = written(tmp_path, case)
+    status, out, _ = run(capsys, ["solve", "--json", str(path)])
+    assert status == 0
+    reactions = json.loads(out)["results"][0]["reactions"]
+    load = case["load_cases"][0]["distributed"][0]
+    resultant = 0.5 * load["intensity_start"] * (load["end"] - load["start"])
+    assert abs(reactions[0] + resultant) <= EQUILIBRIUM_LIMIT * resultant
+    assert reactions[1] == pytest.approx(2862.0, rel=1e-12)
 
 
 def test_modes_of_a_shaft_on_springs_of_1e_12_are_reported(tmp_path, capsys):

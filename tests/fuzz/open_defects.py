@@ -97,6 +97,26 @@ _SPRINGS_ONLY = {
 }  # fmt: skip
 
 
+#: A shaft on one spring beside a shaft with a fixed support (lengths in m): its spring reaction
+#: missed its own load by 4.6e-8 of it, passed against 1e-9 of the other shaft's 2862 N·m.
+ONE_SPRING_BESIDE = {
+    "units": {"torque": "N*m", "stress": "MPa", "angle": "deg"},
+    "materials": {"steel": {"shear_modulus": 79300.0}},
+    "shafts": [
+        {"id": "s0", "segments": [{"length": 770.8, "material": "steel", "section": {"shape": "rectangle", "width": 29.51, "height": 44.26}}]},
+        {"id": "s2", "segments": [{"length": 651.6, "material": "steel", "section": {"shape": "solid", "diameter": 80.03}}]},
+    ],
+    "supports": [{"shaft": "s0", "x": 192.7, "kind": "spring", "stiffness": 1e7}, {"shaft": "s2", "x": 162.9}],
+    "load_cases": [
+        {
+            "name": "case 1",
+            "torques": [{"shaft": "s2", "x": 651.6, "torque": -2862.0}],
+            "distributed": [{"shaft": "s0", "start": 0.04705, "end": 371.1, "intensity_start": 0.000292, "intensity_end": 0}],
+        }
+    ],
+}  # fmt: skip
+
+
 def _soft_springs(stiffness: float) -> bytes:
     """One steel shaft on two springs, 100 N·m in the middle (issue 11, defect 1)."""
     section = {"shape": "solid", "diameter": 0.05}
@@ -158,6 +178,9 @@ FOUND_DEFECTS: tuple[OpenDefect, ...] = (
             "two springs of 1e-9 N·m/rad: 0.2 % out, check passes": lambda: _soft_springs(1e-9),
             "a valid shaft on two springs only: 1.003e-9·Σ|T| out": lambda: json.dumps(
                 _SPRINGS_ONLY
+            ).encode(),
+            "a shaft on one spring beside a loaded shaft: 2.3e-8·Σ|T| out": lambda: json.dumps(
+                ONE_SPRING_BESIDE
             ).encode(),
         },
     ),

@@ -120,7 +120,10 @@ def start_torques(
             total = total + swept[..., -1:]
             swept -= loads
             local += swept
-        np.negative(local, out=local)
+        # Not np.negative(local, out=local): numpy 2.4.6 (as installed here) reads an input of
+        # 64-byte stride as if contiguous when the output is strided, so a one-element shaft in a
+        # mesh of 8 elements took its neighbour's (uninitialised) torque. Multiply is unaffected.
+        local *= -1.0
         fixed = np.flatnonzero(fixed_node[first_node:end_node])
         if len(fixed) == 0:
             continue
