@@ -18,7 +18,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from workbench.solver.open_sections import OpenSectionWarping, polyline_section
+from workbench.solver.open_sections import OpenSectionWarping, open_section, polyline_section
 from workbench.solver.open_shapes import angle_section, i_section, tee_section
 
 sizes = st.floats(0.02, 0.5)
@@ -140,3 +140,33 @@ def test_no_warping_shear_at_free_edges_of_an_i(
     # The shear centre of an I lies on its web, between the flanges.
     assert section.shear_centre[0] == pytest.approx(0.0, abs=1e-12 * depth)
     assert section.points[3, 1] <= section.shear_centre[1] <= section.points[0, 1]
+
+
+@given(
+    sizes,
+    sizes,
+    sizes,
+    fractions,
+    st.permutations(range(5)),
+    st.lists(st.booleans(), min_size=5, max_size=5),
+)
+def test_order_and_direction_of_the_walls_change_nothing(
+    depth: float, top: float, bottom: float, share: float, order: list[int], flips: list[bool]
+) -> None:
+    # The same I given wall by wall in another order, some walls drawn the other way round:
+    # the section is the same; Sw of a reversed wall is read from its other end, with its sign
+    # flipped (what lies behind becomes what lies ahead, and the two sum to ∫Wn dA = 0).
+    small = min(depth, top, bottom)
+    section = i_section(depth, top, bottom, share * small, share * small, share * small)
+    walls = section.walls[order]
+    flipped = np.array(flips)
+    walls[flipped] = walls[flipped][:, ::-1]
+    other = open_section(section.points, walls, section.thicknesses[order])
+    scale = section.area * float(np.ptp(section.points, axis=0).max()) ** 2
+    assert other.warping_constant == pytest.approx(section.warping_constant, rel=1e-9)
+    assert other.torsion_constant == pytest.approx(section.torsion_constant, rel=1e-12)
+    np.testing.assert_allclose(other.shear_centre, section.shear_centre, atol=1e-12 * depth)
+    np.testing.assert_allclose(other.unit_warping, section.unit_warping, atol=1e-9 * scale)
+    expected = section.statical_moment[order]
+    expected[flipped] = -expected[flipped][:, ::-1]
+    np.testing.assert_allclose(other.statical_moment, expected, atol=1e-9 * scale)

@@ -22,7 +22,7 @@ from sectionproperties.analysis.section import Section as FESection
 from sectionproperties.pre.geometry import Geometry
 from shapely.geometry import Polygon
 
-from workbench.solver.open_sections import OpenSectionWarping
+from workbench.solver.open_sections import OpenSectionWarping, polyline_section
 from workbench.solver.open_shapes import channel_section, i_section, z_section
 
 DEPTH, WIDTH, THICK = 0.2, 0.1, 0.003
@@ -84,6 +84,20 @@ def test_z_closed_form() -> None:
     expected = t * b**3 * h**2 / 12.0 * (b + 2 * h) / (2 * b + h)
     assert section.warping_constant == pytest.approx(expected, rel=1e-12)
     np.testing.assert_allclose(section.shear_centre, section.centroid, atol=1e-15)
+
+
+@pytest.mark.parametrize("walls", [8, 64, 256])
+def test_semicircle_shear_centre(walls: int) -> None:
+    # Source: thin semicircular open section of mid-line radius r, shear centre e = 4r/π from the
+    # centre of the arc (Boresi & Schmidt, 6th ed., ch. 8; from memory). The arc is drawn as a
+    # polyline of straight walls; the chords' error falls as 1/walls².
+    radius, thickness = 0.1, 0.002
+    angle = np.linspace(-np.pi / 2.0, np.pi / 2.0, walls + 1)
+    points = radius * np.column_stack([np.cos(angle), np.sin(angle)])
+    section = polyline_section(points, np.full(walls, thickness))
+    expected = 4.0 * radius / np.pi
+    assert section.shear_centre[0] == pytest.approx(expected, rel=1.0 / walls**2)
+    assert section.shear_centre[1] == pytest.approx(0.0, abs=1e-15)
 
 
 # sectionproperties: finite-element warping analysis of the solid outline

@@ -34,7 +34,7 @@ import numpy.typing as npt
 from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
-from workbench.solver.thin_walls import _STRIP_END_DEFICIT, THIN_WALL_LIMIT, ThinWalledOpen, Wall
+from workbench.solver.thin_walls import _STRIP_END_DEFICIT, THIN_WALL_LIMIT
 
 FloatArray = npt.NDArray[np.float64]
 IndexArray = npt.NDArray[np.intp]
@@ -106,16 +106,6 @@ class OpenSectionWarping:
         """Index of the thickest wall, where the Saint-Venant shear G·t·θ′ is largest."""
         return int(np.argmax(self.thicknesses))
 
-    def saint_venant(self) -> ThinWalledOpen:
-        """The same walls as a Saint-Venant section of :mod:`workbench.solver.thin_walls`."""
-        lengths = _lengths(self.points, self.walls)
-        return ThinWalledOpen(
-            walls=tuple(
-                Wall(length=float(b), thickness=float(t))
-                for b, t in zip(lengths, self.thicknesses, strict=True)
-            )
-        )
-
 
 def polyline_section(
     points: npt.ArrayLike, thicknesses: npt.ArrayLike, field: str = "section"
@@ -170,9 +160,8 @@ def open_section(
 
     Notes
     -----
-    J = Σ b·t³/3; the walls' end deficits Σ 0.21·t⁴ must stay within
-    :data:`~workbench.solver.thin_walls.THIN_WALL_LIMIT` of J, as for
-    :class:`~workbench.solver.thin_walls.ThinWalledOpen`. The shear centre solves
+    J = Σ b·t³/3; the free edges' deficits Σ 0.105·t⁴ must stay within
+    :data:`~workbench.solver.thin_walls.THIN_WALL_LIMIT` of J (see :func:`_require_slender`). The shear centre solves
     [[∫xy, −∫x²], [∫y², −∫xy]]·(Sx − Px, Sy − Py) = (∫ω_P·x, ∫ω_P·y) (all ∫…dA, x and y from
     the centroid, ω_P the sectorial coordinate about the pole P at the centroid), since ω_S
     = ω_P − (Sx − Px)·y + (Sy − Py)·x + const, and ω_S is orthogonal to x and y.
@@ -192,7 +181,7 @@ def open_section(
     centroid = wall_areas @ ends.mean(axis=1) / area
     local = ends - centroid
     torsion_constant = float(np.sum(lengths * t**3) / 3.0)
-    _require_slender(t, lengths, torsion_constant, field)
+    _require_slender(t, lengths, pairs, torsion_constant, field)
 
     # Path matrix: path[j, k] = ±1 when wall k lies on the way from point 0 to point j.
     path = _path_matrix(pairs, len(xy), field)
@@ -327,15 +316,29 @@ def _require_no_crossing(xy: FloatArray, pairs: IndexArray, extent: float, field
 
 
 def _require_slender(
-    t: FloatArray, lengths: FloatArray, torsion_constant: float, field: str
+    t: FloatArray, lengths: FloatArray, pairs: IndexArray, torsion_constant: float, field: str
 ) -> None:
-    """The walls' end effects are a small part of J (the rule of ``ThinWalledOpen``)."""
-    if _STRIP_END_DEFICIT * float(np.sum(t**4)) > THIN_WALL_LIMIT * torsion_constant:
-        k = int(np.argmin(lengths / t))
+    """The free edges' end effects are a small part of J.
+
+    Roark's deficit 0.21·t⁴ of a lone strip belongs to its two free edges, 0.105·t⁴ each; walls
+    that run on into another wall have no free edge there (a mid-line polyline drawn through a
+    curve has free edges at its two ends only). The limit is that of
+    :class:`~workbench.solver.thin_walls.ThinWalledOpen`, which counts every wall as a lone strip.
+
+    References
+    ----------
+    .. [1] Young & Budynas, *Roark's Formulas for Stress and Strain*, 7th ed., Table 10.1 case 4
+       (the rectangle fit, taken at a long strip).
+    """
+    degree = np.bincount(pairs.ravel(), minlength=int(pairs.max()) + 1)
+    free_edges = (degree[pairs] == 1).sum(axis=1)
+    deficit = _STRIP_END_DEFICIT / 2.0 * float(free_edges @ t**4)
+    if deficit > THIN_WALL_LIMIT * torsion_constant:
+        k = int(np.argmax(np.where(free_edges > 0, t, 0.0)))
         msg = (
-            f"is too thick for thin-walled open-section theory: end effects 0.21·t⁴ exceed "
-            f"{THIN_WALL_LIMIT:g} of Σb·t³/3 (stubbiest wall: {quote(float(t[k]), 'length')} "
-            f"thick, {quote(float(lengths[k]), 'length')} long)"
+            f"is too thick for thin-walled open-section theory: free-edge effects 0.105·t⁴ "
+            f"exceed {THIN_WALL_LIMIT:g} of Σb·t³/3 (thickest free-edged wall: "
+            f"{quote(float(t[k]), 'length')} thick, {quote(float(lengths[k]), 'length')} long)"
         )
         raise InputError(f"{field}.thicknesses[{k}]", msg)
 
@@ -344,18 +347,23 @@ def _path_matrix(pairs: IndexArray, count: int, field: str) -> FloatArray:
     """path[j, k] = +1 (−1) when wall k lies forwards (backwards) on the way from point 0 to j.
 
     The walls' incidence matrix without point 0's column is square; it is invertible exactly
-    when the walls form a tree, and its inverse is the path matrix.
+    when the walls form a tree, and its inverse, all 0 and ±1, is the path matrix. A matrix
+    that is not a tree's either fails to invert or gives an inverse that, rounded, is not one.
     """
     walls = len(pairs)
     incidence = np.zeros((walls, count))
     incidence[np.arange(walls), pairs[:, 1]] = 1.0
     incidence[np.arange(walls), pairs[:, 0]] = -1.0
     reduced = incidence[:, 1:]
-    if walls == 0 or np.linalg.matrix_rank(reduced) < walls:
+    try:
+        inverse = np.round(np.linalg.inv(reduced))
+    except np.linalg.LinAlgError:
+        inverse = np.zeros_like(reduced)
+    if not np.array_equal(reduced @ inverse, np.eye(walls)):
         msg = "must join all the points in one piece without a closed loop (an open section)"
         raise InputError(f"{field}.walls", msg)
     path = np.zeros((count, walls))
-    path[1:] = np.round(np.linalg.inv(reduced))
+    path[1:] = inverse
     return path
 
 
@@ -421,11 +429,6 @@ def _peak_statical(
     at = fractions[wall, which]
     point = ends[wall, 0] + at * (ends[wall, 1] - ends[wall, 0])
     return point, int(wall), float(candidates[wall, which])
-
-
-def _lengths(points: FloatArray, walls: IndexArray) -> FloatArray:
-    ends = points[walls]
-    return np.hypot(*(ends[:, 1] - ends[:, 0]).T)
 
 
 __all__ = ["OpenSectionWarping", "open_section", "polyline_section"]
