@@ -91,6 +91,12 @@ BAD_POLYLINES = {
         "one thickness for each of the 2 walls",
     ),
     "not numbers": ([("a", 0.0), (1.0, 0.0)], [0.01], "section.points", "numbers"),
+    "thickness not a number": (
+        [(0.0, 0.0), (1.0, 0.0)],
+        ["thin"],
+        "section.thicknesses",
+        "numbers",
+    ),
 }
 
 

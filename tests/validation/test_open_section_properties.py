@@ -1,4 +1,4 @@
-"""Properties every thin-walled open section has in Vlasov's theory, on random sections (hypothesis).
+"""Properties every thin-walled open section has in Vlasov's theory, on random sections.
 
 Sources: V. Z. Vlasov, *Thin-Walled Elastic Beams*, 2nd ed., 1961, ch. I (from memory): the
 principal sectorial coordinate (pole at the shear centre, normalised) is the one of least

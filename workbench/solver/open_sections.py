@@ -3,7 +3,8 @@
 A section is a set of straight walls joining points of its mid-line, without a closed loop (a
 tree: a polyline, or a polyline with branches such as an I or a tee). :func:`open_section` is the
 one general routine; :func:`polyline_section` and the shape builders of
-:mod:`workbench.solver.open_shapes` only lay out the mid-line and call it. Everything is in SI metres and computed on arrays over the walls.
+:mod:`workbench.solver.open_shapes` only lay out the mid-line and call it. Everything is in SI
+metres and computed on arrays over the walls.
 
 Method (Vlasov's theory of thin-walled open beams): the sectorial coordinate ω about a pole P
 grows along the mid-line by dω = (r − P) × dr; on a straight wall from A to B it grows by the
@@ -161,10 +162,11 @@ def open_section(
     Notes
     -----
     J = Σ b·t³/3; the free edges' deficits Σ 0.105·t⁴ must stay within
-    :data:`~workbench.solver.thin_walls.THIN_WALL_LIMIT` of J (see :func:`_require_slender`). The shear centre solves
-    [[∫xy, −∫x²], [∫y², −∫xy]]·(Sx − Px, Sy − Py) = (∫ω_P·x, ∫ω_P·y) (all ∫…dA, x and y from
-    the centroid, ω_P the sectorial coordinate about the pole P at the centroid), since ω_S
-    = ω_P − (Sx − Px)·y + (Sy − Py)·x + const, and ω_S is orthogonal to x and y.
+    :data:`~workbench.solver.thin_walls.THIN_WALL_LIMIT` of J (see :func:`_require_slender`).
+    The shear centre solves [[∫xy, −∫x²], [∫y², −∫xy]]·(Sx − Px, Sy − Py) = (∫ω_P·x, ∫ω_P·y)
+    (all ∫…dA, x and y from the centroid, ω_P the sectorial coordinate about the pole P at the
+    centroid), since ω_S = ω_P − (Sx − Px)·y + (Sy − Py)·x + const and ω_S is orthogonal to x
+    and y.
 
     References
     ----------
@@ -208,7 +210,7 @@ def open_section(
         area=area,
         centroid=centroid,
         torsion_constant=torsion_constant,
-        warping_constant=max(warping_constant, 0.0),
+        warping_constant=warping_constant,
         shear_centre=centroid + offset,
         unit_warping=unit_warping,
         statical_moment=statical,
@@ -220,17 +222,22 @@ def open_section(
     )
 
 
+def _numbers(values: npt.ArrayLike, field: str) -> FloatArray:
+    """``values`` as an array of floats, or :class:`InputError` naming ``field``."""
+    try:
+        return np.asarray(values, dtype=float)
+    except (TypeError, ValueError):
+        msg = f"must be an array of numbers, not {quoted(values)}"
+        raise InputError(field, msg) from None
+
+
 def _checked_arrays(
     points: npt.ArrayLike, walls: npt.ArrayLike | None, thicknesses: npt.ArrayLike, field: str
 ) -> tuple[FloatArray, IndexArray, FloatArray]:
     """The three arrays as numbers of the right shapes, or :class:`InputError`."""
-    try:
-        xy = np.asarray(points, dtype=float)
-        t = np.asarray(thicknesses, dtype=float)
-        pairs = np.asarray(walls if walls is not None else np.zeros((0, 2)), dtype=float)
-    except (TypeError, ValueError):
-        msg = f"must be arrays of numbers, not {quoted(points)}"
-        raise InputError(f"{field}.points", msg) from None
+    xy = _numbers(points, f"{field}.points")
+    t = _numbers(thicknesses, f"{field}.thicknesses")
+    pairs = _numbers(walls if walls is not None else np.zeros((0, 2)), f"{field}.walls")
     if xy.ndim != 2 or xy.shape[1] != 2 or len(xy) < 2:
         msg = f"must be at least two (x, y) mid-line points, not an array of shape {xy.shape}"
         raise InputError(f"{field}.points", msg)
