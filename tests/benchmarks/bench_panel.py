@@ -293,7 +293,9 @@ _RECORDER = """(kind) => {
     setTimeout(() => reject(new Error('the stress chart was not redrawn within 15 s')), 15000);
   });
   if (kind === 'drag') {
-    document.addEventListener('mousemove', (event) => {
+    // On the window, capturing, added before the drag starts: the drag's own handler (also on
+    // the window, capturing) stops the move from reaching the document.
+    window.addEventListener('mousemove', (event) => {
       if (event.buttons & 1) record.inputs.push(performance.now());
     }, true);
   } else {
