@@ -424,11 +424,12 @@ class Form:
             scale = before.factor(quantity) / self.state.units.factor(quantity) if quantity else 1
             value = float(get_at(self.document, path) or 0.0)
             low, high = min(field.min * scale, value), max(field.max * scale, value)
-            # Widened first: a slider clamps its value to the range it has when the value is set.
-            field.min, field.max = min(field.min, low), max(field.max, high)
-            field.value = value
-            field.min, field.max = low, high
-            field.description = f"{description} [{self.unit(quantity)}]"
+            with field.hold_sync():  # one message to the page
+                # Widened first: a slider clamps its value to the range it has when it is set.
+                field.min, field.max = min(field.min, low), max(field.max, high)
+                field.value = value
+                field.min, field.max = low, high
+                field.description = f"{description} [{self.unit(quantity)}]"
 
         self._reshow[field] = reshow
         return field
