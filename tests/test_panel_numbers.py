@@ -14,13 +14,16 @@ import typing
 from pathlib import Path
 
 import ipywidgets as w
+import ipywidgets.widgets.widget as widget_module
 import pytest
 
-from tests.panel_cases import box_of, field, open_demo, simple_case
+from tests.panel_cases import box_of, field, message_beside, open_demo, simple_case
 from workbench.case.declaration import criteria
 from workbench.case.entry import read_quantity
 from workbench.case.units import SI_ENGINEERING
 from workbench.panel import Workbench
+from workbench.panel.document import get_at, parse_path
+from workbench.panel.keys import quantity_of
 from workbench.panel.plotting import NUMBER_FORMAT, bq
 
 INCH = 25.4e-3  # m
@@ -207,3 +210,74 @@ def test_the_case_file_keeps_its_twist_rate_unit(demo: Workbench) -> None:
     saved = json.loads(demo.case_json())
     assert "readouts" not in saved["units"]
     assert saved["design"]["max_twist_rate"] == demo.document["design"]["max_twist_rate"]
+
+
+def _shown(panel: Workbench) -> dict[str, tuple[float, str, w.Widget]]:
+    """Each quantity entry of the panel: its value read back in SI, the unit beside it, itself."""
+    units = panel.state.units
+    shown = {}
+    for key, widgets in panel.form.fields.items():
+        quantity = quantity_of(parse_path(key))
+        for widget in widgets:
+            if isinstance(widget, w.Text) and quantity is not None:
+                box = box_of(panel.root, widget)
+                beside = [c.value for c in box.children if isinstance(c, w.Label)] if box else []
+                si = read_quantity(widget.value, quantity, units, key)
+                shown[f"{key} #{len(shown)}"] = (si, " ".join(beside), widget)
+    return shown
+
+
+def test_a_unit_switch_shows_every_field_again_in_the_widgets_it_has(demo: Workbench) -> None:
+    """SI → US → SI makes no widget model; every entry shows the same quantity in the new unit.
+
+    1 in = 25.4 mm exactly (NIST Special Publication 811, 2008 edition, appendix B.9).
+    """
+    before = set(widget_module._instances)  # w.Widget.widgets, without its warning
+    si = _shown(demo)
+    demo.units.value = "us"
+    # Not one model made (nor closed): the page has nothing to build; tooltips keep theirs too.
+    assert set(widget_module._instances) == before
+    us = _shown(demo)
+    assert us.keys() == si.keys() and len(si) > 40
+    # A key the case file gives at its default is kept (its field stays): a ratio, unchanged.
+    assert demo.document["design"]["frequency_margin"] == 0.2
+    for key, (value, beside, widget) in us.items():
+        assert widget is si[key][2], key  # the same entry, shown again
+        # Each shown to four figures: the two readings agree within the rounding of both.
+        assert value == pytest.approx(si[key][0], rel=1e-3, abs=1e-12), key
+        if si[key][1]:
+            assert beside != si[key][1] or beside in ("rpm", "°"), key  # the unit follows
+    length = "shafts[0].segments[0].length"
+    si_length = demo.document["shafts"][0]["segments"][0]["length"] * 25.4  # mm
+    assert _entry(demo, length).value == f"{si_length / 25.4:.4g}"
+    assert _unit_beside(demo, length) == "in"
+    slider = demo.diameter_slider
+    assert slider is not None and slider.description.endswith("[in]")
+    assert slider.value == get_at(demo.document, demo.dimension.value)
+    assert slider.min <= slider.value <= slider.max
+    axes = [axis.label for axis in demo.charts.stress.figure.axes]
+    assert any("psi" in label for label in axes) and any("[in]" in label for label in axes)
+    demo.units.value = "si"
+    assert set(widget_module._instances) == before
+    back = _shown(demo)
+    for key, (value, beside, _widget) in back.items():
+        assert value == pytest.approx(si[key][0], rel=1e-3, abs=1e-12), key
+        assert beside == si[key][1], key
+
+
+def test_typed_entries_and_refusals_work_after_a_unit_switch(demo: Workbench) -> None:
+    path = "shafts[0].segments[0].section.diameter"
+    demo.units.value = "us"
+    demo.enter(path, "2 1/4")  # a bare number in the unit beside the field: 2.25 in
+    assert demo.document["shafts"][0]["segments"][0]["section"]["diameter"] == 2.25
+    assert not demo.stale and _entry(demo, path).value == "2.25"
+    assert demo.diameter_slider is not None and demo.diameter_slider.value == 2.25
+    demo.enter(path, "7o")
+    assert demo.stale and "7o" in html.unescape(message_beside(demo, path).value)
+    demo.enter(path, "60 mm")  # 60 / 25.4 in (NIST SP 811, 2008, B.9)
+    assert not demo.stale and message_beside(demo, path).value == ""
+    diameter = demo.document["shafts"][0]["segments"][0]["section"]["diameter"]
+    assert diameter == pytest.approx(60 / 25.4, rel=1e-9)
+    demo.units.value = "si"
+    assert demo.document["shafts"][0]["segments"][0]["section"]["diameter"] == pytest.approx(60)
+    assert _entry(demo, path).value == "60"

@@ -197,6 +197,21 @@ def set_at(document: Any, path: Path, value: Any) -> None:
         node[last] = value
 
 
+def structure(document: Any) -> Any:
+    """The fields a document has, without its numbers or its units table.
+
+    Two documents of the same structure are edited by the same fields: a unit switch that keeps
+    it re-shows the fields in place (the case file's keys may come back in another order).
+    """
+    if isinstance(document, dict):
+        return {k: structure(v) for k, v in document.items() if k != "units"}
+    if isinstance(document, list):
+        return [structure(v) for v in document]
+    if isinstance(document, (int, float)) and not isinstance(document, bool):
+        return 0
+    return document
+
+
 def clone(document: Any) -> Any:
     """A deep copy (the solver gets its own, so later edits never reach a solved model)."""
     return copy.deepcopy(document)

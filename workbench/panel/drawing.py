@@ -89,6 +89,12 @@ class DrawingEditor:
         self.handles.selected = self.selected
         self.inspector.show(self.selected)
 
+    def reshow(self) -> None:
+        """After a unit switch shown in place: the palette's unit and station in the new units."""
+        self.palette.refresh()
+        if self.selected is not None:
+            self.palette.put_at(station(self.selected, self.form.document))
+
     def draw(self, result: Any) -> None:
         """Redraw the handles and the pick's outline (after the elevation is drawn)."""
         self.handles.draw(result)

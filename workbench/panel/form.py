@@ -95,6 +95,9 @@ class Form:
         self.edited: Path | None = None
         # While a block runs under :meth:`recording`: the (key, widget) pairs bound in it.
         self._recorded: list[tuple[str, w.Widget]] | None = None
+        #: What shows each bound field again in the panel's units (a unit switch keeps the
+        #: widgets), given the unit system the document was in before the switch.
+        self._reshow: dict[w.Widget, Callable[[Any], None]] = {}
 
     @property
     def document(self) -> dict[str, Any]:
@@ -141,12 +144,14 @@ class Form:
             for table in (self.fields, self.messages):
                 if widget in table.get(key, ()):
                     table[key] = [x for x in table[key] if x is not widget]
+            self._reshow.pop(widget, None)
         self._shown = [x for x in self._shown if x.comm is not None]
         self._bad = [x for x in self._bad if x.comm is not None]
 
     def reset(self) -> None:
         """Forget the editors' fields and message lines (they are about to be rebuilt)."""
         self.fields.clear()
+        self._reshow.clear()
         self.messages = {k: v for k, v in self.messages.items() if k.startswith(_KEPT_MESSAGES)}
         self._shown, self._bad = [], []
 
@@ -163,6 +168,8 @@ class Form:
         """Unbind widgets and message lines from a field (a replaced drag slider and its entry)."""
         key = path_text(path)
         self.fields[key] = [x for x in self.fields.get(key, []) if x not in widgets]
+        for widget in widgets:
+            self._reshow.pop(widget, None)
         self.messages[key] = [x for x in self.messages.get(key, []) if x not in widgets]
 
     def message(self, prefix: Path | str) -> w.HTML:
@@ -217,6 +224,13 @@ class Form:
         if not unit:
             return self.beside(field, path)
         label = w.Label(unit, layout=shared_layout(), style=shared_style(w.Label))
+        shown = self._reshow[field]
+
+        def reshow(before: Any) -> None:
+            shown(before)
+            label.value = self.unit(quantity_of(path))
+
+        self._reshow[field] = reshow
         return self.beside(field, path, label)
 
     def entry(
@@ -281,7 +295,13 @@ class Form:
                 field.value = self.shown_text(number, quantity)
             take(number)
 
+        def reshow(_before: Any) -> None:
+            value = get_at(self.document, path)
+            number = value if isinstance(value, (int, float)) else default
+            field.value = self.shown_text(number, quantity)
+
         field.observe(typed, "value")
+        self._reshow[field] = reshow
         return field
 
     def count(
@@ -398,6 +418,20 @@ class Form:
         )
         self.register(path, field)
         field.observe(lambda change: self.write(path, clean_number(change["new"]), field), "value")
+
+        def reshow(before: Any) -> None:
+            quantity = quantity_of(path)
+            scale = before.factor(quantity) / self.state.units.factor(quantity) if quantity else 1
+            value = float(get_at(self.document, path) or 0.0)
+            low, high = min(field.min * scale, value), max(field.max * scale, value)
+            with field.hold_sync():  # one message to the page
+                # Widened first: a slider clamps its value to the range it has when it is set.
+                field.min, field.max = min(field.min, low), max(field.max, high)
+                field.value = value
+                field.min, field.max = low, high
+                field.description = f"{description} [{self.unit(quantity)}]"
+
+        self._reshow[field] = reshow
         return field
 
     def dragged(
@@ -491,6 +525,22 @@ class Form:
 
         field.observe(renamed, "value")
         return w.HBox([field, self.message(path)])
+
+    def reshow(self, before: Any) -> None:
+        """Show every bound field again in the panel's units, in the widgets it has.
+
+        After a unit switch that re-expressed the document without changing its structure: the
+        entries show their values in the new units, the units beside them and the sliders'
+        ranges follow; no widget is made (the page builds nothing new).
+
+        Parameters
+        ----------
+        before
+            The unit system the document was in before the switch.
+        """
+        with self.quiet():
+            for reshow in list(self._reshow.values()):
+                reshow(before)
 
     # --- edits ------------------------------------------------------------------------------
 

@@ -227,14 +227,17 @@ def set_tooltip(
     """Give ``mark`` a tooltip with these labels, keeping the one it has when they match.
 
     A tooltip is a widget of its own: making a new one on every redraw costs about a millisecond
-    and a front-end widget each time, so it is only replaced when its text changes.
+    and a front-end widget each time (a unit switch made one per mark), so only new labels are
+    written into the one it has (the page redraws its table on a change of labels); it is
+    replaced when its fields or formats change.
     """
     tooltip = mark.tooltip
-    if tooltip is not None and list(tooltip.labels) == labels and tuple(tooltip.fields) == fields:
+    formats = [fmt] * len(fields)
+    if tooltip is not None and tuple(tooltip.fields) == fields and list(tooltip.formats) == formats:
+        if list(tooltip.labels) != labels:
+            tooltip.labels = labels
         return
-    _replace_tooltip(
-        mark, bq.Tooltip(fields=list(fields), labels=labels, formats=[fmt] * len(fields))
-    )
+    _replace_tooltip(mark, bq.Tooltip(fields=list(fields), labels=labels, formats=formats))
 
 
 #: Width (px) and side margins of the drawing and of every chart drawn along the shaft beneath

@@ -28,7 +28,8 @@ from workbench.case.errors import InputError, one_line
 from workbench.case.units import UnitSystem
 from workbench.design.checks import CheckReport, run_checks
 from workbench.panel import CASE_MIME_TYPE
-from workbench.panel.document import clone, plain_words, unit_key, unit_system
+from workbench.panel.document import Path, clone, plain_words, unit_key, unit_system
+from workbench.panel.keys import quantity_of
 from workbench.solver.analysis import Results, solve
 from workbench.solver.io import case_to_dict, parse_case, save_case
 from workbench.solver.model import Model
@@ -273,8 +274,10 @@ class CaseState:
         """Re-express the document in another unit system; refused (``False``) while stale."""
         if self.stale or self.model is None:
             return False
-        self.units_key = key
-        self.document = case_to_dict(self.model, unit_system(key))
+        before, self.units_key = self.units, key
+        document = case_to_dict(self.model, unit_system(key))
+        _keep_keys(self.document, document, (), before, self.units)
+        self.document = document
         return True
 
     def pin_baseline(self) -> bool:
@@ -300,6 +303,35 @@ class CaseState:
         """The current case file text (last valid case, panel units)."""
         assert self.model is not None
         return json.dumps(case_to_dict(self.model), indent=2, ensure_ascii=False)
+
+
+def _keep_keys(old: Any, new: Any, path: Path, before: UnitSystem, after: UnitSystem) -> None:
+    """Write back into ``new`` the keys of ``old`` it leaves out, converted to ``after``'s units.
+
+    The case file is written without the keys at their defaults (a frequency margin of 0.2):
+    kept, the document a unit switch gives has the keys, and so the fields, it had.
+    """
+    if isinstance(old, dict) and isinstance(new, dict):
+        for key, value in old.items():
+            if key not in new:
+                new[key] = _converted(value, (*path, key), before, after)
+            else:
+                _keep_keys(value, new[key], (*path, key), before, after)
+    elif isinstance(old, list) and isinstance(new, list) and len(old) == len(new):
+        for number, (was, now) in enumerate(zip(old, new, strict=True)):
+            _keep_keys(was, now, (*path, number), before, after)
+
+
+def _converted(value: Any, path: Path, before: UnitSystem, after: UnitSystem) -> Any:
+    """A document value at ``path`` in ``before``'s units, in ``after``'s."""
+    if isinstance(value, dict):
+        return {k: _converted(v, (*path, k), before, after) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_converted(v, (*path, n), before, after) for n, v in enumerate(value)]
+    quantity = quantity_of(path)
+    if quantity is None or isinstance(value, bool) or not isinstance(value, (int, float)):
+        return clone(value)
+    return value * before.factor(quantity) / after.factor(quantity)
 
 
 def _case_output(model: Model, report: CheckReport) -> dict[str, Any]:

@@ -28,7 +28,7 @@ from IPython.display import display
 from workbench.case.errors import InputError
 from workbench.design.checks import CheckReport
 from workbench.panel.charts import Charts
-from workbench.panel.document import UNIT_CHOICES, result_names
+from workbench.panel.document import UNIT_CHOICES, result_names, structure
 from workbench.panel.drawing import DrawingEditor
 from workbench.panel.editors import (
     CombinationsEditor,
@@ -406,8 +406,15 @@ class Workbench:
         self._redraw()
 
     def _on_units(self, change: dict[str, Any]) -> None:
+        """Re-express the case in the units picked and show it so, in the widgets there are.
+
+        The fields are shown again in place (:meth:`Form.reshow`): a page that builds no new
+        widget models switches in a blink. Only a document whose structure the conversion
+        changed (a key the case file left out, written back) has its editors rebuilt.
+        """
         if self.form.muted:
             return
+        before, fields = self.state.units, structure(self.document)
         if not self.state.change_units(change["new"]):
             with self.form.quiet():
                 self.units.value = change["old"]
@@ -415,7 +422,12 @@ class Workbench:
                 "warning", "Fix the fields marked in red before changing units."
             )
             return
-        self._rebuild()
+        if structure(self.document) == fields:
+            self.form.reshow(before)
+            self.whatif.refresh_inputs()
+            self.drawing_editor.reshow()
+        else:
+            self._rebuild()
         self.refresh()
 
     def _on_save(self, _button: Any) -> None:
