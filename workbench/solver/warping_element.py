@@ -117,15 +117,15 @@ class WarpingFunctions:
         return self.mu < SERIES_BELOW
 
     def _split(self) -> tuple[np.ndarray, FloatArray, FloatArray]:
+        # Each branch is evaluated on its own elements only.
         small = self.small
-        square = np.where(small, self.mu, 0.0) ** 2
-        large = np.minimum(np.where(small, SERIES_BELOW, self.mu), MU_CAP)
-        return small, square, large
+        return small, self.mu[small] ** 2, np.minimum(self.mu[~small], MU_CAP)
 
     def stiffness_factors(self) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
         """(a, b, c, d) with k₁₁ = a·s/L², k₁₂ = b·s/L, k₂₂ = c·s, k₂₄ = d·s.
 
-        The scale s is E·Cw/L where μ < SERIES_BELOW, G·J·L elsewhere (see :meth:`scale_is_warping`).
+        The scale s is E·Cw/L where μ < SERIES_BELOW, G·J·L elsewhere
+        (:class:`WarpingElements`).
 
         References
         ----------
@@ -134,11 +134,12 @@ class WarpingFunctions:
         small, square, mu = self._split()
         half, g, coth, over_sinh = _hyperbolic(mu)
         p_g = _series(_P_G, square)
-        a = np.where(small, _series(_SINH_OVER, square) / p_g, mu / g)
-        b = np.where(small, _series(_COSH_M1, square) / p_g, half / g)
-        c = np.where(small, _series(_C_NUM, square) / p_g, (mu * coth - 1) / (mu * g))
-        d = np.where(small, _series(_D_NUM, square) / p_g, (1 - over_sinh) / (mu * g))
-        return a, b, c, d
+        return (
+            _merge(small, _series(_SINH_OVER, square) / p_g, mu / g),
+            _merge(small, _series(_COSH_M1, square) / p_g, half / g),
+            _merge(small, _series(_C_NUM, square) / p_g, (mu * coth - 1) / (mu * g)),
+            _merge(small, _series(_D_NUM, square) / p_g, (1 - over_sinh) / (mu * g)),
+        )
 
     def load_factors(self) -> tuple[FloatArray, FloatArray, FloatArray]:
         """(E, F, G) of the consistent loads of a linear distributed torque (module docstring).
@@ -153,11 +154,32 @@ class WarpingFunctions:
         p_g = _series(_P_G, square)
         f_small = p_g / (2 * _series(_COSH_M1, square))
         f_large = g / (2 * mu * mu * half)
-        f = np.where(small, f_small, f_large)
-        e = np.where(small, _series(_E_NUM, square) / (6 * p_g), (mu / g - 12 / mu**2) / 6)
-        g_small = _series(_G_NUM, square) / (3 * p_g) - f_small
-        g_large = (mu * coth + 2 * over_sinh - 3) / (3 * mu * g) - f_large
-        return e, f, np.where(small, g_small, g_large)
+        return (
+            _merge(small, _series(_E_NUM, square) / (6 * p_g), (mu / g - 12 / mu**2) / 6),
+            _merge(small, f_small, f_large),
+            _merge(
+                small,
+                _series(_G_NUM, square) / (3 * p_g) - f_small,
+                (mu * coth + 2 * over_sinh - 3) / (3 * mu * g) - f_large,
+            ),
+        )
+
+
+def _merge(small: np.ndarray, small_values: FloatArray, large_values: FloatArray) -> FloatArray:
+    """One (n,) array from the values of the small-μ elements and of the others."""
+    merged = np.empty(len(small))
+    merged[small] = small_values
+    merged[~small] = large_values
+    return merged
+
+
+#: Entry (row, column) of the element matrix as (index into the entries, sign).
+_LAYOUT = (
+    ((0, 1), (1, 1), (0, -1), (1, 1)),
+    ((1, 1), (2, 1), (1, -1), (3, 1)),
+    ((0, -1), (1, -1), (0, 1), (1, -1)),
+    ((1, 1), (3, 1), (1, -1), (2, 1)),
+)
 
 
 def warping_mu(length: FloatArray, torsion: FloatArray, warping: FloatArray) -> FloatArray:
@@ -222,43 +244,60 @@ class WarpingElements:
         """θ and θ′."""
         return 2
 
-    @property
+    @functools.cached_property
     def functions(self) -> WarpingFunctions:
         """The dimensionless functions of μ."""
         return WarpingFunctions(warping_mu(self.length, self.torsion, self.warping))
 
-    def matrices(self) -> FloatArray:
-        """(n, 4, 4) element stiffness matrices (units N·m/rad, N·m²/rad, N·m³/rad by entry)."""
+    @functools.cached_property
+    def entries(self) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
+        """The four distinct entries (k₁₁, k₁₂, k₂₂, k₂₄) of every element (N·m, N·m², N·m³).
+
+        References
+        ----------
+        .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., §8.5.
+        """
         functions = self.functions
         a, b, c, d = functions.stiffness_factors()
         length = self.length
         scale = np.where(functions.small, self.warping / length, self.torsion * length)
         k11 = a * scale / length**2
-        k12 = b * scale / length
-        k22 = c * scale
-        k24 = d * scale
         # E·Cw = 0: θ′ takes no part (its exact entries vanish with 1/μ).
         free = self.warping == 0
-        k12, k22, k24 = (np.where(free, 0.0, entry) for entry in (k12, k22, k24))
-        matrices = np.empty((len(length), 4, 4))
-        rows = (
-            (k11, k12, -k11, k12),
-            (k12, k22, -k12, k24),
-            (-k11, -k12, k11, -k12),
-            (k12, k24, -k12, k22),
+        k12, k22, k24 = (
+            np.where(free, 0.0, entry) for entry in (b * scale / length, c * scale, d * scale)
         )
-        for i, row in enumerate(rows):  # 4×4 entries, each a whole column of elements
-            for j, entry in enumerate(row):
-                matrices[:, i, j] = entry
-        return matrices
+        return k11, k12, k22, k24
 
     def stiffness_entry(self, row: int, column: int) -> FloatArray:
         """Entry (row, column) of every element's matrix, shaped (1, n) for the assembly."""
-        return self._matrices[:, row, column][np.newaxis]
+        which, sign = _LAYOUT[row][column]
+        entry = self.entries[which]
+        return (entry if sign > 0 else -entry)[np.newaxis]
 
-    @functools.cached_property
-    def _matrices(self) -> FloatArray:
-        return self.matrices()
+    def matrices(self) -> FloatArray:
+        """(n, 4, 4) element stiffness matrices."""
+        matrices = np.empty((len(self.length), 4, 4))
+        for row in range(4):  # 4×4 entries, each a whole column of elements
+            for column in range(4):
+                matrices[:, row, column] = self.stiffness_entry(row, column)[0]
+        return matrices
+
+    def end_forces(self, nodal: FloatArray) -> FloatArray:
+        """(..., n, 4) K·u of every element for (..., n, 4) nodal values (θ₁, θ′₁, θ₂, θ′₂)."""
+        k11, k12, k22, k24 = self.entries
+        rotation = nodal[..., 0] - nodal[..., 2]
+        first, second = nodal[..., 1], nodal[..., 3]
+        torque = k11 * rotation + k12 * (first + second)
+        return np.stack(
+            [
+                torque,
+                k12 * rotation + k22 * first + k24 * second,
+                -torque,
+                k12 * rotation + k24 * first + k22 * second,
+            ],
+            axis=-1,
+        )
 
     def distributed_loads(self, start: FloatArray, end: FloatArray) -> FloatArray:
         """(n, 4) exact consistent nodal loads of a torque varying linearly along each element.

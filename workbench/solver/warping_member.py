@@ -206,7 +206,7 @@ def solve_member(
 
     rotation, rate = dofs[:, 0::2], dofs[:, 1::2]
     nodal = np.stack([rotation[:, :-1], rate[:, :-1], rotation[:, 1:], rate[:, 1:]], axis=-1)
-    end_forces = np.einsum("eij,cej->cei", elements.matrices(), nodal) - element_loads
+    end_forces = elements.end_forces(nodal) - element_loads
     torque_balance = _node_sum(end_forces[..., 0], end_forces[..., 2]) - nodal_torque
     bimoment_balance = _node_sum(end_forces[..., 1], end_forces[..., 3])
     torque_reaction = np.where(member.rotation_held, torque_balance, 0.0)
@@ -242,14 +242,12 @@ class WarpingStations:
     bimoment: FloatArray
 
 
-def _sub_elements(
-    length: FloatArray, torsion: FloatArray, warping: FloatArray
-) -> tuple[FloatArray, FloatArray]:
+def _sub_elements(length: FloatArray, torsion: FloatArray, warping: FloatArray) -> FloatArray:
     """Matrices (m, 4, 4) of sub-elements, with θ′ given unit stiffness where E·Cw = 0."""
     matrices = WarpingElements(length, torsion, warping).matrices()
     free = warping == 0
     matrices[free, 1, 1] = matrices[free, 3, 3] = 1.0
-    return matrices, WarpingElements(length, torsion, warping).functions.mu
+    return matrices
 
 
 def recover(solution: WarpingSolution, x: FloatArray) -> WarpingStations:
@@ -291,8 +289,8 @@ def recover(solution: WarpingSolution, x: FloatArray) -> WarpingStations:
     at_start, at_end = offset <= 0.0, offset >= total
     left_length = np.where(at_start, total, offset)
     right_length = np.where(at_end, total, total - offset)
-    left, _ = _sub_elements(left_length, torsion, warping)
-    right, _ = _sub_elements(right_length, torsion, warping)
+    left = _sub_elements(left_length, torsion, warping)
+    right = _sub_elements(right_length, torsion, warping)
 
     start, end = solution.start[:, element], solution.end[:, element]
     middle = start + (end - start) * (offset / total)
