@@ -157,3 +157,26 @@ def test_bad_member_names_the_field(field, node_x, torsion, warping) -> None:
             np.ones(2, bool),
             np.ones(2, bool),
         )
+
+
+@settings(max_examples=40, deadline=None)
+@given(lengths, st.floats(1e-3, 3e3) | st.just(np.inf), st.floats(0.05, 0.95), torques, ends)
+def test_point_torque_inside_an_element(length, mu, fraction, torque, support) -> None:
+    # Its consistent loads on one element give the end nodes of two elements meeting at the load.
+    k = 3e3
+    w = 0.0 if np.isinf(mu) else k * (length / mu) ** 2
+    at = fraction * length
+    loads = WarpingElements(np.array([length]), np.array([k]), np.array([w])).point_loads(
+        np.array([at]), np.array([torque])
+    )
+    one = solve_member(
+        member(np.array([0.0, length]), k, w, *support),
+        loads[:, [0, 2]],
+        nodal_bimoment=loads[:, [1, 3]],
+    )
+    two = solve_member(
+        member(np.array([0.0, at, length]), k, w, *support), np.array([[0.0, torque, 0.0]])
+    )
+    scale = np.max(np.abs(two.rotation)) + 1e-300
+    assert np.allclose(one.rotation, two.rotation[:, [0, 2]], rtol=0, atol=1e-9 * scale)
+    assert np.allclose(one.torque_reaction, two.torque_reaction[:, [0, 2]], atol=1e-9 * abs(torque))

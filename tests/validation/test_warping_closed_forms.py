@@ -3,20 +3,22 @@
 Sources, each also named beside its check:
 
 * The governing equation of non-uniform torsion G·J·θ″ − E·Cw·θ⁗ = −m with T = G·J·θ′ − E·Cw·θ‴
-  and B = −E·Cw·θ″: V. Z. Vlasov, *Thin-Walled Elastic Beams*, 2nd ed., 1961, ch. V; the same
-  equation and end conditions (restrained warping θ′ = 0, free warping θ″ = 0) in Seaburg &
-  Carter, *Torsional Analysis of Structural Steel Members*, AISC Steel Design Guide 9, 1997, §4.
+  and B = −E·Cw·θ″, and its end conditions (restrained warping θ′ = 0, free warping θ″ = 0):
+  V. Z. Vlasov, *Thin-Walled Elastic Beams*, 2nd ed., 1961, ch. V (chapter from memory); the
+  same equation is the subject of Seaburg & Carter, *Torsional Analysis of Structural Steel
+  Members*, AISC Steel Design Guide 9, 1997, whose case tables were not read for these checks.
 * The reference θ(x): ``sympy.dsolve`` of that equation (general solution C1 + C2·x +
   C3·e^(−λx) + C4·e^(λx) − m·x²/(2·G·J)), its constants fixed by the end conditions and, at a
   concentrated torque, by continuity of θ, θ′, θ″ and the jump of T, solved in 50-digit mpmath —
   evaluated in this test, never copied.
 * The cantilever with a restrained root under an end torque, in the closed form
-  θ = T/(G·J·λ)·(λx − sinh λx + tanh λL·(cosh λx − 1)) (the form the design-guide case tables
-  give, here checked against the sympy reference too; written stably as
-  λx + (sinh λ(L − x) − sinh λL)/cosh λL, an identity).
-* Saint-Venant limits (E·Cw → 0, long members): Gere & Goodno, *Mechanics of Materials*, 8th
-  ed., §3.8 (bar fixed at both ends, θ(a) = T·a·(L − a)/(G·J·L)) and uniform torque on a
-  fixed–fixed bar, θ_mid = m·L²/(8·G·J) (derived by hand from dT/dx = −m, dθ/dx = T/(G·J)).
+  θ = T/(G·J·λ)·(λx − sinh λx + tanh λL·(cosh λx − 1)) (derived by hand; checked against the
+  sympy reference in the same test; written stably as λx + (sinh λ(L − x) − sinh λL)/cosh λL,
+  an identity, times e^(−λL) above and below).
+* Saint-Venant limits (E·Cw → 0, long members): the bar fixed at both ends, θ(a) =
+  T·a·(L − a)/(G·J·L) (Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.8, from memory; also
+  derived by hand), and uniform torque on a fixed–fixed bar, θ_mid = m·L²/(8·G·J) (derived by
+  hand from dT/dx = −m, dθ/dx = T/(G·J)).
 """
 
 from __future__ import annotations
@@ -171,7 +173,7 @@ def compare(
 @pytest.mark.parametrize("at", [0.6, 1.5, 3.0, 4.7])
 @pytest.mark.parametrize("scale", [1.0, 100.0])
 def test_point_torque_both_ends_restrained(at: float, scale: float) -> None:
-    # (a) Vlasov ch. V / Design Guide 9 end conditions θ = θ′ = 0; sympy dsolve reference.
+    # (a) end conditions θ = θ′ = 0 (Vlasov ch. V, from memory); sympy dsolve reference.
     compare(TORSION * scale, WARPING, LENGTH, 0.0, 1.5e3, at, "restrained", "restrained")
 
 
@@ -222,7 +224,7 @@ def test_very_stiff_member_no_overflow(mu: float) -> None:
 
 @pytest.mark.parametrize("ratio", [1e-4, 1e-8, 0.0])
 def test_vanishing_warping_tends_to_saint_venant(ratio: float) -> None:
-    # Gere & Goodno §3.8: fixed-both-ends bar, θ(a) = T·a·(L − a)/(G·J·L).
+    # Fixed-both-ends bar, θ(a) = T·a·(L − a)/(G·J·L) (Gere & Goodno §3.8, from memory; by hand).
     at, torque = 2.0, 1.2e3
     w = WARPING * ratio
     x, stations = solved(TORSION, w, LENGTH, 0.0, torque, at, "restrained", "restrained")

@@ -283,6 +283,46 @@ class WarpingElements:
                 matrices[:, row, column] = self.stiffness_entry(row, column)[0]
         return matrices
 
+    def regular_matrices(self) -> FloatArray:
+        """(n, 4, 4) matrices with θ′ given unit stiffness where E·Cw = 0 (θ′ takes no part)."""
+        matrices = self.matrices()
+        free = self.warping == 0
+        matrices[free, 1, 1] = matrices[free, 3, 3] = 1.0
+        return matrices
+
+    def point_loads(self, offset: FloatArray, torque: FloatArray) -> FloatArray:
+        """(n, 4) exact consistent nodal loads of a concentrated torque inside each element.
+
+        The element is cut at the load into two exact pieces and the cut's (θ, θ′) condensed
+        out: f = −K_ec·K_cc⁻¹·(P, 0).
+
+        Parameters
+        ----------
+        offset
+            (n,) distance of the torque from the element's start (m), 0 < offset < L.
+        torque
+            (n,) the torque (N·m).
+
+        Returns
+        -------
+        FloatArray
+            (n, 4) loads conjugate to (θ₁, θ′₁, θ₂, θ′₂): N·m, N·m², N·m, N·m².
+
+        References
+        ----------
+        .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 3
+           (static condensation).
+        """
+        left = WarpingElements(offset, self.torsion, self.warping).regular_matrices()
+        right = WarpingElements(self.length - offset, self.torsion, self.warping)
+        right_matrices = right.regular_matrices()
+        cut = left[:, 2:, 2:] + right_matrices[:, :2, :2]
+        applied = np.stack([torque, np.zeros_like(torque)], axis=-1)
+        state = np.linalg.solve(cut, applied[..., np.newaxis])[..., 0]
+        start = np.einsum("nij,nj->ni", left[:, :2, 2:], state)
+        end = np.einsum("nij,nj->ni", right_matrices[:, 2:, :2], state)
+        return -np.concatenate([start, end], axis=-1)
+
     def end_forces(self, nodal: FloatArray) -> FloatArray:
         """(..., n, 4) K·u of every element for (..., n, 4) nodal values (θ₁, θ′₁, θ₂, θ′₂)."""
         k11, k12, k22, k24 = self.entries

@@ -133,6 +133,7 @@ def solve_member(
     nodal_torque: FloatArray,
     start: FloatArray | None = None,
     end: FloatArray | None = None,
+    nodal_bimoment: FloatArray | None = None,
 ) -> WarpingSolution:
     """Solve every load case of one member in restrained torsion, one factorization.
 
@@ -145,6 +146,11 @@ def solve_member(
     start, end
         (n_cases, n) distributed torque at each element's start and end (N·m/m), linear between;
         zero when omitted.
+    nodal_bimoment
+        (n_cases, n + 1) generalised loads conjugate to θ′ at the nodes (N·m²), e.g. the exact
+        consistent loads of a torque inside an element
+        (:meth:`~workbench.solver.warping_element.WarpingElements.point_loads`); zero when
+        omitted.
 
     Returns
     -------
@@ -186,6 +192,11 @@ def solve_member(
     rhs = np.zeros((n_cases, 1, 2 * (n + 1)))
     rhs[:, 0, 0::2] = nodal_torque + _node_sum(element_loads[..., 0], element_loads[..., 2])
     rhs[:, 0, 1::2] = _node_sum(element_loads[..., 1], element_loads[..., 3])
+    if nodal_bimoment is not None:
+        nodal_bimoment = np.broadcast_to(nodal_bimoment, (n_cases, n + 1))
+        if not np.all(np.isfinite(nodal_bimoment)):
+            raise InputError("nodal_bimoment", "must be finite, one value per case and node")
+        rhs[:, 0, 1::2] += nodal_bimoment
 
     band = assemble_band(elements, np.array([0, n + 1]), 1)
     # θ′ without stiffness (E·Cw = 0 on both sides): condensed out, held at 0 below.
@@ -209,6 +220,8 @@ def solve_member(
     end_forces = elements.end_forces(nodal) - element_loads
     torque_balance = _node_sum(end_forces[..., 0], end_forces[..., 2]) - nodal_torque
     bimoment_balance = _node_sum(end_forces[..., 1], end_forces[..., 3])
+    if nodal_bimoment is not None:
+        bimoment_balance -= nodal_bimoment
     torque_reaction = np.where(member.rotation_held, torque_balance, 0.0)
     bimoment_reaction = np.where(member.warping_held & warps, bimoment_balance, 0.0)
     # Condensed θ′: the Saint-Venant value T/(G·J) of the element beside the node.
@@ -240,14 +253,6 @@ class WarpingStations:
     warping_torque: FloatArray
     torque: FloatArray
     bimoment: FloatArray
-
-
-def _sub_elements(length: FloatArray, torsion: FloatArray, warping: FloatArray) -> FloatArray:
-    """Matrices (m, 4, 4) of sub-elements, with θ′ given unit stiffness where E·Cw = 0."""
-    matrices = WarpingElements(length, torsion, warping).matrices()
-    free = warping == 0
-    matrices[free, 1, 1] = matrices[free, 3, 3] = 1.0
-    return matrices
 
 
 def recover(solution: WarpingSolution, x: FloatArray) -> WarpingStations:
@@ -289,8 +294,8 @@ def recover(solution: WarpingSolution, x: FloatArray) -> WarpingStations:
     at_start, at_end = offset <= 0.0, offset >= total
     left_length = np.where(at_start, total, offset)
     right_length = np.where(at_end, total, total - offset)
-    left = _sub_elements(left_length, torsion, warping)
-    right = _sub_elements(right_length, torsion, warping)
+    left = WarpingElements(left_length, torsion, warping).regular_matrices()
+    right = WarpingElements(right_length, torsion, warping).regular_matrices()
 
     start, end = solution.start[:, element], solution.end[:, element]
     middle = start + (end - start) * (offset / total)
