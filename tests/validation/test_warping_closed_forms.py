@@ -31,6 +31,7 @@ import numpy as np
 import pytest
 import sympy
 
+from workbench.solver.warping_element import WarpingElements
 from workbench.solver.warping_member import WarpingMember, recover, solve_member
 
 #: Relative tolerance against the 50-digit reference (of the largest magnitude of each curve).
@@ -249,3 +250,60 @@ def test_long_member_mid_span_tends_to_saint_venant(mu: float) -> None:
         return
     exact = reference(TORSION, w, LENGTH, m, 0.0, 0.0, "restrained", "restrained")
     assert mid == pytest.approx(float(exact(LENGTH / 2)[0]), rel=EXACT)
+
+
+@functools.cache
+def _linear_load_solution() -> tuple[Callable[..., object], ...]:
+    """θ…θ‴ of sympy's dsolve under a linear torque m0 + (m1 − m0)·x/L, as mpmath functions."""
+    x, k, w, m0, m1, length = sympy.symbols("x k w m0 m1 L", positive=True)
+    theta = sympy.Function("theta")
+    load = m0 + (m1 - m0) * x / length
+    solved = sympy.dsolve(k * theta(x).diff(x, 2) - w * theta(x).diff(x, 4) + load, theta(x)).rhs
+    constants = sympy.symbols("C1:5")
+    return tuple(
+        sympy.lambdify((x, k, w, m0, m1, length, *constants), sympy.diff(solved, x, o), "mpmath")
+        for o in range(4)
+    )
+
+
+@pytest.mark.parametrize("mu", [1e-4, 0.5, 2.999, 3.001, 7.0, 60.0])
+def test_element_matrix_and_loads_from_the_general_solution(mu: float) -> None:
+    # The element built independently of its closed forms: K = F·A⁻¹ from sympy's general
+    # solution (A: nodal values of the four homogeneous solutions, F: their end forces
+    # (−T(0), B(0), T(L), −B(L))), and the consistent loads of a linear torque m0 → m1 as
+    # f = K·u_p − F_p of the particular solution, all in 50-digit mpmath.
+    k, length = 5.0e3, 2.0
+    w = k * (length / mu) ** 2
+    m0, m1 = mpmath.mpf(120), mpmath.mpf(-40)
+    functions = _linear_load_solution()
+    parameters = (mpmath.mpf(k), mpmath.mpf(w), m0, m1, mpmath.mpf(length))
+    derivatives = [
+        functools.partial(lambda f, at, *c: f(at, *parameters, *c), f) for f in functions
+    ]
+
+    def ends(values: Sequence[object], homogeneous: bool) -> tuple[list, list]:
+        def d(order: int, at: float) -> object:
+            value = derivatives[order](mpmath.mpf(at), *values)
+            return value - derivatives[order](mpmath.mpf(at), 0, 0, 0, 0) if homogeneous else value
+
+        torque = [k * d(1, at) - w * d(3, at) for at in (0, length)]
+        nodal = [d(0, 0), d(1, 0), d(0, length), d(1, length)]
+        forces = [-torque[0], -w * d(2, 0), torque[1], w * d(2, length)]
+        return nodal, forces
+
+    columns = [ends([int(i == j) for j in range(4)], True) for i in range(4)]
+    a = mpmath.matrix([[columns[j][0][i] for j in range(4)] for i in range(4)])
+    f = mpmath.matrix([[columns[j][1][i] for j in range(4)] for i in range(4)])
+    stiffness = f * mpmath.inverse(a)
+    nodal_p, forces_p = ends([0, 0, 0, 0], False)
+    loads = stiffness * mpmath.matrix(nodal_p) - mpmath.matrix(forces_p)
+
+    element = WarpingElements(np.array([length]), np.array([k]), np.array([w]))
+    ours = element.matrices()[0]
+    expected = np.array([[float(stiffness[i, j]) for j in range(4)] for i in range(4)])
+    assert np.allclose(ours, expected, rtol=1e-12, atol=1e-12 * np.abs(expected).max())
+    ours_loads = element.distributed_loads(np.array([float(m0)]), np.array([float(m1)]))[0]
+    expected_loads = np.array([float(v) for v in loads])
+    assert np.allclose(
+        ours_loads, expected_loads, rtol=1e-12, atol=1e-12 * np.abs(expected_loads).max()
+    )
