@@ -1,0 +1,91 @@
+"""Solver: speed of the restrained-warping member against a bare ``solve_banded`` of its system.
+
+Target (issue 14): 10⁵ warping elements, the whole solve (element matrices and consistent loads,
+banded assembly, supports, factorization, nodal values, element end forces and reactions) ≤ 5×
+:func:`scipy.linalg.solve_banded` of the same banded system (already assembled and constrained,
+so the bare side only factors and solves). The two sides take turns (side by side in one run).
+
+The member is an invented thin-walled beam: 10⁵ elements with λL from 10⁻² to 10³ (stiff and
+long elements both), restrained at both ends, a point torque every 1000 nodes and a linearly
+varying distributed torque on every element.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.linalg
+
+from tests.benchmarks.common import Row, time_pair
+from workbench.solver.assembly import assemble_band, prescribe
+from workbench.solver.warping_member import WarpingMember, solve_member
+
+MS = 1e3
+ELEMENTS = 100_000
+
+
+def _member() -> tuple[WarpingMember, np.ndarray, np.ndarray, np.ndarray]:
+    rng = np.random.default_rng(14)
+    length = rng.uniform(0.01, 0.05, ELEMENTS)
+    torsion = rng.uniform(5e3, 2e4, ELEMENTS)
+    mu = 10.0 ** rng.uniform(-2, 3, ELEMENTS)
+    warping = torsion * (length / mu) ** 2
+    node_x = np.concatenate([[0.0], np.cumsum(length)])
+    held = np.zeros(ELEMENTS + 1, bool)
+    held[[0, -1]] = True
+    member = WarpingMember(node_x, torsion, warping, held, held.copy())
+    nodal = np.zeros((1, ELEMENTS + 1))
+    nodal[0, 500::1000] = rng.uniform(-1e3, 1e3, len(nodal[0, 500::1000]))
+    start = rng.uniform(-50, 50, (1, ELEMENTS))
+    end = rng.uniform(-50, 50, (1, ELEMENTS))
+    return member, nodal, start, end
+
+
+def _banded(member: WarpingMember, nodal: np.ndarray, start: np.ndarray, end: np.ndarray):
+    """The same constrained system in scipy.linalg.solve_banded's storage, and its right side."""
+    elements = member.elements
+    loads = elements.distributed_loads(start, end)[0]
+    rhs = np.zeros((1, 1, 2 * (ELEMENTS + 1)))
+    rhs[0, 0, 0::2] = nodal[0]
+    rhs[0, 0, 0:-2:2] += loads[:, 0]
+    rhs[0, 0, 2::2] += loads[:, 2]
+    rhs[0, 0, 1:-2:2] += loads[:, 1]
+    rhs[0, 0, 3::2] += loads[:, 3]
+    band = assemble_band(elements, np.array([0, ELEMENTS + 1]), 1)
+    held = np.array([0, 1, 2 * ELEMENTS, 2 * ELEMENTS + 1])
+    prescribe(band, rhs, held, np.zeros((1, 4)))
+    width = band.half_width
+    return width, np.ascontiguousarray(band.values[width:]), rhs[0, 0].copy()
+
+
+def run() -> list[Row]:
+    """The 10⁵-element row."""
+    member, nodal, start, end = _member()
+    width, ab, rhs = _banded(member, nodal, start, end)
+
+    def bare() -> np.ndarray:
+        return scipy.linalg.solve_banded((width, width), ab, rhs, check_finite=False)
+
+    ours, reference = time_pair(
+        lambda: solve_member(member, nodal, start, end), bare, repeats=15, warmup=2
+    )
+    solution = solve_member(member, nodal, start, end)
+    bare_dofs = bare()
+    error = np.max(np.abs(solution.rotation[0] - bare_dofs[0::2])) / np.max(np.abs(bare_dofs))
+    notes = (
+        f"our side: solve_member on {ELEMENTS:,} elements (λL 10⁻²…10³): element matrices and "
+        f"consistent loads, band assembly, supports, LAPACK dgbtrf/dgbtrs, end forces, "
+        f"reactions; median {ours.median * MS:.1f} ms (best {ours.best * MS:.1f})",
+        f"bare side: scipy.linalg.solve_banded of the same assembled, constrained band "
+        f"(half-width {width}), median {reference.median * MS:.1f} ms; taking turns, "
+        f"{len(ours.times)} calls each",
+        f"largest difference of θ between the sides, relative to the largest θ: {error:.1e}",
+    )
+    return [
+        Row(
+            "10⁵ warping elements: solve / bare solve_banded",
+            ours.median / reference.median,
+            "×",
+            5.0,
+            notes=notes,
+        )
+    ]
