@@ -24,6 +24,7 @@ from workbench.design.sizing import SizingRequest, size_shafts, sizing_document,
 from workbench.design.transverse_hole import transverse_hole_kts
 from workbench.record.demo import FEED_DRIVE_CASE, LINE_SHAFT_CASE, demo_notebook
 from workbench.record.exporter import export_file
+from workbench.record.verify import _EARLIER_VIBRATION_REFERENCE
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 
@@ -48,6 +49,8 @@ def test_record_html_never_says_from_memory(name: str, tmp_path: Path) -> None:
     assert "<html" in text, name
     if name != "demo":
         assert "Kfs" in text, name  # the fatigue section, with its notch factors, was rendered
+        # The verifier maps records signed earlier onto this wording: it must be the one written.
+        assert _EARLIER_VIBRATION_REFERENCE[1] in text, name
     if name == "details":
         assert "cross hole" in text, name
     assert FROM_MEMORY not in text.lower(), name
