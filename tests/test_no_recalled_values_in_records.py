@@ -107,3 +107,8 @@ def test_no_source_that_reaches_a_report_says_from_memory() -> None:
     hole = transverse_hole_kts(0.008, 0.045)
     assert hole.source.endswith(NOT_TRACED)
     assert sum(NOT_TRACED in source for source in sources) == 2 + 2 * 4
+
+
+def test_readme_quotes_the_one_untraced_mark() -> None:
+    text = (Path(__file__).parents[1] / "README.md").read_text("utf-8")
+    assert NOT_TRACED in " ".join(text.split())
