@@ -32,13 +32,14 @@ from workbench.case.errors import InputError
 from workbench.design.check_inputs import batch_check_inputs
 from workbench.design.check_layout import check_layout
 from workbench.design.checks import model_check_inputs
-from workbench.design.concentration import shoulder_fillet_kts, transverse_hole_kts
+from workbench.design.concentration import shoulder_fillet_kts
 from workbench.design.static_checks import (
     CONCENTRATION_KINDS,
     StaticCheckInputs,
     StaticUtilisations,
     static_utilisations,
 )
+from workbench.design.transverse_hole import transverse_hole_kts
 from workbench.solver.analysis import Results, solve
 from workbench.solver.io import parse_case
 from workbench.solver.sections import polar_moment

@@ -38,11 +38,10 @@ from workbench.design.checks import run_checks
 from workbench.design.concentration import (
     shoulder_fillet_factors,
     shoulder_fillet_kts,
-    transverse_hole_factors,
-    transverse_hole_kts,
 )
 from workbench.design.sizing import SizingRequest, size_shafts
 from workbench.design.static_checks import StaticCheckInputs, static_utilisations
+from workbench.design.transverse_hole import transverse_hole_factors, transverse_hole_kts
 from workbench.solver.analysis import solve
 from workbench.solver.model import LoadCase, Model, PointTorque, Segment, Shaft, Support
 from workbench.solver.sections import SolidCircle

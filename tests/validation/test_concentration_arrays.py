@@ -35,9 +35,8 @@ from workbench.design.allowables import (
 from workbench.design.concentration import (
     shoulder_fillet_factors,
     shoulder_fillet_kts,
-    transverse_hole_factors,
-    transverse_hole_kts,
 )
+from workbench.design.transverse_hole import transverse_hole_factors, transverse_hole_kts
 
 SETTINGS = settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 TOLERANCE = 1e-12

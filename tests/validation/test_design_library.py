@@ -31,7 +31,6 @@ from workbench.design.concentration import (
     NORTON_TORSION_FITS,
     keyseat_kts,
     shoulder_fillet_kts,
-    transverse_hole_kts,
 )
 from workbench.design.plastic import (
     partly_plastic_torque,
@@ -45,6 +44,7 @@ from workbench.design.preferred import (
     round_up_preferred,
     round_up_to_list,
 )
+from workbench.design.transverse_hole import transverse_hole_kts
 
 MPA = 1e6
 GPA = 1e9
@@ -611,9 +611,17 @@ def test_partly_plastic_limits_and_errors() -> None:
 # ================================================================================================
 # Preferred numbers (ISO 3 / ISO 497)
 # ================================================================================================
-def test_r10_values() -> None:
-    # ISO 3, series R10 (from memory).
-    assert RENARD_SERIES["R10"] == (1.00, 1.25, 1.60, 2.00, 2.50, 3.15, 4.00, 5.00, 6.30, 8.00)
+def test_series_values_as_quoted_from_iso_3() -> None:
+    # ISO 3 basic series as quoted in Wikipedia, "Preferred number" (Renard numbers), copied in
+    # public source files: R10, then the R20 values not in R10 and the R40 values not in R20.
+    r10 = (1.00, 1.25, 1.60, 2.00, 2.50, 3.15, 4.00, 5.00, 6.30, 8.00)
+    r20_added = (1.12, 1.40, 1.80, 2.24, 2.80, 3.55, 4.50, 5.60, 7.10, 9.00)
+    r40_odd = (1.06, 1.32, 1.70, 2.12, 2.65, 3.35, 4.25, 5.30, 6.70, 8.50)
+    r40_even = (1.18, 1.50, 1.90, 2.36, 3.00, 3.75, 4.75, 6.00, 7.50, 9.50)
+    assert RENARD_SERIES["R5"] == (1.00, 1.60, 2.50, 4.00, 6.30)
+    assert RENARD_SERIES["R10"] == r10
+    assert RENARD_SERIES["R20"] == tuple(sorted(r10 + r20_added))
+    assert RENARD_SERIES["R40"] == tuple(sorted(r10 + r20_added + r40_odd + r40_even))
 
 
 @pytest.mark.parametrize(("name", "count"), [("R5", 5), ("R10", 10), ("R20", 20), ("R40", 40)])

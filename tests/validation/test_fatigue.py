@@ -19,7 +19,9 @@ the 10th ed. keeps most of them.
 * Table 6-2 (surface factor, both columns), eq. (6-20) (size factor, inch and mm forms),
   eq. (6-27) and Table 6-4 (temperature), read in a reproduction of the book's problem text.
 * Table 6-5 (reliability) against ke = 1 − 0.08·z_a with z_a from ``scipy.stats.norm``.
-* Notch sensitivity in torsion, eq. (6-35b) in kpsi (from memory), against its SI form
+* Notch sensitivity in torsion, eq. (6-35b) in kpsi as printed in the 9th ed., p. 296 (read in a
+  copy of that page, with eqs. (6-33), (6-34) and Fig. 6-21: "for larger notch radii, use the
+  values of q corresponding to r = 0.16 in (4 mm)"), against its SI form
   √a = 0.958 − 1.83e-3·Sut + 1.43e-6·Sut² − 4.11e-10·Sut³ (√mm, MPa) as quoted in published
   notes on the book (k78ma.github.io, "Notch Sensitivity"), and against the older rule "the
   bending fit at Sut + 20 kpsi" (Shigley 8th ed., from memory) with the bending fit
@@ -60,6 +62,8 @@ from workbench.case.errors import InputError
 from workbench.design.checks import run_checks
 from workbench.design.concentration import keyseat_kts, shoulder_fillet_kts
 from workbench.design.fatigue import (
+    CHART_NOTCH_RADIUS,
+    NEUBER_TORSION_POLYNOMIAL,
     RELIABILITY_FACTORS,
     SURFACE_FACTORS_KPSI,
     SURFACE_FACTORS_MPA,
@@ -807,3 +811,23 @@ def test_failure_lines_of_the_fatigue_diagram_follow_the_published_criteria() ->
     np.testing.assert_allclose(alternating + mean, shear_yield, rtol=1e-12)
     for mean, alternating in lines.values():  # each line runs from its τa intercept to τa = 0
         assert mean[0] == 0.0 and abs(alternating[-1]) < 1e-9 * endurance
+
+
+def test_neuber_torsion_fit_is_the_printed_one():
+    # Shigley 9th ed., p. 296, eq. (6-35b): √a = 0.190 − 2.51(10⁻³)Sut + 1.35(10⁻⁵)Sut²
+    # − 2.67(10⁻⁸)Sut³, √in with Sut in kpsi; eq. (6-34): q = 1/(1 + √a/√r).
+    assert NEUBER_TORSION_POLYNOMIAL == (0.190, -2.51e-3, 1.35e-5, -2.67e-8)
+    sqrt_a = 0.190 - 2.51e-3 * 100 + 1.35e-5 * 100**2 - 2.67e-8 * 100**3
+    q = notch_sensitivity_torsion(0.1 * 25.4e-3, 100.0 * KPSI)
+    assert q.value == pytest.approx(1.0 / (1.0 + sqrt_a / math.sqrt(0.1)), rel=1e-12)
+
+
+def test_notch_radius_beyond_the_chart_is_on_the_safe_side():
+    # Shigley 9th ed., Fig. 6-21 (p. 296): the chart ends at r = 0.16 in (4 mm) and says to use
+    # q at 0.16 in for larger radii; the relation at the actual radius gives a q at least as large.
+    assert pytest.approx(0.16 * 25.4e-3, rel=1e-12) == CHART_NOTCH_RADIUS
+    for strength_kpsi in (60.0, 100.0, 150.0, 200.0):
+        at_chart_end = notch_sensitivity_torsion(CHART_NOTCH_RADIUS, strength_kpsi * KPSI).value
+        beyond = notch_sensitivity_torsion(0.010, strength_kpsi * KPSI)
+        assert beyond.value >= at_chart_end
+        assert "beyond the charts' 0.16 in" in beyond.note

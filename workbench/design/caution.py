@@ -6,3 +6,7 @@ CAUTION = (
     "applicable codes and standards and licensed professional practice before use; a qualified "
     "engineer is responsible for the design."
 )
+
+#: The mark of a design-rule value (a range limit, a coefficient) that could not be read in a
+#: published table; every source string carrying such a value ends with it. Defined here only.
+NOT_TRACED = "(not traced to a published table — confirm against the applicable standard)"

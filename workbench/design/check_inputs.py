@@ -7,7 +7,7 @@ allowables) and each variant's solved arrays (internal torque, stress per unit t
 rotations) into the :class:`~workbench.design.static_checks.StaticCheckInputs` of the batch. Each
 stress-concentration fit is called once for every variant and segment
 (:func:`~workbench.design.concentration.shoulder_fillet_factors`,
-:func:`~workbench.design.concentration.transverse_hole_factors`,
+:func:`~workbench.design.transverse_hole.transverse_hole_factors`,
 :func:`~workbench.design.allowables.twenty_diameters_twist_rate`); there is no loop over variants
 or segments. :func:`workbench.design.checks.model_check_inputs` is the batch of one model.
 
@@ -42,13 +42,9 @@ from workbench.case.errors import InputError
 from workbench.case.units import quote
 from workbench.design.allowables import twenty_diameters_twist_rate
 from workbench.design.check_layout import CROSS_HOLE, KEYSEAT, NOTCH, SHOULDER, CheckLayout
-from workbench.design.concentration import (
-    ShoulderFilletFactors,
-    TransverseHoleFactors,
-    shoulder_fillet_factors,
-    transverse_hole_factors,
-)
+from workbench.design.concentration import ShoulderFilletFactors, shoulder_fillet_factors
 from workbench.design.static_checks import CONCENTRATION_KINDS, BoolArray, StaticCheckInputs
+from workbench.design.transverse_hole import TransverseHoleFactors, transverse_hole_factors
 from workbench.solver.sections import FloatArray, polar_moment
 
 

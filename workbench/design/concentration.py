@@ -1,10 +1,11 @@
 """Stress-concentration factors of shaft details in torsion.
 
 Each fit is one array function, broadcasting over inputs of any shape (a batch of variants ×
-segments at once): :func:`shoulder_fillet_factors` and :func:`transverse_hole_factors` return the
+segments at once): :func:`shoulder_fillet_factors` (and, for a transverse hole,
+:func:`workbench.design.transverse_hole.transverse_hole_factors`) return the
 factors with, element by element, whether the geometry lies inside the range the data cover and
 what was done instead when it does not. Nothing is extrapolated silently. The scalar functions
-(:func:`shoulder_fillet_kts`, :func:`transverse_hole_kts`) validate one geometry, call the array
+(:func:`shoulder_fillet_kts`) validate one geometry, call the array
 function and return a :class:`ConcentrationFactor` with its note and source for a report.
 
 Shoulder fillet
@@ -28,8 +29,7 @@ Shoulder fillet
     about 6 % for D/d ≥ 1.20.
 
 Transverse hole
-    Pilkey & Pilkey's polynomial for a solid bar in torsion, a *normal*-stress factor over the
-    gross nominal shear stress 16T/(πD³); valid for 0 ≤ d/D ≤ 0.4 (range from memory).
+    In :mod:`workbench.design.transverse_hole`.
 
 Keyseat
     Shigley's first-iteration estimate Kts ≈ 3.0 for an end-milled keyseat.
@@ -39,7 +39,7 @@ References
 .. [1] R. L. Norton, *Machine Design: An Integrated Approach*, Prentice Hall, Appendix C,
    stress-concentration factor for a shaft with a shoulder fillet in torsion (curve fits).
 .. [2] W. D. Pilkey and D. F. Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., Wiley,
-   2008, ch. 3 (shoulder fillets) and ch. 4 (transverse hole in a bar in torsion).
+   2008, ch. 3 (shoulder fillets).
 .. [3] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, McGraw-Hill,
    Table 7-1 (first-iteration estimates of stress-concentration factors).
 """
@@ -73,19 +73,9 @@ NORTON_TORSION_FITS: tuple[tuple[float, float, float], ...] = (
 #: r/d range this module treats as covered by the shoulder-fillet fits.
 FILLET_RATIO_RANGE: tuple[float, float] = (0.02, 0.30)
 
-#: d/D range of the transverse-hole polynomial (from memory).
-HOLE_RATIO_RANGE: tuple[float, float] = (0.0, 0.4)
-
-#: Pilkey & Pilkey's transverse-hole polynomial coefficients, lowest power first.
-HOLE_POLYNOMIAL: tuple[float, ...] = (4.0, -6.055, 32.764, -38.33)
-
 _NORTON_SOURCE = (
     "Norton, Machine Design, App. C: fit Kts = A(r/d)^b to Peterson's charts, shaft shoulder "
     "fillet in torsion"
-)
-_HOLE_SOURCE = (
-    "Pilkey & Pilkey, Peterson's Stress Concentration Factors, 3rd ed., transverse hole in a "
-    "solid bar in torsion (validity range 0 ≤ d/D ≤ 0.4 from memory)"
 )
 _SHIGLEY_SOURCE = "Shigley's Mechanical Engineering Design, Table 7-1 (first-iteration estimate)"
 
@@ -98,15 +88,15 @@ _NO_SHOULDER = 1e-9
 
 # Ratios within this relative distance of a range limit count as on it: 0.02/0.05 is not
 # exactly 0.4 in binary floating point, and a 20 mm hole in a 50 mm shaft is in range.
-_EDGE = 1e-9
+RANGE_EDGE = 1e-9
 
 
-def _near(ratio: FloatArray, limit: float) -> BoolArray:
-    """Where ``ratio`` lies within :data:`_EDGE` (relative) of ``limit``: on it."""
-    return np.abs(ratio - limit) <= _EDGE * limit
+def near_limit(ratio: FloatArray, limit: float) -> BoolArray:
+    """Where ``ratio`` lies within :data:`RANGE_EDGE` (relative) of ``limit``: on it."""
+    return np.abs(ratio - limit) <= RANGE_EDGE * limit
 
 
-def _positive(*values: FloatArray) -> BoolArray:
+def all_positive(*values: FloatArray) -> BoolArray:
     """Where every one of ``values`` is finite and greater than zero."""
     result = np.ones(values[0].shape, dtype=bool)
     for value in values:
@@ -114,7 +104,7 @@ def _positive(*values: FloatArray) -> BoolArray:
     return result
 
 
-def _broadcast(*values: ArrayLike) -> list[FloatArray]:
+def broadcast_floats(*values: ArrayLike) -> list[FloatArray]:
     """``values`` as float arrays broadcast to one shape (views, no copies)."""
     return list(np.broadcast_arrays(*(np.asarray(value, dtype=float) for value in values)))
 
@@ -169,7 +159,7 @@ class ShoulderFilletTerms(NamedTuple):
 
 def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> ShoulderFilletTerms:
     """D/d, r/d, the r/d evaluated, the fits and their weights, of 1-d arrays of one length."""
-    defined = _positive(big, small, radius) & (big >= small)
+    defined = all_positive(big, small, radius) & (big >= small)
     lowest_r, highest_r = FILLET_RATIO_RANGE
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         diameter_ratio, fillet_ratio = big / small, radius / small
@@ -181,11 +171,11 @@ def _shoulder_terms(big: FloatArray, small: FloatArray, radius: FloatArray) -> S
         below, above = held - _FIT_RATIOS[lower], _FIT_RATIOS[lower + 1] - held
         weight = below / _FIT_GAPS[lower]
         # On a fitted ratio (within 1e-9) that ratio's fit alone applies.
-        weight[below <= _EDGE * _FIT_RATIOS[lower]] = 0.0
-        weight[above <= _EDGE * _FIT_RATIOS[lower + 1]] = 1.0
+        weight[below <= RANGE_EDGE * _FIT_RATIOS[lower]] = 0.0
+        weight[above <= RANGE_EDGE * _FIT_RATIOS[lower + 1]] = 1.0
         evaluated = np.minimum(fillet_ratio, highest_r)
-        evaluated[evaluated >= highest_r * (1.0 - _EDGE)] = highest_r
-        evaluated[_near(evaluated, lowest_r)] = lowest_r
+        evaluated[evaluated >= highest_r * (1.0 - RANGE_EDGE)] = highest_r
+        evaluated[near_limit(evaluated, lowest_r)] = lowest_r
     return ShoulderFilletTerms(diameter_ratio, fillet_ratio, evaluated, lower, weight, defined)
 
 
@@ -279,10 +269,10 @@ class ShoulderFilletFactors:
         lowest_r, highest_r = FILLET_RATIO_RANGE
         fillet, ratio = terms.fillet_ratio, terms.diameter_ratio
         outside = (
-            shoulder & (fillet > highest_r) & ~_near(fillet, highest_r),
-            shoulder & (fillet < lowest_r) & ~_near(fillet, lowest_r),
-            shoulder & (ratio > _FIT_RATIOS[-1]) & ~_near(ratio, _FIT_RATIOS[-1]),
-            shoulder & (ratio < _FIT_RATIOS[0]) & ~_near(ratio, _FIT_RATIOS[0]),
+            shoulder & (fillet > highest_r) & ~near_limit(fillet, highest_r),
+            shoulder & (fillet < lowest_r) & ~near_limit(fillet, lowest_r),
+            shoulder & (ratio > _FIT_RATIOS[-1]) & ~near_limit(ratio, _FIT_RATIOS[-1]),
+            shoulder & (ratio < _FIT_RATIOS[0]) & ~near_limit(ratio, _FIT_RATIOS[0]),
         )
         in_range = terms.defined & ~np.logical_or.reduce(outside)
         return ShoulderFilletFlags(terms.defined & ~shoulder, *outside, in_range)
@@ -383,7 +373,7 @@ def shoulder_fillet_factors(
     >>> [round(value, 4) for value in factors.value.tolist()], factors.in_range.tolist()
     ([1.5957, 2.196], [True, False])
     """
-    big, small, radius = _broadcast(big_diameter, small_diameter, fillet_radius)
+    big, small, radius = broadcast_floats(big_diameter, small_diameter, fillet_radius)
     if big.size > BLOCK:
         value = by_blocks(_shoulder_kts, big, small, radius)
         return ShoulderFilletFactors(value, big, small, radius)
@@ -461,159 +451,3 @@ def keyseat_kts() -> ConcentrationFactor:
         "is dimensioned; nominal stress 16T/(πd³)",
         _SHIGLEY_SOURCE,
     )
-
-
-# --- transverse hole -----------------------------------------------------------------------------
-def _hole_ratio(hole: FloatArray, shaft: FloatArray) -> FloatArray:
-    """d/D, or NaN where a diameter is not finite and positive or d ≥ D."""
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        ratio = hole / shaft
-    ratio[~(_positive(hole, shaft) & (hole < shaft))] = np.nan
-    return ratio
-
-
-def _hole_ktg(hole: FloatArray, shaft: FloatArray) -> FloatArray:
-    """Pilkey & Pilkey's polynomial at d/D, held at the fit's upper end above it."""
-    highest = HOLE_RATIO_RANGE[1]
-    evaluated = np.minimum(_hole_ratio(hole, shaft), highest)
-    evaluated[evaluated >= highest * (1.0 - _EDGE)] = highest  # on the limit within 1e-9
-    value = np.zeros(evaluated.shape)
-    for coefficient in reversed(HOLE_POLYNOMIAL):  # Horner: four coefficients, not elements
-        value *= evaluated
-        value += coefficient
-    return value
-
-
-@dataclass(frozen=True)
-class TransverseHoleFactors:
-    """Transverse-hole factors element by element, and how each was found (arrays of one shape).
-
-    Attributes
-    ----------
-    value
-        Ktg = σ_max/τ_nom (dimensionless) on the gross nominal shear stress 16T/(πD³); NaN where
-        the inputs define no factor.
-    hole_diameter, shaft_diameter
-        The inputs d and D (m), broadcast to the shape of ``value``.
-    """
-
-    value: FloatArray
-    hole_diameter: FloatArray
-    shaft_diameter: FloatArray
-
-    @functools.cached_property
-    def hole_ratio(self) -> FloatArray:
-        """d/D (NaN where not defined); within 1e-9 (relative) of the fit's end it is on it."""
-        ratio = _hole_ratio(np.ravel(self.hole_diameter), np.ravel(self.shaft_diameter))
-        return np.reshape(ratio, self.value.shape)
-
-    @functools.cached_property
-    def defined(self) -> BoolArray:
-        """Where d and D are finite and positive and d < D."""
-        return ~np.isnan(self.hole_ratio)
-
-    @functools.cached_property
-    def above(self) -> BoolArray:
-        """d/D above the fit's range: the value at its upper end, NOT conservative."""
-        highest = HOLE_RATIO_RANGE[1]
-        return self.defined & (self.hole_ratio > highest) & ~_near(self.hole_ratio, highest)
-
-    @functools.cached_property
-    def in_range(self) -> BoolArray:
-        """Where the factor is defined and d/D lies inside the fit's range."""
-        return self.defined & ~self.above
-
-    def note(self, index: Any = ()) -> str:
-        """What was computed for one element (``index`` into the arrays), and how."""
-        if not self.defined[index]:
-            return "no factor: a diameter is not finite and positive, or the hole is not smaller"
-        kind = "largest normal stress over the gross nominal shear stress 16T/(πD³)"
-        hole_ratio, highest = float(self.hole_ratio[index]), HOLE_RATIO_RANGE[1]
-        if self.above[index]:
-            return (
-                f"d/D = {hole_ratio:.3g} is above the fit's {highest:g}: value at "
-                f"d/D = {highest:g}, NOT conservative (the factor rises with d/D at the end of the "
-                f"fit); confirm by chart or analysis; {kind}"
-            )
-        return f"d/D = {hole_ratio:.3g}; {kind}"
-
-    def at(self, index: Any = ()) -> ConcentrationFactor:
-        """One element as a :class:`ConcentrationFactor`, with its note and source."""
-        return ConcentrationFactor(
-            float(self.value[index]), bool(self.in_range[index]), self.note(index), _HOLE_SOURCE
-        )
-
-
-def transverse_hole_factors(
-    hole_diameter: ArrayLike, shaft_diameter: ArrayLike
-) -> TransverseHoleFactors:
-    """Factors of transverse (radial, through) holes in solid shafts, broadcast element by element.
-
-    Parameters
-    ----------
-    hole_diameter
-        Hole diameters d (m), any shape broadcasting with ``shaft_diameter``.
-    shaft_diameter
-        Shaft diameters D (m).
-
-    Returns
-    -------
-    TransverseHoleFactors
-        Ktg = σ_max/τ_nom with τ_nom = 16T/(πD³) on the gross section: the largest *normal*
-        stress at the hole edge over the nominal shear stress. Above d/D = 0.4 the value at
-        d/D = 0.4, flagged as not conservative (the factor rises with d/D there). NaN where a
-        diameter is not finite and positive or d ≥ D.
-
-    References
-    ----------
-    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., transverse hole
-       in a solid bar in torsion: Ktg = 4 − 6.055(d/D) + 32.764(d/D)² − 38.33(d/D)³, the
-       coefficients in :data:`HOLE_POLYNOMIAL`.
-
-    Examples
-    --------
-    >>> factors = transverse_hole_factors([0.01, 0.03], 0.05)
-    >>> factors.value.round(5).tolist(), factors.in_range.tolist()
-    ([3.79292, 4.36712], [True, False])
-    """
-    hole, shaft = _broadcast(hole_diameter, shaft_diameter)
-    return TransverseHoleFactors(by_blocks(_hole_ktg, hole, shaft), hole, shaft)
-
-
-def transverse_hole_kts(hole_diameter: float, shaft_diameter: float) -> ConcentrationFactor:
-    """Stress-concentration factor of one transverse (radial, through) hole in a solid shaft.
-
-    The one geometry checked, then :func:`transverse_hole_factors` evaluates it.
-
-    Parameters
-    ----------
-    hole_diameter
-        Hole diameter d (m).
-    shaft_diameter
-        Shaft diameter D (m), greater than d.
-
-    Returns
-    -------
-    ConcentrationFactor
-        Ktg = σ_max/τ_nom on the gross nominal shear stress 16T/(πD³), with ``in_range``, a note
-        and the source (above d/D = 0.4 the value at 0.4, flagged as not conservative).
-
-    Raises
-    ------
-    InputError
-        A diameter is not a finite positive number, or d ≥ D.
-
-    References
-    ----------
-    .. [1] Pilkey & Pilkey, *Peterson's Stress Concentration Factors*, 3rd ed., as
-       :func:`transverse_hole_factors`.
-    """
-    require_positive("hole_diameter", hole_diameter)
-    require_positive("shaft_diameter", shaft_diameter)
-    if hole_diameter >= shaft_diameter:
-        msg = (
-            f"must be smaller than the shaft diameter ({quote(hole_diameter, 'length')} ≥ "
-            f"{quote(shaft_diameter, 'length')})"
-        )
-        raise InputError(field="hole_diameter", message=msg)
-    return transverse_hole_factors(hole_diameter, shaft_diameter).at()

@@ -2,8 +2,10 @@
 
 The series hold the rounded values of 10^(i/n), i = 0 … n−1, for n = 5, 10, 20, 40 in one
 decade; every decade repeats them times a power of ten. Each series contains every other term
-of the next finer one. The values below are recalled (from memory), not read from a copy of the
-standard; the tests check them against 10^(i/n) and the nesting of the series.
+of the next finer one. The values below were checked against a secondary quotation of the
+ISO 3 tables (reference [3]: R5, R10, the R20 values not in R10 and the R40 values not in R20),
+not against a copy of the standard itself; the tests also check them against 10^(i/n) and the
+nesting of the series.
 
 Rounding is exact in decimal: each candidate size is formed as an integer number of hundredths
 times a power of ten in one correctly rounded floating-point operation, so a value that already
@@ -14,6 +16,8 @@ References
 .. [1] ISO 3:1973, *Preferred numbers — Series of preferred numbers*.
 .. [2] ISO 497:1973, *Guide to the choice of series of preferred numbers and of series
    containing more rounded values of preferred numbers*.
+.. [3] Wikipedia, "Preferred number", section "Renard numbers" (the R5, R10, R20 and R40 basic
+   series of ISO 3), as quoted in public source files that copy its tables.
 """
 
 from __future__ import annotations
@@ -25,7 +29,7 @@ from workbench.case.errors import InputError, quoted
 from workbench.case.units import quote
 from workbench.case.validate import require_positive
 
-# Rounded preferred numbers of one decade, in hundredths (from memory).
+# Rounded preferred numbers of one decade, in hundredths (ISO 3 basic series, as quoted in [3]).
 _HUNDREDTHS: dict[str, tuple[int, ...]] = {
     "R5": (100, 160, 250, 400, 630),
     "R10": (100, 125, 160, 200, 250, 315, 400, 500, 630, 800),

@@ -22,7 +22,7 @@ names from this package:
 Choices these modules make, stated again where they apply:
 
 * Kfs multiplies the mean stress as well as the alternating one unless another mean-stress factor
-  Kfsm is given (Shigley's conservative practice for shafts; from memory).
+  Kfsm is given (Shigley 9th ed., eqs. (7-5) and (7-6), p. 368).
 * Only the magnitude of the mean shear stress counts: the sign of a shear stress is fixed only by
   the positive sense chosen for the torque, which an isotropic round member cannot tell apart, so
   a mean torque of either sense has the same effect (symmetry argument; Shigley treats the
@@ -44,9 +44,11 @@ References
    the load factor; eq. (6-27) and Table 6-4 the temperature factor; eq. (6-29) and Table 6-5 the
    reliability factor; eqs. (6-32) to (6-35) notch sensitivity; §6-12 to §6-15 the Goodman,
    Gerber, ASME-elliptic, Soderberg and Langer lines, and torsional fatigue (Ssu = 0.67 Sut);
-   ch. 7 (shaft design, Kfs applied to the mean stress). Equation and table numbers as in the
-   9th ed., from memory; the Table 6-2, eq. (6-20), eq. (6-27) and Table 6-4 values were read in
-   a reproduction of the book's problem text and match memory.
+   ch. 7 (shaft design, Kfs applied to the mean stress). Read in the 9th ed.: eqs. (6-32) to
+   (6-35b) and Fig. 6-21 (pp. 295-296), (6-36), (6-45) to (6-49), (6-54), (5-21) (summary,
+   pp. 346-347) and (7-5), (7-6) (p. 368); the Table 6-2, eq. (6-20), eq. (6-27) and Table 6-4
+   values in a reproduction of the book's problem text. The other equation numbers are from
+   memory.
 .. [2] H. Neuber, *Kerbspannungslehre*, Springer, 1937/1958; P. Kuhn and H. F. Hardrath, "An
    engineering method for estimating notch-size effect in fatigue tests on steel", NACA TN 2805,
    1952 (the relation q = 1/(1 + √a/√r) and the data for √a of steels).

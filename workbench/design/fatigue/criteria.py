@@ -8,7 +8,9 @@ stress by its magnitude, from memory).
 References
 ----------
 .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
-   McGraw-Hill, §6-12 to §6-15 (numbers as in the 9th ed., from memory).
+   McGraw-Hill, §6-12 (p. 303) and the summary pp. 346-347: eqs. (6-45) Soderberg, (6-46)
+   modified Goodman, (6-47) Gerber, (6-48) ASME-elliptic, (6-49) first-cycle (Langer) yield;
+   for torsion τ for σ, kc = 0.59, Ssu = 0.67 Sut and Ssy = 0.577 Sy (p. 347).
 .. [2] ASME B106.1M-1985, *Design of Transmission Shafting* (the elliptic criterion).
 """
 

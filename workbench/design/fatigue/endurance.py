@@ -3,8 +3,9 @@
 References
 ----------
 .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
-   McGraw-Hill, ch. 6: eq. (6-8) Se' of steels, eq. (6-18) the Marin equation, eq. (6-54)
-   Ssu = 0.67 Sut; ch. 5, eq. (5-21) Ssy = Sy/√3 (numbers as in the 9th ed., from memory).
+   McGraw-Hill, ch. 6: eq. (6-8) Se' of steels, eq. (6-18) the Marin equation (these two numbers
+   from memory); eq. (6-54) Ssu = 0.67 Sut (p. 317) and ch. 5, eq. (5-21) Ssy = 0.577 Sy
+   (p. 297), both as cited in the book's summary of fatigue equations, p. 347.
 """
 
 from __future__ import annotations
@@ -217,7 +218,8 @@ def ultimate_shear_strength(ultimate_strength: float) -> float:
 
     References
     ----------
-    .. [1] Shigley's *Mechanical Engineering Design*, 9th ed., eq. (6-54) (from memory).
+    .. [1] Shigley's *Mechanical Engineering Design*, 9th ed., eq. (6-54), p. 317, as cited on
+       p. 347 ("replace Sut with Ssu = 0.67Sut").
     """
     require_positive("ultimate_strength", ultimate_strength, "stress")
     return ULTIMATE_SHEAR_RATIO * ultimate_strength

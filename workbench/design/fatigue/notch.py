@@ -3,7 +3,9 @@
 References
 ----------
 .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
-   McGraw-Hill, eqs. (6-32) to (6-35b) (numbers as in the 9th ed., from memory).
+   McGraw-Hill, §6-10, p. 296: eqs. (6-33) (Neuber), (6-34) (q from √a), (6-35b) (√a in torsion)
+   and Fig. 6-21 (notch sensitivity in reversed torsion, r up to 0.16 in), read in a copy of
+   that page.
 .. [2] H. Neuber, *Kerbspannungslehre*, Springer, 1937/1958; P. Kuhn and H. F. Hardrath, "An
    engineering method for estimating notch-size effect in fatigue tests on steel", NACA TN 2805,
    1952 (the relation q = 1/(1 + √a/√r) and the data for √a of steels).
@@ -24,7 +26,8 @@ from workbench.design.fatigue.conventions import INCH, KPSI, SHIGLEY, require_nu
 NEUBER_TORSION_POLYNOMIAL: tuple[float, ...] = (0.190, -2.51e-3, 1.35e-5, -2.67e-8)
 #: Sut range (Pa) of that fit: 50 to 250 kpsi.
 NEUBER_STRENGTH_RANGE: tuple[float, float] = (50.0 * KPSI, 250.0 * KPSI)
-#: Largest notch radius the notch-sensitivity charts show, 0.16 in ≈ 4 mm (from memory).
+#: Largest notch radius the notch-sensitivity chart shows, 0.16 in ≈ 4 mm (Shigley 9th ed.,
+#: Fig. 6-21, p. 296, which says to use q at r = 0.16 in for larger radii).
 CHART_NOTCH_RADIUS = 0.16 * INCH
 
 
@@ -55,7 +58,7 @@ class NotchSensitivity:
 
 _NEUBER_SOURCE = (
     f"Neuber relation q = 1/(1 + √a/√r) with Shigley's fit for √a in torsion ({SHIGLEY}, "
-    "eqs. 6-33 to 6-35b; coefficients from memory, matching a published quotation)"
+    "eqs. 6-33, 6-34 and 6-35b, Fig. 6-21; 9th ed. p. 296)"
 )
 
 
@@ -96,10 +99,9 @@ def notch_sensitivity_torsion(notch_radius: float, ultimate_strength: float) -> 
     References
     ----------
     .. [1] Shigley's *Mechanical Engineering Design*, 9th ed., eqs. (6-33), (6-34) (Neuber
-       equation) and (6-35b) (√a in torsion), Fig. 6-21 (notch sensitivity in reversed torsion). The
-       coefficients are from memory; they agree with a published quotation of the fit
-       (k78ma.github.io notes on notch sensitivity), and the older rule "use the bending fit at
-       Sut + 20 kpsi" gives the same q within 1 % (see the tests).
+       equation) and (6-35b) (√a in torsion), Fig. 6-21 (notch sensitivity in reversed torsion),
+       p. 296: the coefficients 0.190, −2.51e-3, 1.35e-5, −2.67e-8 as printed there. The older
+       rule "use the bending fit at Sut + 20 kpsi" gives the same q within 1 % (see the tests).
     .. [2] Kuhn and Hardrath, NACA TN 2805, 1952.
     """
     if notch_radius == 0.0:

@@ -1,12 +1,15 @@
 """The mean and alternating shear stress of a torque cycle at a detail.
 
 Kfs multiplies the mean stress as well as the alternating one unless another mean-stress factor
-Kfsm is given (Shigley's conservative practice for shafts; from memory).
+Kfsm is given (as Shigley's shaft equations (7-5) and (7-6), 9th ed. p. 368, apply Kfs to the
+midrange torque as well; the book notes the factor is sometimes taken as optional there for
+ductile materials).
 
 References
 ----------
 .. [1] R. G. Budynas and J. K. Nisbett, *Shigley's Mechanical Engineering Design*, 9th ed.,
-   McGraw-Hill, eq. (6-36) and ch. 7 (numbers as in the 9th ed., from memory).
+   McGraw-Hill, eq. (6-36), p. 301 (σm = (σmax + σmin)/2, σa = |σmax − σmin|/2, as cited on
+   p. 346) and eqs. (7-5), (7-6), p. 368.
 """
 
 from __future__ import annotations
