@@ -3,18 +3,18 @@
 Opens the demo notebook (:mod:`tests.browser.lab`), then: clicks segment 1 on the drawing and
 types its new outer diameter into the inspector (the stress chart must redraw); drags the point
 torque's ring along the shaft (its position in the inspector must follow); and, with key events
-only, picks a support by typing its name into the parts finder, tabs to its position and types a new one. Screenshots
+only, picks a support by typing its name into the parts finder, tabs to its position and types a
+new one. Screenshots
 of each state go to ``test-artifacts/`` (their paths are printed into the test log).
 """
 
 from __future__ import annotations
 
-from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
 
-from tests.browser.lab import Lab, chromium, jupyter_lab, open_and_run_all
+from tests.browser.lab import Lab, chromium, open_and_run_all
 from tests.browser.test_lab import ARTIFACTS, shot
 
 _STRESS = ".wb-chart-stress path.line"
@@ -22,14 +22,6 @@ _CHANGED = (
     "([selector, old]) => { const paths = document.querySelectorAll(selector);"
     " return paths.length && paths[paths.length - 1].getAttribute('d') !== old; }"
 )
-
-
-@pytest.fixture
-def lab(tmp_path: Path) -> Iterator[Lab]:
-    scratch = tmp_path / "lab"
-    scratch.mkdir()
-    with jupyter_lab(scratch) as running:
-        yield running
 
 
 def _point(page: object, name: str) -> object:

@@ -12,13 +12,12 @@ Screenshots of each state go to ``test-artifacts/`` (their paths are printed int
 
 from __future__ import annotations
 
-from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
 import pytest
 
-from tests.browser.lab import ROOT, Lab, chromium, jupyter_lab, open_and_run_all
+from tests.browser.lab import ROOT, Lab, chromium, open_and_run_all
 
 ARTIFACTS = ROOT / "test-artifacts"
 DIAMETER = ".widget-text.wb-at-shafts-0-segments-0-section-diameter input"
@@ -40,14 +39,6 @@ MARKS = """(figure) => {
     .filter((dot) => getComputedStyle(dot).fill === 'FAIL_COLOUR' && visible(dot)).length;
   return {bars, crosses};
 }""".replace("FAIL_COLOUR", FAIL_RGB).replace("LIMIT_COLOUR", LIMIT_RGB)
-
-
-@pytest.fixture
-def lab(tmp_path: Path) -> Iterator[Lab]:
-    scratch = tmp_path / "lab"
-    scratch.mkdir()
-    with jupyter_lab(scratch) as running:
-        yield running
 
 
 @pytest.mark.browser

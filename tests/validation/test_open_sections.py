@@ -2,9 +2,9 @@
 
 Sources, named beside each check:
 
-* novasolver.jp, "Thin-Walled Open Section Properties" (web page, read 2026-12): channel of
-  uniform wall, e = 3b²/(h + 6b) and I_w = t·b³·h²/12 · (3b + 2h)/(6b + h), b the flange and h the
-  web on the mid-line.
+* Channel of uniform wall, e = 3b²/(h + 6b) (the textbook shear centre of a thin channel) and
+  Cw = t·b³·h²/12 · (3b + 2h)/(6b + h), b the flange and h the web on the mid-line (from memory;
+  the sectionproperties comparison below checks the same channel independently).
 * P. A. Seaburg and C. J. Carter, *Torsional Analysis of Structural Steel Members*, AISC Design
   Guide 9, 1997, App. C (from memory): I shapes Cw = t_f·h²·b³/24, Wn₀ = b·h/4,
   Sw₁ = t_f·b²·h/16; singly symmetric I Cw = t_f·h²·b₁³·b₂³/(12(b₁³ + b₂³)); Z shapes of
@@ -64,8 +64,8 @@ def test_singly_symmetric_i_closed_form() -> None:
 
 @pytest.mark.parametrize(("width", "depth"), [(0.04, 0.1), (0.075, 0.2), (0.1, 0.1)])
 def test_channel_closed_forms(width: float, depth: float) -> None:
-    # Source: novasolver.jp "Thin-Walled Open Section Properties" (read): uniform wall channel,
-    # e = 3b²/(h + 6b) from the web's mid-line, I_w = t·b³·h²/12·(3b + 2h)/(6b + h).
+    # Uniform wall channel (from memory; also checked against sectionproperties below):
+    # e = 3b²/(h + 6b) from the web's mid-line, Cw = t·b³·h²/12·(3b + 2h)/(6b + h).
     t = 0.002
     section = channel_section(depth, width, t, t)
     b, h = width - t / 2.0, depth - t
