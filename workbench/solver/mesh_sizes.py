@@ -148,22 +148,35 @@ def size_mesh(
     # Each input is in range, but a product or quotient of them may not be: that is checked
     # on the results, so numpy's warnings about it are not wanted.
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
-        geometry = _sizes(topology, segments, node_x, nodes_moved)
-    require_element_constants(
-        segments,
-        topology.element_segment_row,
-        topology.station_element,
-        geometry.station_rigidity,
-        geometry.station_stress_per_torque,
-        geometry.flexibility,
-    )
+        geometry, element_rigidity, element_stress = _sizes(topology, segments, node_x, nodes_moved)
+    if topology.two_stations:  # both stations of an element hold its values: check those
+        require_element_constants(
+            segments,
+            topology.element_segment_row,
+            None,
+            element_rigidity,
+            element_stress,
+            geometry.flexibility,
+        )
+    else:
+        require_element_constants(
+            segments,
+            topology.element_segment_row,
+            topology.station_element,
+            geometry.station_rigidity,
+            geometry.station_stress_per_torque,
+            geometry.flexibility,
+        )
     return geometry
 
 
 def _sizes(
     topology: MeshTopology, segments: SegmentTable, node_x: FloatArray, nodes_moved: bool
-) -> Geometry:
-    """The work of :func:`size_mesh`, without its checks."""
+) -> tuple[Geometry, FloatArray, FloatArray]:
+    """The work of :func:`size_mesh`, without its checks; also each element's G·K and τ/T.
+
+    The elements' values are (n_variants or 1, n_elements) (N·m², 1/m³).
+    """
     n_variants = max(segments.n_variants, node_x.shape[0])
     x_start, x_end = start_and_end_values(topology, node_x)
     length = x_end - x_start
@@ -234,7 +247,7 @@ def _sizes(
         station_x = node_x[:, topology.element_start_node[element]] + station_u
         # An element's end station is its end node, exactly (x listed twice at a jump must match).
         station_x[:, ends] = x_end
-    return Geometry(
+    geometry = Geometry(
         node_x=node_x,
         element_length=np.broadcast_to(length, (n_variants, n_elements)),
         flexibility=flexibility,
@@ -245,6 +258,7 @@ def _sizes(
         interior_moments=interior_moments,
         nodes_moved=nodes_moved,
     )
+    return geometry, element_rigidity, element_stress
 
 
 def _size_varying(
