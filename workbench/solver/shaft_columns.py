@@ -178,7 +178,10 @@ class _Picked:
 
 @dataclass(frozen=True)
 class _Taken:
-    """The sections of one flat type, as the numbers the loader took of them (file units)."""
+    """Sections of one circular shape, as the numbers the loader took of them (file units).
+
+    Circular sections are flat (every key a number), so the loader takes them all.
+    """
 
     numbers: Any  # (type, key) → column, as ShaftKeys.section_numbers
     count: int
