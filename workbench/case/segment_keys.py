@@ -58,7 +58,8 @@ def _flat_numbers(cls: type) -> tuple[str, ...] | None:
 
 
 @functools.cache
-def _required(cls: type) -> frozenset[str]:
+def required_keys(cls: type) -> frozenset[str]:
+    """The keys of a declared object that are never left out."""
     return frozenset(item.name for item in msgspec.structs.fields(cls) if item.required)
 
 
@@ -137,7 +138,7 @@ def read_shaft_keys(segments: Sequence[declared.Segment]) -> ShaftKeys:
 def _numbers(members: Sequence[Any], cls: type, name: str) -> FloatArray:
     """Key ``name`` of every member: one pass; NaN where an optional key is left out."""
     values = map(operator.attrgetter(name), members)
-    if name in _required(cls):
+    if name in required_keys(cls):
         return np.fromiter(values, float, len(members))
     given = declared.given
     return np.fromiter((v if given(v) else np.nan for v in values), float, len(members))
@@ -201,6 +202,7 @@ __all__ = [
     "SECTION_TYPES",
     "ShaftKeys",
     "read_shaft_keys",
+    "required_keys",
     "segment_keys",
     "take_segment_keys",
 ]

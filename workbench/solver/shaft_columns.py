@@ -31,7 +31,7 @@ import numpy as np
 from workbench.case import declaration as declared
 from workbench.case.errors import InputError
 from workbench.case.materials import Material
-from workbench.case.segment_keys import NO_SECTION, SECTION_TYPES, ShaftKeys
+from workbench.case.segment_keys import NO_SECTION, SECTION_TYPES, ShaftKeys, required_keys
 from workbench.case.validate import all_normal_positive, not_normal_positive, within
 from workbench.solver.build import ModelBuilder
 from workbench.solver.columns import GIVEN, SOLID, TAPERED, TUBE, BoolArray, IntArray, section_row
@@ -97,12 +97,6 @@ def _shape_codes(sections: list[Any]) -> np.ndarray[Any, np.dtype[np.int8]]:
     """(n,) the shape code of each section (:data:`_LAYERED` where there is none)."""
     codes = map(_CODE_OF_TYPE.__getitem__, map(type, sections))
     return np.fromiter(codes, np.int8, len(sections))
-
-
-@functools.cache
-def _required(cls: type) -> frozenset[str]:
-    """The keys of a declared object that are never left out."""
-    return frozenset(item.name for item in msgspec.structs.fields(cls) if item.required)
 
 
 def _not_positive(values: FloatArray) -> BoolArray | None:
@@ -248,7 +242,7 @@ class ShaftReader:
             return self.taken_si(entries.numbers[cls, name], cls, name)
         values = map(operator.attrgetter(name), entries)
         count = len(entries)
-        if name in _required(cls):
+        if name in required_keys(cls):
             column = np.fromiter(values, float, count)
         else:
             default = declared.default_of(cls, name)
@@ -259,7 +253,7 @@ class ShaftReader:
 
     def taken_si(self, column: FloatArray, cls: type, name: str) -> FloatArray:
         """A column the loader took of key ``name`` (file units, NaN where left out) in SI."""
-        if name not in _required(cls):
+        if name not in required_keys(cls):
             default = declared.default_of(cls, name)
             if default is not None:
                 column = np.where(np.isnan(column), float(default), column)
