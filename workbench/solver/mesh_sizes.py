@@ -149,24 +149,16 @@ def size_mesh(
     # on the results, so numpy's warnings about it are not wanted.
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
         geometry, element_rigidity, element_stress = _sizes(topology, segments, node_x, nodes_moved)
-    if topology.two_stations:  # both stations of an element hold its values: check those
-        require_element_constants(
-            segments,
-            topology.element_segment_row,
-            None,
-            element_rigidity,
-            element_stress,
-            geometry.flexibility,
-        )
-    else:
-        require_element_constants(
-            segments,
-            topology.element_segment_row,
-            topology.station_element,
-            geometry.station_rigidity,
-            geometry.station_stress_per_torque,
-            geometry.flexibility,
-        )
+    # Both stations of an element of two stations hold its values: check the elements'.
+    two = topology.two_stations
+    require_element_constants(
+        segments,
+        topology.element_segment_row,
+        None if two else topology.station_element,
+        element_rigidity if two else geometry.station_rigidity,
+        element_stress if two else geometry.station_stress_per_torque,
+        geometry.flexibility,
+    )
     return geometry
 
 
