@@ -6,10 +6,8 @@ taking turns so that both see the same machine):
 * 20-segment shaft, 3 load cases: ``solve(model)`` median ≤ 1 ms (p95 reported).
 * 100,000 segments: ``solve`` ≤ 1 s and ≤ 500 MB peak memory; t(100k)/t(10k) ≤ 12.
 * The whole pipeline from the decoded case file to its ``Results`` at 10⁵ and 10⁶ segments
-  (:func:`~workbench.solver.analysis.solve_case`: the table taken key by key from the file's
-  structs and checked on whole columns, then solved): ≤ 5× a bare numpy build +
-  ``scipy.linalg.solve_banded`` of the same system; 10⁶ segments ≤ 2 s. Decoding and validating
-  the bytes (before it), building the table and solving it are reported apart.
+  (:mod:`tests.benchmarks.solver_pipeline`): ≤ 5× a bare numpy build +
+  ``scipy.linalg.solve_banded`` of the same system; 10⁶ segments ≤ 2 s.
 * 1,000 load cases on a 50-segment shaft: ≤ 5× ``solve_banded`` with 1,000 right-hand sides, one
   factorization.
 * A batched diameter sweep, 10,000 variants of a 20-segment shaft: ≤ 1 s.
@@ -24,9 +22,7 @@ from __future__ import annotations
 
 import dataclasses
 import functools
-import gc
 import statistics
-import time
 from typing import Any
 
 import numpy as np
@@ -35,7 +31,6 @@ from scipy.linalg import lapack
 from tests.benchmarks.bare_solver import agreement, bare_solve, plain_system
 from tests.benchmarks.common import (
     Row,
-    demo_case_text,
     demo_shaft_model,
     many_case_model,
     resource_use,
@@ -45,6 +40,7 @@ from tests.benchmarks.common import (
     time_calls,
     time_pair,
 )
+from tests.benchmarks.solver_pipeline import pipeline_versus_bare
 from workbench.solver import analysis, assembly, statics
 from workbench.solver.batch import solve_batch
 from workbench.solver.columns import case_table
@@ -207,74 +203,6 @@ def _large_shaft_memory() -> list[Row]:
         ),
         Row("100k segments: model building (no target)", probe["build"] * MS, "ms"),
     ]
-
-
-def _pipeline_versus_bare() -> list[Row]:
-    """The decoded case file → Results, against a bare numpy build + solve_banded."""
-    from workbench.case.load import check_case_bytes, decode_case_file
-    from workbench.solver.case_columns import case_system
-
-    rows = []
-    for segments, repeats, label in ((100_000, 21, "100k"), (1_000_000, 11, "1M")):
-        data = demo_case_text(segments, distributed=False)
-        decoding = time_calls(lambda data=data: decode_case_file(data), repeats=3)
-        case = decode_case_file(data)
-        validating = time_calls(
-            lambda data=data, case=case: check_case_bytes(data, case), repeats=3
-        )
-        del data
-        gc.collect()
-        start = time.perf_counter()
-        analysis.solve_case(case)
-        cold = time.perf_counter() - start
-        tabling = time_calls(lambda case=case: case_system(case), repeats=7)
-        table = case_system(case).table
-        solving = time_calls(lambda table=table: statics.solve_table(table), repeats=7)
-        plain = plain_system(table)
-        ours, bare = time_pair(
-            lambda case=case: analysis.solve_case(case),
-            lambda plain=plain: bare_solve(plain),
-            repeats=repeats,
-        )
-        ratio = ours.median / bare.median
-        per = 1e9 / segments
-        notes = (
-            f"our side: solve_case(case), the decoded case file (msgspec structs, file units) → "
-            f"Results, median {ours.median * MS:.0f} ms: the table taken key by key and checked "
-            f"on whole columns, meshing, element constants, banded LAPACK, T/θ/τ at every "
-            "station, reactions; no object per segment",
-            f"its parts, timed apart (medians): table from the case file {tabling.median * MS:.0f} "
-            f"ms ({tabling.median * per:.0f} ns/segment), solve of the table "
-            f"{solving.median * MS:.0f} ms ({solving.median * per:.0f} ns/segment); before it, "
-            f"decode {decoding.median * MS:.0f} ms ({decoding.median * per:.0f} ns/segment) and "
-            f"validation {validating.median * MS:.0f} ms ({validating.median * per:.0f} "
-            "ns/segment) of the bytes",
-            f"bare side: G·J/L from the same columns, the tridiagonal band without the fixed "
-            f"ends, loads, scipy.linalg.solve_banded, median {bare.median * MS:.1f} ms",
-            f"the two sides took turns, {len(ours.times)} calls each; best {ours.best * MS:.0f} "
-            f"against {bare.best * MS:.1f} ms ({ours.best / bare.best:.1f}×); first call "
-            f"{cold * MS:.0f} ms",
-            agreement(None, bare_solve(plain), analysis.solve_case(case)),
-            f"per call, ours: {resource_use(lambda case=case: analysis.solve_case(case))}; bare: "
-            f"{resource_use(lambda plain=plain: bare_solve(plain))}",
-        )
-        row = Row(
-            f"{label} segments: case file → results / bare solve_banded",
-            ratio,
-            "×",
-            5.0,
-            notes=notes,
-        )
-        rows.append(row)
-        rows.append(Row(f"{label} segments: table from the case file", tabling.median * MS, "ms"))
-        rows.append(Row(f"{label} segments: solve of the table", solving.median * MS, "ms"))
-        if segments == 1_000_000:
-            rows.append(
-                Row("1M segments: case file → results median", ours.median * MS, "ms", 2000.0)
-            )
-        del case, table
-        gc.collect()
-    return rows
 
 
 class _CountingLapack:
@@ -589,7 +517,7 @@ def versus_banded() -> list[Row]:
 
 def pipeline() -> list[Row]:
     """The whole pipeline at 10⁵ and 10⁶ segments (run in a fresh interpreter)."""
-    return _pipeline_versus_bare()
+    return pipeline_versus_bare()
 
 
 def run() -> list[Row]:

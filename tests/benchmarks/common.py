@@ -97,11 +97,19 @@ class Timing:
     """Wall-clock times of repeated calls (s)."""
 
     times: tuple[float, ...]
+    #: CPU time of this process over the same calls (s), where it was taken (a shared machine
+    #: slows the wall clock, much less the CPU time of the work itself).
+    cpu_times: tuple[float, ...] = ()
 
     @property
     def median(self) -> float:
         """Median time (s)."""
         return statistics.median(self.times)
+
+    @property
+    def cpu_median(self) -> float:
+        """Median CPU time (s); NaN where it was not taken."""
+        return statistics.median(self.cpu_times) if self.cpu_times else math.nan
 
     @property
     def p95(self) -> float:
@@ -142,15 +150,17 @@ def time_pair(
         first()
         second()
     times: tuple[list[float], list[float]] = ([], [])
+    cpu: tuple[list[float], list[float]] = ([], [])
     with _collector_off():
         for _ in range(repeats):
-            for call, out in ((first, times[0]), (second, times[1])):
-                start = time.perf_counter()
+            for call, out, cpu_out in ((first, times[0], cpu[0]), (second, times[1], cpu[1])):
+                start, cpu_start = time.perf_counter(), time.process_time()
                 result = call()
                 out.append(time.perf_counter() - start)
+                cpu_out.append(time.process_time() - cpu_start)
                 del result
                 gc.collect()
-    return Timing(tuple(times[0])), Timing(tuple(times[1]))
+    return Timing(tuple(times[0]), tuple(cpu[0])), Timing(tuple(times[1]), tuple(cpu[1]))
 
 
 def time_calls(

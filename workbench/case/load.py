@@ -26,6 +26,7 @@ import numpy as np
 
 from workbench.case.declaration import MAX_FILE_BYTES, MAX_SEGMENTS, CaseFile, Segment
 from workbench.case.errors import InputError
+from workbench.case.segment_keys import take_segment_keys
 from workbench.case.text import (
     check_depth,
     check_number_digits,
@@ -218,9 +219,12 @@ def case_file_from_document(document: Any) -> CaseFile:
 def check_segment_alternatives(case: CaseFile) -> None:
     """Raise on the first segment that gives neither or both of its alternatives.
 
-    Checked on whole lists of segments, in C, rather than by each segment as it is decoded;
-    the first segment in error gets the message of the declared
-    :attr:`Segment.alternatives <workbench.case.declaration.Segment>` under its field path.
+    Checked on whole lists of segments, in C, rather than by each segment as it is decoded:
+    the segments' keys are taken as columns once (:func:`~workbench.case.segment_keys.take_segment_keys`,
+    kept with the case for the solver), and they show the common case, every segment one material
+    and a section and no layers. Otherwise the first segment in error gets the message of the
+    declared :attr:`Segment.alternatives <workbench.case.declaration.Segment>` under its field
+    path.
 
     Raises
     ------
@@ -228,17 +232,14 @@ def check_segment_alternatives(case: CaseFile) -> None:
         ``shafts[0].segments[3].material: give either material and section, or layers, not
         both`` and the like.
     """
-    for number, shaft in enumerate(case.shafts):  # a loop over shafts
+    taken = take_segment_keys(case)
+    for number, (shaft, keys) in enumerate(zip(case.shafts, taken, strict=True)):
+        if keys.sections_complete():
+            continue  # every segment a material and a section: the common case
         segments = shaft.segments
+        count = len(segments)
         # A given material is a name and a given list of layers is not empty (both declared
         # so) and a section is an object: "given" is truth (null and UNSET are false).
-        if (
-            not any(map(_LAYERS, segments))
-            and all(map(_MATERIAL, segments))
-            and all(map(_SECTION, segments))
-        ):
-            continue  # every segment a material and a section: the common case
-        count = len(segments)
         material, section, layers = (
             np.fromiter(map(bool, map(read, segments)), bool, count)
             for read in (_MATERIAL, _SECTION, _LAYERS)

@@ -46,8 +46,18 @@ def all_normal_positive(values: Any) -> bool:
 
 
 def all_finite(values: Any) -> bool:
-    """Whether every value is a finite number (none: true), by two reductions, without a mask."""
-    return not np.size(values) or bool(np.isfinite(np.min(values)) and np.isfinite(np.max(values)))
+    """Whether every value is a finite number (none: true), without a mask the size of the values.
+
+    One reduction finds the common case: a sum of finite numbers that stays finite. A sum
+    holding an infinity or NaN is not finite, but neither is one that overflows: then the
+    smallest and largest values tell.
+    """
+    if not np.size(values):
+        return True
+    with np.errstate(over="ignore", invalid="ignore"):  # an overflow is told apart just below
+        if np.isfinite(np.sum(values)):
+            return True
+    return bool(np.isfinite(np.min(values)) and np.isfinite(np.max(values)))
 
 
 def require_positive(name: str, value: float, quantity: str = "length") -> None:

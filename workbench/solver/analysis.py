@@ -90,6 +90,8 @@ def solve(model: Model, mesh: Mesh | None = None) -> Results:
 def solve_case(case: CaseFile) -> Results:
     """Solve a decoded case file straight from its columns: no Python object per segment.
 
+    The segments' columns are those the loader kept with the case
+    (:mod:`workbench.case.segment_keys`), or read from its objects when it was edited since.
     The same results as ``solve(build_model(case))`` (the same columns, mesh and arithmetic),
     and the same error for bad input, field path and message; the model is built only if a
     reader of the results asks for :attr:`Results.model`.

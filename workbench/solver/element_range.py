@@ -54,7 +54,7 @@ def require_every_segment(shaft: int, segment_of: IntArray, n_segments: int) -> 
 def require_element_constants(
     segments: SegmentTable,
     element_segment_row: IntArray,
-    station_element: IntArray,
+    station_element: IntArray | None,
     station_rigidity: FloatArray,
     station_stress_per_torque: FloatArray,
     flexibility: FloatArray,
@@ -69,9 +69,10 @@ def require_element_constants(
     segments
         The segment columns (lengths in m, for the message; field paths).
     element_segment_row, station_element
-        (n_elements,) segment row of each element; (n_stations,) element of each station.
+        (n_elements,) segment row of each element; (n_stations,) element of each station, or
+        ``None`` when the values below are the elements' (each station holds its element's).
     station_rigidity, station_stress_per_torque
-        (n_variants, n_stations) G·K (N·m²) and τ/T (1/m³).
+        (n_variants, n_stations) G·K (N·m²) and τ/T (1/m³), or (n_variants or 1, n_elements).
     flexibility
         (n_variants, n_elements, 3) I₀, I₁, I₂ (1/(N·m), m/(N·m), m²/(N·m)).
     """
@@ -85,7 +86,8 @@ def require_element_constants(
         bad = not_normal_positive(values)
         if bad.any():
             variant, station = _first(bad)
-            row = int(element_segment_row[station_element[station]])
+            element = station if station_element is None else station_element[station]
+            row = int(element_segment_row[element])
             msg = f"{what} comes to {float(values[variant, station]):.3g} {unit}, {_OUT_OF_RANGE}"
             raise InputError(f"{segments.segment_path(row)}.section", msg)
     if all_normal_positive(flexibility[..., 0]) and all_finite(flexibility[..., 1:]):

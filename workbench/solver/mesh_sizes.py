@@ -148,13 +148,15 @@ def size_mesh(
     # Each input is in range, but a product or quotient of them may not be: that is checked
     # on the results, so numpy's warnings about it are not wanted.
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
-        geometry = _sizes(topology, segments, node_x, nodes_moved)
+        geometry, element_rigidity, element_stress = _sizes(topology, segments, node_x, nodes_moved)
+    # Both stations of an element of two stations hold its values: check the elements'.
+    two = topology.two_stations
     require_element_constants(
         segments,
         topology.element_segment_row,
-        topology.station_element,
-        geometry.station_rigidity,
-        geometry.station_stress_per_torque,
+        None if two else topology.station_element,
+        element_rigidity if two else geometry.station_rigidity,
+        element_stress if two else geometry.station_stress_per_torque,
         geometry.flexibility,
     )
     return geometry
@@ -162,8 +164,11 @@ def size_mesh(
 
 def _sizes(
     topology: MeshTopology, segments: SegmentTable, node_x: FloatArray, nodes_moved: bool
-) -> Geometry:
-    """The work of :func:`size_mesh`, without its checks."""
+) -> tuple[Geometry, FloatArray, FloatArray]:
+    """The work of :func:`size_mesh`, without its checks; also each element's G·K and τ/T.
+
+    The elements' values are (n_variants or 1, n_elements) (N·m², 1/m³).
+    """
     n_variants = max(segments.n_variants, node_x.shape[0])
     x_start, x_end = start_and_end_values(topology, node_x)
     length = x_end - x_start
@@ -234,7 +239,7 @@ def _sizes(
         station_x = node_x[:, topology.element_start_node[element]] + station_u
         # An element's end station is its end node, exactly (x listed twice at a jump must match).
         station_x[:, ends] = x_end
-    return Geometry(
+    geometry = Geometry(
         node_x=node_x,
         element_length=np.broadcast_to(length, (n_variants, n_elements)),
         flexibility=flexibility,
@@ -245,6 +250,7 @@ def _sizes(
         interior_moments=interior_moments,
         nodes_moved=nodes_moved,
     )
+    return geometry, element_rigidity, element_stress
 
 
 def _size_varying(

@@ -70,12 +70,33 @@ Text = Annotated[str, msgspec.Meta(max_length=MAX_STRING_LENGTH)]
 UnitText = Annotated[str, msgspec.Meta(max_length=MAX_UNIT_LENGTH)]
 
 
+#: How many times a key of a case object has been set in this process (see :func:`edit_count`).
+_EDITS = [0]
+
+
 class Keys(msgspec.Struct, forbid_unknown_fields=True, gc=False):
     """Base of every object of a case file: unknown keys are refused.
 
     ``gc=False``: decoded case data never holds reference cycles, and a million segments are
     then not tracked by the cyclic garbage collector.
+
+    Setting a key counts an edit (:func:`edit_count`); decoding and constructing do not set
+    keys one by one and count nothing.
     """
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        _EDITS[0] += 1
+        super().__setattr__(name, value)
+
+
+def edit_count() -> int:
+    """How many keys of case objects have been set in this process, of any case.
+
+    What is taken from a decoded case and kept beside it (its segments' columns,
+    :mod:`workbench.case.segment_keys`) records this count, and is not used once it has moved:
+    an edit anywhere may have changed the case it was taken from.
+    """
+    return _EDITS[0]
 
 
 def key(

@@ -197,7 +197,9 @@ class OperatingSpeed(Keys):
     max: Annotated[float, key("Highest running speed, not less than min", "speed", gt=0)]
 
 
-class CaseFile(Keys, kw_only=True):
+# dict=True: the loader keeps the segments' columns beside the keys (workbench.case.segment_keys),
+# never written, compared or copied with them (msgspec allows a __dict__ only with gc=True).
+class CaseFile(Keys, kw_only=True, gc=True, dict=True):
     """A case file, version 1."""
 
     title: Annotated[Text, key("Free text naming the case", default="")] | UnsetType | None = UNSET  # fmt: skip
