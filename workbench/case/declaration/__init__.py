@@ -70,8 +70,9 @@ from workbench.case.declaration.members import (
     SupportKind,
     Torque,
     Units,
+    WarpingKind,
 )
-from workbench.case.declaration.shapes import SHAPES, Section, Wall
+from workbench.case.declaration.shapes import OPEN_SHAPES, SHAPES, MidlinePoint, Section, Wall
 
 
 @functools.cache
@@ -147,6 +148,7 @@ __all__ = [
     "MAX_STRING_LENGTH",
     "MAX_UNIT_LENGTH",
     "MEAN_CONCENTRATIONS",
+    "OPEN_SHAPES",
     "POSITION_TOLERANCE",
     "QUANTITIES",
     "RELIABILITIES",
@@ -168,6 +170,7 @@ __all__ = [
     "LoadCase",
     "Material",
     "MeshKind",
+    "MidlinePoint",
     "Notch",
     "OperatingSpeed",
     "RotationLimit",
@@ -181,6 +184,7 @@ __all__ = [
     "Units",
     "Unwrapped",
     "Wall",
+    "WarpingKind",
     "declared_numbers",
     "declared_structs",
     "default_of",

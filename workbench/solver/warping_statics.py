@@ -1,0 +1,494 @@
+"""The static solution of a system where some segment warps: θ and θ′ at every node.
+
+:func:`solve_warping_table` is the path :func:`~workbench.solver.statics.solve_table` takes when
+a segment's warping rigidity E·Cw is positive. Every element is an exact restrained-warping
+element (:class:`~workbench.solver.warping_element.WarpingElements`); where E·Cw = 0 (circular,
+tapered, layered or closed parts) it is the exact Saint-Venant element on θ with θ′ taking no
+part, and a node whose neighbours all have E·Cw = 0 has its θ′ held at 0 (condensed out), so the
+system stays regular. Shafts, spring and fixed supports, prescribed rotations and gear meshes
+(constraints on θ only) are those of the one-rotation path; a support with ``"warping":
+"restrained"`` also holds θ′ = 0. One factorization (banded LAPACK, or SuperLU with gears)
+solves every load case.
+
+Recovery is exact: the internal torque by equilibrium of each element's end forces, the state
+inside a warping element from its two exact sub-elements (:func:`~workbench.solver.
+warping_member.element_states`), θ inside a Saint-Venant element from ∫T/(G·K) as on the
+one-rotation path. Results add, at every station, θ′, θ″, θ‴, the Saint-Venant torque G·J·θ′,
+the warping torque −E·Cw·θ‴ and the bimoment B = −E·Cw·θ″ (design §2); where a section does
+not warp, θ′ = T/(G·K) and θ″, θ‴, the warping torque and B are reported as 0.
+
+References
+----------
+.. [1] V. Z. Vlasov, *Thin-Walled Elastic Beams*, 2nd ed., 1961, ch. V.
+.. [2] W. McGuire, R. H. Gallagher and R. D. Ziemian, *Matrix Structural Analysis*, 2nd ed.,
+   Wiley, 2000, ch. 2-3 (assembly, prescribed displacements, condensation), §8.5 (the element
+   with θ and θ′ per node) and ch. 12 (constraints by Lagrange multipliers).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any, Protocol
+
+import numpy as np
+
+from workbench.case.errors import InputError, MechanismError
+from workbench.solver.assembly import (
+    BandFactor,
+    SparseFactor,
+    add_diagonal,
+    assemble_band,
+    bordered,
+    prescribe,
+    split_constrained,
+    with_constraints,
+)
+from workbench.solver.columns import WARPING_RESTRAINED, CaseTable, IntArray
+from workbench.solver.elements import SaintVenantElements
+from workbench.solver.recovery import ElementLoads, combine, fixed_reactions, station_values
+from workbench.solver.sections import FloatArray
+from workbench.solver.soundness import Soundness, rcond_limit, shaft_residuals
+from workbench.solver.warping_element import WarpingElements
+from workbench.solver.warping_member import element_states
+
+if TYPE_CHECKING:
+    from workbench.solver.mesh import Mesh
+    from workbench.solver.mesh_sizes import Geometry
+
+
+class SupportColumns(Protocol):
+    """The supports on the mesh as the static solve holds them (fixed held, springs).
+
+    ``fixed_rotation`` (1, n_fixed) (rad), ``spring_stiffness`` (1, n_springs) (N·m/rad),
+    ``spring_rotation`` (1, n_springs) (rad).
+    """
+
+    @property
+    def fixed(self) -> IntArray: ...
+    @property
+    def fixed_nodes(self) -> IntArray: ...
+    @property
+    def fixed_rotation(self) -> FloatArray: ...
+    @property
+    def springs(self) -> IntArray: ...
+    @property
+    def spring_nodes(self) -> IntArray: ...
+    @property
+    def spring_stiffness(self) -> FloatArray: ...
+    @property
+    def spring_rotation(self) -> FloatArray: ...
+
+
+@dataclass(frozen=True)
+class WarpingStationValues:
+    """The restrained-torsion state at every station: arrays (n_results, n_variants, n_stations).
+
+    ``rate`` θ′ (rad/m), ``second`` θ″ (rad/m²), ``third`` θ‴ (rad/m³), ``saint_venant_torque``
+    G·J·θ′ (N·m), ``warping_torque`` −E·Cw·θ‴ (N·m), ``bimoment`` B = −E·Cw·θ″ (N·m²); and
+    ``bimoment_reactions`` (n_results, n_variants, n_supports) the generalised force of each
+    warping restraint (N·m², 0 where a support leaves warping free).
+    """
+
+    rate: FloatArray
+    second: FloatArray
+    third: FloatArray
+    saint_venant_torque: FloatArray
+    warping_torque: FloatArray
+    bimoment: FloatArray
+    bimoment_reactions: FloatArray
+
+
+#: The arrays of :class:`WarpingStationValues` at stations, in order.
+STATION_ARRAYS = ("rate", "second", "third", "saint_venant_torque", "warping_torque", "bimoment")
+
+
+@dataclass(frozen=True)
+class WarpingSolve:
+    """What the restrained-torsion solve hands back to :func:`~workbench.solver.statics.solve_table`.
+
+    Arrays have the load cases (not yet combined) first, one variant: ``node_angle``
+    (n_cases, 1, n_nodes) (rad); ``reactions`` (n_cases, 1, n_supports) (N·m); ``gear_torques``
+    (n_cases, 1, n_gears, 2) (N·m); ``torque``, ``angle`` (n_cases, 1, n_stations);
+    ``warping`` the station values, combined.
+    """
+
+    node_angle: FloatArray
+    reactions: FloatArray
+    gear_torques: FloatArray
+    torque: FloatArray
+    angle: FloatArray
+    saint_venant_torque: FloatArray
+    warping: WarpingStationValues
+    factor: BandFactor | SparseFactor
+    soundness: Soundness
+
+
+def _elements(table: CaseTable, mesh: Mesh, geometry: Geometry) -> WarpingElements:
+    """Every element of the mesh as a restrained-warping element (Saint-Venant where E·Cw = 0)."""
+    rigidity = table.segments.warping_rigidity
+    assert rigidity is not None
+    warping = rigidity[0, mesh.element_segment_row]
+    saint_venant = SaintVenantElements(geometry.flexibility).stiffness[0]
+    length = geometry.element_length[0]
+    # A warping part is prismatic and single-layered: its G·J is k·L exactly.
+    return WarpingElements(length, saint_venant * length, warping, saint_venant)
+
+
+def _consistent_loads(
+    elements: WarpingElements, loads: ElementLoads, geometry: Geometry
+) -> FloatArray:
+    """(n_cases, n_loaded, 4) exact consistent loads of the distributed torques on θ and θ′."""
+    chosen = loads.elements
+    start, end = loads.start[:, 0], loads.end[:, 0]
+    part = WarpingElements(
+        elements.length[chosen], elements.torsion[chosen], elements.warping[chosen]
+    )
+    exact = part.distributed_loads(start, end)
+    # Where E·Cw = 0 the Saint-Venant element's loads are exact for any taper.
+    plain = elements.warping[chosen] == 0.0
+    if plain.any():
+        start_load, end_load = SaintVenantElements(geometry.flexibility).consistent_loads(
+            chosen, loads.length, np.stack([loads.start, loads.end], axis=-1)
+        )
+        exact[..., 0] = np.where(plain, start_load[:, 0], exact[..., 0])
+        exact[..., 2] = np.where(plain, end_load[:, 0], exact[..., 2])
+    return exact
+
+
+def _warping_nodes(mesh: Mesh, warping: FloatArray) -> np.ndarray:
+    """(n_nodes,) whether an element beside the node warps: its θ′ is solved for."""
+    warps = np.zeros(int(mesh.shaft_node_start[-1]), dtype=bool)
+    start = mesh.element_start_node
+    warps[start[warping > 0.0]] = True
+    warps[start[warping > 0.0] + 1] = True
+    return warps
+
+
+def solve_warping_table(
+    table: CaseTable,
+    mesh: Mesh,
+    geometry: Geometry,
+    supports: SupportColumns,
+    loads: ElementLoads,
+    point: FloatArray,
+    method: str,
+) -> WarpingSolve:
+    """Solve every load case of a system where some segment warps.
+
+    Parameters
+    ----------
+    table, mesh, geometry
+        The system, its mesh and the mesh's sizes (one variant).
+    supports
+        The supports on the mesh (fixed held, springs on the diagonal).
+    loads
+        The distributed torques on the loaded elements.
+    point
+        (n_cases, 1, n_nodes) point torques at the nodes (N·m).
+    method
+        ``"auto"`` or ``"band"``: banded LAPACK without gears; ``"sparse"``: SuperLU.
+
+    Raises
+    ------
+    InputError
+        For a batch of variants (restrained warping is solved one case at a time), gears held
+        at both ends, or ``method="band"`` with gears.
+    MechanismError
+        When a pivot vanishes: part of the system is free to spin.
+    """
+    if geometry.n_variants > 1 or table.n_variants > 1:
+        msg = "a case whose sections warp is solved one variant at a time, not as a batch"
+        raise InputError("shafts", msg)
+    elements = _elements(table, mesh, geometry)
+    n_cases, n_nodes = table.n_cases, int(mesh.shaft_node_start[-1])
+    start_node = mesh.element_start_node
+    rhs = np.zeros((n_cases, 1, 2 * n_nodes))
+    rhs[:, 0, 0::2] = point[:, 0]
+    element_loads = np.zeros((n_cases, len(start_node), 4))
+    if len(loads.elements):
+        element_loads[:, loads.elements] = _consistent_loads(elements, loads, geometry)
+        # Each element starts at a node of its own: no index repeats within one column.
+        for column in range(4):  # the element's four degrees of freedom
+            rhs[:, 0, 2 * start_node + column] += element_loads[..., column]
+    spring_dofs = 2 * supports.spring_nodes
+    rhs[:, 0, spring_dofs] += supports.spring_stiffness * supports.spring_rotation
+
+    band = assemble_band(elements, mesh.shaft_node_start, 1)
+    add_diagonal(band, spring_dofs, supports.spring_stiffness)
+    warps = _warping_nodes(mesh, elements.warping)
+    silent = np.flatnonzero(~warps)
+    add_diagonal(band, 2 * silent + 1, np.ones((1, len(silent))))
+    support_node = mesh.nodes_of(table.support_shaft, table.support_x)
+    restrained = support_node[table.support_warping == WARPING_RESTRAINED]
+    held_rates = np.union1d(2 * silent + 1, 2 * restrained + 1)
+    held = np.concatenate([2 * supports.fixed_nodes, held_rates])
+    values = np.concatenate([supports.fixed_rotation, np.zeros((1, len(held_rates)))], axis=1)
+    loaded = rhs.copy()  # the loads before any degree of freedom is held
+    prescribe(band, rhs, held, values)
+
+    dofs, multipliers, gear_nodes, factor = _factor_and_solve(
+        table, mesh, band, rhs, supports, method
+    )
+    if isinstance(factor, BandFactor) and len(factor.zero_pivots):
+        raise MechanismError("supports", "the supports leave part of the system free to spin")
+    dofs[..., held] = values
+    # One step of refinement, its residual summed element by element (as on the one-rotation
+    # path): the torques of stiff short elements then keep their own accuracy.
+    residual = _residual(
+        loaded, elements, start_node, dofs, supports, multipliers, gear_nodes, table
+    )
+    residual[..., held] = 0.0
+    dofs, multipliers = _refined(factor, residual, dofs, multipliers, gear_nodes, table)
+    dofs[..., held] = values
+    node_angle, node_rate = dofs[..., 0::2], dofs[..., 1::2]
+
+    # End forces (−T(0), B(0), T(L), −B(L)) of every element, less its consistent loads.
+    nodal = np.stack(
+        [
+            node_angle[:, 0, start_node],
+            node_rate[:, 0, start_node],
+            node_angle[:, 0, start_node + 1],
+            node_rate[:, 0, start_node + 1],
+        ],
+        axis=-1,
+    )
+    end_forces = elements.end_forces(nodal) - element_loads
+    start = -end_forces[:, None, :, 0]
+    end = end_forces[:, None, :, 2]
+
+    gear_torques = -multipliers[..., None] * table.gear_coefficient
+    external = point.copy()
+    at_gears: Any = (slice(None), slice(None), gear_nodes.ravel())
+    np.add.at(external, at_gears, gear_torques.reshape(n_cases, 1, -1))
+    spring_reactions = -supports.spring_stiffness * (
+        node_angle[..., supports.spring_nodes] - supports.spring_rotation
+    )
+    at_springs: Any = (slice(None), slice(None), supports.spring_nodes)
+    np.add.at(external, at_springs, spring_reactions)
+    reactions = np.zeros((n_cases, 1, len(table.support_x)))
+    reactions[..., supports.springs] = spring_reactions
+    reactions[..., supports.fixed] = fixed_reactions(
+        mesh, supports.fixed_nodes, start, end, external
+    )
+    bimoment_balance = np.zeros((n_cases, n_nodes))
+    bimoment_balance[:, start_node] += end_forces[..., 1]  # a node of its own per element
+    bimoment_balance[:, start_node + 1] += end_forces[..., 3]
+    at_restrained = np.zeros((n_cases, 1, len(table.support_x)))
+    stated = table.support_warping == WARPING_RESTRAINED
+    at_restrained[:, 0, stated] = bimoment_balance[:, support_node[stated]]
+
+    n_stations = len(mesh.station_element)
+    torque = np.empty((n_cases, 1, n_stations))
+    angle = np.empty_like(torque)
+    station_values(mesh, geometry, start, end, node_angle, loads, torque, angle)
+    station = _station_states(
+        mesh, geometry, elements, loads, node_angle, node_rate, warps, end_forces, torque, angle
+    )
+    factors = table.combination_factors
+    _, rate, second, third, saint_venant, warping_torque, bimoment = station
+    warping = WarpingStationValues(
+        rate=combine(rate, factors),
+        second=combine(second, factors),
+        third=combine(third, factors),
+        saint_venant_torque=combine(saint_venant, factors),
+        warping_torque=combine(warping_torque, factors),
+        bimoment=combine(bimoment, factors),
+        bimoment_reactions=combine(at_restrained, factors),
+    )
+    soundness = _soundness(table, factor, elements, reactions, gear_torques)
+    return WarpingSolve(
+        node_angle=node_angle,
+        reactions=reactions,
+        gear_torques=gear_torques,
+        torque=torque,
+        angle=station[0],
+        saint_venant_torque=station[4],
+        warping=warping,
+        factor=factor,
+        soundness=soundness,
+    )
+
+
+def _station_states(
+    mesh: Mesh,
+    geometry: Geometry,
+    elements: WarpingElements,
+    loads: ElementLoads,
+    node_angle: FloatArray,
+    node_rate: FloatArray,
+    warps: np.ndarray,
+    end_forces: FloatArray,
+    torque: FloatArray,
+    angle: FloatArray,
+) -> tuple[FloatArray, ...]:
+    """(θ, θ′, θ″, θ‴, G·J·θ′, −E·Cw·θ‴, B), each (n_cases, 1, n_stations).
+
+    Stations of Saint-Venant elements keep θ and T of the one-rotation recovery, with
+    θ′ = T/(G·K); stations of warping elements take the exact state of
+    :func:`~workbench.solver.warping_member.element_states`.
+    """
+    element = mesh.station_element
+    rate = torque / geometry.station_rigidity[None]
+    second, third, bimoment = (np.zeros_like(torque) for _ in range(3))
+    angle = angle.copy()
+    warping = elements.warping[element]
+    held_rate = np.where(warps, node_rate, 0.0)
+    u = geometry.station_u[0]
+    # Stations on an element's ends: the nodal θ′ and the end forces' bimoment, B(0) = f₂ and
+    # B(L) = −f₄ (the end forces are (−T(0), B(0), T(L), −B(L))).
+    ends = np.flatnonzero((warping > 0.0) & ((u == 0.0) | mesh.station_is_end))
+    if ends.size:
+        on = element[ends]
+        at_end = mesh.station_is_end[ends]
+        node = mesh.element_start_node[on] + at_end
+        rate[:, 0, ends] = held_rate[:, 0, node]
+        bimoment[:, 0, ends] = np.where(at_end, -end_forces[:, on, 3], end_forces[:, on, 1])
+    inside = np.flatnonzero((warping > 0.0) & (u > 0.0) & ~mesh.station_is_end)
+    if inside.size:
+        on = element[inside]
+        node_a = mesh.element_start_node[on]
+        first = np.stack([node_angle[:, 0, node_a], held_rate[:, 0, node_a]], axis=-1)
+        last = np.stack([node_angle[:, 0, node_a + 1], held_rate[:, 0, node_a + 1]], axis=-1)
+        intensity_start = np.zeros((torque.shape[0], len(elements.length)))
+        intensity_end = np.zeros_like(intensity_start)
+        intensity_start[:, loads.elements] = loads.start[:, 0]
+        intensity_end[:, loads.elements] = loads.end[:, 0]
+        state = element_states(
+            mesh.station_x[inside],
+            elements.length[on],
+            u[inside],
+            elements.torsion[on],
+            elements.warping[on],
+            first,
+            last,
+            intensity_start[:, on],
+            intensity_end[:, on],
+        )
+        angle[:, 0, inside] = state.rotation
+        rate[:, 0, inside] = state.rate
+        bimoment[:, 0, inside] = state.bimoment
+    chosen = np.flatnonzero(warping > 0.0)
+    if chosen.size:
+        rigidity = warping[chosen]
+        second[:, 0, chosen] = -bimoment[:, 0, chosen] / rigidity
+        # T = G·J·θ′ − E·Cw·θ‴ gives θ‴ from the torque by equilibrium and θ′.
+        torsion = elements.torsion[element[chosen]]
+        third[:, 0, chosen] = (torsion * rate[:, 0, chosen] - torque[:, 0, chosen]) / rigidity
+    saint_venant = rate * geometry.station_rigidity[None]
+    return angle, rate, second, third, saint_venant, torque - saint_venant, bimoment
+
+
+def _residual(
+    loaded: FloatArray,
+    elements: WarpingElements,
+    start_node: IntArray,
+    dofs: FloatArray,
+    supports: SupportColumns,
+    multipliers: FloatArray,
+    gear_nodes: IntArray,
+    table: CaseTable,
+) -> FloatArray:
+    """The residual f − K·u − Cᵀ·λ (n_cases, 1, n_dofs), K·u summed element by element."""
+    nodal = np.stack([dofs[:, 0, 2 * start_node + column] for column in range(4)], axis=-1)
+    forces = elements.end_forces(nodal)
+    residual = loaded.copy()
+    # Each element starts at a node of its own: no index repeats within one column.
+    for column in range(4):  # the element's four degrees of freedom
+        residual[:, 0, 2 * start_node + column] -= forces[..., column]
+    spring_dofs = 2 * supports.spring_nodes
+    residual[..., spring_dofs] -= supports.spring_stiffness * dofs[..., spring_dofs]
+    if len(gear_nodes):
+        gears: Any = (slice(None), slice(None), 2 * gear_nodes.ravel())
+        terms = multipliers[..., None] * table.gear_coefficient
+        np.subtract.at(residual, gears, terms.reshape(len(residual), 1, -1))
+    return residual
+
+
+def _refined(
+    factor: BandFactor | SparseFactor,
+    residual: FloatArray,
+    dofs: FloatArray,
+    multipliers: FloatArray,
+    gear_nodes: IntArray,
+    table: CaseTable,
+) -> tuple[FloatArray, FloatArray]:
+    """(θ, θ′) and multipliers after one step of iterative refinement.
+
+    References
+    ----------
+    .. [1] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM, 2002,
+       ch. 12 (iterative refinement).
+    """
+    n_dofs = dofs.shape[-1]
+    if isinstance(factor, BandFactor):
+        change = factor.solve(np.asfortranarray(residual[:, 0].T)).T[:, None]
+        return dofs + change, multipliers
+    angles = dofs[..., 2 * gear_nodes]
+    constraint = -(table.gear_coefficient * angles).sum(axis=-1)
+    change = factor.solve_plain(bordered(residual, constraint))
+    dof_change, multiplier_change = split_constrained(change, 1, n_dofs)
+    return dofs + dof_change, multipliers + multiplier_change
+
+
+def _factor_and_solve(
+    table: CaseTable,
+    mesh: Mesh,
+    band: Any,
+    rhs: FloatArray,
+    supports: SupportColumns,
+    method: str,
+) -> tuple[FloatArray, FloatArray, IntArray, BandFactor | SparseFactor]:
+    """(θ, θ′) of every node and case, mesh multipliers, gear nodes and the factor.
+
+    Gears constrain the rotations only: c_a·θ_a + c_b·θ_b = 0 on the θ rows.
+    """
+    n_cases, _, n_dofs = rhs.shape
+    n_gears = len(table.gear_x)
+    if n_gears and method == "band":
+        msg = "gear meshes need the sparse solver: a banded system holds no constraints"
+        raise InputError("method", msg)
+    if not n_gears and method != "sparse":
+        factor = BandFactor(band)
+        solution = factor.solve(np.asfortranarray(rhs[:, 0].T)).T[:, None]
+        return solution, np.zeros((n_cases, 1, 0)), np.zeros((0, 2), dtype=np.intp), factor
+    gear_nodes = mesh.nodes_of(table.gear_shaft.ravel(), table.gear_x.ravel()).reshape(-1, 2)
+    known = np.full((1, n_gears, 2), np.nan)
+    for position, node in enumerate(supports.fixed_nodes):  # a loop over fixed supports
+        known[:, gear_nodes == node] = supports.fixed_rotation[:, position : position + 1]
+    both = np.flatnonzero(np.all(~np.isnan(known[0]), axis=1))
+    if len(both):
+        msg = "both gears sit at fixed supports: the mesh torque is undefined"
+        raise InputError(f"gears[{int(both[0])}]", msg)
+    sparse, full_rhs = with_constraints(band, rhs, 2 * gear_nodes, table.gear_coefficient, known)
+    dofs, multipliers = split_constrained(sparse.solve(full_rhs), 1, n_dofs)
+    return dofs, multipliers, gear_nodes, sparse
+
+
+def _soundness(
+    table: CaseTable,
+    factor: BandFactor | SparseFactor,
+    elements: WarpingElements,
+    reactions: FloatArray,
+    gear_torques: FloatArray,
+) -> Soundness:
+    """The factor's condition estimate (Hager's) and each shaft's equilibrium.
+
+    Not an M-matrix here (θ′ couples with both signs): the estimate, not the exact norm.
+    """
+    rcond = factor.block_rcond(1)
+    residual, tolerance = shaft_residuals(
+        table,
+        (table.load_end - table.load_start)[None],
+        elements.entries[0][None],
+        reactions,
+        gear_torques,
+    )
+    return Soundness(rcond, rcond_limit(factor.order), factor.order, residual, tolerance)
+
+
+__all__ = [
+    "STATION_ARRAYS",
+    "WarpingSolve",
+    "WarpingStationValues",
+    "solve_warping_table",
+]
