@@ -123,15 +123,31 @@ class WarpingSolve:
     soundness: Soundness
 
 
+#: A segment whose λ·L exceeds this warps in a zone of 1/λ at its ends, 10⁻⁸ of its length: its
+#: E·Cw is taken as 0 (the difference is of that order), since θ′ would otherwise be left with
+#: a stiffness ~1/(λL) of the others' and the system as ill-conditioned as a mechanism.
+NEGLIGIBLE_WARPING_MU = 1e8
+
+
 def _elements(table: CaseTable, mesh: Mesh, geometry: Geometry) -> WarpingElements:
-    """Every element of the mesh as a restrained-warping element (Saint-Venant where E·Cw = 0)."""
+    """Every element of the mesh as a restrained-warping element (Saint-Venant where E·Cw = 0).
+
+    References
+    ----------
+    .. [1] Vlasov, *Thin-Walled Elastic Beams*, 2nd ed., ch. V (restraint decays as e^(−λx)).
+    """
     rigidity = table.segments.warping_rigidity
     assert rigidity is not None
-    warping = rigidity[0, mesh.element_segment_row]
+    row = mesh.element_segment_row
+    warping = rigidity[0, row]
     saint_venant = SaintVenantElements(geometry.flexibility).stiffness[0]
     length = geometry.element_length[0]
     # A warping part is prismatic and single-layered: its G·J is k·L exactly.
-    return WarpingElements(length, saint_venant * length, warping, saint_venant)
+    torsion = saint_venant * length
+    with np.errstate(divide="ignore", over="ignore"):
+        segment_mu = table.segments.length[0, row] * np.sqrt(torsion / warping)
+    warping = np.where(segment_mu > NEGLIGIBLE_WARPING_MU, 0.0, warping)
+    return WarpingElements(length, torsion, warping, saint_venant)
 
 
 def _consistent_loads(
