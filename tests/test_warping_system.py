@@ -39,7 +39,7 @@ STEEL = {"shear_modulus": 79.3e9, "elastic_modulus": 207e9}
 def member_case(supports: list[dict[str, Any]], **loads: Any) -> dict[str, Any]:
     """A 5 m I member of three segments (the middle one a solid round bar), SI."""
     return {
-        "materials": {"s": STEEL},
+        "materials": {"s": dict(STEEL)},
         "shafts": [
             {
                 "id": "m",
@@ -118,19 +118,41 @@ def test_the_general_system_equals_the_single_member_solve() -> None:
 
 
 def geared_case(torque: float, at: float, spring: float, factor_b: float) -> dict[str, Any]:
-    """An I member driven through a gear from a round shaft on a spring, and a combination."""
+    """An I member driven through a gear from a round shaft on a spring, and a combination.
+
+    The round shaft has a layered segment and a tapered one: parts without warping in the
+    same system.
+    """
     return {
-        "materials": {"s": STEEL},
+        "materials": {"s": dict(STEEL)},
         "shafts": [
             {"id": "beam", "segments": [{"length": 4.0, "material": "s", "section": I_BEAM}]},
             {
                 "id": "drive",
                 "segments": [
                     {
-                        "length": 1.0,
+                        "length": 0.6,
+                        "layers": [
+                            {"material": "s", "section": {"shape": "solid", "diameter": 0.04}},
+                            {
+                                "material": "s",
+                                "section": {
+                                    "shape": "tube",
+                                    "outer_diameter": 0.06,
+                                    "inner_diameter": 0.04,
+                                },
+                            },
+                        ],
+                    },
+                    {
+                        "length": 0.4,
                         "material": "s",
-                        "section": {"shape": "solid", "diameter": 0.05},
-                    }
+                        "section": {
+                            "shape": "tapered",
+                            "diameter_start": 0.06,
+                            "diameter_end": 0.04,
+                        },
+                    },
                 ],
             },
         ],
@@ -312,3 +334,34 @@ def test_bad_input_names_its_field(change: Any, field: str) -> None:
         solve_case(case_file_from_document(document))
     assert raised.value.field == field, raised.value
     assert len(str(raised.value)) < 400
+
+
+def test_round_parts_in_a_warping_system_keep_their_saint_venant_results() -> None:
+    # A round shaft (layered and tapered parts, a spring, a distributed torque) solved beside an
+    # unconnected I member must give what it gives alone on the one-rotation path.
+    document = geared_case(1.0e3, 1.0, 5e4, 1.0)
+    del document["gears"], document["combinations"]
+    document["load_cases"][1]["distributed"] = [
+        {
+            "shaft": "drive",
+            "start": 0.1,
+            "end": 0.9,
+            "intensity_start": 200.0,
+            "intensity_end": -50.0,
+        }
+    ]
+    document["supports"].append({"shaft": "drive", "x": 0.3})
+    together = solve(parse_case(document))
+    alone_document = copy.deepcopy(document)
+    alone_document["shafts"] = alone_document["shafts"][1:]
+    alone_document["supports"] = alone_document["supports"][2:]
+    alone_document["load_cases"] = [alone_document["load_cases"][1]]
+    alone = solve(parse_case(alone_document))
+    assert together.warping is not None
+    assert alone.warping is None
+    window = slice(int(together.mesh.shaft_station_start[1]), None)
+    np.testing.assert_allclose(together.reactions[1, 2:], alone.reactions[0], rtol=1e-12)
+    np.testing.assert_allclose(together.angle[1, window], alone.angle[0], rtol=1e-10, atol=1e-16)
+    np.testing.assert_allclose(together.torque[1, window], alone.torque[0], rtol=1e-10, atol=1e-9)
+    # θ′ there is T/(G·K) and nothing warps.
+    assert not np.any(together.warping.bimoment[1, window])
