@@ -317,6 +317,24 @@ def test_the_case_file_round_trips_shapes_and_warping() -> None:
             "shafts[0].segments[0].section.points[1].thickness",
         ),
         (
+            lambda d: d["shafts"][0]["segments"][0].update(
+                section={**I_BEAM, "flange_thickness": 0.03}
+            ),
+            "shafts[0].segments[0].section.flange_thickness",
+        ),
+        (
+            lambda d: d["shafts"][0]["segments"][0].update(
+                section={
+                    "shape": "channel",
+                    "depth": 0.2,
+                    "width": 0.005,
+                    "flange_thickness": 0.008,
+                    "web_thickness": 0.006,
+                }
+            ),
+            "shafts[0].segments[0].section.width",
+        ),
+        (
             lambda d: d["materials"]["s"].pop("elastic_modulus"),
             "shafts[0].segments[0].material",
         ),

@@ -27,6 +27,7 @@ from typing import ClassVar
 import numpy as np
 
 from workbench.case.errors import InputError
+from workbench.case.units import quote
 from workbench.solver import open_shapes
 from workbench.solver.open_sections import OpenSectionWarping, polyline_section
 from workbench.solver.sections import Section
@@ -123,6 +124,9 @@ class IBeam(OpenWarpingSection):
     def _build(self) -> OpenSectionWarping:
         bottom_width = self.width if self.bottom_width is None else self.bottom_width
         bottom = self.flange_thickness if self.bottom_thickness is None else self.bottom_thickness
+        bottom_key = "bottom_width" if self.bottom_width is not None else "width"
+        _require_wider(("width", self.width), ("web_thickness", self.web_thickness))
+        _require_wider((bottom_key, bottom_width), ("web_thickness", self.web_thickness))
         try:
             return open_shapes.i_section(
                 self.depth,
@@ -135,15 +139,18 @@ class IBeam(OpenWarpingSection):
             )
         except InputError as error:
             # The builder's names for the unequal-flange dimensions are this shape's keys.
+            bottom_thickness = (
+                "bottom_thickness" if self.bottom_thickness is not None else "flange_thickness"
+            )
             names = {
                 "top_width": "width",
                 "top_thickness": "flange_thickness",
-                "bottom_width": "bottom_width" if self.bottom_width is not None else "width",
-                "bottom_thickness": (
-                    "bottom_thickness" if self.bottom_thickness is not None else "flange_thickness"
-                ),
+                "bottom_width": bottom_key,
+                "bottom_thickness": bottom_thickness,
             }
-            raise _renamed(error, names) from None
+            # The walls: top flange twice, web, bottom flange twice.
+            walls = ("flange_thickness",) * 2 + ("web_thickness",) + (bottom_thickness,) * 2
+            raise _renamed(error, names, walls) from None
 
 
 @dataclass(frozen=True)
@@ -161,7 +168,9 @@ class Channel(_Flanged):
     shape: ClassVar[str] = "channel"
 
     def _build(self) -> OpenSectionWarping:
+        _require_wider(("width", self.width), ("web_thickness", self.web_thickness))
         return _keyed(
+            _FLANGED_WALLS,
             open_shapes.channel_section,
             self.depth,
             self.width,
@@ -177,8 +186,14 @@ class ZSection(_Flanged):
     shape: ClassVar[str] = "z_section"
 
     def _build(self) -> OpenSectionWarping:
+        _require_wider(("width", self.width), ("web_thickness", self.web_thickness))
         return _keyed(
-            open_shapes.z_section, self.depth, self.width, self.flange_thickness, self.web_thickness
+            _FLANGED_WALLS,
+            open_shapes.z_section,
+            self.depth,
+            self.width,
+            self.flange_thickness,
+            self.web_thickness,
         )
 
 
@@ -192,7 +207,13 @@ class Angle(OpenWarpingSection):
     shape: ClassVar[str] = "angle"
 
     def _build(self) -> OpenSectionWarping:
-        return _keyed(open_shapes.angle_section, self.leg_a, self.leg_b, self.thickness)
+        return _keyed(
+            ("thickness", "thickness"),
+            open_shapes.angle_section,
+            self.leg_a,
+            self.leg_b,
+            self.thickness,
+        )
 
 
 @dataclass(frozen=True)
@@ -206,7 +227,9 @@ class Tee(OpenWarpingSection):
     shape: ClassVar[str] = "tee"
 
     def _build(self) -> OpenSectionWarping:
+        _require_wider(("width", self.width), ("stem_thickness", self.stem_thickness))
         return _keyed(
+            ("flange_thickness", "flange_thickness", "stem_thickness"),
             open_shapes.tee_section,
             self.depth,
             self.width,
@@ -260,20 +283,46 @@ class OpenPolyline(OpenWarpingSection):
             raise InputError(field, error.message) from None
 
 
-def _keyed(builder: Callable[..., OpenSectionWarping], *sizes: float) -> OpenSectionWarping:
+#: The key of each wall's thickness of a channel or Z (flange, web, flange).
+_FLANGED_WALLS = ("flange_thickness", "web_thickness", "flange_thickness")
+
+
+def _require_wider(wide: tuple[str, float], thick: tuple[str, float]) -> None:
+    """A flange (or leg) wider than the wall standing on it, else :class:`InputError`."""
+    (name, width), (wall, thickness) = wide, thick
+    if not width > thickness:
+        msg = f"must exceed {wall} ({quote(width, 'length')} ≤ {quote(thickness, 'length')})"
+        raise InputError(name, msg)
+
+
+def _keyed(
+    walls: tuple[str, ...], builder: Callable[..., OpenSectionWarping], *sizes: float
+) -> OpenSectionWarping:
     """A shape builder's section, its errors naming this section's keys (no prefix)."""
     try:
         return builder(*sizes, field="")
     except InputError as error:
-        raise _renamed(error, {}) from None
+        raise _renamed(error, {}, walls) from None
 
 
-def _renamed(error: InputError, names: dict[str, str]) -> InputError:
-    """The error of a builder called with ``field=""``, its leading dot gone, keys renamed."""
+def _renamed(error: InputError, names: dict[str, str], walls: tuple[str, ...]) -> InputError:
+    """The error of a builder called with ``field=""`` in this shape's keys.
+
+    Its leading dot goes, the builder's dimension names become this shape's (in the message
+    too), and a wall's thickness or any other place on the mid-line becomes the key that sizes
+    it (``walls``: the key of each wall's thickness, in the builder's order of walls).
+    """
     field = error.field.lstrip(".")
+    message = error.message
+    for old, new in names.items():
+        message = message.replace(old, new)
     head, dot, rest = field.partition(".")
-    head = names.get(head, head)
-    return InputError(head + dot + rest if field else "section", error.message)
+    thickness = _THICKNESS_FIELD.match(field)
+    if thickness is not None:
+        return InputError(walls[int(thickness.group(1))], message)
+    if head.startswith(("points", "walls")):
+        return InputError("width", message)
+    return InputError(names.get(head, head) + dot + rest if field else "section", message)
 
 
 #: The open sections by their case-file name.
