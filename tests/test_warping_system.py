@@ -383,3 +383,88 @@ def test_round_parts_in_a_warping_system_keep_their_saint_venant_results() -> No
     np.testing.assert_allclose(together.torque[1, window], alone.torque[0], rtol=1e-10, atol=1e-9)
     # θ′ there is T/(G·K) and nothing warps.
     assert not np.any(together.warping.bimoment[1, window])
+
+
+CHANNEL = {
+    "shape": "channel",
+    "depth": 0.2,
+    "width": 0.075,
+    "flange_thickness": 0.011,
+    "web_thickness": 0.0085,
+}
+
+
+@settings(max_examples=30, deadline=None)
+@given(
+    lengths=st.lists(st.floats(0.2, 3.0), min_size=3, max_size=3),
+    open_shapes=st.lists(st.sampled_from([I_BEAM, CHANNEL]), min_size=2, max_size=2),
+    conditions=st.lists(st.sampled_from(["restrained", "free", None]), min_size=2, max_size=2),
+    spring=st.one_of(st.none(), st.floats(1e2, 1e6)),
+    torques=st.lists(st.tuples(st.floats(0.0, 1.0), st.floats(-2e3, 2e3)), min_size=1, max_size=3),
+    intensities=st.tuples(st.floats(-500.0, 500.0), st.floats(-500.0, 500.0)),
+    factor=st.floats(-2.0, 2.0),
+)
+def test_equilibrium_and_superposition_on_one_shaft(
+    lengths: list[float],
+    open_shapes: list[dict[str, Any]],
+    conditions: list[str | None],
+    spring: float | None,
+    torques: list[tuple[float, float]],
+    intensities: tuple[float, float],
+    factor: float,
+) -> None:
+    # Σ reactions + Σ applied = 0 (design §2) with θ′ in the system; a combination is the
+    # factored sum of its cases (superposition of linear elasticity).
+    total = sum(lengths)
+    round_bar = {"shape": "tube", "outer_diameter": 0.1, "inner_diameter": 0.08}
+    sections = [open_shapes[0], round_bar, open_shapes[1]]
+    supports: list[dict[str, Any]] = []
+    for x, condition in zip((0.0, total), conditions, strict=True):
+        support: dict[str, Any] = {"shaft": "m", "x": x}
+        if condition is not None:
+            support["warping"] = condition
+        supports.append(support)
+    if spring is not None:
+        middle = lengths[0] + lengths[1] / 2
+        supports.append({"shaft": "m", "x": middle, "kind": "spring", "stiffness": spring})
+    point = [{"shaft": "m", "x": where * total, "torque": torque} for where, torque in torques]
+    spread = {
+        "shaft": "m",
+        "start": 0.1 * total,
+        "end": 0.8 * total,
+        "intensity_start": intensities[0],
+        "intensity_end": intensities[1],
+    }
+    document = {
+        "materials": {"s": dict(STEEL)},
+        "shafts": [
+            {
+                "id": "m",
+                "segments": [
+                    {"length": length, "material": "s", "section": section}
+                    for length, section in zip(lengths, sections, strict=True)
+                ],
+            }
+        ],
+        "supports": supports,
+        "load_cases": [
+            {"name": "points", "torques": point},
+            {"name": "spread", "distributed": [spread]},
+        ],
+        "combinations": [{"name": "both", "factors": {"points": 1.0, "spread": factor}}],
+    }
+    results = solve(parse_case(document))
+    assert results.warping is not None
+    applied = [sum(torque for _, torque in torques), 0.7 * total * sum(intensities) / 2]
+    scale = 1.0 + sum(abs(torque) for _, torque in torques) + 0.7 * total * 500.0
+    for row in (0, 1):
+        assert results.reactions[row].sum() + applied[row] == pytest.approx(0.0, abs=1e-9 * scale)
+    combined = results.reactions[0] + factor * results.reactions[1]
+    np.testing.assert_allclose(results.reactions[2], combined, atol=1e-9 * scale)
+    bimoment = results.warping.bimoment
+    np.testing.assert_allclose(
+        bimoment[2], bimoment[0] + factor * bimoment[1], atol=1e-9 * (np.abs(bimoment).max() + 1)
+    )
+    # Both torque parts add up to the torque (design §2: T = G·J·θ′ − E·Cw·θ‴).
+    parts = results.warping.saint_venant_torque + results.warping.warping_torque
+    np.testing.assert_allclose(parts, results.torque, atol=1e-9 * scale)

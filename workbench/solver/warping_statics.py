@@ -241,12 +241,15 @@ def solve_warping_table(
     values = np.concatenate([supports.fixed_rotation, np.zeros((1, len(held_rates)))], axis=1)
     loaded = rhs.copy()  # the loads before any degree of freedom is held
     prescribe(band, rhs, held, values)
+    scale = _equilibrate(band)
+    rhs *= scale
 
-    dofs, multipliers, gear_nodes, factor = _factor_and_solve(
-        table, mesh, band, rhs, supports, method
+    scaled, multipliers, gear_nodes, factor = _factor_and_solve(
+        table, mesh, band, rhs, supports, method, scale
     )
     if isinstance(factor, BandFactor) and len(factor.zero_pivots):
         raise MechanismError("supports", "the supports leave part of the system free to spin")
+    dofs = scaled * scale
     dofs[..., held] = values
     # One step of refinement, its residual summed element by element (as on the one-rotation
     # path): the torques of stiff short elements then keep their own accuracy.
@@ -254,7 +257,7 @@ def solve_warping_table(
         loaded, elements, start_node, dofs, supports, multipliers, gear_nodes, table
     )
     residual[..., held] = 0.0
-    dofs, multipliers = _refined(factor, residual, dofs, multipliers, gear_nodes, table)
+    dofs, multipliers = _refined(factor, residual, dofs, multipliers, gear_nodes, table, scale)
     dofs[..., held] = values
     node_angle, node_rate = dofs[..., 0::2], dofs[..., 1::2]
 
@@ -269,8 +272,6 @@ def solve_warping_table(
         axis=-1,
     )
     end_forces = elements.end_forces(nodal) - element_loads
-    start = -end_forces[:, None, :, 0]
-    end = end_forces[:, None, :, 2]
 
     gear_torques = -multipliers[..., None] * table.gear_coefficient
     external = point.copy()
@@ -281,6 +282,13 @@ def solve_warping_table(
     )
     at_springs: Any = (slice(None), slice(None), supports.spring_nodes)
     np.add.at(external, at_springs, spring_reactions)
+    resultant = (element_loads[..., 0] + element_loads[..., 2])[:, None]
+    fixed_node = np.zeros(n_nodes, dtype=bool)
+    fixed_node[supports.fixed_nodes] = True
+    start = _span_torques(
+        mesh, fixed_node, external, resultant, -end_forces[:, None, :, 0], elements.entries[0]
+    )
+    end = start - resultant
     reactions = np.zeros((n_cases, 1, len(table.support_x)))
     reactions[..., supports.springs] = spring_reactions
     reactions[..., supports.fixed] = fixed_reactions(
@@ -396,6 +404,95 @@ def _station_states(
     return angle, rate, second, third, saint_venant, torque - saint_venant, bimoment
 
 
+def _span_torques(
+    mesh: Mesh,
+    fixed_node: np.ndarray,
+    external: FloatArray,
+    resultant: FloatArray,
+    estimate: FloatArray,
+    stiffness: FloatArray,
+) -> FloatArray:
+    """T(0⁺) of every element (n_cases, 1, n_elements) by equilibrium along each shaft.
+
+    T(x) is minus the external torques on [0, x) (design §2): exact from a shaft's start up to
+    its first fixed support, and (as the torques on (x, L]) from its end back to the last one.
+    Between two fixed supports one constant is unknown: it is taken from the end forces of the
+    most flexible element of the span, whose torque k·Δθ loses the fewest digits — a load a
+    hair from a support makes an element whose k·Δθ would lose them all.
+
+    Parameters
+    ----------
+    fixed_node
+        (n_nodes,) whether a fixed support holds the node.
+    external
+        (n_cases, 1, n_nodes) concentrated torques known at the nodes (N·m).
+    resultant
+        (n_cases, 1, n_elements) each element's distributed torque in all (N·m).
+    estimate
+        (n_cases, 1, n_elements) T(0⁺) from the element end forces (N·m).
+    stiffness
+        (n_elements,) each element's k₁₁ (N·m/rad).
+
+    References
+    ----------
+    .. [1] Gere & Goodno, *Mechanics of Materials*, 8th ed., §3.4 (T(x) from a free body).
+    """
+    start = np.empty_like(estimate)
+    node_start = mesh.shaft_node_start
+    for number in range(len(node_start) - 1):  # a loop over shafts
+        first, stop = int(node_start[number]), int(node_start[number + 1])
+        elements = slice(first - number, stop - number - 1)
+        loads, spread = external[..., first:stop], resultant[..., elements]
+        before = np.zeros_like(spread)
+        before[..., 1:] = np.cumsum(spread[..., :-1], axis=-1)
+        from_left = -(np.cumsum(loads[..., :-1], axis=-1) + before)
+        from_right = (
+            np.cumsum(loads[..., :0:-1], axis=-1)[..., ::-1]
+            + np.cumsum(spread[..., ::-1], axis=-1)[..., ::-1]
+        )
+        fixed = fixed_node[first:stop]
+        span = np.cumsum(fixed[:-1])  # fixed nodes at or before each element's start
+        last = int(fixed.sum())
+        torque = np.where(span == 0, from_left, from_right)
+        inner = np.flatnonzero((span > 0) & (span < last))
+        if inner.size:
+            # The most flexible element of each inner span gives the span's constant.
+            order = inner[np.lexsort((stiffness[elements][inner], span[inner]))]
+            spans, chosen = np.unique(span[order], return_index=True)
+            constant = from_left[..., order[chosen]] - estimate[..., elements][..., order[chosen]]
+            lookup = np.searchsorted(spans, span[inner])
+            torque[..., inner] = from_left[..., inner] - constant[..., lookup]
+        start[..., elements] = torque
+    return start
+
+
+def _equilibrate(band: Any) -> FloatArray:
+    """Scale the band symmetrically to a unit diagonal, in place; the scale s (n_dofs,).
+
+    With D = diag(s) the system solved is (D·K·D)·y = D·f, u = D·y. The entries of a short
+    warping element grow as E·Cw/L³ against θ and E·Cw/L against θ′: a load a hair from a
+    support makes K's condition number that ratio cubed, though the solution is as good as the
+    equilibrated matrix's (whose condition is then what the soundness check measures).
+
+    References
+    ----------
+    .. [1] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM, 2002,
+       §7.3 (scaling; a symmetric positive definite matrix scaled to a unit diagonal is within
+       a factor n of the best diagonal scaling, van der Sluis) (section from memory).
+    """
+    values, diagonal_row = band.values, band.diagonal_row
+    diagonal = values[diagonal_row]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = 1.0 / np.sqrt(diagonal)
+    scale[~(np.isfinite(scale) & (scale > 0.0))] = 1.0
+    size = len(scale)
+    for row in range(band.half_width, values.shape[0]):  # a loop over the band's diagonals
+        offset = row - diagonal_row  # values[row, j] is A[j + offset, j]
+        low, high = max(0, -offset), min(size, size - offset)
+        values[row, low:high] *= scale[low:high] * scale[low + offset : high + offset]
+    return scale
+
+
 def _residual(
     loaded: FloatArray,
     elements: WarpingElements,
@@ -429,8 +526,9 @@ def _refined(
     multipliers: FloatArray,
     gear_nodes: IntArray,
     table: CaseTable,
+    scale: FloatArray,
 ) -> tuple[FloatArray, FloatArray]:
-    """(θ, θ′) and multipliers after one step of iterative refinement.
+    """(θ, θ′) and multipliers after one step of iterative refinement (``scale``: the band's).
 
     References
     ----------
@@ -438,14 +536,15 @@ def _refined(
        ch. 12 (iterative refinement).
     """
     n_dofs = dofs.shape[-1]
+    residual = residual * scale
     if isinstance(factor, BandFactor):
         change = factor.solve(np.asfortranarray(residual[:, 0].T)).T[:, None]
-        return dofs + change, multipliers
+        return dofs + change * scale, multipliers
     angles = dofs[..., 2 * gear_nodes]
     constraint = -(table.gear_coefficient * angles).sum(axis=-1)
     change = factor.solve_plain(bordered(residual, constraint))
     dof_change, multiplier_change = split_constrained(change, 1, n_dofs)
-    return dofs + dof_change, multipliers + multiplier_change
+    return dofs + dof_change * scale, multipliers + multiplier_change
 
 
 def _factor_and_solve(
@@ -455,10 +554,12 @@ def _factor_and_solve(
     rhs: FloatArray,
     supports: SupportColumns,
     method: str,
+    scale: FloatArray,
 ) -> tuple[FloatArray, FloatArray, IntArray, BandFactor | SparseFactor]:
-    """(θ, θ′) of every node and case, mesh multipliers, gear nodes and the factor.
+    """Scaled (θ, θ′) of every node and case, mesh multipliers, gear nodes and the factor.
 
-    Gears constrain the rotations only: c_a·θ_a + c_b·θ_b = 0 on the θ rows.
+    Gears constrain the rotations only: c_a·θ_a + c_b·θ_b = 0 on the θ rows, written in the
+    scaled unknowns y = u/s as (c_a·s_a)·y_a + (c_b·s_b)·y_b = 0 (the multipliers unchanged).
     """
     n_cases, _, n_dofs = rhs.shape
     n_gears = len(table.gear_x)
@@ -477,7 +578,9 @@ def _factor_and_solve(
     if len(both):
         msg = "both gears sit at fixed supports: the mesh torque is undefined"
         raise InputError(f"gears[{int(both[0])}]", msg)
-    sparse, full_rhs = with_constraints(band, rhs, 2 * gear_nodes, table.gear_coefficient, known)
+    gear_scale = scale[2 * gear_nodes]
+    coefficients = table.gear_coefficient * gear_scale
+    sparse, full_rhs = with_constraints(band, rhs, 2 * gear_nodes, coefficients, known / gear_scale)
     dofs, multipliers = split_constrained(sparse.solve(full_rhs), 1, n_dofs)
     return dofs, multipliers, gear_nodes, sparse
 
