@@ -41,6 +41,7 @@ from workbench.solver.model import (
     Support,
 )
 from workbench.solver.sections import FloatArray, Section, SolidCircle, TaperedCircle, Tube
+from workbench.solver.warping_rigidity import segment_warping_rigidity
 
 IntArray = np.ndarray[Any, np.dtype[np.intp]]
 BoolArray = np.ndarray[Any, np.dtype[np.bool_]]
@@ -324,8 +325,6 @@ _LAYERS = operator.attrgetter("layers")
 _SECTION = operator.attrgetter("section")
 _MODULUS = operator.attrgetter("material.shear_modulus")
 _FIRST = operator.itemgetter(0)
-_WARPING_CONSTANT = operator.attrgetter("warping_constant")
-_ELASTIC_MODULUS = operator.attrgetter("material.elastic_modulus")
 
 
 def section_row(section: Section) -> tuple[float, ...]:
@@ -405,44 +404,11 @@ def _take_shaft_columns(shaft: Shaft) -> _ShaftColumns:
     row_of = np.empty(len(flat), dtype=np.intp)
     row_of[distinct] = np.arange(len(distinct))
     described = np.array([section_row(sections[index]) for index in distinct], dtype=float)
-    warping = _warping_rigidity(flat, per_segment, [sections[k] for k in distinct])
+    warping = segment_warping_rigidity(flat, per_segment, [sections[k] for k in distinct])
     columns = _ShaftColumns(lengths, per_segment, moduli, row_of[position], described, warping)
     for array in (lengths, per_segment, moduli, columns.section, described):
         array.setflags(write=False)
     return columns
-
-
-def _warping_rigidity(
-    layers: list[Any], per_segment: IntArray, distinct: list[Section]
-) -> FloatArray | None:
-    """(n_segments,) E·Cw of each segment of a shaft (N·m⁴), ``None`` when none warps.
-
-    Only when a distinct section warps are the layers' Young's moduli read: a case without open
-    sections pays one look at each distinct section.
-
-    Raises
-    ------
-    InputError
-        On the material of a segment whose section warps but which states no Young's modulus.
-    """
-    if not any(section.warping_constant > 0.0 for section in distinct):
-        return None
-    constants = np.fromiter(map(_WARPING_CONSTANT, map(_SECTION, layers)), float, len(layers))
-    moduli = np.fromiter(
-        (np.nan if e is None else e for e in map(_ELASTIC_MODULUS, layers)), float, len(layers)
-    )
-    missing = np.flatnonzero((constants > 0.0) & np.isnan(moduli))
-    if missing.size:
-        layer = int(missing[0])
-        segment = int(np.searchsorted(np.cumsum(per_segment), layer, side="right"))
-        name = layers[layer].material.name
-        msg = (
-            f"material {name!r} states no elastic_modulus E: the section warps, and restrained "
-            "torsion needs its warping rigidity E·Cw"
-        )
-        raise InputError(f"segments[{segment}].material", msg)
-    rigidity = np.where(constants > 0.0, moduli * constants, 0.0)
-    return np.add.reduceat(rigidity, np.concatenate([[0], np.cumsum(per_segment)[:-1]]))
 
 
 def segment_table(shafts: tuple[Shaft, ...]) -> SegmentTable:
