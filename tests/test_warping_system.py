@@ -22,7 +22,7 @@ from workbench.case.save import case_document
 from workbench.solver.analysis import solve, solve_case
 from workbench.solver.build import build_model, case_file_of
 from workbench.solver.io import parse_case
-from workbench.solver.tables import results_document
+from workbench.solver.tables import results_document, results_text
 from workbench.solver.warping_member import WarpingMember, recover, solve_member
 from workbench.solver.warping_supports import UNSTATED_RESTRAINT
 
@@ -242,7 +242,9 @@ def test_json_adds_the_warping_arrays_only_for_a_case_that_warps() -> None:
         ],
         torques=[{"shaft": "m", "x": 1.0, "torque": 500.0}],
     )
-    printed = results_document(solve_case(case_file_from_document(document)))
+    warping_results = solve_case(case_file_from_document(document))
+    assert "largest |bimoment|" in results_text(warping_results)
+    printed = results_document(warping_results)
     shaft = printed["results"][0]["shafts"]["m"]
     for key in ("rate_of_twist", "twist_second_derivative", "bimoment", "warping_torque"):
         assert len(shaft[key]) == len(shaft["x"])
@@ -252,7 +254,9 @@ def test_json_adds_the_warping_arrays_only_for_a_case_that_warps() -> None:
         segment["section"] = {"shape": "solid", "diameter": 0.08}
     for support in round_bar["supports"]:
         del support["warping"]
-    plain = results_document(solve_case(case_file_from_document(round_bar)))
+    plain_results = solve_case(case_file_from_document(round_bar))
+    assert "bimoment" not in results_text(plain_results)
+    plain = results_document(plain_results)
     assert set(plain["results"][0]) == {"name", "reactions", "shafts"}
     assert set(plain["results"][0]["shafts"]["m"]) == {"x", "torque", "angle", "shear_stress"}
 

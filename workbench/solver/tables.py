@@ -302,4 +302,13 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
                 f"{units.label('length')}; largest |angle| "
                 f"{_g(units.from_si(np.abs(values.angle).max(), 'angle'))} {units.label('angle')}"
             )
+            if results.warping is not None:  # restrained warping: where the bimoment peaks
+                bimoment = results.warping.bimoment[results.index(result.name), window]
+                at = int(np.argmax(np.abs(bimoment)))
+                value = _derived(units, "torque", -1)(float(bimoment[at]))
+                out.append(
+                    f"largest |bimoment| {_g(abs(value))} {units.label('torque')}·"
+                    f"{units.label('length')} at x = {_g(units.from_si(values.x[at], 'length'))} "
+                    f"{units.label('length')}"
+                )
     return "\n".join(out) + "\n"
