@@ -472,3 +472,16 @@ def test_equilibrium_and_superposition_on_one_shaft(
     # Both torque parts add up to the torque (design §2: T = G·J·θ′ − E·Cw·θ‴).
     parts = results.warping.saint_venant_torque + results.warping.warping_torque
     np.testing.assert_allclose(parts, results.torque, atol=1e-9 * scale)
+
+
+def test_a_warping_member_on_a_vanishing_spring_is_refused_naming_it() -> None:
+    # Common practice, no source: a shaft held by a spring of 10⁻¹⁵ N·m/rad is a mechanism in
+    # all but name; the refusal names the spring, as on the one-rotation path.
+    document = member_case(
+        [{"shaft": "m", "x": 0.0, "kind": "spring", "stiffness": 1e-15, "warping": "restrained"}],
+        torques=[{"shaft": "m", "x": 4.0, "torque": 100.0}],
+    )
+    with pytest.raises(InputError) as raised:
+        solve_case(case_file_from_document(document))
+    assert raised.value.field == "supports"
+    assert "nearly a mechanism" in str(raised.value)

@@ -77,12 +77,16 @@ def span_torques(
         torque = np.where(span == 0, from_left, from_right)
         inner = np.flatnonzero((span > 0) & (span < last))
         if inner.size:
-            # The most flexible element of each inner span gives the span's constant.
-            order = inner[np.lexsort((stiffness[elements][inner], span[inner]))]
-            spans, chosen = np.unique(span[order], return_index=True)
-            constant = from_left[..., order[chosen]] - estimate[..., elements][..., order[chosen]]
-            lookup = np.searchsorted(spans, span[inner])
-            torque[..., inner] = from_left[..., inner] - constant[..., lookup]
+            # The most flexible element of each inner span (a run of ``inner``) gives the
+            # span's constant: the first element of least stiffness in each run.
+            flexible = stiffness[elements][inner]
+            starts = np.concatenate([[0], np.flatnonzero(np.diff(span[inner])) + 1])
+            counts = np.diff(np.append(starts, inner.size))
+            least = np.repeat(np.minimum.reduceat(flexible, starts), counts)
+            candidates = np.flatnonzero(flexible == least)
+            chosen = inner[candidates[np.searchsorted(candidates, starts)]]
+            constant = from_left[..., chosen] - estimate[..., elements][..., chosen]
+            torque[..., inner] = from_left[..., inner] - np.repeat(constant, counts, axis=-1)
         start[..., elements] = torque
     return start
 
@@ -113,14 +117,16 @@ def station_states(
     held_rate = np.where(warps, node_rate, 0.0)
     u = geometry.station_u[0]
     # Stations on an element's ends: the nodal θ′ and the end forces' bimoment, B(0) = f₂ and
-    # B(L) = −f₄ (the end forces are (−T(0), B(0), T(L), −B(L))).
-    ends = np.flatnonzero((warping > 0.0) & ((u == 0.0) | mesh.station_is_end))
-    if ends.size:
-        on = element[ends]
-        at_end = mesh.station_is_end[ends]
-        node = mesh.element_start_node[on] + at_end
-        rate[:, 0, ends] = held_rate[:, 0, node]
-        bimoment[:, 0, ends] = np.where(at_end, -end_forces[:, on, 3], end_forces[:, on, 1])
+    # B(L) = −f₄ (the end forces are (−T(0), B(0), T(L), −B(L))); element by element.
+    warping_elements = np.flatnonzero(elements.warping > 0.0)
+    if warping_elements.size:
+        first_station = mesh.element_station_start[warping_elements]
+        last_station = mesh.element_station_start[warping_elements + 1] - 1
+        node_a = mesh.element_start_node[warping_elements]
+        rate[:, 0, first_station] = held_rate[:, 0, node_a]
+        rate[:, 0, last_station] = held_rate[:, 0, node_a + 1]
+        bimoment[:, 0, first_station] = end_forces[:, warping_elements, 1]
+        bimoment[:, 0, last_station] = -end_forces[:, warping_elements, 3]
     inside = np.flatnonzero((warping > 0.0) & (u > 0.0) & ~mesh.station_is_end)
     if inside.size:
         on = element[inside]

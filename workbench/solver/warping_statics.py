@@ -218,6 +218,14 @@ def solve_warping_table(
     elements = _elements(table, mesh, geometry)
     n_cases, n_nodes = table.n_cases, int(mesh.shaft_node_start[-1])
     start_node = mesh.element_start_node
+    # The dofs (θ₁, θ′₁, θ₂, θ′₂) of every element; on one shaft, strided slices (no gathers).
+    n_elements = len(start_node)
+    element_dofs: list[Any] = [
+        slice(column, column + 2 * n_elements, 2)
+        if len(mesh.shaft_node_start) == 2
+        else 2 * start_node + column
+        for column in range(4)
+    ]
     rhs = np.zeros((n_cases, 1, 2 * n_nodes))
     rhs[:, 0, 0::2] = point[:, 0]
     element_loads = np.zeros((n_cases, len(start_node), 4))
@@ -225,7 +233,7 @@ def solve_warping_table(
         element_loads[:, loads.elements] = _consistent_loads(elements, loads, geometry)
         # Each element starts at a node of its own: no index repeats within one column.
         for column in range(4):  # the element's four degrees of freedom
-            rhs[:, 0, 2 * start_node + column] += element_loads[..., column]
+            rhs[:, 0, element_dofs[column]] += element_loads[..., column]
     spring_dofs = 2 * supports.spring_nodes
     rhs[:, 0, spring_dofs] += supports.spring_stiffness * supports.spring_rotation
 
@@ -241,36 +249,26 @@ def solve_warping_table(
     values = np.concatenate([supports.fixed_rotation, np.zeros((1, len(held_rates)))], axis=1)
     loaded = rhs.copy()  # the loads before any degree of freedom is held
     prescribe(band, rhs, held, values)
-    scale = _equilibrate(band)
-    rhs *= scale
+    scale, scaled_norm = _equilibrated_norm(band)
 
-    scaled, multipliers, gear_nodes, factor = _factor_and_solve(
-        table, mesh, band, rhs, supports, method, scale
+    dofs, multipliers, gear_nodes, factor = _factor_and_solve(
+        table, mesh, band, rhs, supports, method
     )
     if isinstance(factor, BandFactor) and len(factor.zero_pivots):
         raise MechanismError("supports", "the supports leave part of the system free to spin")
-    dofs = scaled * scale
     dofs[..., held] = values
     # One step of refinement, its residual summed element by element (as on the one-rotation
     # path): the torques of stiff short elements then keep their own accuracy.
     residual = _residual(
-        loaded, elements, start_node, dofs, supports, multipliers, gear_nodes, table
+        loaded, elements, element_dofs, dofs, supports, multipliers, gear_nodes, table
     )
     residual[..., held] = 0.0
-    dofs, multipliers = _refined(factor, residual, dofs, multipliers, gear_nodes, table, scale)
+    dofs, multipliers = _refined(factor, residual, dofs, multipliers, gear_nodes, table)
     dofs[..., held] = values
     node_angle, node_rate = dofs[..., 0::2], dofs[..., 1::2]
 
     # End forces (−T(0), B(0), T(L), −B(L)) of every element, less its consistent loads.
-    nodal = np.stack(
-        [
-            node_angle[:, 0, start_node],
-            node_rate[:, 0, start_node],
-            node_angle[:, 0, start_node + 1],
-            node_rate[:, 0, start_node + 1],
-        ],
-        axis=-1,
-    )
+    nodal = np.stack([dofs[:, 0, element_dofs[column]] for column in range(4)], axis=-1)
     end_forces = elements.end_forces(nodal) - element_loads
 
     gear_torques = -multipliers[..., None] * table.gear_coefficient
@@ -319,7 +317,7 @@ def solve_warping_table(
         bimoment=combine(bimoment, factors),
         bimoment_reactions=combine(at_restrained, factors),
     )
-    soundness = _soundness(table, factor, elements, reactions, gear_torques)
+    soundness = _soundness(table, factor, elements, reactions, gear_torques, scale, scaled_norm)
     return WarpingSolve(
         node_angle=node_angle,
         reactions=reactions,
@@ -333,37 +331,39 @@ def solve_warping_table(
     )
 
 
-def _equilibrate(band: Any) -> FloatArray:
-    """Scale the band symmetrically to a unit diagonal, in place; the scale s (n_dofs,).
+def _equilibrated_norm(band: Any) -> tuple[FloatArray, float]:
+    """The scale s = 1/√diag(K) (n_dofs,) and ‖D·K·D‖₁ with D = diag(s), K unchanged.
 
-    With D = diag(s) the system solved is (D·K·D)·y = D·f, u = D·y. The entries of a short
-    warping element grow as E·Cw/L³ against θ and E·Cw/L against θ′: a load a hair from a
-    support makes K's condition number that ratio cubed, though the solution is as good as the
-    equilibrated matrix's (whose condition is then what the soundness check measures).
+    The condition that tells a near mechanism is that of D·K·D, K scaled to a unit diagonal:
+    the entries of a short warping element grow as E·Cw/L³ against θ and E·Cw/L against θ′,
+    so a load a hair from a support makes K's own condition number that ratio cubed, though
+    the solution keeps its accuracy (one step of refinement). K itself is factored unscaled.
 
     References
     ----------
     .. [1] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM, 2002,
-       §7.3 (scaling; a symmetric positive definite matrix scaled to a unit diagonal is within
-       a factor n of the best diagonal scaling, van der Sluis) (section from memory).
+       §7.3 (a symmetric positive definite matrix scaled to a unit diagonal is within a factor
+       n of its best diagonal scaling, van der Sluis) (section from memory).
     """
     values, diagonal_row = band.values, band.diagonal_row
-    diagonal = values[diagonal_row]
     with np.errstate(divide="ignore", invalid="ignore"):
-        scale = 1.0 / np.sqrt(diagonal)
+        scale = 1.0 / np.sqrt(values[diagonal_row])
     scale[~(np.isfinite(scale) & (scale > 0.0))] = 1.0
     size = len(scale)
+    sums = np.zeros(size)
     for row in range(band.half_width, values.shape[0]):  # a loop over the band's diagonals
-        offset = row - diagonal_row  # values[row, j] is A[j + offset, j]
+        offset = row - diagonal_row  # values[row, j] is K[j + offset, j]
         low, high = max(0, -offset), min(size, size - offset)
-        values[row, low:high] *= scale[low:high] * scale[low + offset : high + offset]
-    return scale
+        part = np.abs(values[row, low:high])
+        part *= scale[low + offset : high + offset]
+        sums[low:high] += part
+    return scale, float(np.max(sums * scale))
 
 
 def _residual(
     loaded: FloatArray,
     elements: WarpingElements,
-    start_node: IntArray,
+    element_dofs: list[Any],
     dofs: FloatArray,
     supports: SupportColumns,
     multipliers: FloatArray,
@@ -371,12 +371,12 @@ def _residual(
     table: CaseTable,
 ) -> FloatArray:
     """The residual f − K·u − Cᵀ·λ (n_cases, 1, n_dofs), K·u summed element by element."""
-    nodal = np.stack([dofs[:, 0, 2 * start_node + column] for column in range(4)], axis=-1)
+    nodal = np.stack([dofs[:, 0, element_dofs[column]] for column in range(4)], axis=-1)
     forces = elements.end_forces(nodal)
     residual = loaded.copy()
     # Each element starts at a node of its own: no index repeats within one column.
     for column in range(4):  # the element's four degrees of freedom
-        residual[:, 0, 2 * start_node + column] -= forces[..., column]
+        residual[:, 0, element_dofs[column]] -= forces[..., column]
     spring_dofs = 2 * supports.spring_nodes
     residual[..., spring_dofs] -= supports.spring_stiffness * dofs[..., spring_dofs]
     if len(gear_nodes):
@@ -393,9 +393,8 @@ def _refined(
     multipliers: FloatArray,
     gear_nodes: IntArray,
     table: CaseTable,
-    scale: FloatArray,
 ) -> tuple[FloatArray, FloatArray]:
-    """(θ, θ′) and multipliers after one step of iterative refinement (``scale``: the band's).
+    """(θ, θ′) and multipliers after one step of iterative refinement.
 
     References
     ----------
@@ -403,15 +402,14 @@ def _refined(
        ch. 12 (iterative refinement).
     """
     n_dofs = dofs.shape[-1]
-    residual = residual * scale
     if isinstance(factor, BandFactor):
         change = factor.solve(np.asfortranarray(residual[:, 0].T)).T[:, None]
-        return dofs + change * scale, multipliers
+        return dofs + change, multipliers
     angles = dofs[..., 2 * gear_nodes]
     constraint = -(table.gear_coefficient * angles).sum(axis=-1)
     change = factor.solve_plain(bordered(residual, constraint))
     dof_change, multiplier_change = split_constrained(change, 1, n_dofs)
-    return dofs + dof_change * scale, multipliers + multiplier_change
+    return dofs + dof_change, multipliers + multiplier_change
 
 
 def _factor_and_solve(
@@ -421,12 +419,10 @@ def _factor_and_solve(
     rhs: FloatArray,
     supports: SupportColumns,
     method: str,
-    scale: FloatArray,
 ) -> tuple[FloatArray, FloatArray, IntArray, BandFactor | SparseFactor]:
-    """Scaled (θ, θ′) of every node and case, mesh multipliers, gear nodes and the factor.
+    """(θ, θ′) of every node and case, mesh multipliers, gear nodes and the factor.
 
-    Gears constrain the rotations only: c_a·θ_a + c_b·θ_b = 0 on the θ rows, written in the
-    scaled unknowns y = u/s as (c_a·s_a)·y_a + (c_b·s_b)·y_b = 0 (the multipliers unchanged).
+    Gears constrain the rotations only: c_a·θ_a + c_b·θ_b = 0 on the θ rows.
     """
     n_cases, _, n_dofs = rhs.shape
     n_gears = len(table.gear_x)
@@ -445,9 +441,7 @@ def _factor_and_solve(
     if len(both):
         msg = "both gears sit at fixed supports: the mesh torque is undefined"
         raise InputError(f"gears[{int(both[0])}]", msg)
-    gear_scale = scale[2 * gear_nodes]
-    coefficients = table.gear_coefficient * gear_scale
-    sparse, full_rhs = with_constraints(band, rhs, 2 * gear_nodes, coefficients, known / gear_scale)
+    sparse, full_rhs = with_constraints(band, rhs, 2 * gear_nodes, table.gear_coefficient, known)
     dofs, multipliers = split_constrained(sparse.solve(full_rhs), 1, n_dofs)
     return dofs, multipliers, gear_nodes, sparse
 
@@ -458,19 +452,18 @@ def _soundness(
     elements: WarpingElements,
     reactions: FloatArray,
     gear_torques: FloatArray,
+    scale: FloatArray,
+    scaled_norm: float,
 ) -> Soundness:
     """The factor's condition estimate and each shaft's equilibrium.
 
     Not an M-matrix here (θ′ couples with both signs): a banded factor's ‖A⁻¹‖₁ is estimated from
-    one solve of two right-hand sides (:func:`_inverse_norm`), a sparse one's by Hager's
-    method; the equilibrium of each shaft after the refinement is the check that catches a near
+    one solve (:func:`_inverse_norm`), a sparse one's by Hager's method; the equilibrium of each shaft after the refinement is the check that catches a near
     mechanism's rigid rotation drowning its twists.
     """
     if isinstance(factor, BandFactor):
-        band = factor.band
-        norm = float(np.abs(band.values[band.half_width :]).sum(axis=0).max())
         with np.errstate(divide="ignore", over="ignore"):
-            rcond = np.array([1.0 / (norm * _inverse_norm(factor))])
+            rcond = np.array([1.0 / (scaled_norm * _inverse_norm(factor, scale))])
         rcond[~np.isfinite(rcond)] = 0.0
     else:
         rcond = factor.block_rcond(1)
@@ -484,27 +477,23 @@ def _soundness(
     return Soundness(rcond, rcond_limit(factor.order), factor.order, residual, tolerance)
 
 
-def _inverse_norm(factor: BandFactor) -> float:
-    """A lower bound of ‖A⁻¹‖₁ from one solve: Hager's first vector and Higham's extra one.
+def _inverse_norm(factor: BandFactor, scale: FloatArray) -> float:
+    """A lower bound of ‖(D·A·D)⁻¹‖₁ from one solve: ‖D·A⁻¹·D·(1/n)·1‖₁, Hager's first step.
 
-    ‖A⁻¹·(1/n)·1‖₁ is the first step of Hager's estimator, and 2‖A⁻¹·b‖₁/(3n) with
-    b_i = (−1)^i·(1 + i/(n − 1)) Higham's extra test that catches the matrices the steps
-    underestimate; both are lower bounds, solved together as two right-hand sides.
+    The uniform vector loads every rotation alike: it is the load that turns a nearly free
+    shaft (a near mechanism, whose soft mode is its rigid rotation) and so finds its large
+    inverse; the estimate, a lower bound, makes the reciprocal condition an upper one.
 
     References
     ----------
     .. [1] W. W. Hager, "Condition estimates", *SIAM J. Sci. Stat. Comput.* 5 (1984) 311-316.
     .. [2] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM, 2002,
-       §15.3, Algorithm 15.4.
+       §15.3, Algorithm 15.4 (its first step).
     """
     size = factor.order
-    vectors = np.empty((size, 2), order="F")
-    vectors[:, 0] = 1.0 / size
-    steps = np.arange(size)
-    vectors[:, 1] = (1.0 + steps / max(size - 1, 1)) * np.where(steps % 2, -1.0, 1.0)
+    vector = np.asfortranarray((scale / size)[:, None])
     with np.errstate(over="ignore", invalid="ignore"):
-        images = np.abs(factor.solve(vectors)).sum(axis=0)
-    return float(max(images[0], 2.0 * images[1] / (3.0 * size)))
+        return float(np.abs(factor.solve(vector)[:, 0] * scale).sum())
 
 
 __all__ = [
