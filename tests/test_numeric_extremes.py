@@ -68,6 +68,7 @@ def _press_drive_with_every_other_key(base: dict[str, Any]) -> dict[str, Any]:
 BASES: dict[str, dict[str, Any]] = {
     "press_drive": json.loads((ROOT / "workbench" / "cases" / "press_drive.json").read_text()),
     "every_shape": json.loads((ROOT / "tests/fixtures/solve/every_shape.json").read_text()),
+    "open_shapes": json.loads((ROOT / "tests/fixtures/open_shapes.json").read_text()),
     "line_shaft": json.loads(LINE_SHAFT.read_text()),
 }
 BASES["press_drive_more"] = _press_drive_with_every_other_key(BASES["press_drive"])

@@ -129,7 +129,10 @@ def test_inspector_edits_a_layered_segment(demo: Workbench) -> None:
 def test_inspector_edits_every_non_circular_shape() -> None:
     from workbench.case.declaration import SHAPES
 
-    panel = Workbench(simple_case())
+    case = simple_case()
+    # Open sections that warp need Young's modulus (their warping rigidity is E·Cw).
+    case["materials"]["steel"]["elastic_modulus"] = 200000
+    panel = Workbench(case)
     inspector = panel.drawing_editor.inspector
     for shape in SHAPES:
         inspector.set_shape(("shafts", 0, "segments", 0), shape)
@@ -140,6 +143,9 @@ def test_inspector_edits_every_non_circular_shape() -> None:
             _inspector_entry(panel, f"shafts[0].segments[0].section.{key}")
         if "walls" in section:
             _inspector_entry(panel, "shafts[0].segments[0].section.walls[3].thickness")
+        if "points" in section:
+            _inspector_entry(panel, "shafts[0].segments[0].section.points[3].thickness")
+    inspector.set_shape(("shafts", 0, "segments", 0), "thin_open")
     _inspector_entry(panel, "shafts[0].segments[0].section.walls[0].thickness").value = "5"
     assert panel.document["shafts"][0]["segments"][0]["section"]["walls"][0]["thickness"] == 5
     assert not panel.stale

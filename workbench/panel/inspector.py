@@ -67,7 +67,7 @@ def new_section(shape: str, size: float) -> dict[str, Any]:
 
     Its required sizes: ``size`` across, a bore or inner size of 0.6 of it, an end 0.8 of it, a
     wall a fiftieth of it (thin, as the thin-wall formulas need), an area of its square; walls:
-    four, each ``size`` long.
+    four, each ``size`` long; mid-line points: a channel ``size`` deep and wide.
     """
     cls = SHAPES[shape]
     section: dict[str, Any] = {"shape": shape}
@@ -75,6 +75,13 @@ def new_section(shape: str, size: float) -> dict[str, Any]:
         quantity = quantity_of((name,))
         if name == "walls":
             section[name] = [{"length": size, "thickness": round(0.02 * size, 6)} for _ in range(4)]
+        elif name == "points":  # an open mid-line: a channel-like polyline, walls a fiftieth
+            wall = round(0.02 * size, 6)
+            corners = ((size, 0.0), (0.0, 0.0), (0.0, size), (size, size))
+            section[name] = [
+                {"x": x, "y": y, **({"thickness": wall} if number else {})}
+                for number, (x, y) in enumerate(corners)
+            ]
         elif quantity == "area":
             section[name] = round(size * size, 6)
         elif quantity == "length":

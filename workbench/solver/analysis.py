@@ -34,6 +34,7 @@ References
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 import os
 from collections.abc import Callable
@@ -49,6 +50,7 @@ from workbench.solver.finite_results import solve_in_range
 from workbench.solver.mesh import Mesh, build_mesh, build_mesh_from_table
 from workbench.solver.model import Model
 from workbench.solver.results import Envelope, LoadResult, Results, ShaftResult
+from workbench.solver.warping_statics import WarpingStationValues
 
 if TYPE_CHECKING:
     import scipy.sparse as sp
@@ -113,6 +115,8 @@ def solve_case(case: CaseFile) -> Results:
     from workbench.solver.case_columns import case_system  # noqa: PLC0415
 
     system = case_system(case)
+    if system.warps:  # restrained torsion reads the sections' warping from the model
+        return solve(build_model(case))
     return _results(
         system.table, None, system.units, system.title, functools.partial(build_model, case)
     )
@@ -137,7 +141,11 @@ def solve_file(path: str | os.PathLike[str]) -> Results:
     from workbench.solver.build import build_model  # noqa: PLC0415
     from workbench.solver.case_columns import case_system  # noqa: PLC0415
 
-    system = case_system(load_case_file(path))
+    case = load_case_file(path)
+    system = case_system(case)
+    if system.warps:  # restrained torsion reads the sections' warping from the model
+        return solve(build_model(case))
+    del case  # let the decoded file go before the solve
     source = functools.partial(_model_of_file, path, build_model, load_case_file)
     return _results(system.table, None, system.units, system.title, source)
 
@@ -170,6 +178,11 @@ def _results(
     }
     for array in arrays.values():
         array.setflags(write=False)
+    warping = solution.warping
+    if warping is not None:
+        warping = WarpingStationValues(
+            *(getattr(warping, item.name)[:, 0] for item in dataclasses.fields(warping))
+        )
     return Results(
         table=table,
         mesh=mesh,
@@ -178,6 +191,7 @@ def _results(
         units=units,
         title=title,
         source=source,
+        warping=warping,
     )
 
 

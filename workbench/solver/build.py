@@ -58,12 +58,14 @@ def solver_sections() -> dict[type[declared.Keys], type[Section]]:
     ``workbench solve``) never needs them.
     """
     from workbench.solver.noncircular import NONCIRCULAR_SHAPES  # noqa: PLC0415
+    from workbench.solver.warping_sections import OPEN_SECTIONS  # noqa: PLC0415
 
     shapes: tuple[type[Section], ...] = (
         circular.SolidCircle,
         circular.Tube,
         circular.TaperedCircle,
         *NONCIRCULAR_SHAPES.values(),
+        *OPEN_SECTIONS.values(),
     )
     return {declared.SHAPES[cls.shape]: cls for cls in shapes}
 
@@ -92,6 +94,9 @@ class ModelBuilder:
             except InputError as error:
                 raise within(f"materials.{path_key(name)}", error) from None
         self._library: dict[str, Material] = {}
+        #: Whether a section built so far warps (E·Cw > 0) or a support states ``warping``:
+        #: the case is then solved with the rate of twist at each node.
+        self.warps = False
 
     def _material(self, name: str, entry: declared.Material) -> Material:
         si = self.convert.si
@@ -133,10 +138,25 @@ class ModelBuilder:
                 walls = entry.walls
                 values[name] = tuple(self._wall(number, wall) for number, wall in enumerate(walls))
                 continue
+            if name == "points":
+                values[name] = tuple(self._point(n, point) for n, point in enumerate(entry.points))
+                continue
             value = self.convert.si(entry, name)
             if value is not None:
                 values[name] = value
-        return solver_sections()[cls](**values)
+        section = solver_sections()[cls](**values)
+        if section.warping_constant > 0.0:
+            self.warps = True
+        return section
+
+    def _point(self, number: int, entry: declared.MidlinePoint) -> Any:
+        from workbench.solver.warping_sections import MidlinePoint  # noqa: PLC0415 - open only
+
+        si = self.convert.si
+        try:
+            return MidlinePoint(si(entry, "x"), si(entry, "y"), si(entry, "thickness"))
+        except InputError as error:
+            raise within(f"points[{number}]", error) from None
 
     def _wall(self, number: int, entry: declared.Wall) -> Wall:
         from workbench.solver.thin_walls import Wall  # noqa: PLC0415 - thin walls only
@@ -210,12 +230,15 @@ class ModelBuilder:
 
     def _support(self, entry: declared.Support) -> Support:
         si = self.convert.si
+        if declared.given(entry.warping):
+            self.warps = True  # checked, and solved, with the sections' warping
         return Support(
             entry.shaft,
             si(entry, "x"),
             declared.value_of(entry, "kind"),
             si(entry, "stiffness"),
             si(entry, "rotation"),
+            entry.warping if isinstance(entry.warping, str) else None,
         )
 
     def _gear_end(self, end: str, entry: declared.GearEnd) -> GearPosition:
@@ -343,6 +366,10 @@ def build_model(case: declared.CaseFile) -> Model:
 
 def _section_entry(section: Section, convert: Converter) -> Any:
     cls = declared.SHAPES[section.shape]
+    points = getattr(section, "points", None)
+    if points is not None:
+        entries = [convert.entry(declared.MidlinePoint, point) for point in points]
+        return convert.entry(cls, section, points=entries)
     walls = getattr(section, "walls", None)
     if walls is None:
         return convert.entry(cls, section)

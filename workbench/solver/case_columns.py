@@ -36,11 +36,15 @@ class CaseSystem:
         The case file's units.
     title
         The case's title.
+    warps
+        Whether a section warps or a support states ``warping``: the table then lacks the
+        warping columns, and the case is solved from its model.
     """
 
     table: CaseTable
     units: UnitSystem
     title: str
+    warps: bool = False
 
 
 def case_system(case: declared.CaseFile) -> CaseSystem:
@@ -106,7 +110,7 @@ def case_system(case: declared.CaseFile) -> CaseSystem:
             key_points=design.key_points() if design is not None else [],
         ),
     )
-    return CaseSystem(table, parts["units"], parts["title"])
+    return CaseSystem(table, parts["units"], parts["title"], builder.warps)
 
 
 def _joined(shaft_ids: tuple[str, ...], shafts: list[ShaftColumns]) -> SegmentTable:

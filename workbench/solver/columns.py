@@ -41,12 +41,16 @@ from workbench.solver.model import (
     Support,
 )
 from workbench.solver.sections import FloatArray, Section, SolidCircle, TaperedCircle, Tube
+from workbench.solver.warping_rigidity import segment_warping_rigidity
 
 IntArray = np.ndarray[Any, np.dtype[np.intp]]
 BoolArray = np.ndarray[Any, np.dtype[np.bool_]]
 
 #: Shape codes of a layer.
 SOLID, TUBE, TAPERED, GIVEN = 0, 1, 2, 3
+#: A support's warping condition: the key left out (free), stated free, stated restrained.
+WARPING_UNSTATED, WARPING_FREE, WARPING_RESTRAINED = 0, 1, 2
+_WARPING_CODES = {None: WARPING_UNSTATED, "free": WARPING_FREE, "restrained": WARPING_RESTRAINED}
 #: The case-file keys of each circular shape's (outer start, outer end, bore) dimensions.
 DIMENSION_KEYS: dict[int, tuple[str, str, str]] = {
     SOLID: ("diameter", "diameter", "diameter"),
@@ -96,6 +100,9 @@ class SegmentTable:
     stress_per_torque
         (n_variants, n_layers) peak shear stress per unit torque (1/m³) of a :data:`GIVEN`
         shape; NaN otherwise.
+    warping_rigidity
+        (n_variants, n_segments) E·Cw of each segment (N·m⁴), or ``None`` when no section of
+        the system warps (then every segment's is 0 and the system has one rotation per node).
     """
 
     shaft_ids: tuple[str, ...]
@@ -109,6 +116,7 @@ class SegmentTable:
     inner_diameter: FloatArray
     torsion_constant: FloatArray
     stress_per_torque: FloatArray
+    warping_rigidity: FloatArray | None = None
 
     def __post_init__(self) -> None:
         n_segments = len(self.segment_layer_start) - 1
@@ -116,6 +124,14 @@ class SegmentTable:
         object.__setattr__(self, "length", _variant_rows(self.length, n_segments))
         for name in LAYER_COLUMNS:
             object.__setattr__(self, name, _variant_rows(getattr(self, name), n_layers))
+        if self.warping_rigidity is not None:
+            rigidity = _variant_rows(self.warping_rigidity, n_segments)
+            object.__setattr__(self, "warping_rigidity", rigidity if rigidity.any() else None)
+
+    @property
+    def warps(self) -> bool:
+        """Whether some segment warps (E·Cw > 0): restrained torsion, θ and θ′ per node."""
+        return self.warping_rigidity is not None
 
     @property
     def n_variants(self) -> int:
@@ -205,6 +221,9 @@ class CaseTable:
         (n_combinations, n_cases) factor of each load case in each combination.
     key_shaft, key_x
         Extra points that must be mesh nodes (design checks read values there).
+    support_warping
+        (n_supports,) the warping condition each support states: :data:`WARPING_UNSTATED`
+        (free, the key left out), :data:`WARPING_FREE` or :data:`WARPING_RESTRAINED`.
     """
 
     segments: SegmentTable
@@ -230,6 +249,7 @@ class CaseTable:
     combination_factors: FloatArray = field(default_factory=lambda: np.zeros((0, 0)))
     key_shaft: IntArray | None = None
     key_x: FloatArray | None = None
+    support_warping: np.ndarray[Any, np.dtype[np.int8]] | None = None
 
     def __post_init__(self) -> None:
         n_supports, n_gears = len(self.support_x), len(self.gear_x)
@@ -245,6 +265,8 @@ class CaseTable:
         if self.key_shaft is None or self.key_x is None:
             set_field(self, "key_shaft", np.zeros(0, dtype=np.intp))
             set_field(self, "key_x", np.zeros(0))
+        if self.support_warping is None:
+            set_field(self, "support_warping", np.zeros(n_supports, dtype=np.int8))
 
     @property
     def n_variants(self) -> int:
@@ -353,6 +375,7 @@ class _ShaftColumns:
     shear_modulus: FloatArray  # (n_layers,)
     section: IntArray  # (n_layers,) row of each layer's section in ``described``
     described: FloatArray  # (n_distinct, 6) shape code, d_start, d_end, bore, K, τ/T
+    warping_rigidity: FloatArray | None = None  # (n_segments,) E·Cw; None: no section warps
 
 
 def _shaft_columns(shaft: Shaft) -> _ShaftColumns:
@@ -381,7 +404,8 @@ def _take_shaft_columns(shaft: Shaft) -> _ShaftColumns:
     row_of = np.empty(len(flat), dtype=np.intp)
     row_of[distinct] = np.arange(len(distinct))
     described = np.array([section_row(sections[index]) for index in distinct], dtype=float)
-    columns = _ShaftColumns(lengths, per_segment, moduli, row_of[position], described)
+    warping = segment_warping_rigidity(flat, per_segment, [sections[k] for k in distinct])
+    columns = _ShaftColumns(lengths, per_segment, moduli, row_of[position], described, warping)
     for array in (lengths, per_segment, moduli, columns.section, described):
         array.setflags(write=False)
     return columns
@@ -400,7 +424,12 @@ def segment_table(shafts: tuple[Shaft, ...]) -> SegmentTable:
     SegmentTable
         One variant.
     """
-    parts = [_shaft_columns(shaft) for shaft in shafts]
+    parts = []
+    for number, shaft in enumerate(shafts):  # a loop over shafts
+        try:
+            parts.append(_shaft_columns(shaft))
+        except InputError as error:
+            raise InputError(f"shafts[{number}].{error.field}", error.message) from None
 
     def joined(name: str) -> Any:
         arrays = [getattr(part, name) for part in parts]
@@ -419,6 +448,16 @@ def segment_table(shafts: tuple[Shaft, ...]) -> SegmentTable:
     described = np.concatenate([part.described for part in parts])
     # One gather per column: a strided (n, 6) gather would cost several times more.
     column = [np.ascontiguousarray(described[:, k])[section] for k in range(6)]
+    warping = None
+    if any(part.warping_rigidity is not None for part in parts):
+        warping = np.concatenate(
+            [
+                np.zeros(len(part.length))
+                if part.warping_rigidity is None
+                else part.warping_rigidity
+                for part in parts
+            ]
+        )
     return SegmentTable(
         shaft_ids=tuple(shaft.id for shaft in shafts),
         shaft_segment_start=np.concatenate([[0], np.cumsum(counts)]).astype(np.intp),
@@ -431,6 +470,7 @@ def segment_table(shafts: tuple[Shaft, ...]) -> SegmentTable:
         inner_diameter=column[3],
         torsion_constant=column[4],
         stress_per_torque=column[5],
+        warping_rigidity=warping,
     )
 
 
@@ -535,6 +575,9 @@ def system_columns(
         "combination_factors": factors,
         "key_shaft": np.array([number(shaft_id) for shaft_id, _ in key_points], dtype=np.intp),
         "key_x": np.array([x for _, x in key_points], dtype=float),
+        "support_warping": np.array(
+            [_WARPING_CODES[item.warping] for item in supports], dtype=np.int8
+        ),
     }
 
 
@@ -545,6 +588,9 @@ __all__ = [
     "SOLID",
     "TAPERED",
     "TUBE",
+    "WARPING_FREE",
+    "WARPING_RESTRAINED",
+    "WARPING_UNSTATED",
     "CaseTable",
     "SegmentTable",
     "case_table",

@@ -198,6 +198,14 @@ def _shaft_nodes(
     return node_x, shaft_node_start, np.concatenate(segment_parts), np.concatenate(origin_parts)
 
 
+#: Most elements that warp given stations inside them to draw their curves. Checks never need
+#: them: in an element without distributed torque B″ = λ²·B and the warping torque obeys the
+#: same equation, so |B|, the warping torque and the Saint-Venant torque T − T_w peak at the
+#: element's ends (a solution of y″ = λ²y has no interior extremum of |y|; Vlasov,
+#: *Thin-Walled Elastic Beams*, 2nd ed., ch. V); a loaded element has its curve stations anyway.
+WARPING_CURVES_UP_TO = 4096
+
+
 def build_mesh_from_table(table: CaseTable) -> Mesh:
     """Cut a system given as columns into exact elements and result stations.
 
@@ -253,7 +261,14 @@ def build_mesh_from_table(table: CaseTable) -> Mesh:
     varying = VaryingElements.of(
         segments, varying_element, segment_row[varying_element], fraction[varying_element]
     )
-    if not len(varying_element) and not loaded.any():
+    # Where a section warps θ, θ′, θ″ and B are curves (hyperbolic) even without a load: drawn
+    # from stations inside the elements, up to a mesh whose nodes draw them well enough alone.
+    curved = loaded
+    if segments.warping_rigidity is not None:
+        warping = segments.warping_rigidity[0, segment_row] > 0.0
+        if np.count_nonzero(warping) <= WARPING_CURVES_UP_TO:
+            curved = loaded | warping
+    if not len(varying_element) and not curved.any():
         # Every element shows its two ends only.
         station_start = np.arange(0, 2 * n_elements + 1, 2)
         station_element = np.repeat(
@@ -265,7 +280,7 @@ def build_mesh_from_table(table: CaseTable) -> Mesh:
         step = np.zeros(0)
     else:
         # Station counts: ends only where T is constant and θ linear; a curve elsewhere.
-        counts = np.where(loaded, CURVE_PIECES + 1, 2)
+        counts = np.where(curved, CURVE_PIECES + 1, 2)
         counts[varying_element] = varying.station_count
         station_start = np.zeros(n_elements + 1, dtype=np.intp)
         np.cumsum(counts, out=station_start[1:])

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from workbench.case.declaration import POSITION_TOLERANCE, MeshKind, SupportKind
+from workbench.case.declaration import POSITION_TOLERANCE, MeshKind, SupportKind, WarpingKind
 from workbench.case.design import DesignCriteria
 from workbench.case.errors import InputError, listing, path_key, quoted
 from workbench.case.units import display_units, quote
@@ -94,6 +94,9 @@ class Support:
         Rotational stiffness of a spring support (N·m/rad).
     rotation
         Prescribed rotation of the support (rad): a misfit or pre-twist; 0 by default.
+    warping
+        ``"restrained"``: the support holds the section's warping (θ′ = 0, open sections that
+        warp); ``"free"``: it leaves it; ``None``: not stated, taken as free.
     """
 
     shaft: str
@@ -101,6 +104,7 @@ class Support:
     kind: SupportKind = "fixed"
     stiffness: float | None = None
     rotation: float = 0.0
+    warping: WarpingKind | None = None
 
     def __post_init__(self) -> None:
         require_finite("x", self.x)
@@ -113,6 +117,9 @@ class Support:
             require_positive("stiffness", self.stiffness, "stiffness")
         elif self.stiffness is not None:
             raise InputError("stiffness", "only a spring support takes a stiffness")
+        if self.warping not in (None, "free", "restrained"):
+            msg = f"must be 'restrained' or 'free', not {quoted(self.warping)}"
+            raise InputError("warping", msg)
 
 
 @dataclass(frozen=True)

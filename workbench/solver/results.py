@@ -23,6 +23,8 @@ from workbench.solver.columns import CaseTable
 from workbench.solver.mesh import Mesh
 from workbench.solver.sections import FloatArray
 from workbench.solver.soundness import rotation_warning
+from workbench.solver.warping_statics import WarpingStationValues
+from workbench.solver.warping_supports import unstated_restraint_warning
 
 if TYPE_CHECKING:
     from workbench.solver.model import Model
@@ -132,6 +134,11 @@ class Results:
     source
         The model solved, or a function that builds it (called once, when :attr:`model` is
         first read).
+    warping
+        Where some section warps (restrained torsion): θ′, θ″, θ‴, the Saint-Venant and warping
+        torques and the bimoment, each (n_results, n_stations), and the bimoment reactions
+        (n_results, n_supports) (:class:`~workbench.solver.warping_statics.WarpingStationValues`
+        without its variant axis); ``None`` for a case in Saint-Venant torsion only.
     """
 
     table: CaseTable
@@ -146,6 +153,7 @@ class Results:
     units: UnitSystem = SI
     title: str = ""
     source: Model | Callable[[], Model] | None = field(default=None, repr=False, compare=False)
+    warping: WarpingStationValues | None = None
 
     @functools.cached_property
     def model(self) -> Model:
@@ -161,7 +169,9 @@ class Results:
         """Cautions on results that are otherwise reported: one line each, in the case's units.
 
         Rotations beyond :data:`~workbench.solver.soundness.ROTATION_LIMIT` (1 rad) are outside
-        the small-rotation theory of the solution.
+        the small-rotation theory of the solution; an open section that warps at a fixed
+        support stating no ``warping`` is taken as free to warp there
+        (:data:`~workbench.solver.warping_supports.UNSTATED_RESTRAINT`).
         """
         token = display_units.set(self.units)
         try:
@@ -174,7 +184,8 @@ class Results:
             )
         finally:
             display_units.reset(token)
-        return () if rotation is None else (rotation,)
+        found = (rotation, unstated_restraint_warning(self.table))
+        return tuple(warning for warning in found if warning is not None)
 
     @property
     def shaft_ids(self) -> tuple[str, ...]:

@@ -242,6 +242,16 @@ class Section:
         return 0.0
 
     @property
+    def warping_constant(self) -> float:
+        """Warping constant Cw (m⁶) of restrained torsion: 0 for sections that do not warp.
+
+        Circular sections do not warp; closed and solid non-circular ones are taken in
+        Saint-Venant torsion (their warping is small and left free). Open thin-walled
+        sections with a mid-line (:mod:`workbench.solver.warping_sections`) give their own.
+        """
+        return 0.0
+
+    @property
     def polar_moment(self) -> float:
         """Polar second moment of area about the shaft's axis, J = ∫r² dA (m⁴).
 

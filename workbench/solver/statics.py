@@ -52,6 +52,8 @@ from workbench.solver.soundness import (
     shaft_groups,
     shaft_residuals,
 )
+from workbench.solver.warping_statics import WarpingStationValues, solve_warping_table
+from workbench.solver.warping_supports import check_warping_supports
 
 
 @dataclass(frozen=True)
@@ -80,6 +82,10 @@ class StaticSolution:
     soundness
         Each variant's condition estimate and the equilibrium of its shafts
         (:mod:`~workbench.solver.soundness`).
+    warping
+        Where some section warps: θ′, θ″, θ‴, the Saint-Venant and warping torques and the
+        bimoment at the stations (:mod:`~workbench.solver.warping_statics`); ``None`` otherwise.
+        ``shear_stress`` is then the Saint-Venant part's, |G·J·θ′|·τ/T.
     """
 
     names: tuple[str, ...]
@@ -93,6 +99,7 @@ class StaticSolution:
     node_angle: FloatArray
     factor: BandFactor | SparseFactor
     soundness: Soundness
+    warping: WarpingStationValues | None = None
 
 
 def check_restrained(table: CaseTable) -> None:
@@ -198,10 +205,13 @@ def solve_table(
     """
     require_load_cases(table.n_cases)
     check_restrained(table)
+    check_warping_supports(table)
     mesh = mesh if mesh is not None else build_mesh_from_table(table)
     geometry = geometry if geometry is not None else mesh.geometry
     n_variants = max(geometry.n_variants, table.n_variants)
     supports = _Supports.of(table, mesh)
+    if table.segments.warps:
+        return _solve_warping(table, mesh, geometry, supports, method, unsound)
     elements = SaintVenantElements(geometry.flexibility)
     loads = _element_loads(table, mesh, geometry, n_variants)
     point, rhs = _right_hand_sides(table, mesh, elements, loads, supports, n_variants)
@@ -246,6 +256,45 @@ def solve_table(
         if not (soundness.off_balance.any(axis=(0, 2)) & ~soundness.ill_conditioned).any():
             break
     assert solution is not None
+    sound = solution.soundness.sound
+    if unsound == "raise" and not sound.all():
+        error = solution.soundness.error(table, int(np.argmin(sound)))
+        assert error is not None
+        raise error
+    return solution
+
+
+def _solve_warping(
+    table: CaseTable,
+    mesh: Mesh,
+    geometry: Geometry,
+    supports: _Supports,
+    method: str,
+    unsound: str,
+) -> StaticSolution:
+    """:func:`solve_table` where some segment warps: θ and θ′ per node, one variant."""
+    loads = _element_loads(table, mesh, geometry, 1)
+    point = np.zeros((table.n_cases, 1, len(mesh.node_x)))
+    torque_node = mesh.nodes_of(table.torque_shaft, table.torque_x)
+    at_torques: Any = (table.torque_case, slice(None), torque_node)
+    np.add.at(point, at_torques, table.torque.T)
+    solved = solve_warping_table(table, mesh, geometry, supports, loads, point, method)
+    factors = table.combination_factors
+    saint_venant = combine(solved.saint_venant_torque, factors)
+    solution = StaticSolution(
+        names=table.result_names,
+        mesh=mesh,
+        geometry=geometry,
+        reactions=combine(solved.reactions, factors),
+        gear_torques=combine(solved.gear_torques, factors),
+        torque=combine(solved.torque, factors),
+        angle=combine(solved.angle, factors),
+        shear_stress=np.abs(saint_venant) * geometry.station_stress_per_torque,
+        node_angle=combine(solved.node_angle, factors),
+        factor=solved.factor,
+        soundness=solved.soundness,
+        warping=solved.warping,
+    )
     sound = solution.soundness.sound
     if unsound == "raise" and not sound.all():
         error = solution.soundness.error(table, int(np.argmin(sound)))

@@ -20,13 +20,39 @@ from workbench.solver.results import Results, support_labels
 REPORTED_UNITS = ("length", "torque", "stress", "angle")
 #: The station values of each shaft in the document: (key, the quantity of its unit).
 STATION_VALUES = (("torque", "torque"), ("angle", "angle"), ("shear_stress", "stress"))
+#: The restrained-torsion values of each shaft, written only for a case whose sections warp:
+#: (key, the array of :class:`~workbench.solver.warping_statics.WarpingStationValues`, the
+#: quantity of its unit and the power of the length unit it is further divided by).
+WARPING_VALUES = (
+    ("rate_of_twist", "rate", "twist_rate", 0),
+    ("twist_second_derivative", "second", "twist_rate", 1),
+    ("twist_third_derivative", "third", "twist_rate", 2),
+    ("saint_venant_torque", "saint_venant_torque", "torque", 0),
+    ("warping_torque", "warping_torque", "torque", 0),
+    ("bimoment", "bimoment", "torque", -1),
+)
 #: How a message names each array of the document.
 _WORDS = {"reactions": "reaction", "shear_stress": "shear stress", "x": "station position"}
 #: Values written to JSON text at once (bounds the Python floats held while writing).
 TEXT_BLOCK = 1 << 16
 
 
-def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity: str) -> None:
+def _derived(units: UnitSystem, quantity: str, per_length: int) -> Callable[[Any], Any]:
+    """SI → the reader's units of ``quantity``/length^per_length (angle/length², torque·length)."""
+    scale = units.from_si(1.0, "length") ** per_length
+    if per_length == 0:
+        return lambda values: units.from_si(values, quantity)
+    return lambda values: units.from_si(values, quantity) / scale
+
+
+def _finite(
+    results: Results,
+    key: str,
+    values: Any,
+    units: UnitSystem,
+    quantity: str,
+    convert: Callable[[Any], Any] | None = None,
+) -> None:
     """Raise :class:`InputError` naming the result and quantity of a value JSON cannot hold.
 
     JSON has no infinity or NaN; a value that is not finite in the reader's units (an overflow
@@ -37,14 +63,16 @@ def _finite(results: Results, key: str, values: Any, units: UnitSystem, quantity
     rows = values.reshape(len(values), -1)
     for row in range(len(rows)):  # a loop over results
         with np.errstate(over="ignore"):  # an overflow is what is looked for
-            converted = units.from_si(rows[row], quantity)
+            converted = (
+                units.from_si(rows[row], quantity) if convert is None else convert(rows[row])
+            )
         finite = np.isfinite(converted)
         if finite.all():
             continue
         column = int(np.argmin(finite))
         name = results.names[row]
         kind = "combination" if row >= results.table.n_cases else "load case"
-        if key == "reactions":
+        if key in ("reactions", "bimoment_reactions"):
             where, path = f"support {column}", f"results[{row}].reactions[{column}]"
         else:
             shaft = int(np.searchsorted(results.mesh.shaft_station_start, column, "right")) - 1
@@ -96,7 +124,11 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
         Consecutive pieces of the document ``{"units": {...}, "results": [{"name",
         "reactions", "shafts": {id: {"x", "torque", "angle", "shear_stress"}}}]}``, load cases
         then combinations, in file order; then ``"warnings": [line, ...]`` when there are any
-        (:attr:`~workbench.solver.results.Results.warnings`), and only then.
+        (:attr:`~workbench.solver.results.Results.warnings`), and only then. A case whose
+        sections warp adds ``"bimoment_reactions"`` (torque·length) after each result's
+        reactions and the :data:`WARPING_VALUES` after each shaft's ``shear_stress`` (θ′ in
+        angle/length, θ″ in angle/length², θ‴ in angle/length³, torques, bimoment in
+        torque·length); no other document changes.
 
     Raises
     ------
@@ -112,6 +144,17 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
     _finite(results, "x", results.mesh.station_x[None], units, "length")
     for key, quantity in STATION_VALUES:
         _finite(results, key, getattr(results, key), units, quantity)
+    warping = results.warping
+    warping_values = []
+    if warping is not None:
+        bimoment = _derived(units, "torque", -1)
+        _finite(
+            results, "bimoment_reactions", warping.bimoment_reactions, units, "torque", bimoment
+        )
+        for key, name, quantity, power in WARPING_VALUES:
+            convert = _derived(units, quantity, power)
+            _finite(results, key, getattr(warping, name), units, quantity, convert)
+            warping_values.append((key, getattr(warping, name), convert))
     windows = list(itertools.pairwise(results.mesh.shaft_station_start.tolist()))
     station_x = results.mesh.station_x
     yield b'{"units":' + encode({key: getattr(units, key) for key in REPORTED_UNITS})
@@ -120,6 +163,9 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
         reactions = units.from_si(results.reactions[row], "torque")
         yield b"," if row else b""
         yield b'{"name":' + encode(name) + b',"reactions":' + encode(reactions.tolist())
+        if warping is not None:
+            reaction = _derived(units, "torque", -1)(warping.bimoment_reactions[row])
+            yield b',"bimoment_reactions":' + encode(reaction.tolist())
         yield b',"shafts":{'
         for number, (shaft_id, (start, end)) in enumerate(
             zip(results.shaft_ids, windows, strict=True)
@@ -130,6 +176,9 @@ def results_json(results: Results, units: UnitSystem | None = None) -> Iterator[
                 yield b',"' + key.encode() + b'":'
                 values = getattr(results, key)[row, start:end]
                 yield from _array_text(units.from_si(values, quantity), encode)
+            for key, station_array, convert in warping_values:  # only where sections warp
+                yield b',"' + key.encode() + b'":'
+                yield from _array_text(convert(station_array[row, start:end]), encode)
             yield b"}"
         yield b"}}"
     yield b"]"
@@ -253,4 +302,13 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
                 f"{units.label('length')}; largest |angle| "
                 f"{_g(units.from_si(np.abs(values.angle).max(), 'angle'))} {units.label('angle')}"
             )
+            if results.warping is not None:  # restrained warping: where the bimoment peaks
+                bimoment = results.warping.bimoment[results.index(result.name), window]
+                at = int(np.argmax(np.abs(bimoment)))
+                value = _derived(units, "torque", -1)(float(bimoment[at]))
+                out.append(
+                    f"largest |bimoment| {_g(abs(value))} {units.label('torque')}·"
+                    f"{units.label('length')} at x = {_g(units.from_si(values.x[at], 'length'))} "
+                    f"{units.label('length')}"
+                )
     return "\n".join(out) + "\n"

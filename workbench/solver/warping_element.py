@@ -222,6 +222,9 @@ class WarpingElements:
         (n,) G·J (N·m²), > 0.
     warping
         (n,) E·Cw (N·m⁴), ≥ 0; 0 gives the Saint-Venant element with θ′ left out.
+    saint_venant_stiffness
+        (n,) the stiffness (N·m/rad) of the elements where E·Cw = 0, when given: 1/∫dx/(G·J)
+        of a tapered or layered circular part, exact where G·J/L would not be; ``None``: G·J/L.
 
     Examples
     --------
@@ -238,6 +241,7 @@ class WarpingElements:
     length: FloatArray
     torsion: FloatArray
     warping: FloatArray
+    saint_venant_stiffness: FloatArray | None = None
 
     @property
     def dofs_per_node(self) -> int:
@@ -264,6 +268,8 @@ class WarpingElements:
         k11 = a * scale / length**2
         # E·Cw = 0: θ′ takes no part (its exact entries vanish with 1/μ).
         free = self.warping == 0
+        if self.saint_venant_stiffness is not None:
+            k11 = np.where(free, self.saint_venant_stiffness, k11)
         k12, k22, k24 = (
             np.where(free, 0.0, entry) for entry in (b * scale / length, c * scale, d * scale)
         )

@@ -287,8 +287,59 @@ def recover(solution: WarpingSolution, x: FloatArray) -> WarpingStations:
         raise InputError("x", "stations must lie on the member")
     element = np.clip(np.searchsorted(node_x, x, side="right") - 1, 0, len(node_x) - 2)
     total = node_x[element + 1] - node_x[element]
-    offset = np.clip(x - node_x[element], 0.0, total)
-    torsion, warping = member.torsion[element], member.warping[element]
+    first = np.stack([solution.rotation[:, element], _rate_dof(solution, element)], axis=-1)
+    second = np.stack([solution.rotation[:, element + 1], _rate_dof(solution, element + 1)], -1)
+    return element_states(
+        x,
+        total,
+        np.clip(x - node_x[element], 0.0, total),
+        member.torsion[element],
+        member.warping[element],
+        first,
+        second,
+        solution.start[:, element],
+        solution.end[:, element],
+    )
+
+
+def element_states(
+    x: FloatArray,
+    total: FloatArray,
+    offset: FloatArray,
+    torsion: FloatArray,
+    warping: FloatArray,
+    first: FloatArray,
+    second: FloatArray,
+    start: FloatArray,
+    end: FloatArray,
+) -> WarpingStations:
+    """The exact state at stations inside solved prismatic elements (see :func:`recover`).
+
+    Parameters
+    ----------
+    x
+        (n_stations,) the stations' positions (m), reported back.
+    total, offset
+        (n_stations,) length of each station's element and the station's distance from the
+        element's start (m), 0 ≤ offset ≤ total.
+    torsion, warping
+        (n_stations,) the element's G·J (N·m²) and E·Cw (N·m⁴).
+    first, second
+        (n_cases, n_stations, 2) (θ, θ′) of the element's start and end node as the system
+        holds them (rad, rad/m): θ′ = 0 where it was condensed out.
+    start, end
+        (n_cases, n_stations) distributed torque at the element's start and end (N·m/m).
+
+    Returns
+    -------
+    WarpingStations
+        The state at the stations.
+
+    References
+    ----------
+    .. [1] McGuire, Gallagher & Ziemian, *Matrix Structural Analysis*, 2nd ed., ch. 3 (static
+       condensation of interior degrees of freedom).
+    """
     # A station on a node takes the node's values and the whole element's end forces (the
     # zero-length piece beside it is given the whole length too, and not used).
     at_start, at_end = offset <= 0.0, offset >= total
@@ -297,12 +348,9 @@ def recover(solution: WarpingSolution, x: FloatArray) -> WarpingStations:
     left = WarpingElements(left_length, torsion, warping).regular_matrices()
     right = WarpingElements(right_length, torsion, warping).regular_matrices()
 
-    start, end = solution.start[:, element], solution.end[:, element]
     middle = start + (end - start) * (offset / total)
     left_loads = WarpingElements(left_length, torsion, warping).distributed_loads(start, middle)
     right_loads = WarpingElements(right_length, torsion, warping).distributed_loads(middle, end)
-    first = np.stack([solution.rotation[:, element], _rate_dof(solution, element)], axis=-1)
-    second = np.stack([solution.rotation[:, element + 1], _rate_dof(solution, element + 1)], -1)
 
     stiffness = left[:, 2:, 2:] + right[:, :2, :2]
     load = (

@@ -71,8 +71,9 @@ from workbench.case.declaration.members import (
     SupportKind,
     Torque,
     Units,
+    WarpingKind,
 )
-from workbench.case.declaration.shapes import SHAPES, Section, Wall
+from workbench.case.declaration.shapes import OPEN_SHAPES, SHAPES, MidlinePoint, Section, Wall
 
 
 @functools.cache
@@ -148,6 +149,7 @@ __all__ = [
     "MAX_STRING_LENGTH",
     "MAX_UNIT_LENGTH",
     "MEAN_CONCENTRATIONS",
+    "OPEN_SHAPES",
     "POSITION_TOLERANCE",
     "QUANTITIES",
     "RELIABILITIES",
@@ -169,6 +171,7 @@ __all__ = [
     "LoadCase",
     "Material",
     "MeshKind",
+    "MidlinePoint",
     "Notch",
     "OperatingSpeed",
     "RotationLimit",
@@ -182,6 +185,7 @@ __all__ = [
     "Units",
     "Unwrapped",
     "Wall",
+    "WarpingKind",
     "declared_numbers",
     "declared_structs",
     "default_of",

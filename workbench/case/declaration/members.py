@@ -28,6 +28,7 @@ from workbench.case.units import SI_UNITS
 
 SupportKind = Literal["fixed", "spring"]
 MeshKind = Literal["external", "internal"]
+WarpingKind = Literal["restrained", "free"]
 
 
 def _items(
@@ -120,6 +121,7 @@ class Support(Keys):
     kind: Annotated[SupportKind, key("fixed holds the rotation; spring exerts −stiffness·(θ − rotation)", default="fixed", always=True)] | UnsetType | None = UNSET  # fmt: skip
     stiffness: Annotated[float, key("Rotational stiffness of a spring support", "stiffness", gt=0)] | UnsetType | None = UNSET  # fmt: skip
     rotation: Annotated[float, key("Prescribed rotation of the support (misfit, pre-twist)", "angle", default=0.0)] | UnsetType | None = UNSET  # fmt: skip
+    warping: Annotated[WarpingKind, key("Open sections that warp: restrained holds the warping there (θ′ = 0); free leaves it", default="free", always=True)] | UnsetType | None = UNSET  # fmt: skip
 
 
 class GearEnd(Keys):

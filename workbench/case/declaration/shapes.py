@@ -98,11 +98,104 @@ class ThinOpen(Keys, tag_field="shape", tag="thin_open"):
     walls: Annotated[Walls, key("The walls, each with its centre-line length and thickness")]
 
 
+# --- thin-walled open sections that warp (restrained torsion) ----------------------------------
+
+
+class FlangedKeys(Keys):
+    """Keys shared by sections of a web between two flanges (channel, Z)."""
+
+    depth: Annotated[float, key("Overall depth, outside of flange to outside of flange", "length", gt=0)]  # fmt: skip
+    width: Annotated[float, key("Overall flange width, the web's thickness included", "length", gt=0)]  # fmt: skip
+    flange_thickness: Annotated[float, key("Thickness of both flanges", "length", gt=0)]
+    web_thickness: Annotated[float, key("Thickness of the web", "length", gt=0)]
+
+
+class IBeam(Keys, tag_field="shape", tag="i_beam"):
+    """I section with a web between two flanges; the bottom flange may differ from the top one."""
+
+    depth: Annotated[float, key("Overall depth, outside of flange to outside of flange", "length", gt=0)]  # fmt: skip
+    width: Annotated[float, key("Width of the top flange (and of the bottom one unless stated)", "length", gt=0)]  # fmt: skip
+    flange_thickness: Annotated[float, key("Thickness of the top flange (and of the bottom one unless stated)", "length", gt=0)]  # fmt: skip
+    web_thickness: Annotated[float, key("Thickness of the web", "length", gt=0)]
+    bottom_width: Annotated[float, key("Width of the bottom flange, where it differs from the top one", "length", gt=0)] | UnsetType | None = UNSET  # fmt: skip
+    bottom_thickness: Annotated[float, key("Thickness of the bottom flange, where it differs from the top one", "length", gt=0)] | UnsetType | None = UNSET  # fmt: skip
+
+
+class Channel(FlangedKeys, tag_field="shape", tag="channel"):
+    """Channel: a web with both flanges on one side."""
+
+
+class ZSection(FlangedKeys, tag_field="shape", tag="z_section"):
+    """Z section: a web with its flanges on opposite sides."""
+
+
+class Angle(Keys, tag_field="shape", tag="angle"):
+    """Angle of two legs of one thickness (its warping constant is negligible: thin-wall theory 0)."""
+
+    leg_a: Annotated[float, key("Overall length of the first leg, heel to toe", "length", gt=0)]
+    leg_b: Annotated[float, key("Overall length of the second leg, heel to toe", "length", gt=0)]
+    thickness: Annotated[float, key("Thickness of both legs", "length", gt=0)]
+
+
+class Tee(Keys, tag_field="shape", tag="tee"):
+    """Tee: a flange with a stem at its middle (its warping constant is negligible)."""
+
+    depth: Annotated[float, key("Overall depth, top of flange to tip of stem", "length", gt=0)]
+    width: Annotated[float, key("Flange width", "length", gt=0)]
+    flange_thickness: Annotated[float, key("Thickness of the flange", "length", gt=0)]
+    stem_thickness: Annotated[float, key("Thickness of the stem", "length", gt=0)]
+
+
+class MidlinePoint(Keys):
+    """A point of the wall's mid-line; every point but the first ends a wall of its thickness."""
+
+    x: Annotated[float, key("Coordinate across the section", "length")]
+    y: Annotated[float, key("Coordinate across the section, square to x", "length")]
+    thickness: Annotated[float, key("Thickness of the wall from the previous point to this one (not on the first point)", "length", gt=0)] | UnsetType | None = UNSET  # fmt: skip
+
+
+class OpenPolyline(Keys, tag_field="shape", tag="open_polyline"):
+    """Thin-walled open section of any shape: its wall's mid-line as a polyline, wall by wall."""
+
+    points: Annotated[
+        list[MidlinePoint],
+        key("Mid-line points in order, at least two", min_length=2, max_length=MAX_ITEMS),
+    ]
+
+
+#: The declared open sections that warp (restrained torsion).
+OPEN_SHAPES = (IBeam, Channel, ZSection, Angle, Tee, OpenPolyline)
+
 #: Every cross-section a case file may name.
-Section = Solid | Tube | Tapered | Rectangle | ThinClosed | Box | EllipticalTube | ThinOpen
+Section = (
+    Solid
+    | Tube
+    | Tapered
+    | Rectangle
+    | ThinClosed
+    | Box
+    | EllipticalTube
+    | ThinOpen
+    | IBeam
+    | Channel
+    | ZSection
+    | Angle
+    | Tee
+    | OpenPolyline
+)
 
 #: The section objects by their ``shape`` key.
 SHAPES: dict[str, type[Keys]] = {
     str(cls.__struct_config__.tag): cls
-    for cls in (Solid, Tube, Tapered, Rectangle, ThinClosed, Box, EllipticalTube, ThinOpen)
+    for cls in (
+        Solid,
+        Tube,
+        Tapered,
+        Rectangle,
+        ThinClosed,
+        Box,
+        EllipticalTube,
+        ThinOpen,
+        *OPEN_SHAPES,
+    )
 }
