@@ -34,6 +34,7 @@ References
 
 from __future__ import annotations
 
+import contextlib
 import functools
 import os
 from collections.abc import Callable
@@ -132,11 +133,12 @@ def solve_file(path: str | os.PathLike[str]) -> Results:
         When part of the system is free to spin.
     """
     from workbench.case.load import load_case_file  # noqa: PLC0415 - only for solving files
-    from workbench.solver.build import build_model  # noqa: PLC0415
+    from workbench.solver.build import build_model, read_beside  # noqa: PLC0415
     from workbench.solver.case_columns import case_system  # noqa: PLC0415
 
-    system = case_system(load_case_file(path))
-    source = functools.partial(_model_of_file, path, build_model, load_case_file)
+    with read_beside(path):  # drawings named relative to the case file
+        system = case_system(load_case_file(path))
+    source = functools.partial(_model_of_file, path, build_model, load_case_file, read_beside)
     return _results(system.table, None, system.units, system.title, source)
 
 
@@ -144,8 +146,10 @@ def _model_of_file(
     path: str | os.PathLike[str],
     build: Callable[[CaseFile], Model],
     load: Callable[[str | os.PathLike[str]], CaseFile],
+    beside: Callable[[str | os.PathLike[str]], contextlib.AbstractContextManager[None]],
 ) -> Model:
-    return build(load(path))
+    with beside(path):
+        return build(load(path))
 
 
 def _results(

@@ -71,7 +71,7 @@ from workbench.case.declaration.members import (
     Torque,
     Units,
 )
-from workbench.case.declaration.shapes import SHAPES, Section, Wall
+from workbench.case.declaration.shapes import SHAPES, BoundaryPoint, Section, Wall
 
 
 @functools.cache
@@ -155,6 +155,7 @@ __all__ = [
     "SURFACE_FINISHES",
     "TWIST_RATE_RULES",
     "Alternatives",
+    "BoundaryPoint",
     "CaseFile",
     "Combination",
     "Design",
