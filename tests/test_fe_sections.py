@@ -61,11 +61,28 @@ def test_the_ratio_test_bounds_the_error_of_a_geometric_sequence(
 
 def test_the_ratio_test_needs_two_values_and_falls_back_on_the_a_priori_bound() -> None:
     assert relative_error([1.0], 1.0) == np.inf
-    assert relative_error([1.0, 1.02], 1.0) == pytest.approx(0.02)  # two meshes: |Δ|
+    assert relative_error([1.0, 1.02], 1.0) == pytest.approx(0.02)  # two meshes, h halved: |Δ|
     assert relative_error([1.0, 1.01, 1.03], 1.0) == pytest.approx(0.02)  # growing: |Δ|
     assert relative_error([1.0, 1.02, 1.01], 1.0) == pytest.approx(0.01)  # oscillating: |Δ|
     assert relative_error([1.0, 1.04, 1.05], 1.0) == pytest.approx(0.01 / 3)  # ρ = ¼
     assert relative_error([1.0, 1.0, 1.0], 0.0) == np.inf
+    # Twice the elements: h shrinks by √2 only, ρ̄ = 2^(−½), the bound |Δ|·ρ̄/(1 − ρ̄) ≈ 2.41·|Δ|.
+    assert relative_error([1.0, 1.01], 1.0, refinement=2.0) == pytest.approx(0.01 / (2**0.5 - 1))
+
+
+@given(
+    limit=st.floats(0.1, 10.0),
+    amplitude=st.floats(-1.0, 1.0).filter(lambda a: abs(a) > 1e-3),
+    refinement=st.floats(2.0, 8.0),
+    order=st.floats(1.0, 4.0),
+)
+def test_the_a_priori_bound_holds_for_any_rate_a_polygon_allows(
+    limit: float, amplitude: float, refinement: float, order: float
+) -> None:
+    # Error ∝ hᵖ with p ≥ 1 (a corner of any angle below 2π), h shrinking by √refinement.
+    ratio = refinement ** (-order / 2)
+    values = [limit + amplitude, limit + amplitude * ratio]
+    assert relative_error(values, limit, refinement) >= abs(amplitude * ratio) / limit * (1 - 1e-9)
 
 
 @pytest.mark.slow  # the finer mesh has some 5000 elements

@@ -19,11 +19,12 @@ of the one before, replaces it instead of following it). With
 q_k the value of J (or Cw) on mesh k, Δ_k = q_k − q_{k−1} and ρ = Δ_k/Δ_{k−1}, a sequence
 converging like hᵖ has ρ → 2⁻ᵖ, and the error left in q_k is the geometric tail
 |Δ_k|·ρ/(1 − ρ) (Richardson's extrapolation with the observed order). Where the observed ρ is
-negative or at least 1 (round-off, or not yet in the asymptotic range) the estimate is |Δ_k|,
-the a-priori bound: the warping function of a polygon is singular at most like r^λ at a corner
-of interior angle ω < 2π, λ = π/ω > ½, so the error of J (an energy) falls at least like
-h^(2λ) > h and ρ < ½, whose tail is below |Δ_k|; that bound also judges the second mesh, before
-any rate is observed. The estimate is never less than |Δ_k|/3
+negative or at least 1 (round-off, or not yet in the asymptotic range) the estimate is the
+a-priori bound: the warping function of a polygon is singular at most like r^λ at a corner of
+interior angle ω < 2π, λ = π/ω > ½, so the error of J (an energy) falls at least like
+h^(2λ) > h; with the element size shrinking by √(n_{k−1}/n_k), ρ < ρ̄ = √(n_{k−1}/n_k) (½ for a
+halving) and the tail is below |Δ_k|·ρ̄/(1 − ρ̄) (|Δ_k| for a halving). That bound also judges
+the second mesh, before any rate is observed. The estimate is never less than |Δ_k|/3
 (ρ = ¼, the rate of a smooth section); two
 successive changes both below 10⁻⁵ of the value are round-off, and the larger is the estimate
 (a circle drawn with many sides changes by no more than that once its sides are meshed). The
@@ -338,32 +339,39 @@ def _mesh_section(polygon: shapely.Polygon, element_area: float) -> FESection:
     return section
 
 
-def relative_error(values: list[float], scale: float) -> float:
+def relative_error(values: list[float], scale: float, refinement: float = 4.0) -> float:
     """Estimated relative error of the last of successive refinements' values (ratio test).
 
     Parameters
     ----------
     values
-        The value on each mesh, coarsest first, each mesh's elements a quarter the area of the
-        one before.
+        The value on each mesh, coarsest first.
     scale
         What the error is relative to (the value, or a floor for values that vanish).
+    refinement
+        Elements of the last mesh over those of the one before (4 when the element size halves).
 
     Returns
     -------
     float
-        ``inf`` with fewer than two values; with two, the a-priori bound |Δ|.
+        ``inf`` with fewer than two values. With two, or while the changes do not shrink
+        steadily, the a-priori bound |Δ|·ρ̄/(1 − ρ̄), ρ̄ = refinement^(−½) (the slowest rate a
+        polygon allows, the error ∝ h); else the observed tail |Δ|·ρ/(1 − ρ), at least |Δ|/3.
 
     References
     ----------
     .. [1] L. F. Richardson, "The deferred approach to the limit", 1927 (the geometric tail of
        the changes; derivable).
+    .. [2] Strang & Fix, *An Analysis of the Finite Element Method*, 1973, ch. 8 (corner
+       singularities limit the rate; from memory).
     """
     if len(values) < 2 or scale <= 0.0 or not math.isfinite(scale):
         return math.inf
     last = values[-1] - values[-2]
+    slowest = refinement**-0.5 if refinement > 1.0 else 1.0
+    a_priori = abs(last) * slowest / (1.0 - slowest) if slowest < 1.0 else math.inf
     if len(values) == 2:
-        return abs(last) / scale  # the a-priori bound (no observed rate yet)
+        return a_priori / scale  # no observed rate yet
     before = values[-2] - values[-3]
     if last == 0.0:
         return 0.0
@@ -371,10 +379,8 @@ def relative_error(values: list[float], scale: float) -> float:
         return max(abs(last), abs(before)) / scale  # changes at the level of round-off
     ratio = last / before if before != 0.0 else math.inf
     if ratio >= 1.0 or ratio < 0.0:
-        tail = abs(last)  # the a-priori bound: ρ ≤ ½ for any polygon (see the module's notes)
-    else:
-        tail = abs(last) * max(ratio / (1.0 - ratio), 1.0 / 3.0)
-    return tail / scale
+        return a_priori / scale
+    return abs(last) * max(ratio / (1.0 - ratio), 1.0 / 3.0) / scale
 
 
 def _analyse(polygon: shapely.Polygon) -> FESectionProperties:
@@ -397,8 +403,9 @@ def _analyse(polygon: shapely.Polygon) -> FESectionProperties:
         torsion = [j for _, j, _ in history]
         warping = [gamma for _, _, gamma in history]
         floor = _WARPING_FLOOR * (ixx + iyy) ** 2 / unit.area
-        torsion_error = relative_error(torsion, abs(torsion[-1]))
-        warping_error = relative_error(warping, max(abs(warping[-1]), floor))
+        refined = history[-1][0] / history[-2][0] if len(history) > 1 else 1.0
+        torsion_error = relative_error(torsion, abs(torsion[-1]), refined)
+        warping_error = relative_error(warping, max(abs(warping[-1]), floor), refined)
         if torsion_error <= TOLERANCE and warping_error <= TOLERANCE:
             break
     else:
