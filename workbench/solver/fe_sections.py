@@ -9,7 +9,10 @@ triangles and refines the mesh until the Saint-Venant torsion constant J and the
 constant Cw are estimated within :data:`TOLERANCE` of their converged values; it then returns
 J, Cw, the shear centre and the largest Saint-Venant shear stress per unit torque of that
 mesh. Results are kept in memory by a digest of the geometry and the mesh options (the panel
-re-solves on every edit; a section it has seen comes back in microseconds).
+re-solves on every edit; a section it has seen comes back in microseconds). Not on disk: a file
+under the user's cache folder would outlive the method and the library version that made it,
+and a stale or altered entry would reach results and signed records unseen; the first analysis
+of a section in a process (about a second) is the price of never trusting one.
 
 Convergence (a ratio test on successive refinements)
 ----------------------------------------------------
