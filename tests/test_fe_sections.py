@@ -267,6 +267,23 @@ def test_a_bad_drawing_is_one_line_naming_the_path(
     assert "Traceback" not in stderr
 
 
+@pytest.mark.parametrize(
+    ("path", "expected"),
+    [
+        ("/dev/zero", "it is not a file"),
+        ("/", "it is not a file"),
+        ("/tmp/a\u0000b.dxf", "cannot read"),
+    ],
+)
+def test_a_drawing_path_that_is_no_file_is_refused_without_reading(
+    path: str, expected: str
+) -> None:
+    with pytest.raises(InputError) as caught:
+        parse_case(case({"shape": "dxf", "path": path}))
+    assert caught.value.field == f"{FIELD}.path"
+    assert expected in caught.value.message
+
+
 def test_a_relative_drawing_path_needs_a_case_read_from_a_file() -> None:
     with pytest.raises(InputError) as caught:
         parse_case(case({"shape": "dxf", "path": "part.dxf"}))

@@ -19,6 +19,7 @@ import hashlib
 import importlib.util
 import os
 import pathlib
+import stat
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, ClassVar
 
@@ -162,13 +163,16 @@ def drawing_outline(file: str, scale: float) -> tuple[FloatArray, tuple[FloatArr
         outline or more than one; also when the DXF reader is not installed.
     """
     try:
-        size = os.path.getsize(file)
-        if size > MAX_DRAWING_BYTES:
-            msg = f"the drawing is {size:,} bytes; at most {MAX_DRAWING_BYTES:,} are read"
+        status = os.stat(file)
+        if not stat.S_ISREG(status.st_mode):  # a folder, a device, a pipe: never read
+            raise InputError("path", "cannot read the drawing: it is not a file")
+        if status.st_size > MAX_DRAWING_BYTES:
+            msg = f"the drawing is {status.st_size:,} bytes; at most {MAX_DRAWING_BYTES:,} are read"
             raise InputError("path", msg)
         data = pathlib.Path(file).read_bytes()
-    except OSError as error:
-        raise InputError("path", f"cannot read the drawing: {error.strerror or error}") from None
+    except (OSError, ValueError) as error:  # ValueError: a NUL in the path
+        reason = getattr(error, "strerror", None) or str(error)
+        raise InputError("path", f"cannot read the drawing: {reason}") from None
     digest = hashlib.sha256(data).digest()
     return _outline(digest, file, scale)
 
