@@ -269,7 +269,7 @@ def test_segments_are_counted_over_all_shafts(monkeypatch: pytest.MonkeyPatch) -
 @pytest.mark.parametrize(
     ("shape", "words"),
     [
-        ("{}", "must be one of solid, tube, tapered, rectangle, thin_closed, box, elliptical_tube, thin_open, i_beam, channel, z_section, angle, tee, open_polyline, not an object"),
+        ("{}", "must be one of solid, tube, tapered, rectangle, thin_closed, box, elliptical_tube, thin_open, i_beam, channel, z_section, angle, tee, open_polyline, polygon, dxf,"),
         ("[]", "must be one of solid, tube"),
         ('"hexagon"', "unknown shape 'hexagon'; choose one of solid, tube"),
         ("null", "is required"),

@@ -298,27 +298,65 @@ solve(parse_case({
     "supports": [{"shaft": "s", "x": 0.0}],
     "load_cases": [{"name": "c", "torques": [{"shaft": "s", "x": 1.0, "torque": 100.0}]}],
 }))
+# A non-circular shape loads the registry of every shape, the finite-element ones' classes too,
+# but not the finite-element module: sectionproperties (and its matplotlib) wait for a polygon.
+solve(parse_case({
+    "materials": {"steel": {"shear_modulus": 79.3e9}},
+    "shafts": [{"id": "s", "segments": [{"length": 1.0, "material": "steel",
+        "section": {"shape": "rectangle", "width": 0.05, "height": 0.02}}]}],
+    "supports": [{"shaft": "s", "x": 0.0}],
+    "load_cases": [{"name": "c", "torques": [{"shaft": "s", "x": 1.0, "torque": 100.0}]}],
+}))
 heavy = ["ipywidgets", "bqplot", "nbconvert", "matplotlib", "pandas", "traitlets", "IPython",
-         "nbformat", "pint"]
+         "nbformat", "pint", "sectionproperties", "shapely", "cad_to_shapely", "ezdxf",
+         "workbench.solver.fe_sections"]
 print(json.dumps({"loaded": [m for m in heavy if m in sys.modules]}))
 """
+
+POLYGON_PROBE = """
+import json, sys
+from workbench.solver.analysis import solve
+from workbench.solver.io import parse_case
+solve(parse_case({
+    "materials": {"steel": {"shear_modulus": 79.3e9, "elastic_modulus": 200e9}},
+    "shafts": [{"id": "s", "segments": [{"length": 1.0, "material": "steel",
+        "section": {"shape": "polygon", "outer": [{"x": 0, "y": 0}, {"x": 0.05, "y": 0},
+                                                   {"x": 0.05, "y": 0.02}, {"x": 0, "y": 0.02}]}}]}],
+    "supports": [{"shaft": "s", "x": 0.0}],
+    "load_cases": [{"name": "c", "torques": [{"shaft": "s", "x": 1.0, "torque": 100.0}]}],
+}))
+probed = ["sectionproperties", "matplotlib", "cad_to_shapely", "ezdxf", "ipywidgets", "nbconvert"]
+print(json.dumps({"loaded": [m for m in probed if m in sys.modules]}))
+"""
+
+
+def _modules_loaded(probe: str) -> list[str]:
+    """The probed modules a fresh interpreter running ``probe`` has loaded."""
+    completed = subprocess.run(
+        [sys.executable, "-c", probe],
+        capture_output=True,
+        text=True,
+        env=_environment(),
+        cwd=ROOT,
+        timeout=120,
+        check=False,
+    )
+    assert completed.returncode == 0, completed.stderr
+    loaded: list[str] = json.loads(completed.stdout)["loaded"]
+    return loaded
 
 
 def test_the_solver_imports_light():
     # Design §1: the solver imports with no widget, nbconvert or matplotlib module (nor pandas,
     # nor pint for an SI case) loaded. Its start-up time is a benchmark row, not a unit test.
-    completed = subprocess.run(
-        [sys.executable, "-c", IMPORT_PROBE],
-        capture_output=True,
-        text=True,
-        env=_environment(),
-        cwd=ROOT,
-        timeout=60,
-        check=False,
-    )
-    assert completed.returncode == 0, completed.stderr
-    report = json.loads(completed.stdout)
-    assert report["loaded"] == []
+    assert _modules_loaded(IMPORT_PROBE) == []
+
+
+def test_a_polygon_section_loads_sectionproperties_and_with_it_matplotlib_but_no_dxf_reader():
+    # What the finite-element section costs in modules, stated rather than hidden: the
+    # sectionproperties package imports matplotlib.pyplot itself; the DXF reader waits for a
+    # drawing, and no widget or notebook library comes with either.
+    assert _modules_loaded(POLYGON_PROBE) == ["sectionproperties", "matplotlib"]
 
 
 def test_an_unexpected_error_is_one_line_with_exit_status_3(

@@ -62,8 +62,8 @@ def _press_drive_with_every_other_key(base: dict[str, Any]) -> dict[str, Any]:
 
 
 #: The base cases: the demo (mm, design, fatigue, discs, densities, running speeds), the same
-#: with every other numeric key, every section shape (inches, layers, notch, internal gear mesh)
-#: and the line shaft. Between them they hold every numeric key the case file declares
+#: with every other numeric key, every section shape (inches, layers, notch, internal gear mesh),
+#: the line shaft and a polygon section. Between them they hold every numeric key the case file declares
 #: (test_the_bases_hold_every_numeric_key_of_the_declaration).
 BASES: dict[str, dict[str, Any]] = {
     "press_drive": json.loads((ROOT / "workbench" / "cases" / "press_drive.json").read_text()),
@@ -72,6 +72,18 @@ BASES: dict[str, dict[str, Any]] = {
     "line_shaft": json.loads(LINE_SHAFT.read_text()),
 }
 BASES["press_drive_more"] = _press_drive_with_every_other_key(BASES["press_drive"])
+#: A section by finite elements: a 40 × 20 mm plate with a 10 mm square hole.
+BASES["polygon"] = {
+    "units": {"length": "mm", "stress": "MPa"},
+    "materials": {"steel": {"shear_modulus": 79300, "elastic_modulus": 200000}},
+    "shafts": [{"id": "s", "segments": [{"length": 500, "material": "steel", "section": {
+        "shape": "polygon",
+        "outer": [{"x": 0, "y": 0}, {"x": 40, "y": 0}, {"x": 40, "y": 20}, {"x": 0, "y": 20}],
+        "holes": [[{"x": 15, "y": 5}, {"x": 25, "y": 5}, {"x": 25, "y": 15}, {"x": 15, "y": 15}]],
+    }}]}],
+    "supports": [{"shaft": "s", "x": 0}],
+    "load_cases": [{"name": "c", "torques": [{"shaft": "s", "x": 500, "torque": 100}]}],
+}  # fmt: skip
 
 #: Floats at the edges: IEEE 754 binary64 (see the module's docstring).
 LARGEST = 1.7976931348623157e308

@@ -31,6 +31,7 @@ from workbench.panel import CASE_MIME_TYPE
 from workbench.panel.document import Path, clone, plain_words, unit_key, unit_system
 from workbench.panel.keys import quantity_of
 from workbench.solver.analysis import Results, solve
+from workbench.solver.build import read_beside
 from workbench.solver.io import case_to_dict, parse_case, save_case
 from workbench.solver.model import Model
 from workbench.solver.modes import Modes, natural_modes
@@ -60,7 +61,8 @@ class CaseState:
         on_error: Callable[[InputError], None],
     ) -> None:
         self.path = FilePath(path) if path is not None else None
-        model = parse_case(clone(document))
+        with read_beside(self.path):  # drawing sections named relative to the case file
+            model = parse_case(clone(document))
         key = unit_key(model.units)
         #: The panel's unit system (a key of :data:`~workbench.panel.document.UNIT_CHOICES`).
         self.units_key = key or "si"
@@ -217,7 +219,8 @@ class CaseState:
             self._fail(self._first_refusal())
             return None
         try:
-            return parse_case(clone(self.document))
+            with read_beside(self.path):
+                return parse_case(clone(self.document))
         except InputError as error:
             self._fail(error)
         except Exception as error:

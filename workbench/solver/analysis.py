@@ -34,6 +34,7 @@ References
 
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import functools
 import os
@@ -138,15 +139,16 @@ def solve_file(path: str | os.PathLike[str]) -> Results:
         When part of the system is free to spin.
     """
     from workbench.case.load import load_case_file  # noqa: PLC0415 - only for solving files
-    from workbench.solver.build import build_model  # noqa: PLC0415
+    from workbench.solver.build import build_model, read_beside  # noqa: PLC0415
     from workbench.solver.case_columns import case_system  # noqa: PLC0415
 
-    case = load_case_file(path)
-    system = case_system(case)
-    if system.warps:  # restrained torsion reads the sections' warping from the model
-        return solve(build_model(case))
+    with read_beside(path):  # drawings named relative to the case file
+        case = load_case_file(path)
+        system = case_system(case)
+        if system.warps:  # restrained torsion reads the sections' warping from the model
+            return solve(build_model(case))
     del case  # let the decoded file go before the solve
-    source = functools.partial(_model_of_file, path, build_model, load_case_file)
+    source = functools.partial(_model_of_file, path, build_model, load_case_file, read_beside)
     return _results(system.table, None, system.units, system.title, source)
 
 
@@ -154,8 +156,10 @@ def _model_of_file(
     path: str | os.PathLike[str],
     build: Callable[[CaseFile], Model],
     load: Callable[[str | os.PathLike[str]], CaseFile],
+    beside: Callable[[str | os.PathLike[str]], contextlib.AbstractContextManager[None]],
 ) -> Model:
-    return build(load(path))
+    with beside(path):
+        return build(load(path))
 
 
 def _results(

@@ -14,9 +14,13 @@ import dataclasses
 import functools
 import gc
 import itertools
+import os
+import pathlib
 from collections.abc import Iterator
+from contextvars import ContextVar
 from typing import TYPE_CHECKING, Any
 
+import numpy as np
 from msgspec import UNSET
 
 from workbench.case import declaration as declared
@@ -47,7 +51,29 @@ from workbench.solver.model import (
 from workbench.solver.sections import Section
 
 if TYPE_CHECKING:
+    from workbench.solver.polygon_sections import Points
     from workbench.solver.thin_walls import Wall
+
+
+#: The folder of the case file being read: drawings named by a relative path are found there.
+case_folder: ContextVar[str | None] = ContextVar("case_folder", default=None)
+
+
+@contextlib.contextmanager
+def read_beside(case_path: str | os.PathLike[str] | None) -> Iterator[None]:
+    """Resolve the relative drawing paths of the case built inside against ``case_path``'s folder.
+
+    Parameters
+    ----------
+    case_path
+        The case file's path; ``None`` leaves relative drawing paths refused.
+    """
+    folder = None if case_path is None else str(pathlib.Path(case_path).resolve().parent)
+    token = case_folder.set(folder)
+    try:
+        yield
+    finally:
+        case_folder.reset(token)
 
 
 @functools.cache
@@ -58,6 +84,7 @@ def solver_sections() -> dict[type[declared.Keys], type[Section]]:
     ``workbench solve``) never needs them.
     """
     from workbench.solver.noncircular import NONCIRCULAR_SHAPES  # noqa: PLC0415
+    from workbench.solver.polygon_sections import DrawingSection, PolygonSection  # noqa: PLC0415
     from workbench.solver.warping_sections import OPEN_SECTIONS  # noqa: PLC0415
 
     shapes: tuple[type[Section], ...] = (
@@ -66,6 +93,8 @@ def solver_sections() -> dict[type[declared.Keys], type[Section]]:
         circular.TaperedCircle,
         *NONCIRCULAR_SHAPES.values(),
         *OPEN_SECTIONS.values(),
+        PolygonSection,
+        DrawingSection,
     )
     return {declared.SHAPES[cls.shape]: cls for cls in shapes}
 
@@ -141,6 +170,22 @@ class ModelBuilder:
             if name == "points":
                 values[name] = tuple(self._point(n, point) for n, point in enumerate(entry.points))
                 continue
+            if name == "outer":
+                values[name] = self._boundary(name, entry.outer)
+                continue
+            if name == "holes":
+                holes = entry.holes or ()
+                values[name] = tuple(
+                    self._boundary(f"holes[{number}]", hole) for number, hole in enumerate(holes)
+                )
+                continue
+            if name == "path":
+                values.update(
+                    path=entry.path,
+                    file=self._drawing_file(entry.path),
+                    scale=self.convert.factor(declared.BoundaryPoint, "x"),
+                )
+                continue
             value = self.convert.si(entry, name)
             if value is not None:
                 values[name] = value
@@ -157,6 +202,33 @@ class ModelBuilder:
             return MidlinePoint(si(entry, "x"), si(entry, "y"), si(entry, "thickness"))
         except InputError as error:
             raise within(f"points[{number}]", error) from None
+
+    def _boundary(self, field: str, points: list[declared.BoundaryPoint]) -> Points:
+        """A boundary's points in SI, ``((x, y), ...)``; a number beyond SI's range named."""
+        factor = self.convert.factor(declared.BoundaryPoint, "x")
+        with np.errstate(over="ignore"):  # checked right after
+            values = np.array([(point.x, point.y) for point in points], dtype=float) * factor
+        if not np.isfinite(values).all():
+            number, axis = np.argwhere(~np.isfinite(values))[0]
+            name = "xy"[axis]
+            raw = getattr(points[number], name)
+            msg = f"must be a finite number: {raw:g} is beyond the range of numbers in SI"
+            raise InputError(f"{field}[{number}].{name}", msg)
+        return tuple(map(tuple, values.tolist()))
+
+    def _drawing_file(self, path: str) -> str:
+        """A drawing's path resolved against the folder of the case file read."""
+        drawing = pathlib.Path(path)
+        if drawing.is_absolute():
+            return str(drawing)
+        folder = case_folder.get()
+        if folder is None:
+            msg = (
+                f"{quoted(path)} is relative to the case file's folder, and this case was not "
+                "read from a file: give the drawing's full path"
+            )
+            raise InputError("path", msg)
+        return str(pathlib.Path(folder) / drawing)
 
     def _wall(self, number: int, entry: declared.Wall) -> Wall:
         from workbench.solver.thin_walls import Wall  # noqa: PLC0415 - thin walls only
@@ -364,12 +436,24 @@ def build_model(case: declared.CaseFile) -> Model:
 # --- the case file of a model --------------------------------------------------------------
 
 
+def _boundary_entry(points: Points, convert: Converter) -> list[declared.BoundaryPoint]:
+    factor = convert.factor(declared.BoundaryPoint, "x")
+    return [declared.BoundaryPoint(x=x / factor, y=y / factor) for x, y in points]
+
+
 def _section_entry(section: Section, convert: Converter) -> Any:
+    from workbench.solver.polygon_sections import DrawingSection, PolygonSection  # noqa: PLC0415
+
     cls = declared.SHAPES[section.shape]
     points = getattr(section, "points", None)
     if points is not None:
         entries = [convert.entry(declared.MidlinePoint, point) for point in points]
         return convert.entry(cls, section, points=entries)
+    if isinstance(section, PolygonSection):
+        holes = [_boundary_entry(hole, convert) for hole in section.holes]
+        return cls(outer=_boundary_entry(section.outer, convert), holes=holes or UNSET)
+    if isinstance(section, DrawingSection):
+        return cls(path=section.path)
     walls = getattr(section, "walls", None)
     if walls is None:
         return convert.entry(cls, section)

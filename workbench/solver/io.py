@@ -15,7 +15,7 @@ from typing import Any
 
 from workbench.case.load import case_file_from_document, decode_document, load_case_file
 from workbench.case.units import UnitSystem
-from workbench.solver.build import build_model, case_file_of
+from workbench.solver.build import build_model, case_file_of, read_beside
 from workbench.solver.model import Model
 
 __all__ = [
@@ -72,7 +72,8 @@ def load_case(path: str | os.PathLike[str]) -> Model:
     InputError
         When the file cannot be read, is not JSON, or is not a valid case.
     """
-    return build_model(load_case_file(path))
+    with read_beside(path):  # drawings named relative to the case file
+        return build_model(load_case_file(path))
 
 
 def case_to_dict(model: Model, units: UnitSystem | None = None) -> dict[str, Any]:

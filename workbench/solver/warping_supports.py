@@ -89,7 +89,7 @@ def unstated_restraint_warning(table: CaseTable) -> str | None:
     where = ", ".join(f"supports[{int(n)}]" for n in numbers[:3])
     more = f" and {numbers.size - 3} more" if numbers.size > 3 else ""
     return (
-        f"{where}{more}: an open section that warps meets a fixed support stating no "
+        f"{where}{more}: a section that warps (E·Cw > 0) meets a fixed support stating no "
         f'"warping"; it is taken as free: {UNSTATED_RESTRAINT}'
     )
 

@@ -73,7 +73,14 @@ from workbench.case.declaration.members import (
     Units,
     WarpingKind,
 )
-from workbench.case.declaration.shapes import OPEN_SHAPES, SHAPES, MidlinePoint, Section, Wall
+from workbench.case.declaration.shapes import (
+    OPEN_SHAPES,
+    SHAPES,
+    BoundaryPoint,
+    MidlinePoint,
+    Section,
+    Wall,
+)
 
 
 @functools.cache
@@ -158,6 +165,7 @@ __all__ = [
     "SURFACE_FINISHES",
     "TWIST_RATE_RULES",
     "Alternatives",
+    "BoundaryPoint",
     "CaseFile",
     "Combination",
     "Design",

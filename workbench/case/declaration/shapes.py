@@ -10,7 +10,7 @@ from typing import Annotated
 
 from msgspec import UNSET, Meta, UnsetType
 
-from workbench.case.declaration.keys import MAX_ITEMS, Keys, key
+from workbench.case.declaration.keys import MAX_ITEMS, MAX_STRING_LENGTH, Keys, key
 
 
 class Wall(Keys):
@@ -166,36 +166,57 @@ class OpenPolyline(Keys, tag_field="shape", tag="open_polyline"):
 #: The declared open sections that warp (restrained torsion).
 OPEN_SHAPES = (IBeam, Channel, ZSection, Angle, Tee, OpenPolyline)
 
+# --- any cross-section, by finite elements -----------------------------------------------------
+
+
+class BoundaryPoint(Keys):
+    """A corner of a section's boundary."""
+
+    x: Annotated[float, key("Coordinate across the section", "length")]
+    y: Annotated[float, key("Coordinate across the section, square to x", "length")]
+
+
+Boundary = Annotated[list[BoundaryPoint], Meta(min_length=3, max_length=MAX_ITEMS)]
+
+
+class Polygon(Keys, tag_field="shape", tag="polygon"):
+    """Solid section of any shape: a polygon with polygonal holes (finite elements)."""
+
+    outer: Annotated[Boundary, key("Corners of the outer boundary in order, at least three")]
+    holes: (
+        Annotated[
+            list[Boundary],
+            key("Boundaries of holes, each inside the outer one and clear of the others", max_length=MAX_ITEMS),
+        ]
+        | UnsetType
+        | None
+    ) = UNSET  # fmt: skip
+
+
+class Drawing(Keys, tag_field="shape", tag="dxf"):
+    """Solid section outlined in a DXF drawing: one closed outline with closed holes (finite elements)."""
+
+    path: Annotated[
+        str,
+        key("The DXF drawing, relative to the case file's folder; its coordinates in the case's length unit", min_length=1, max_length=MAX_STRING_LENGTH),
+    ]  # fmt: skip
+
+
+#: The declared sections analysed by finite elements.
+FE_SHAPES = (Polygon, Drawing)
+
 #: Every cross-section a case file may name.
 Section = (
-    Solid
-    | Tube
-    | Tapered
-    | Rectangle
-    | ThinClosed
-    | Box
-    | EllipticalTube
-    | ThinOpen
-    | IBeam
-    | Channel
-    | ZSection
-    | Angle
-    | Tee
-    | OpenPolyline
-)
+    Solid | Tube | Tapered | Rectangle | ThinClosed | Box | EllipticalTube | ThinOpen
+    | IBeam | Channel | ZSection | Angle | Tee | OpenPolyline
+    | Polygon | Drawing
+)  # fmt: skip
 
 #: The section objects by their ``shape`` key.
 SHAPES: dict[str, type[Keys]] = {
     str(cls.__struct_config__.tag): cls
     for cls in (
-        Solid,
-        Tube,
-        Tapered,
-        Rectangle,
-        ThinClosed,
-        Box,
-        EllipticalTube,
-        ThinOpen,
-        *OPEN_SHAPES,
+        Solid, Tube, Tapered, Rectangle, ThinClosed, Box, EllipticalTube, ThinOpen,
+        *OPEN_SHAPES, *FE_SHAPES,
     )
-}
+}  # fmt: skip

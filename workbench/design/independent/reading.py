@@ -15,6 +15,7 @@ from numpy.typing import NDArray
 
 from workbench.case import declaration as declared
 from workbench.case.convert import Converter, unit_system
+from workbench.case.declaration.shapes import FE_SHAPES
 from workbench.case.materials import library_material
 from workbench.case.power import torque_from_power
 from workbench.design.independent.sections import LayerRigidity, layer_rigidity
@@ -110,7 +111,19 @@ class _Reader:
         return self.materials[name]
 
     def section(self, entry: Any) -> Any:
-        """The same declared section with every number in SI."""
+        """The same declared section with every number in SI.
+
+        Raises
+        ------
+        NotCovered
+            For a section by finite elements (``polygon``, ``dxf``): no closed form checks it.
+        """
+        if isinstance(entry, FE_SHAPES):
+            msg = (
+                f"a {entry.__struct_config__.tag} section, whose J comes from finite elements "
+                "(sectionproperties): the check has no closed form of its own for it"
+            )
+            raise NotCovered(msg)
         values: dict[str, Any] = {}
         for name in type(entry).__struct_fields__:
             if name == "walls":
