@@ -311,3 +311,14 @@ def test_z_section_inner_points_lie_where_wn_vanishes() -> None:
         w = section.unit_warping
         assert 0.0 < along < 1.0
         assert abs(w[start] + along * (w[end] - w[start])) <= 1e-12 * np.abs(w).max()
+
+
+@pytest.mark.parametrize(("normal", "shear"), [(0.0, 1e-308), (1e-160, 0.0), (1e200, 1e200)])
+def test_combination_at_the_edges_of_the_floats(normal: float, shear: float) -> None:
+    # Squares that under- or overflow must not make √(σ² + 3τ²) smaller than a part or inf.
+    state = _restrained_member(2.0, 0.0, 0.5)  # no torque: the stated stresses alone
+    inputs = _inputs(_stresses(state), [0], [normal], [shear])
+    sigma, tau, combined = point_stresses(inputs)
+    assert np.isfinite(combined).all()
+    assert np.all(combined >= sigma) and np.all(combined >= tau)
+    np.testing.assert_allclose(combined, math.hypot(normal, math.sqrt(3.0) * shear), rtol=1e-15)

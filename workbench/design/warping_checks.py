@@ -228,9 +228,23 @@ def point_stresses(inputs: WarpingCheckInputs) -> tuple[FloatArray, FloatArray, 
     segment = station_segments(inputs.segment_start, stresses.valid.shape[0])
     bending_normal = inputs.coexisting_normal[segment][:, None]  # (S, 1)
     bending_shear = inputs.coexisting_shear[segment][:, None]
-    normal = np.abs(stresses.warping_normal) + bending_normal
-    shear = np.abs(stresses.saint_venant_shear) + np.abs(stresses.warping_shear) + bending_shear
-    combined = np.hypot(normal, _ROOT_THREE * shear)  # no under- or overflow of the squares
+    # In place: each is a whole (..., S, P) array, and a pass over it is the cost.
+    normal = np.abs(stresses.warping_normal)
+    normal += bending_normal
+    shear = np.abs(stresses.saint_venant_shear)
+    shear += np.abs(stresses.warping_shear)
+    shear += bending_shear
+    with np.errstate(over="ignore", under="ignore"):
+        combined = normal * normal
+        squared = shear * shear
+        squared *= 3.0
+        combined += squared
+        np.sqrt(combined, out=combined)
+    # Squares beyond the range of floats (stresses below 1e-154 Pa or above 1e154 Pa) leave
+    # the root short or infinite: those points again by hypot, which does not square.
+    lost = ~(combined >= np.maximum(normal, shear)) | np.isinf(combined)
+    if np.any(lost):
+        combined[lost] = np.hypot(normal[lost], _ROOT_THREE * shear[lost])
     return normal, shear, combined
 
 
@@ -272,9 +286,16 @@ def warping_utilisations(inputs: WarpingCheckInputs) -> WarpingUtilisations:
     [125000000.0, 72169000.0, 125000000.0]
     """
     normal, shear, combined = point_stresses(inputs)
-    by_kind = np.stack([normal, shear, combined], axis=-3)  # (..., K, S, P)
-    point_of_station = np.argmax(by_kind, axis=-1)  # the first point on a tie: a valid one
-    station_value = np.take_along_axis(by_kind, point_of_station[..., None], axis=-1)[..., 0]
+    kinds = (normal, shear, combined)  # each (..., S, P); kinds, not segments, are looped
+    # The first point on a tie: a valid one (they come first).
+    point_of_station = np.stack([np.argmax(array, axis=-1) for array in kinds], axis=-2)
+    station_value = np.stack(  # (..., K, S); reading at the argmax beats a second reduction
+        [
+            np.take_along_axis(array, point_of_station[..., number, :, None], axis=-1)[..., 0]
+            for number, array in enumerate(kinds)
+        ],
+        axis=-2,
+    )
     value, station = segment_peaks(station_value, inputs.segment_start)  # (..., K, G)
     point = np.take_along_axis(point_of_station, station, axis=-1)
 
