@@ -322,3 +322,26 @@ def test_combination_at_the_edges_of_the_floats(normal: float, shear: float) -> 
     assert np.isfinite(combined).all()
     assert np.all(combined >= sigma) and np.all(combined >= tau)
     np.testing.assert_allclose(combined, math.hypot(normal, math.sqrt(3.0) * shear), rtol=1e-15)
+
+
+@pytest.mark.parametrize(
+    ("segment", "kind", "value", "limit", "field"),
+    [
+        (1, "warping_normal_stress", math.inf, 125e6, "design.coexisting_stresses[0]"),
+        (0, "warping_combined_stress", math.inf, 125e6, "shafts[0].segments[0].section"),
+        (0, "warping_normal_stress", 1e8, 1e-320, "materials.steel.yield_strength"),
+        (0, "warping_shear_stress", 1e8, 1e-320, "materials.steel.yield_strength"),
+    ],
+)
+def test_rows_beyond_the_range_of_numbers_name_their_cause(
+    segment, kind, value, limit, field
+) -> None:
+    from workbench.design.check_report import Check
+    from workbench.design.finite_checks import require_finite_checks
+
+    model = parse_case(copy.deepcopy(BASE))
+    row = Check("T", "s", segment, kind, value, limit, 0.0, "")
+    with pytest.raises(InputError) as caught:
+        require_finite_checks([row], model, model.design)
+    assert caught.value.field == field
+    assert "beyond the range of numbers" in caught.value.message
