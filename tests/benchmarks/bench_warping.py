@@ -9,7 +9,7 @@ The member is an invented thin-walled beam: 10⁵ elements with λL from 10⁻²
 long elements both), restrained at both ends, a point torque every 1000 nodes and a linearly
 varying distributed torque on every element.
 
-A second row, for information (no target): the torsional stresses at the 15 stress points of an
+A second row, for information (no target): the torsional stresses at the 10 stress points of an
 I section and the three warping checks, at every node of the same member taken as 1000
 segments of 100 elements, four load cases (the solved one scaled), judged at once.
 """
@@ -104,7 +104,7 @@ def run() -> list[Row]:
 
 
 def _stress_row(member: WarpingMember, solution: WarpingSolution) -> Row:
-    """Stresses and checks at 10⁵ + 1 stations × 4 load cases × 15 stress points."""
+    """Stresses and checks at 10⁵ + 1 stations × 4 load cases × 10 stress points."""
     state = recover(solution, member.node_x)
     scale = np.array([[1.0], [-0.5], [2.0], [0.25]])
     rate, second, third = (scale * getattr(state, name) for name in ("rate", "second", "third"))

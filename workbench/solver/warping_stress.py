@@ -109,8 +109,8 @@ def stress_points(sections: Sequence[OpenSectionWarping]) -> StressPoints:
     Returns
     -------
     StressPoints
-        (N, P) arrays, P = 3 × the most walls of any section; a section's valid points come
-        first, wall by wall (start, end, inside).
+        (N, P) arrays, P the most stress points of any section; a section's points come
+        first, wall by wall (start, end, inside), padding after.
 
     Notes
     -----
@@ -154,7 +154,7 @@ def stress_points(sections: Sequence[OpenSectionWarping]) -> StressPoints:
     candidate_t = np.repeat(thickness, 3)
 
     # Each section's valid candidates first: the slot of a valid one is its rank among them.
-    width = 3 * int(counts.max(initial=0))
+    width = int(np.bincount(candidate_owner[candidate_valid], minlength=len(sections)).max())
     order = np.lexsort((~candidate_valid, candidate_owner))  # stable: walls keep their order
     section_start = np.concatenate([[0], np.cumsum(3 * counts)[:-1]])
     slot = np.empty(len(order), dtype=np.intp)
