@@ -23,7 +23,7 @@ from typing import Any
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 from scipy import integrate
 
@@ -424,6 +424,79 @@ def out_of_balance(document: dict[str, Any]) -> float:
 
 @settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(systems())
+@example(
+    document={
+        "units": {"length": "mm", "torque": "N*m", "stress": "MPa", "angle": "deg"},
+        "materials": {"steel": {"shear_modulus": 79300.0}, "bronze": {"shear_modulus": 41400.0}},
+        "shafts": [
+            {
+                "id": "s0",
+                "segments": [
+                    {
+                        "length": 50.0,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 20.0},
+                    },
+                    {
+                        "length": 50.0,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 20.0},
+                    },
+                ],
+            },
+            {
+                "id": "s1",
+                "segments": [
+                    {
+                        "length": 50.0,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 20.0},
+                    }
+                ],
+            },
+            {
+                "id": "s2",
+                "segments": [
+                    {
+                        "length": 50.0,
+                        "material": "steel",
+                        "section": {"shape": "solid", "diameter": 20.0},
+                    }
+                ],
+            },
+        ],
+        "supports": [{"shaft": "s0", "x": 25.0}],
+        "gears": [
+            {
+                "a": {"shaft": "s0", "x": 0.0, "radius": 40.0},
+                "b": {"shaft": "s1", "x": 0.0, "radius": 40.0},
+                "mesh": "external",
+            },
+            {
+                "a": {"shaft": "s0", "x": 0.0, "radius": 93.0},
+                "b": {"shaft": "s2", "x": 0.0, "radius": 44.0},
+                "mesh": "external",
+            },
+        ],
+        "load_cases": [
+            {
+                "name": "one",
+                "torques": [],
+                "distributed": [
+                    {
+                        "shaft": "s2",
+                        "start": 2.9802322387695312e-06,
+                        "end": 25.00000298023224,
+                        "intensity_start": 0.0,
+                        "intensity_end": 0.109375,
+                    }
+                ],
+            },
+            {"name": "two", "torques": [], "distributed": []},
+        ],
+        "combinations": [{"name": "both", "factors": {"one": 1.35, "two": -0.8}}],
+    },
+).via("a load 3e-9 m from a shaft's end: an element 10⁷ times shorter than its neighbours")
 def test_generated_geared_layered_spring_systems_agree(document: dict[str, Any]) -> None:
     try:
         solve(parse_case(copy.deepcopy(document)))
@@ -438,8 +511,36 @@ def test_generated_geared_layered_spring_systems_agree(document: dict[str, Any])
             return
         assert balance <= AGREEMENT_TOLERANCE, error
         return
-    assert agreement(document) <= AGREEMENT_TOLERANCE
-    assert out_of_balance(document) <= AGREEMENT_TOLERANCE
+    tolerance = conditioned_tolerance(document)
+    assert agreement(document) <= tolerance
+    assert out_of_balance(document) <= tolerance
+
+
+def conditioned_tolerance(document: dict[str, Any]) -> float:
+    """The agreement allowed on a case whose key points may nearly coincide.
+
+    A span far shorter than its shaft makes an element that much stiffer than the rest: the
+    stiffness matrix's condition number grows like length / span, and so does the round-off of
+    any solution of it (Golub & Van Loan, *Matrix Computations*, 4th ed., §2.6.2: relative
+    error ≈ κ·ε). A load drawn 3·10⁻⁹ m from a shaft's end agrees to 1.5·10⁻⁹, not 10⁻⁹.
+    """
+    ratio = 1.0
+    for shaft in document["shafts"]:
+        name = shaft["id"]
+        length = sum(segment["length"] for segment in shaft["segments"])
+        points = [0.0, length, *itertools.accumulate(s["length"] for s in shaft["segments"])]
+        points += [s["x"] for s in document.get("supports", []) if s["shaft"] == name]
+        for gear in document.get("gears", []):
+            points += [end["x"] for end in (gear["a"], gear["b"]) if end["shaft"] == name]
+        for case in document.get("load_cases", []):
+            points += [t["x"] for t in case.get("torques", []) if t["shaft"] == name]
+            for load in case.get("distributed", []):
+                if load["shaft"] == name:
+                    points += [load["start"], load["end"]]
+        gaps = np.diff(np.unique(points))
+        if gaps.size:
+            ratio = max(ratio, length / gaps.min())
+    return max(AGREEMENT_TOLERANCE, 100 * np.finfo(float).eps * ratio)
 
 
 def test_a_rotation_held_twice_is_named() -> None:

@@ -46,7 +46,7 @@ LINE_SHAFT = ROOT / "tests" / "fixtures" / "solve" / "line_shaft.json"
 def _press_drive_with_every_other_key(base: dict[str, Any]) -> dict[str, Any]:
     """The demo with the numeric keys the three files leave out: a stated allowable stress,
     the modal mesh's two keys, a tested endurance limit and a temperature, a stated notch
-    sensitivity, and a torque given as power and speed."""
+    sensitivity, a torque given as power and speed, and stated bending stresses."""
     case = copy.deepcopy(base)
     case["design"].update(
         shear_criterion="allowable",
@@ -55,6 +55,8 @@ def _press_drive_with_every_other_key(base: dict[str, Any]) -> dict[str, Any]:
         modal_max_element_length=100,
     )
     case["design"]["fatigue"].update(endurance_limit=230, temperature=300)
+    stated = {"shaft": "feeder", "segment": 0, "normal_stress": 40, "shear_stress": 5}
+    case["design"]["coexisting_stresses"] = [stated]
     case["shafts"][0]["segments"][0]["notch"] = {"kts": 1.6, "notch_sensitivity": 0.8}
     load = {"shaft": "feeder", "x": 400, "power": -2000, "speed": 300}
     case["load_cases"][1]["torques"][1] = load

@@ -180,3 +180,25 @@ def test_point_torque_inside_an_element(length, mu, fraction, torque, support) -
     scale = np.max(np.abs(two.rotation)) + 1e-300
     assert np.allclose(one.rotation, two.rotation[:, [0, 2]], rtol=0, atol=1e-9 * scale)
     assert np.allclose(one.torque_reaction, two.torque_reaction[:, [0, 2]], atol=1e-9 * abs(torque))
+
+
+@pytest.mark.parametrize("side", [-1.0, 1.0])
+def test_station_within_rounding_of_a_node_takes_the_node(side: float) -> None:
+    # A station a rounding error away from a node (np.linspace's 0.3 against 0.1 × 3.0) once
+    # split the element into a sub-element of 5.6e-17 m, whose condensation gave θ′, θ″ and θ‴
+    # off by their own size (found by the stress-scaling property of test_warping_checks.py).
+    # Beside the node it must agree with the node's values and, a little further off, with
+    # itself (the state is smooth away from the torque's jump in θ‴).
+    node_x = np.array([0.0, 0.1 * 3.0, 3.0])
+    solution = solve_member(
+        member(node_x, 1e5, 3e4, "restrained", "restrained"), np.array([[0.0, 1e3, 0.0]])
+    )
+    at_node = recover(solution, node_x[1:2])
+    off = node_x[1] + side * np.array([np.spacing(node_x[1]), 1e-8])
+    near = recover(solution, off)
+    for name in ("rotation", "rate", "second"):
+        values = getattr(near, name)[0]
+        scale = np.abs(getattr(at_node, name)).max()
+        np.testing.assert_allclose(values, getattr(at_node, name)[0, 0], atol=1e-6 * scale)
+    if side > 0:  # the element that starts at the node: its θ‴ (the left one's differs)
+        np.testing.assert_allclose(near.third[0], at_node.third[0, 0], rtol=1e-6)

@@ -14,6 +14,10 @@ A second row runs the same kind of member through the general path
 restraints at the supports, the mesh built beforehand) with point torques only, against
 ``solve_banded`` of its own assembled, constrained band: the whole solve there also recovers
 the reactions, the torques and the warping values at every station and checks equilibrium.
+
+A third row, for information (no target): the torsional stresses at the 10 stress points of an
+I section and the three warping checks, at every node of the same member taken as 1000
+segments of 100 elements, four load cases (the solved one scaled), judged at once.
 """
 
 from __future__ import annotations
@@ -22,12 +26,21 @@ import numpy as np
 import scipy.linalg
 
 from tests.benchmarks.common import Row, time_pair
+from workbench.case.design import DesignCriteria
+from workbench.case.materials import Material
+from workbench.design.warping_checks import (
+    WarpingCheckInputs,
+    warping_limits,
+    warping_utilisations,
+)
 from workbench.solver.assembly import assemble_band, prescribe
 from workbench.solver.columns import GIVEN, WARPING_RESTRAINED, CaseTable, SegmentTable
 from workbench.solver.mesh import build_mesh_from_table
+from workbench.solver.open_shapes import i_section
 from workbench.solver.statics import solve_table
 from workbench.solver.warping_element import WarpingElements
-from workbench.solver.warping_member import WarpingMember, solve_member
+from workbench.solver.warping_member import WarpingMember, WarpingSolution, recover, solve_member
+from workbench.solver.warping_stress import stress_points, torsional_stresses
 
 MS = 1e3
 ELEMENTS = 100_000
@@ -155,7 +168,7 @@ def general_row() -> Row:
 
 
 def run() -> list[Row]:
-    """The 10⁵-element rows: the single member, then the general path."""
+    """The 10⁵-element rows: the single member, the general path, stresses and checks."""
     member, nodal, start, end = _member()
     width, ab, rhs = _banded(member, nodal, start, end)
 
@@ -177,13 +190,41 @@ def run() -> list[Row]:
         f"{len(ours.times)} calls each",
         f"largest difference of θ between the sides, relative to the largest θ: {error:.1e}",
     )
-    return [
-        Row(
-            "10⁵ warping elements: solve / bare solve_banded",
-            ours.median / reference.median,
-            "×",
-            5.0,
-            notes=notes,
-        ),
-        general_row(),
-    ]
+    ratio = Row(
+        "10⁵ warping elements: solve / bare solve_banded",
+        ours.median / reference.median,
+        "×",
+        5.0,
+        notes=notes,
+    )
+    return [ratio, general_row(), _stress_row(member, solution)]
+
+
+def _stress_row(member: WarpingMember, solution: WarpingSolution) -> Row:
+    """Stresses and checks at 10⁵ + 1 stations × 4 load cases × 10 stress points."""
+    state = recover(solution, member.node_x)
+    scale = np.array([[1.0], [-0.5], [2.0], [0.25]])
+    rate, second, third = (scale * getattr(state, name) for name in ("rate", "second", "third"))
+    points = stress_points([i_section(0.3, 0.15, 0.15, 0.012, 0.012, 0.008)])
+    stations = len(member.node_x)
+    segment_start = np.arange(0, stations - 1, 100)
+    steel = Material("steel", 79.3e9, 250e6, 400e6, elastic_modulus=207e9)
+    limits = warping_limits([steel], np.zeros(len(segment_start), np.intp), DesignCriteria())
+    zeros = np.zeros(len(segment_start))
+
+    def both() -> object:
+        stresses = torsional_stresses(
+            points, np.zeros(stations, np.intp), rate, second, third, 79.3e9, 207e9
+        )
+        inputs = WarpingCheckInputs(segment_start, stresses, zeros + 40e6, zeros, limits)
+        return warping_utilisations(inputs)
+
+    ours, _ = time_pair(both, lambda: None, repeats=7, warmup=1)
+    notes = (
+        f"stresses and checks: {stations:,} stations × 4 load cases × "
+        f"{points.valid.shape[1]} stress points, {len(segment_start):,} segments; median "
+        f"{ours.median * MS:.1f} ms (best {ours.best * MS:.1f})",
+    )
+    return Row(
+        "warping stresses and checks, 10⁵ stations × 4 cases", ours.median * MS, "ms", notes=notes
+    )

@@ -46,6 +46,7 @@ __all__ = [
     "SHEAR_CRITERIA",
     "SURFACE_FINISHES",
     "TWIST_RATE_RULES",
+    "CoexistingStress",
     "DesignCriteria",
     "FatigueCriteria",
     "RotationLimit",
@@ -186,6 +187,33 @@ class RotationLimit:
 
 
 @dataclass(frozen=True)
+class CoexistingStress:
+    """Bending stresses acting with torsion on one segment (SI), as the engineer states them.
+
+    Parameters
+    ----------
+    shaft
+        Shaft id.
+    segment
+        Index of the segment on its shaft.
+    normal_stress, shear_stress
+        Largest normal and shear stress from bending (Pa), ≥ 0.
+    """
+
+    shaft: str
+    segment: int
+    normal_stress: float = 0.0
+    shear_stress: float = 0.0
+
+    def __post_init__(self) -> None:
+        for name in ("normal_stress", "shear_stress"):
+            value = getattr(self, name)
+            if not (math.isfinite(value) and value >= 0.0):
+                msg = f"must be a finite stress of at least 0, not {quote(value, 'stress')}"
+                raise InputError(name, msg)
+
+
+@dataclass(frozen=True)
 class DesignCriteria:
     """What the design must satisfy.
 
@@ -212,6 +240,8 @@ class DesignCriteria:
         Elements each segment with distributed inertia is cut into for the vibration analysis.
     modal_max_element_length
         Longest such element (m), or ``None``.
+    coexisting_stresses
+        Bending stresses acting with torsion, by segment (the warping checks add them).
     """
 
     factor_of_safety: float = DEFAULT_FACTOR_OF_SAFETY
@@ -225,6 +255,7 @@ class DesignCriteria:
     modal_max_element_length: float | None = None
     fatigue: FatigueCriteria | None = None
     twist_rate_preset: str | None = None
+    coexisting_stresses: tuple[CoexistingStress, ...] = ()
 
     def __post_init__(self) -> None:
         if self.twist_rate_preset is not None and self.twist_rate_preset not in TWIST_RATE_RULES:
@@ -322,6 +353,16 @@ def design_criteria(entry: declared.Design, converter: Converter) -> DesignCrite
                 converter.si(limit, "limit"),
             ),
         )
+        coexisting = build_each(
+            value_of(entry, "coexisting_stresses"),
+            "coexisting_stresses",
+            lambda stated: CoexistingStress(
+                stated.shaft,
+                int(stated.segment),
+                converter.si(stated, "normal_stress"),
+                converter.si(stated, "shear_stress"),
+            ),
+        )
         fatigue = None
         if value_of(entry, "fatigue") is not None:
             try:
@@ -342,6 +383,7 @@ def design_criteria(entry: declared.Design, converter: Converter) -> DesignCrite
             modal_elements_per_segment=int(value_of(entry, "modal_elements_per_segment")),
             modal_max_element_length=converter.si(entry, "modal_max_element_length"),
             fatigue=fatigue,
+            coexisting_stresses=coexisting,
         )
     except InputError as error:
         raise within("design", error) from None
@@ -368,4 +410,8 @@ def design_section(criteria: DesignCriteria, converter: Converter) -> declared.D
             converter.entry(declared.RotationLimit, limit) for limit in criteria.rotation_limits
         ],
         fatigue=fatigue,
+        coexisting_stresses=[
+            converter.entry(declared.CoexistingStress, stated)
+            for stated in criteria.coexisting_stresses
+        ],
     )

@@ -33,6 +33,10 @@ CHECK_QUANTITIES: dict[str, str] = {
     "twist_rate": "twist_rate",
     "rotation": "angle",
     "frequency_separation": "speed",
+    # Open sections in restrained torsion (workbench.design.warping_checks).
+    "warping_normal_stress": "stress",
+    "warping_shear_stress": "stress",
+    "warping_combined_stress": "stress",
     # Fatigue rows are dimensionless: value 1/n, limit 1/n_required.
     "fatigue": "ratio",
     "first_cycle_yield": "ratio",

@@ -55,6 +55,8 @@ def require_finite_checks(checks: Iterable[Check], model: Model, design: DesignC
             raise _rotation_error(check, design, value_ok)
         if check.kind in ("fatigue", "first_cycle_yield"):
             raise _fatigue_error(check, model, design)
+        if check.kind in _WARPING_NORMAL_KINDS or (check.kind in _WARPING_KINDS and not value_ok):
+            raise _warping_error(check, model, design, value_ok)
         segment = _segment_path(model, check)
         if not value_ok:
             what = f"the {check.kind.replace('_', ' ')} in {short(check.result)!r}"
@@ -65,6 +67,37 @@ def require_finite_checks(checks: Iterable[Check], model: Model, design: DesignC
             msg = f"the twist rate over this limit goes beyond the range of numbers ({check.value:g} rad/m)"
             raise InputError("design.max_twist_rate", msg)
         raise _allowable_error(check, model, design)
+
+
+#: The warping checks (workbench.design.warping_checks) and those of them whose limit is Sy/FoS;
+#: the shear row's limit is the allowable shear stress, named as the static checks' is.
+_WARPING_KINDS = ("warping_normal_stress", "warping_shear_stress", "warping_combined_stress")
+_WARPING_NORMAL_KINDS = ("warping_normal_stress", "warping_combined_stress")
+
+
+def _warping_error(
+    check: Check, model: Model, design: DesignCriteria, value_ok: bool
+) -> InputError:
+    """A warping row out of range: the stated bending stress, the section, or Sy/FoS's source."""
+    what = f"the {check.kind.replace('_', ' ')} in {short(check.result)!r}"
+    if not value_ok:
+        stated = next(
+            (
+                number
+                for number, entry in enumerate(design.coexisting_stresses)
+                if entry.shaft == check.shaft and entry.segment == check.segment
+            ),
+            None,
+        )
+        msg = f"{what} goes beyond the range of numbers ({check.value:g})"
+        if stated is not None:
+            return InputError(f"design.coexisting_stresses[{stated}]", msg)
+        return InputError(f"{_segment_path(model, check)}.section", msg)
+    msg = f"{what} over Sy/FoS ({check.limit:g} Pa) goes beyond the range of numbers"
+    if design.factor_of_safety > _ABSURD_FACTOR_OF_SAFETY:
+        return InputError("design.factor_of_safety", msg)
+    material = model.shaft(check.shaft).segments[check.segment or 0].layers[0].material
+    return InputError(f"materials.{short(material.name)}.yield_strength", msg)
 
 
 def _segment_path(model: Model, check: Check) -> str:

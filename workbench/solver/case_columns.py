@@ -89,7 +89,9 @@ def case_system(case: declared.CaseFile) -> CaseSystem:
         index = shaft_index(entry.id for entry in case.shafts)
         used = {id(material): material for shaft in shafts for material in shaft.materials}
         design = parts["design"]
-        References(index, [shaft.total_length for shaft in shafts]).check(
+        References(
+            index, [shaft.total_length for shaft in shafts], [len(shaft.length) for shaft in shafts]
+        ).check(
             supports=parts["supports"],
             gears=parts["gears"],
             load_cases=parts["load_cases"],

@@ -370,7 +370,11 @@ class Model:
             raise InputError("shafts", "the model needs at least one shaft")
         index = shaft_index(shaft.id for shaft in self.shafts)
         object.__setattr__(self, "_shaft_index", index)
-        References(index, [shaft.length for shaft in self.shafts]).check(
+        References(
+            index,
+            [shaft.length for shaft in self.shafts],
+            [len(shaft.segments) for shaft in self.shafts],
+        ).check(
             supports=self.supports,
             gears=self.gears,
             load_cases=self.load_cases,
@@ -391,9 +395,11 @@ class Model:
 
     def check_point(self, path: str, shaft_id: str, x: float, key: str) -> None:
         """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
-        References(self._shaft_index, [shaft.length for shaft in self.shafts]).point(
-            path, shaft_id, x, key
-        )
+        References(
+            self._shaft_index,
+            [shaft.length for shaft in self.shafts],
+            [len(shaft.segments) for shaft in self.shafts],
+        ).point(path, shaft_id, x, key)
 
     def shaft(self, shaft_id: str) -> Shaft:
         """Return the shaft with this id."""

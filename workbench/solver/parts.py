@@ -398,17 +398,25 @@ class References:
         Shaft id → shaft number (:func:`shaft_index`).
     lengths
         Length of each shaft (m), in number order.
+    segment_counts
+        Number of segments of each shaft, in number order.
     """
 
-    def __init__(self, index: Mapping[str, int], lengths: Sequence[float]) -> None:
-        self.index, self.lengths = index, lengths
+    def __init__(
+        self, index: Mapping[str, int], lengths: Sequence[float], segment_counts: Sequence[int]
+    ) -> None:
+        self.index, self.lengths, self.segment_counts = index, lengths, segment_counts
 
-    def point(self, path: str, shaft_id: str, x: float, key: str) -> None:
-        """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
+    def shaft(self, path: str, shaft_id: str) -> int:
+        """The number of the named shaft; :class:`InputError` at ``path.shaft`` if unknown."""
         if shaft_id not in self.index:
             known = listing(self.index)
             raise InputError(f"{path}.shaft", f"unknown shaft {quoted(shaft_id)}; known: {known}")
-        length = self.lengths[self.index[shaft_id]]
+        return self.index[shaft_id]
+
+    def point(self, path: str, shaft_id: str, x: float, key: str) -> None:
+        """Raise :class:`InputError` at ``path`` unless x lies on the named shaft."""
+        length = self.lengths[self.shaft(path, shaft_id)]
         tolerance = POSITION_TOLERANCE * length
         if not -tolerance <= x <= length + tolerance:
             msg = (
@@ -478,11 +486,26 @@ class References:
             self._check_design(design, result_names(load_cases, combinations))
 
     def _check_design(self, design: DesignCriteria, known: tuple[str, ...]) -> None:
-        """Raise :class:`InputError` when a rotation limit or a fatigue result is off the model."""
+        """Raise :class:`InputError` when a limit, a stated segment or a fatigue result is off."""
         for number, limit in enumerate(design.rotation_limits):
             path = f"design.rotation_limits[{number}]"
             self.point(path, limit.shaft, limit.start, "start")
             self.point(path, limit.shaft, limit.end, "end")
+        stated: dict[tuple[str, int], int] = {}
+        for number, coexisting in enumerate(design.coexisting_stresses):
+            path = f"design.coexisting_stresses[{number}]"
+            count = self.segment_counts[self.shaft(path, coexisting.shaft)]
+            where = (coexisting.shaft, coexisting.segment)
+            if coexisting.segment >= count:
+                msg = (
+                    f"is {coexisting.segment}, but shaft {quoted(coexisting.shaft)} has "
+                    f"{count} segment{'s' if count != 1 else ''} (0 to {count - 1})"
+                )
+                raise InputError(f"{path}.segment", msg)
+            if where in stated:
+                msg = f"repeats design.coexisting_stresses[{stated[where]}]: one entry per segment"
+                raise InputError(f"{path}.segment", msg)
+            stated[where] = number
         fatigue = design.fatigue
         if fatigue is None:
             return

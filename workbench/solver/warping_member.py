@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from workbench.case.declaration import POSITION_TOLERANCE
 from workbench.case.errors import InputError, MechanismError
 from workbench.solver.assembly import BandFactor, add_diagonal, assemble_band, prescribe
 from workbench.solver.sections import FloatArray
@@ -341,8 +342,11 @@ def element_states(
        condensation of interior degrees of freedom).
     """
     # A station on a node takes the node's values and the whole element's end forces (the
-    # zero-length piece beside it is given the whole length too, and not used).
-    at_start, at_end = offset <= 0.0, offset >= total
+    # zero-length piece beside it is given the whole length too, and not used). Within
+    # POSITION_TOLERANCE of the element's length a station is on the node: a sub-element that
+    # short cannot be condensed (its stiffness, ~1/length³, swamps the digits of the solve).
+    near = POSITION_TOLERANCE * total
+    at_start, at_end = offset <= near, offset >= total - near
     left_length = np.where(at_start, total, offset)
     right_length = np.where(at_end, total, total - offset)
     left = WarpingElements(left_length, torsion, warping).regular_matrices()

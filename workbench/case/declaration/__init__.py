@@ -12,6 +12,7 @@ import functools
 from collections.abc import Iterator, Mapping
 
 from workbench.case.declaration.criteria import (
+    COEXISTING_STRESS_ORIGIN,
     DEFAULT_FACTOR_OF_SAFETY,
     DEFAULT_FATIGUE_FACTOR_OF_SAFETY,
     DEFAULT_FREQUENCY_MARGIN,
@@ -22,6 +23,7 @@ from workbench.case.declaration.criteria import (
     SHEAR_CRITERIA,
     SURFACE_FINISHES,
     TWIST_RATE_RULES,
+    CoexistingStress,
     Design,
     Fatigue,
     RotationLimit,
@@ -141,6 +143,7 @@ def key_quantities() -> Mapping[str, str | None]:
 
 
 __all__ = [
+    "COEXISTING_STRESS_ORIGIN",
     "DEFAULT_FACTOR_OF_SAFETY",
     "DEFAULT_FATIGUE_FACTOR_OF_SAFETY",
     "DEFAULT_FREQUENCY_MARGIN",
@@ -167,6 +170,7 @@ __all__ = [
     "Alternatives",
     "BoundaryPoint",
     "CaseFile",
+    "CoexistingStress",
     "Combination",
     "Design",
     "Disc",

@@ -8,7 +8,7 @@ rules that use them live in :mod:`workbench.design`, the settings' model in
 import typing
 from typing import Annotated, ClassVar, Literal
 
-from msgspec import UNSET, UnsetType
+from msgspec import UNSET, Meta, UnsetType
 
 from workbench.case.declaration.keys import (
     MAX_ITEMS,
@@ -104,6 +104,40 @@ class RotationLimit(Keys):
 
     def __post_init__(self) -> None:
         self.span.check(self)
+
+
+#: Where the coexisting stresses of ``design.coexisting_stresses`` come from: the key
+#: reference, the check rows and the record say it in these words (defined here only).
+COEXISTING_STRESS_ORIGIN = "stated from the engineer's own bending analysis, not computed here"
+
+
+def _bending_stress(kind: str) -> Meta:
+    """The key of a stated stress from bending of one kind (``"normal"``, ``"shear"``)."""
+    description = (
+        f"Largest {kind} stress from bending acting with torsion, {COEXISTING_STRESS_ORIGIN}"
+    )
+    return key(description, "stress", default=0.0, ge=0)
+
+
+class CoexistingStress(Keys):
+    """Stresses from bending that act with torsion on one segment of an open section.
+
+    The warping checks add them at full value, with the sign of the torsional stress, at every
+    point of the segment's section (their distribution over the section is not known here).
+    """
+
+    shaft: ShaftId
+    segment: Annotated[
+        float,
+        key(
+            "Index of the segment on its shaft, 0 for the first",
+            expect="a whole number from 0",
+            whole=True,
+            ge=0,
+        ),
+    ]
+    normal_stress: Annotated[float, _bending_stress("normal")] | UnsetType | None = UNSET
+    shear_stress: Annotated[float, _bending_stress("shear")] | UnsetType | None = UNSET
 
 
 class Fatigue(Keys):
@@ -280,3 +314,15 @@ class Design(Keys):
         Annotated[float, key("Longest such element", "length", gt=0)] | UnsetType | None
     ) = UNSET
     fatigue: Annotated[Fatigue, key("Fatigue under fluctuating torque")] | UnsetType | None = UNSET
+    coexisting_stresses: (
+        Annotated[
+            list[CoexistingStress],
+            key(
+                "Bending stresses acting with torsion, by segment (warping checks of open "
+                "sections); a segment not listed has none",
+                max_length=MAX_ITEMS,
+            ),
+        ]
+        | UnsetType
+        | None
+    ) = UNSET

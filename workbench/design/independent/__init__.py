@@ -17,14 +17,20 @@ from workbench.design.independent.compare import (
     independent_check,
 )
 from workbench.design.independent.forcemethod import ForceMethod
-from workbench.design.independent.reading import NotCovered
+from workbench.design.independent.reading import (
+    WARPING_NOT_COVERED,
+    NotCovered,
+    require_uniform_torsion,
+)
 
 __all__ = [
     "AGREEMENT_TOLERANCE",
+    "WARPING_NOT_COVERED",
     "Comparison",
     "ComparisonRow",
     "ForceMethod",
     "NotCovered",
     "compare",
     "independent_check",
+    "require_uniform_torsion",
 ]

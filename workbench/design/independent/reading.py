@@ -7,6 +7,7 @@ library. What the check does not cover is reported by :class:`NotCovered`, not g
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
 from typing import Any
 
@@ -20,7 +21,13 @@ from workbench.case.materials import library_material
 from workbench.case.power import torque_from_power
 from workbench.design.independent.sections import LayerRigidity, layer_rigidity
 
-__all__ = ["NotCovered", "System", "read_system"]
+__all__ = [
+    "WARPING_NOT_COVERED",
+    "NotCovered",
+    "System",
+    "read_system",
+    "require_uniform_torsion",
+]
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
@@ -28,6 +35,27 @@ IntArray = NDArray[np.int64]
 
 class NotCovered(Exception):  # noqa: N818 - a plain answer, not an error of the program
     """The case uses a feature the independent check does not cover (the message names it)."""
+
+
+#: What the record says instead of the independent check for a case whose open sections are
+#: restrained against warping (defined here only): the force method solves uniform torsion.
+WARPING_NOT_COVERED = (
+    "restrained warping of open sections: this check solves uniform (Saint-Venant) torsion "
+    "only, so the torques shared between supports, the bimoments and the warping stresses of "
+    "this case are not checked independently"
+)
+
+
+def require_uniform_torsion(warping_restrained: Iterable[bool]) -> None:
+    """Raise :class:`NotCovered` with :data:`WARPING_NOT_COVERED` if any flag is true.
+
+    Parameters
+    ----------
+    warping_restrained
+        Whether each support (or any other part) of the case restrains warping.
+    """
+    if any(warping_restrained):
+        raise NotCovered(WARPING_NOT_COVERED)
 
 
 @dataclass(frozen=True)
