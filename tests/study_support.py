@@ -49,6 +49,7 @@ def study_cluster() -> Iterator[Any]:
     from workbench.study.engine import ONE_THREAD
 
     cluster = LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                           dashboard_address=None, silence_logs=logging.ERROR, env=ONE_THREAD)  # fmt: skip
+                           dashboard_address=":0",  # its HTTP routes on a free port, never a taken 8787
+                           silence_logs=logging.ERROR, env=ONE_THREAD)  # fmt: skip
     with cluster, Client(cluster) as client:
         yield client

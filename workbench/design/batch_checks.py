@@ -290,7 +290,8 @@ def governing_utilisations(
         )
         raise InputError("length", msg)
     details = {"fillet_radius": fillet_radius, "cross_hole_diameter": cross_hole_diameter}
-    checked = max((len(values) for values in details.values() if values is not None), default=1)
+    only_checked = (*details.values(), allowable)
+    checked = max((len(values) for values in only_checked if values is not None), default=1)
     solved = max((len(np.asarray(values)) for values in variants.values()), default=1)
     if checked > solved and "shear_modulus" not in variants:
         # Sizes only the checks read: every variant solves the base's system.

@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import logging
 import os
+import signal
 import threading
 import time
 from collections.abc import Callable, Iterator
@@ -110,17 +111,35 @@ def study_client(workers: int | None = None, scheduler: str | None = None) -> It
             yield client
         return
     count = workers or os.cpu_count() or 1
-    os.environ.update(ONE_THREAD)  # inherited by the worker processes the nannies start
-    cluster = LocalCluster(
-        n_workers=count,
-        threads_per_worker=1,
-        processes=True,
-        dashboard_address=None,
-        silence_logs=logging.ERROR,
-        env=ONE_THREAD,
-    )
+    with _workers_ignore_ctrl_c():
+        cluster = LocalCluster(
+            n_workers=count,
+            threads_per_worker=1,
+            processes=True,
+            dashboard_address=":0",  # its HTTP routes on a free port, never a taken 8787
+            silence_logs=logging.ERROR,
+            env=ONE_THREAD,
+        )
     with cluster, Client(cluster) as client:
         yield client
+
+
+@contextmanager
+def _workers_ignore_ctrl_c() -> Iterator[None]:
+    """Start worker processes with SIGINT ignored.
+
+    Ctrl-C reaches the whole process group, and only this process (which stops the study and
+    keeps its rows) should act on it; the workers are closed with the cluster. An ignored signal
+    stays ignored in a spawned process.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield  # signal handlers belong to the main thread (a face may run a study elsewhere)
+        return
+    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGINT, previous)
 
 
 def _stop_asked(cancel: Callable[[], bool] | threading.Event | None) -> bool:
@@ -188,63 +207,112 @@ def run_study(
     count = plan.count if unit is None else len(unit)
     design = unit if unit is not None else unit_design(plan)
     bounds = chunk_bounds(count, chunk_size)
-    path = Path(output)
-    started = time.perf_counter()
-    with _client(client, workers, scheduler) as active:
-        case_future, plan_future = active.scatter([case_text, plan_json], broadcast=True)
-        width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
-        done, stopped, writer = 0, False, None
-        pending: dict[int, Any] = {}
-        running: dict[Any, int] = {}
-        following = 0
+    written = _Rows(Path(output), count, progress)
+    running: dict[Any, int] = {}
+    stopped, width, previous = False, 1, None
+    try:
+        with _client(client, workers, scheduler) as active:
+            width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
+            try:
+                stopped = _run_chunks(active, case_text, plan_json, bounds, design, width,
+                                      running, written, cancel)  # fmt: skip
+            except KeyboardInterrupt:
+                stopped = True
+            finally:
+                previous = _ignore_ctrl_c()  # stopping or done: the closing must finish
+                if running:
+                    active.cancel(list(running))
+    except KeyboardInterrupt:  # while the cluster was starting: nothing written
+        stopped = True
+    finally:
+        written.close()
+        if previous is not None:
+            signal.signal(signal.SIGINT, previous)
+    # However the loop ended (a Ctrl-C may end dask's iterator quietly), fewer rows than the
+    # plan's is a stopped study.
+    stopped = stopped or written.done < count
+    return StudyOutcome(written.path, written.done, count, stopped, written.seconds, width,
+                        chunk_size)  # fmt: skip
 
-        def submit(number: int) -> Any:
-            start, stop = bounds[number]
-            rows = None if design is None else np.ascontiguousarray(design[start:stop])
-            future = active.submit(
-                evaluate_chunk, case_future, plan_future, start, stop, rows, pure=False
-            )
-            running[future] = number
-            return future
 
-        from dask.distributed import as_completed  # noqa: PLC0415
+class _Rows:
+    """The parquet file: chunks written in variant order, one row group each."""
 
-        queue = iter(range(len(bounds)))
-        first = [
-            submit(number)
-            for number, _ in zip(queue, range(width * IN_FLIGHT_PER_WORKER), strict=False)
-        ]
-        finished = as_completed(first)
-        try:
-            for future in finished:
-                number = running.pop(future)
-                pending[number] = future.result()
-                future.release()
-                while following in pending:  # write in variant order
-                    table = pending.pop(following)
-                    if writer is None:
-                        writer = pq.ParquetWriter(path, table.schema)
-                    writer.write_table(table)
-                    done += table.num_rows
-                    following += 1
-                    if progress is not None:
-                        progress(Progress(done, count, following, time.perf_counter() - started))
-                if _stop_asked(cancel):
-                    stopped = True
-                    break
-                waiting = next(queue, None)
-                if waiting is not None:
-                    finished.add(submit(waiting))
-        except KeyboardInterrupt:
-            stopped = True
-        finally:
-            if running:
-                active.cancel(list(running))
-            if writer is not None:
-                writer.close()
-    return StudyOutcome(
-        path, done, count, stopped, time.perf_counter() - started, width, chunk_size
-    )
+    def __init__(self, path: Path, total: int, progress: Callable[[Progress], None] | None):
+        self.path, self.total, self.progress = path, total, progress
+        self.started = time.perf_counter()
+        self.writer: Any = None
+        self.done = self.chunks = 0
+
+    @property
+    def seconds(self) -> float:
+        return time.perf_counter() - self.started
+
+    def write(self, table: Any) -> None:
+        if self.writer is None:
+            self.writer = pq.ParquetWriter(self.path, table.schema)
+        self.writer.write_table(table)
+        self.done += table.num_rows
+        self.chunks += 1
+        if self.progress is not None:
+            self.progress(Progress(self.done, self.total, self.chunks, self.seconds))
+
+    def close(self) -> None:
+        if self.writer is not None:
+            self.writer.close()
+            self.writer = None
+
+
+def _run_chunks(
+    active: Any,
+    case_text: str | bytes,
+    plan_json: str | bytes,
+    bounds: list[tuple[int, int]],
+    design: np.ndarray | None,
+    width: int,
+    running: dict[Any, int],
+    written: _Rows,
+    cancel: Callable[[], bool] | threading.Event | None,
+) -> bool:
+    """Submit the chunks a window at a time and write them in order; whether it was stopped."""
+    from dask.distributed import as_completed  # noqa: PLC0415 - heavy; only when running
+
+    case_future, plan_future = active.scatter([case_text, plan_json], broadcast=True)
+    pending: dict[int, Any] = {}
+
+    def submit(number: int) -> Any:
+        start, stop = bounds[number]
+        rows = None if design is None else np.ascontiguousarray(design[start:stop])
+        future = active.submit(evaluate_chunk, case_future, plan_future, start, stop, rows,
+                               pure=False)  # fmt: skip
+        running[future] = number
+        return future
+
+    queue = iter(range(len(bounds)))
+    window = width * IN_FLIGHT_PER_WORKER
+    finished = as_completed([submit(n) for n, _ in zip(queue, range(window), strict=False)])
+    for future in finished:
+        number = running.pop(future)
+        pending[number] = future.result()
+        future.release()
+        while written.chunks in pending:  # write in variant order
+            written.write(pending.pop(written.chunks))
+            if _stop_asked(cancel):
+                return True
+        # Chunks held for their turn count against the window: memory stays bounded.
+        while len(running) + len(pending) < window:
+            waiting = next(queue, None)
+            if waiting is None:
+                break
+            finished.add(submit(waiting))
+    return False
+
+
+def _ignore_ctrl_c() -> Any:
+    """Ignore SIGINT from here on (main thread only); the handler it replaced, or ``None``."""
+    if threading.current_thread() is not threading.main_thread():
+        return None
+    return signal.signal(signal.SIGINT, signal.SIG_IGN)
 
 
 @contextmanager

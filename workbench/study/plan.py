@@ -23,10 +23,12 @@ References
 
 from __future__ import annotations
 
+import json
 import re
 from typing import Annotated, Any, Literal
 
 import msgspec
+import msgspec.inspect
 
 from workbench.case.errors import InputError, short
 
@@ -46,8 +48,10 @@ NOT_ON_THE_BATCH_PATH = {
     ),
 }
 
-Number = Annotated[float, msgspec.Meta(description="a number in the case file's unit")]
-Positive = Annotated[float, msgspec.Meta(gt=0.0, description="a positive number")]
+
+def _about(description: str, **bounds: Any) -> msgspec.Meta:
+    """A key's description (the README's plan reference reads it) and its bounds."""
+    return msgspec.Meta(description=description, **bounds)
 
 
 class _Struct(msgspec.Struct, forbid_unknown_fields=True, frozen=True, tag_field="kind"):
@@ -55,105 +59,134 @@ class _Struct(msgspec.Struct, forbid_unknown_fields=True, frozen=True, tag_field
 
 
 class Normal(_Struct, frozen=True, tag="normal"):
-    """Normal distribution: ``mean`` and standard deviation ``std`` (the key's unit)."""
+    """Normal distribution (kind `normal`)."""
 
-    mean: Number
-    std: Positive
+    mean: Annotated[float, _about("mean (the key's unit)")]
+    std: Annotated[float, _about("standard deviation (the key's unit)", gt=0.0)]
 
 
 class LogNormal(_Struct, frozen=True, tag="lognormal"):
-    """Log-normal distribution: ``median`` (the key's unit) and ``sigma`` of the logarithm."""
+    """Log-normal distribution (kind `lognormal`)."""
 
-    median: Positive
-    sigma: Positive
+    median: Annotated[float, _about("median (the key's unit)", gt=0.0)]
+    sigma: Annotated[float, _about("standard deviation of the natural logarithm", gt=0.0)]
 
 
 class Uniform(_Struct, frozen=True, tag="uniform"):
-    """Uniform distribution between ``low`` and ``high`` (the key's unit)."""
+    """Uniform distribution (kind `uniform`)."""
 
-    low: Number
-    high: Number
+    low: Annotated[float, _about("lower end (the key's unit)")]
+    high: Annotated[float, _about("upper end (the key's unit), above low")]
 
 
 class Triangular(_Struct, frozen=True, tag="triangular"):
-    """Triangular distribution: ``low``, ``mode``, ``high`` (the key's unit)."""
+    """Triangular distribution (kind `triangular`)."""
 
-    low: Number
-    mode: Number
-    high: Number
+    low: Annotated[float, _about("lower end (the key's unit)")]
+    mode: Annotated[float, _about("most likely value, between low and high")]
+    high: Annotated[float, _about("upper end (the key's unit)")]
 
 
 class Tolerance(_Struct, frozen=True, tag="tolerance"):
-    """A tolerance band: ``lower`` and ``upper`` deviations from the case's value.
+    """A tolerance band about the case's own value (kind `tolerance`)."""
 
-    ``shape`` ``"uniform"`` spreads the variants evenly over the band; ``"normal"`` centres a
-    normal distribution on the band with its limits at ±3 standard deviations, cut at them
-    (common practice, no source).
-    """
-
-    lower: Number
-    upper: Number
-    shape: Literal["uniform", "normal"] = "uniform"
+    lower: Annotated[float, _about("lower deviation from the case's value (the key's unit)")]
+    upper: Annotated[float, _about("upper deviation from the case's value, above lower")]
+    shape: Annotated[
+        Literal["uniform", "normal"],
+        _about(
+            "uniform over the band, or normal centred on it with its limits at ±3 standard "
+            "deviations, cut at them (common practice, no source)"
+        ),
+    ] = "uniform"
 
 
 class Values(_Struct, frozen=True, tag="values"):
-    """One of a list of ``values`` (the key's unit), each equally likely."""
+    """A list of values (kind `values`)."""
 
-    values: Annotated[list[float], msgspec.Meta(min_length=1, max_length=10_000)]
+    values: Annotated[
+        list[float],
+        _about("the values (the key's unit), each equally likely", min_length=1, max_length=10_000),
+    ]
 
 
 Distribution = Normal | LogNormal | Uniform | Triangular | Tolerance | Values
 
 
 class Input(msgspec.Struct, forbid_unknown_fields=True, frozen=True):
-    """One varied input: its ``path`` in the case file and its ``distribution``."""
+    """One varied input."""
 
-    path: Annotated[str, msgspec.Meta(min_length=1, max_length=300)]
-    distribution: Distribution
-
-
-Seed = Annotated[int, msgspec.Meta(ge=0, le=2**63 - 1, description="random-number seed")]
+    path: Annotated[
+        str,
+        _about(
+            "the key's path in the case file, e.g. shafts[0].segments[1].section.diameter, "
+            "materials.NAME.yield_strength, supports[1].stiffness, load_cases[0].torques[0].torque",
+            min_length=1,
+            max_length=300,
+        ),
+    ]
+    distribution: Annotated[
+        Distribution, _about("its distribution, told apart by kind (the rows below)")
+    ]
 
 
 class Sampling(msgspec.Struct, forbid_unknown_fields=True, frozen=True):
-    """How the variants are drawn.
+    """How the variants are drawn."""
 
-    ``method``: ``monte_carlo`` (independent draws), ``latin_hypercube``, ``sobol`` (scrambled;
-    ``count`` a power of two), ``halton`` (scrambled), or ``grid`` (every combination of
-    ``levels`` values per input; a ``values`` input uses its own list). ``count``: number of
-    variants (a grid's is the product of its levels). ``seed``: the random-number seed.
-    """
-
-    method: Literal["monte_carlo", "latin_hypercube", "sobol", "halton", "grid"] = "monte_carlo"
-    count: Annotated[int, msgspec.Meta(ge=1, le=MAX_VARIANTS)] | None = None
-    seed: Seed = 0
-    levels: Annotated[int, msgspec.Meta(ge=1, le=10_000)] = 5
+    method: Annotated[
+        Literal["monte_carlo", "latin_hypercube", "sobol", "halton", "grid"],
+        _about(
+            "monte_carlo (independent draws), latin_hypercube, sobol (scrambled; count a power "
+            "of two), halton (scrambled), or grid (every combination of the inputs' levels)"
+        ),
+    ] = "monte_carlo"
+    count: (
+        Annotated[int, _about("number of variants: required, except for a grid (the product of its levels)", ge=1,
+                              le=MAX_VARIANTS)]
+        | None
+    ) = None  # fmt: skip
+    seed: Annotated[int, _about("the random-number seed", ge=0, le=2**63 - 1)] = 0
+    levels: Annotated[
+        int, _about("grid: values per input (a values input uses its list)", ge=1, le=10_000)
+    ] = 5
 
 
 class Sensitivity(msgspec.Struct, forbid_unknown_fields=True, frozen=True):
-    """Sobol indices of the governing utilisation through SALib, on a Saltelli plan of its own.
+    """Sobol indices of the governing utilisation (SALib)."""
 
-    ``sobol``: whether to compute them; ``base_count``: N of the plan (a power of two; the plan
-    holds N·(k + 2) variants for k inputs).
-    """
-
-    sobol: bool = False
-    base_count: Annotated[int, msgspec.Meta(ge=2, le=2**20)] = 1024
+    sobol: Annotated[bool, _about("whether to compute them, on a Saltelli plan of their own")] = (
+        False
+    )
+    base_count: Annotated[
+        int,
+        _about("N of the Saltelli plan, a power of two (it holds N·(k + 2) variants)", ge=2,
+               le=2**20),
+    ] = 1024  # fmt: skip
 
 
 class Plan(msgspec.Struct, forbid_unknown_fields=True, frozen=True):
-    """A study plan: ``inputs``, ``sampling``, ``outputs``, ``sensitivity``, ``worst``.
+    """A study plan."""
 
-    ``worst``: how many of the highest governing utilisations the summary lists.
-    """
-
-    inputs: Annotated[list[Input], msgspec.Meta(min_length=1, max_length=MAX_INPUTS)]
-    sampling: Sampling = msgspec.field(default_factory=Sampling)
-    outputs: Annotated[list[str], msgspec.Meta(max_length=10)] = msgspec.field(
-        default_factory=lambda: ["governing_utilisation"]
+    inputs: Annotated[list[Input], _about("the inputs varied", min_length=1, max_length=MAX_INPUTS)]
+    sampling: Annotated[Sampling, _about("how the variants are drawn")] = msgspec.field(
+        default_factory=Sampling
     )
-    sensitivity: Sensitivity = msgspec.field(default_factory=Sensitivity)
-    worst: Annotated[int, msgspec.Meta(ge=0, le=1000)] = 10
+    outputs: Annotated[
+        list[str],
+        _about(
+            "recorded per variant besides the governing utilisation: check_utilisations (each "
+            "check kind's largest), reactions (per result and support), twists (largest absolute "
+            "rotation per result and shaft); first_natural_frequency is refused (not on the batch path)",
+            max_length=10,
+        ),
+    ] = msgspec.field(default_factory=lambda: ["governing_utilisation"])
+    sensitivity: Annotated[Sensitivity, _about("Sobol indices")] = msgspec.field(
+        default_factory=Sensitivity
+    )
+    worst: Annotated[
+        int, _about("how many variants of highest governing utilisation the summary lists", ge=0,
+                    le=1000)
+    ] = 10  # fmt: skip
 
     @property
     def count(self) -> int:
@@ -269,27 +302,52 @@ def _check_distribution(distribution: Distribution, field: str) -> None:
                 )
 
 
-def plan_keys() -> list[tuple[str, str]]:
-    """Every key of a plan, dotted, with the description from its struct's docstring."""
-    rows: list[tuple[str, str]] = []
+BEGIN = "<!-- study plan keys: generated by `python -m workbench.study.reference`; do not edit -->"
+END = "<!-- end of the study plan keys -->"
 
-    def walk(struct: type, prefix: str) -> None:
-        for field in msgspec.structs.fields(struct):
+
+def plan_keys() -> list[tuple[str, str, str]]:
+    """Every key of a plan, dotted: (key, its default or "required", description)."""
+    rows: list[tuple[str, str, str]] = []
+
+    def walk(struct: Any, prefix: str) -> None:
+        info: Any = msgspec.inspect.type_info(struct)
+        for field in info.fields:
             name = f"{prefix}{field.encode_name}"
-            rows.append((name, _first_line(struct)))
-            if field.type in (Sampling, Sensitivity):
-                walk(field.type, f"{name}.")
-        if struct is Plan:
-            walk(Input, "inputs[].")
+            if field.required:
+                default = "required"
+            elif field.default is not msgspec.NODEFAULT:
+                default = f"`{json.dumps(field.default)}`"
+            elif isinstance(made := field.default_factory(), list):
+                default = f"`{json.dumps(made)}`"
+            else:
+                default = "its keys' defaults"
+            described = _unwrap(field.type)
+            rows.append((name, default, described.extra_json_schema["description"]))
+            inner = described.type
+            listed = isinstance(inner, msgspec.inspect.ListType)
+            inner = getattr(inner.item_type if listed else inner, "cls", None)
+            if inner in (Sampling, Sensitivity, Input):
+                walk(inner, f"{name}{'[]' if listed else ''}.")
+        if struct is Input:
             for kind in (Normal, LogNormal, Uniform, Triangular, Tolerance, Values):
                 tag = kind.__struct_config__.tag
-                for field in msgspec.structs.fields(kind):
-                    rows.append(
-                        (f"inputs[].distribution.{field.encode_name} ({tag})", _first_line(kind))
-                    )
+                rows.append(
+                    (f"{prefix}distribution.kind", "required", f"`{tag}`: {_first_line(kind)}")
+                )
+                walk(kind, f"{prefix}distribution.")
 
     walk(Plan, "")
-    return rows
+    return list(dict.fromkeys(rows))
+
+
+def _unwrap(info: Any) -> Any:
+    """The described type of a field (an optional one's non-null member)."""
+    for option in getattr(info, "types", (info,)):
+        if isinstance(option, msgspec.inspect.Metadata):
+            return option
+    msg = "every plan key carries a description"
+    raise AssertionError(msg)
 
 
 def _first_line(struct: type) -> str:
@@ -297,10 +355,10 @@ def _first_line(struct: type) -> str:
 
 
 def plan_reference() -> str:
-    """The README's table of plan keys, generated from the structs."""
-    lines = ["| key | meaning |", "|---|---|"]
-    lines += [f"| `{name}` | {text} |" for name, text in plan_keys()]
-    return "\n".join(lines) + "\n"
+    """The README's plan reference (markers included), generated from the structs."""
+    lines = [BEGIN, "", "| key | default | meaning |", "|---|---|---|"]
+    lines += [f"| `{name}` | {default} | {text} |" for name, default, text in plan_keys()]
+    return "\n".join([*lines, "", END]) + "\n"
 
 
 def to_builtins(plan: Plan) -> Any:

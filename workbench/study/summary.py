@@ -145,7 +145,8 @@ def _rank_correlations(
         return {}
     with np.errstate(invalid="ignore", divide="ignore"):
         rho = stats.spearmanr(columns).statistic
-    rho = np.atleast_2d(rho)
+    if np.ndim(rho) == 0:  # two columns: scipy gives the one coefficient
+        rho = np.array([[1.0, rho], [rho, 1.0]])
     found: dict[str, dict[str, float | None]] = {}
     for i, name in enumerate(inputs):
         row = rho[i, len(inputs) :]
