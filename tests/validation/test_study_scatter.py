@@ -114,7 +114,7 @@ def test_two_worker_cluster_rows_equal_the_local_run(tmp_path: Path, study_clust
         {"path": "load_cases[0].torques[0].torque",
          "distribution": {"kind": "uniform", "low": 1500, "high": 2500}},
     ]  # fmt: skip
-    count = 3 * 4096 + 123
+    count = 9 * 4096 + 123  # more chunks than the engine keeps in flight (3 per worker)
     plan = plan_text(inputs, count=count, seed=77)
     out = tmp_path / "cluster.parquet"
     workers = len(study_cluster.scheduler_info()["workers"])

@@ -120,7 +120,7 @@ def register(commands: Any) -> None:
     )
     parser.add_argument("--scheduler", help="address of an existing dask.distributed scheduler")
     parser.add_argument("--chunk-size", type=int,
-                        help="variants per chunk, a multiple of 4096 (default 16384)")  # fmt: skip
+                        help="variants per chunk, a multiple of 4096 (default 4096)")  # fmt: skip
     parser.add_argument("--json", action="store_true", help="print the summary as JSON")
     parser.add_argument("--summary", help="also write the summary (JSON) to this file")
     parser.set_defaults(run=_command_study)

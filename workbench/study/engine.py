@@ -38,9 +38,11 @@ from workbench.study.evaluate import evaluate_chunk, prepare
 from workbench.study.plan import BLOCK, Plan
 from workbench.study.sampling import unit_design
 
-#: Default chunk: whole Monte Carlo blocks, about a second of one core's solving for a
-#: 20-segment shaft (the scheduler's cost per chunk stays a small share of it).
-DEFAULT_CHUNK = 4 * BLOCK
+#: Default chunk: one Monte Carlo block. A batch's check arrays hold variants × results × check
+#: kinds × segments values each; at 4,096 variants of a 20-segment, 5-result shaft a worker
+#: peaks near 0.2 GB above its own, and the scheduler's cost per chunk (about 10 ms) stays a
+#: few per cent of the chunk's solve (benchmark: tests/benchmarks/bench_study.py).
+DEFAULT_CHUNK = BLOCK
 #: Chunks in flight per worker: one running, one queued behind it, one coming back.
 IN_FLIGHT_PER_WORKER = 3
 #: Thread pools of the numerical libraries, pinned to one thread in each worker process.
@@ -208,6 +210,7 @@ def run_study(
     design = unit if unit is not None else unit_design(plan)
     bounds = chunk_bounds(count, chunk_size)
     written = _Rows(Path(output), count, progress)
+    written.path.unlink(missing_ok=True)  # replaced: never an older study's rows under its name
     running: dict[Any, int] = {}
     stopped, width, previous = False, 1, None
     try:
@@ -290,7 +293,8 @@ def _run_chunks(
 
     queue = iter(range(len(bounds)))
     window = width * IN_FLIGHT_PER_WORKER
-    finished = as_completed([submit(n) for n, _ in zip(queue, range(window), strict=False)])
+    # range first: zip stops on it before taking one more chunk from the queue.
+    finished = as_completed([submit(n) for _, n in zip(range(window), queue, strict=False)])
     for future in finished:
         number = running.pop(future)
         pending[number] = future.result()

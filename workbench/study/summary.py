@@ -25,6 +25,7 @@ from collections import Counter
 from typing import Any
 
 import numpy as np
+import pyarrow.compute as pc
 import pyarrow.parquet as pq
 from scipy import stats
 
@@ -60,14 +61,21 @@ def summarise(path: str | os.PathLike[str], plan: Plan, total: int | None = None
     total
         Variants the plan holds, when fewer rows were written (a stopped study).
     """
-    table = pq.read_table(path)
+    source = pq.ParquetFile(path)  # read column by column: memory of a few columns at a time
+
+    def column(name: str) -> Any:
+        return source.read(columns=[name]).column(0)
+
     inputs = input_names(plan)
     outputs = [
-        name for name in table.column_names if name not in _NOT_OUTPUTS and name not in inputs
+        name
+        for name in source.schema_arrow.names
+        if name not in _NOT_OUTPUTS and name not in inputs
     ]
-    valid = table.column("valid").to_numpy(zero_copy_only=False)
-    rows = table.num_rows
-    governing = table.column("governing_utilisation").to_numpy()[valid]
+    valid = column("valid").to_numpy()
+    rows = source.metadata.num_rows
+    utilisation = column("governing_utilisation").to_numpy()
+    governing = utilisation[valid]
     exceeding = int(np.count_nonzero(governing > 1.0))
     tested = len(governing)
     exceedance: dict[str, Any] = {"variants": tested, "exceeding": exceeding,
@@ -83,24 +91,23 @@ def summarise(path: str | os.PathLike[str], plan: Plan, total: int | None = None
         )
     percentiles = {}
     for name in outputs:
-        values = table.column(name).to_numpy()[valid]
+        values = column(name).to_numpy()[valid]
         values = values[np.isfinite(values)]
         found = (
             np.percentile(values, PERCENTILES) if len(values) else np.full(len(PERCENTILES), np.nan)
         )
         percentiles[name] = dict(zip([f"p{p:g}" for p in PERCENTILES], _finite(found), strict=True))
-    correlations = _rank_correlations(table, inputs, outputs, valid)
-    utilisation = table.column("governing_utilisation").to_numpy()
+    correlations = _rank_correlations(column, inputs, outputs, valid)
     order = np.argsort(np.where(valid, utilisation, -np.inf))[::-1][: plan.worst]
-    order = order[valid[order]]
+    order = order[valid[order]].tolist()
+    chosen = source.read(columns=["variant", "governing_check", *inputs]).take(order).to_pylist()
     worst = [
-        {"variant": int(table.column("variant")[int(i)].as_py()),
-         "governing_utilisation": float(utilisation[i]),
-         "governing_check": table.column("governing_check")[int(i)].as_py(),
-         "inputs": {name: float(table.column(name)[int(i)].as_py()) for name in inputs}}
-        for i in order.tolist()
+        {"variant": row["variant"], "governing_utilisation": float(utilisation[i]),
+         "governing_check": row["governing_check"],
+         "inputs": {name: row[name] for name in inputs}}
+        for i, row in zip(order, chosen, strict=True)
     ]  # fmt: skip
-    reasons = table.column("reason").to_pylist() if not valid.all() else []
+    reasons = pc.drop_null(column("reason")).to_pylist()
     by_field: Counter[str] = Counter()
     example: dict[str, str] = {}
     for reason in reasons:  # the invalid variants' messages, counted by the field they name
@@ -128,30 +135,38 @@ def summarise(path: str | os.PathLike[str], plan: Plan, total: int | None = None
     }
 
 
+def _centred_ranks(values: np.ndarray) -> np.ndarray | None:
+    """Average ranks (ties shared), centred and scaled to unit length; ``None`` if all tie."""
+    ranks = stats.rankdata(values)
+    ranks -= ranks.mean()
+    length = float(np.sqrt(ranks @ ranks))
+    return ranks / length if length > 0.0 else None
+
+
 def _rank_correlations(
-    table: Any, inputs: list[str], outputs: list[str], valid: np.ndarray
+    column: Any, inputs: list[str], outputs: list[str], valid: np.ndarray
 ) -> dict[str, dict[str, float | None]]:
-    """Spearman's ρ of every input with every output, over the valid variants."""
+    """Spearman's ρ of every input with every output, over the valid variants.
+
+    ρ is the Pearson correlation of the average ranks [2]_: each column is ranked once, and an
+    output's ρ with every input is one product of its centred ranks with theirs — an output at a
+    time, so memory holds the inputs' ranks and one output's. Variants where an output is not
+    finite are left out of that output's coefficients (the inputs re-ranked without them).
+    """
     if valid.sum() < 3:
         return {}
-    columns = np.column_stack(
-        [table.column(name).to_numpy()[valid] for name in (*inputs, *outputs)]
-    )
-    columns = columns[np.isfinite(columns).all(axis=1)]
-    if len(columns) < 3:
-        return {}
-    spread = np.std(columns, axis=0) > 0.0
-    if not spread[: len(inputs)].any() or not spread[len(inputs) :].any():
-        return {}
-    with np.errstate(invalid="ignore", divide="ignore"):
-        rho = stats.spearmanr(columns).statistic
-    if np.ndim(rho) == 0:  # two columns: scipy gives the one coefficient
-        rho = np.array([[1.0, rho], [rho, 1.0]])
-    found: dict[str, dict[str, float | None]] = {}
-    for i, name in enumerate(inputs):
-        row = rho[i, len(inputs) :]
-        shown = np.where(spread[i] & spread[len(inputs) :], row, np.nan)
-        found[name] = dict(zip(outputs, _finite(shown), strict=True))
+    drawn = [column(name).to_numpy()[valid] for name in inputs]
+    ranked = [_centred_ranks(values) for values in drawn]
+    found: dict[str, dict[str, float | None]] = {name: {} for name in inputs}
+    for name in outputs:
+        values = column(name).to_numpy()[valid]
+        finite = np.isfinite(values)
+        everywhere = bool(finite.all())
+        own = _centred_ranks(values[finite]) if finite.sum() >= 3 else None
+        for number, input_name in enumerate(inputs):
+            other = ranked[number] if everywhere else _centred_ranks(drawn[number][finite])
+            rho = None if own is None or other is None else float(np.clip(own @ other, -1.0, 1.0))
+            found[input_name][name] = rho
     return found
 
 

@@ -1,0 +1,192 @@
+"""Speed and memory of studies on dask (``python -m tests.benchmarks --only study``).
+
+Targets (on the 2-core reference machine, which other engineers share: the figures move with
+their load, and the table flags a busy machine):
+
+* 10⁶ variants of a 20-segment shaft with every static check (shear stress, shoulder fillets,
+  keyseats, notches, cross holes, twist rate and a rotation limit, 5 results), each segment's
+  diameter and the first torque drawn by Monte Carlo, every output recorded, on the default
+  local cluster (one worker process per core): ≤ 60 s from the call to the last row written,
+  cluster start included; peak memory of this process and its workers together ≤ 1 GB (resident
+  set sizes sampled every 0.1 s with psutil).
+* The same kind of study (2 × 10⁵ variants) on two local worker processes ≥ 1.7× as fast as on
+  one (BLAS pinned to one thread in each; the clusters started before the clock).
+* The scheduler's cost per chunk at the default chunk size (4,096 variants) ≤ 5 % of the
+  chunk's own solve time: from a one-worker run, (wall − Σ task compute time) / chunks, against
+  the task's median compute time (dask's task stream).
+
+The shaft is the invented demo of :mod:`tests.benchmarks.bench_sweep` (for timing only).
+"""
+
+from __future__ import annotations
+
+import json
+import logging
+import os
+import tempfile
+import threading
+import time
+from pathlib import Path
+from typing import Any
+
+import psutil
+
+from tests.benchmarks.bench_sweep import sweep_model
+from tests.benchmarks.common import Row
+from workbench.solver.io import case_to_dict
+from workbench.study.engine import DEFAULT_CHUNK, ONE_THREAD, run_study
+
+MEGA = 1_000_000
+GB = 1024**3
+
+
+def _case_text() -> str:
+    model = sweep_model()
+    document = case_to_dict(model)
+    names = {layer.material.name: layer.material for shaft in model.shafts
+             for segment in shaft.segments for layer in segment.layers}  # fmt: skip
+    document["materials"] = {
+        name: {"shear_modulus": m.shear_modulus, "yield_strength": m.yield_strength,
+               "ultimate_strength": m.ultimate_strength}
+        for name, m in names.items()
+    }  # fmt: skip
+    return json.dumps(document)
+
+
+def _plan_text(count: int) -> str:
+    document = json.loads(_case_text())
+    inputs = []
+    for number, segment in enumerate(document["shafts"][0]["segments"]):
+        key = "diameter" if segment["section"]["shape"] == "solid" else "outer_diameter"
+        nominal = segment["section"][key]
+        inputs.append({"path": f"shafts[0].segments[{number}].section.{key}",
+                       "distribution": {"kind": "normal", "mean": nominal, "std": nominal * 0.01}})  # fmt: skip
+    torque = document["load_cases"][0]["torques"][0]["torque"]
+    inputs.append({"path": "load_cases[0].torques[0].torque",
+                   "distribution": {"kind": "normal", "mean": torque, "std": abs(torque) * 0.1}})  # fmt: skip
+    outputs = ["governing_utilisation", "check_utilisations", "reactions", "twists"]
+    return json.dumps(
+        {"inputs": inputs, "sampling": {"count": count, "seed": 1}, "outputs": outputs}
+    )
+
+
+class _PeakMemory:
+    """The largest resident set of this process and its children together, sampled."""
+
+    def __init__(self) -> None:
+        self.peak = 0
+        self._stop = threading.Event()
+        self._thread = threading.Thread(target=self._sample, daemon=True)
+
+    def _sample(self) -> None:
+        me = psutil.Process()
+        while not self._stop.is_set():
+            total = me.memory_info().rss
+            for child in me.children(recursive=True):
+                try:
+                    total += child.memory_info().rss
+                except psutil.Error:
+                    continue
+            self.peak = max(self.peak, total)
+            self._stop.wait(0.1)
+
+    def __enter__(self) -> _PeakMemory:
+        self._thread.start()
+        return self
+
+    def __exit__(self, *_: object) -> None:
+        self._stop.set()
+        self._thread.join()
+
+
+def _million(folder: Path) -> list[Row]:
+    count = MEGA
+    with _PeakMemory() as memory:
+        start = time.perf_counter()
+        outcome = run_study(_case_text(), _plan_text(count), folder / "million.parquet")
+        wall = time.perf_counter() - start
+    assert outcome.rows == count and not outcome.stopped
+    size = (folder / "million.parquet").stat().st_size
+    note = (
+        f"{count:,} variants × 20 segments, 21 inputs, every output ({outcome.workers} local "
+        f"worker processes, chunks of {outcome.chunk_size:,}); parquet {size / MEGA:.0f} MB; "
+        f"{count / wall:,.0f} variants/s; machine shared with other engineers (2 cores)"
+    )
+    return [
+        Row("10⁶ variants × 20 segments, every static check: wall", wall, "s", 60.0, notes=(note,)),
+        Row("10⁶ variants: peak memory, this process and its workers", memory.peak / GB, "GB", 1.0),
+    ]
+
+
+def _client(workers: int) -> Any:
+    from dask.distributed import Client, LocalCluster
+
+    cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                           dashboard_address=":0", silence_logs=logging.ERROR, env=ONE_THREAD)  # fmt: skip
+    return cluster, Client(cluster)
+
+
+def _timed(workers: int, count: int, folder: Path) -> tuple[float, float, list[float]]:
+    """Wall of a warm run, Σ and each task's compute time (s)."""
+    from dask.distributed import get_task_stream
+
+    cluster, client = _client(workers)
+    try:
+        case, plan = _case_text(), _plan_text(count)
+        run_study(case, _plan_text(2 * DEFAULT_CHUNK), folder / "warm.parquet", client=client)
+        with get_task_stream(client) as stream:
+            start = time.perf_counter()
+            run_study(case, plan, folder / f"w{workers}.parquet", client=client)
+            wall = time.perf_counter() - start
+        computes = [
+            sum(s["stop"] - s["start"] for s in task["startstops"] if s["action"] == "compute")
+            for task in stream.data
+            if str(task["key"]).startswith("evaluate_chunk")
+        ]
+        return wall, sum(computes), computes
+    finally:
+        client.close()
+        cluster.close()
+
+
+def _scaling(folder: Path) -> list[Row]:
+    count = 200_000
+    one, one_compute, computes = _timed(1, count, folder)
+    two, _, _ = _timed(2, count, folder)
+    chunks = len(computes)
+    computes.sort()
+    median = computes[len(computes) // 2]
+    overhead = (one - one_compute) / chunks
+    note = (
+        f"{count:,} variants, chunks of {DEFAULT_CHUNK:,}: one worker {one:.1f} s, two "
+        f"{two:.1f} s; machine shared (2 cores)"
+    )
+    overhead_note = (
+        f"one worker: wall {one:.2f} s, Σ compute {one_compute:.2f} s over {chunks} chunks, "
+        f"median chunk compute {median * 1e3:.0f} ms, overhead {overhead * 1e3:.1f} ms per chunk "
+        "(scatter, submission, result transfer, parquet writing in this process)"
+    )
+    return [
+        Row(
+            "two local worker processes vs one: speed-up",
+            one / two,
+            "×",
+            1.7,
+            sense=">=",
+            notes=(note,),
+        ),
+        Row(
+            "scheduler overhead per chunk / chunk solve time",
+            overhead / median * 100,
+            "%",
+            5.0,
+            notes=(overhead_note,),
+        ),
+    ]
+
+
+def run() -> list[Row]:
+    """The rows of this benchmark."""
+    os.environ.update(ONE_THREAD)
+    with tempfile.TemporaryDirectory() as folder:
+        return [*_million(Path(folder)), *_scaling(Path(folder))]
