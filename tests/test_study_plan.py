@@ -54,8 +54,8 @@ def test_a_bad_plan_names_its_field(plan: dict[str, object], field: str) -> None
         ("shafts[0].segments[3].section.diameter", "no such input"),
         ("shafts[0].segments[0].section.colour", "no such input"),
         ("materials.bronze.shear_modulus", "no such input"),
-        ("supports[0].x", "move the mesh"),
-        ("load_cases[0].torques[0].x", "move the mesh"),
+        ("supports[0].x", "moves the mesh"),
+        ("load_cases[0].torques[0].x", "moves the mesh"),
         ("shafts[0].id", "names no number"),
         ("shafts[[0]", "not a path"),
     ],
@@ -163,3 +163,40 @@ def test_the_command_refuses_a_bad_plan_in_one_line(
     assert status == 2
     assert err.count("\n") == 1 and err.startswith("plan.sampling.count:")
     assert not (tmp_path / "r.parquet").exists()
+
+
+def test_a_variant_at_the_case_values_matches_the_case_solved_and_checked_alone() -> None:
+    """The batch row of the nominal case equals solve + run_checks of the case itself."""
+    from workbench.design.checks import run_checks
+    from workbench.solver.analysis import solve
+    from workbench.solver.io import load_case
+
+    demo = Path(__file__).resolve().parents[1] / "workbench" / "cases" / "press_drive.json"
+    inputs = [
+        {
+            "path": "shafts[0].segments[0].section.diameter",
+            "distribution": {"kind": "values", "values": [60]},
+        }
+    ]  # the case's own value
+    plan = json.dumps({"inputs": inputs, "sampling": {"method": "grid"},
+                       "outputs": ["check_utilisations", "reactions", "twists"]})  # fmt: skip
+    row = evaluate_chunk(demo.read_text(), plan, 0, 1).to_pylist()[0]
+    model = load_case(demo)
+    results = solve(model)
+    checks = run_checks(results)
+    static = [
+        c
+        for c in checks.checks
+        if c.kind not in ("fatigue", "first_cycle_yield", "frequency_separation")
+    ]
+    assert row["governing_utilisation"] == pytest.approx(
+        max(c.utilisation for c in static), rel=1e-12
+    )
+    units = model.units
+    for number, name in enumerate(results.names):
+        for support in range(len(model.supports)):
+            expected = units.from_si(results.reactions[number, support], "torque")
+            assert row[f"reaction.{name}.{support}"] == pytest.approx(expected, rel=1e-12, abs=1e-9)
+    assert row["utilisation.shear_stress"] == pytest.approx(
+        max(c.utilisation for c in static if c.kind == "shear_stress"), rel=1e-12
+    )

@@ -132,9 +132,8 @@ def _target(model: Model, table: CaseTable, path: Path, field: str) -> Target:
     column = batch_column(table, path)
     if column is None:
         msg = (
-            "is not an input a study can vary on the batch path (a dimension, modulus, strength, "
-            "segment length, load, spring stiffness or gear radius); positions of loads and "
-            "supports move the mesh: vary a segment's length instead"
+            "cannot be varied on the batch path: a position moves the mesh (vary a segment's "
+            "length instead); the README lists the inputs a study varies"
         )
         raise InputError(field, msg)
     return Target("column", column.quantity, column=column)
@@ -291,11 +290,10 @@ def evaluate_chunk(
     hide = ~valid
     if "check_utilisations" in plan.outputs:
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            utilisation = judged.utilisation
+            peaks = np.fmax.reduce(judged.utilisation, axis=(1, 3))  # (V, C) in one pass
             for kind_number, kind in enumerate(STATIC_KINDS):
                 if judged.checked[:, kind_number].any():
-                    peak = np.fmax.reduce(utilisation[:, :, kind_number], axis=(1, 2))
-                    data[f"utilisation.{kind}"] = np.where(hide, np.nan, peak)
+                    data[f"utilisation.{kind}"] = np.where(hide, np.nan, peaks[:, kind_number])
             if judged.rotation_limit.shape[1]:
                 peak = np.fmax.reduce(judged.rotation_utilisation, axis=(1, 2))
                 data["utilisation.rotation"] = np.where(hide, np.nan, peak)
