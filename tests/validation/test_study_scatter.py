@@ -128,3 +128,26 @@ def test_two_worker_cluster_rows_equal_the_local_run(tmp_path: Path, study_clust
         assert (
             on_cluster.column(name).combine_chunks().equals(local.column(name).combine_chunks())
         ), name
+
+
+@pytest.mark.parametrize("method", ["sobol", "halton"])
+def test_quasi_random_margins_are_balanced(method: str) -> None:
+    """One point of the first 2^m per interval [i/2^m, (i + 1)/2^m) of every margin.
+
+    Sobol' points: I. M. Sobol', "On the distribution of points in a cube and the approximate
+    evaluation of integrals", USSR Comput. Math. Math. Phys. 7(4), 1967 — the first 2^m points
+    form a (t, m, s)-net, whose one-dimensional projections are stratified this way; Owen's
+    scrambling (A. B. Owen, 1995) keeps it. Halton points in base b put one of the first b^m
+    points in each interval of width b^−m of that margin (J. H. Halton, Numer. Math. 2, 1960);
+    the first margin's base is 2.
+    """
+    inputs = [diameter_input(kind="uniform", low=45, high=55),
+              {"path": "load_cases[0].torques[0].torque",
+               "distribution": {"kind": "uniform", "low": 1000, "high": 2000}}]  # fmt: skip
+    count = 1024
+    plan = read_plan(plan_text(inputs, method=method, count=count, seed=8))
+    unit = unit_design(plan)
+    assert unit is not None and unit.shape == (count, 2)
+    margins = unit.T if method == "sobol" else unit.T[:1]
+    for column in margins:
+        assert np.array_equal(np.sort(np.floor(column * count).astype(int)), np.arange(count))
