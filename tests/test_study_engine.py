@@ -137,3 +137,14 @@ def test_ctrl_c_stops_cleanly_and_keeps_the_rows(tmp_path: Path) -> None:
         f"stopped: {rows} of {400 * 4096} variants written to {out} (kept; the summary above covers them)"
     )
     assert stdout.startswith(f"Study: {rows} of {400 * 4096} variants")
+
+
+def test_runs_one_after_another_on_one_client(tmp_path: Path, study_cluster: Any) -> None:
+    """A face keeps one client: runs of the same case back to back each keep their own data."""
+    case = case_text()
+    for number in range(4):
+        plan = plan_text(
+            [diameter_input(kind="normal", mean=50, std=1)], count=2 * 4096, seed=number
+        )
+        outcome = run_study(case, plan, tmp_path / f"r{number}.parquet", client=study_cluster)
+        assert outcome.rows == 2 * 4096 and not outcome.stopped

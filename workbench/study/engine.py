@@ -280,7 +280,9 @@ def _run_chunks(
     """Submit the chunks a window at a time and write them in order; whether it was stopped."""
     from dask.distributed import as_completed  # noqa: PLC0415 - heavy; only when running
 
-    case_future, plan_future = active.scatter([case_text, plan_json], broadcast=True)
+    # Keys of this run's own (hash=False): a run after another on one client scatters the same
+    # case text, and the earlier run's release of a shared key would lose the later run's data.
+    case_future, plan_future = active.scatter([case_text, plan_json], broadcast=True, hash=False)
     pending: dict[int, Any] = {}
 
     def submit(number: int) -> Any:
