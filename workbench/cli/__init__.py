@@ -43,6 +43,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "workbench.cli.lab",
     "workbench.cli.record",
     "workbench.cli.compare",
+    "workbench.cli.study",
 )
 
 

@@ -8,3 +8,5 @@ EXIT_FAILED_CHECK = 1
 EXIT_BAD_INPUT = 2
 #: An unexpected internal error (a defect of workbench): one line, "please report".
 EXIT_INTERNAL_ERROR = 3
+#: A study stopped by Ctrl-C (128 + SIGINT, as shells report it); its rows so far are kept.
+EXIT_INTERRUPTED = 130

@@ -99,6 +99,55 @@ def _require_strength(material: Material | None, attribute: str, criterion: str)
     return float(value)
 
 
+def strength_allowables(
+    criterion: str,
+    factor_of_safety: float,
+    yield_strength: ArrayLike,
+    ultimate_strength: ArrayLike,
+    keyway: bool = False,
+) -> FloatArray:
+    """The allowable shear stress of a criterion from strengths of any shape (arrays).
+
+    The rule of :func:`allowable_shear_stress` for the criteria that read strengths, without
+    its checks (the caller gives a criterion of :data:`SHEAR_CRITERIA` other than
+    ``"allowable"``, a factor of safety of at least 1 and finite strengths); a study varies a
+    material's strengths over many variants at once through it.
+
+    Parameters
+    ----------
+    criterion
+        ``"von_mises"``, ``"tresca"`` or ``"shafting_code"``.
+    factor_of_safety
+        Factor of safety n ≥ 1 (dimensionless), applied by the yield criteria only.
+    yield_strength, ultimate_strength
+        Tensile yield and ultimate strengths Sy, Su (Pa), broadcast together; the ultimate
+        strength is read by ``"shafting_code"`` only.
+    keyway
+        Whether the code's × 0.75 for keyways applies.
+
+    Returns
+    -------
+    FloatArray
+        The allowable shear stress (Pa).
+
+    References
+    ----------
+    Those of :func:`allowable_shear_stress`: Shigley's ch. 5 for the yield criteria, the ASME
+    transmission-shafting code for 0.30 Sy, 0.18 Su and the keyway's × 0.75.
+    """
+    sy = np.asarray(yield_strength, dtype=float)
+    if criterion == "von_mises":
+        return sy / math.sqrt(3.0) / factor_of_safety
+    if criterion == "tresca":
+        return sy / 2.0 / factor_of_safety
+    if criterion != "shafting_code":
+        msg = f"reads no strength under criterion {quoted(criterion)}"
+        raise InputError(field="criterion", message=msg)
+    su = np.asarray(ultimate_strength, dtype=float)
+    value = np.minimum(SHAFTING_CODE_YIELD_FRACTION * sy, SHAFTING_CODE_ULTIMATE_FRACTION * su)
+    return value * SHAFTING_CODE_KEYWAY_FACTOR if keyway else value
+
+
 def allowable_shear_stress(
     material: Material | None,
     criterion: str,
@@ -164,11 +213,10 @@ def allowable_shear_stress(
 
     if criterion in ("von_mises", "tresca"):
         yield_strength = _require_strength(material, "yield_strength", criterion)
+        value = float(strength_allowables(criterion, fos, yield_strength, math.nan))
         if criterion == "von_mises":
-            value = yield_strength / math.sqrt(3.0) / fos
             formula, divisor = "von Mises: Sy/√3/FoS", "√3"
         else:
-            value = yield_strength / 2.0 / fos
             formula, divisor = "Tresca: Sy/2/FoS", "2"
         basis = (
             f"{formula} = {quote(yield_strength, 'stress')}/{divisor}/{fos:g} = "
@@ -179,16 +227,14 @@ def allowable_shear_stress(
     if criterion == "shafting_code":
         yield_strength = _require_strength(material, "yield_strength", criterion)
         ultimate = _require_strength(material, "ultimate_strength", criterion)
-        by_yield = SHAFTING_CODE_YIELD_FRACTION * yield_strength
-        by_ultimate = SHAFTING_CODE_ULTIMATE_FRACTION * ultimate
-        value = min(by_yield, by_ultimate)
+        value = float(strength_allowables(criterion, fos, yield_strength, ultimate))
         basis = (
             f"ASME transmission-shafting code: min(0.30 Sy, 0.18 Su) = "
             f"min(0.30 × {quote(yield_strength, 'stress')}, 0.18 × {quote(ultimate, 'stress')})"
             f" = {quote(value, 'stress')}"
         )
         if keyway:
-            value *= SHAFTING_CODE_KEYWAY_FACTOR
+            value = float(strength_allowables(criterion, fos, yield_strength, ultimate, keyway))
             basis += f", × 0.75 for the keyway = {quote(value, 'stress')} ({KEYWAY_ALLOWANCE})"
         basis += (
             f"; the code value carries its own margin, so the factor of safety ({fos:g}) is not "

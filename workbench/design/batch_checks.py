@@ -228,6 +228,7 @@ def governing_utilisations(
     frequency: bool = True,
     fillet_radius: Any = None,
     cross_hole_diameter: Any = None,
+    allowable: Any = None,
     **variants: Any,
 ) -> BatchVerdicts:
     """Judge every check of many variants of one case at once.
@@ -244,6 +245,9 @@ def governing_utilisations(
         (V, G) fillet radius of the shoulder at each segment's start and diameter of each
         segment's cross hole (m), over every shaft's segments in order; the base model's when
         left out. Read where the segment has the detail.
+    allowable
+        (V, G) or (V, K, G) allowable shear stress of each segment (per layer slot) (Pa), the
+        base model's when left out (a study varying a material's strengths gives it).
     **variants
         Columns of :func:`~workbench.solver.batch.solve_batch` (SI, one row per variant):
         ``length``, ``outer_diameter`` (or ``outer_diameter_start`` and ``_end``),
@@ -286,14 +290,15 @@ def governing_utilisations(
         )
         raise InputError("length", msg)
     details = {"fillet_radius": fillet_radius, "cross_hole_diameter": cross_hole_diameter}
-    checked = max((len(values) for values in details.values() if values is not None), default=1)
+    only_checked = (*details.values(), allowable)
+    checked = max((len(values) for values in only_checked if values is not None), default=1)
     solved = max((len(np.asarray(values)) for values in variants.values()), default=1)
     if checked > solved and "shear_modulus" not in variants:
         # Sizes only the checks read: every variant solves the base's system.
         variants["shear_modulus"] = np.repeat(case_table(model).segments.shear_modulus, checked, 0)
     token = display_units.set(model.units)
     try:
-        return _judge(model, design, checks_frequency, one_by_one, details, variants)
+        return _judge(model, design, checks_frequency, one_by_one, details, variants, allowable)
     finally:
         display_units.reset(token)
 
@@ -321,6 +326,7 @@ def _judge(
     one_by_one: tuple[str, ...],
     details: dict[str, Any],
     variants: dict[str, Any],
+    allowable: Any = None,
 ) -> BatchVerdicts:
     batch = solve_batch(model, **variants)
     layout = check_layout(model, batch.mesh, design)
@@ -338,6 +344,7 @@ def _judge(
         batch.station_x,
         **_segment_columns(batch, layout),
         **sizes,
+        allowable=allowable,
     )
     reasons = list(batch.reasons)
     valid = batch.valid.copy()

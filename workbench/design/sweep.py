@@ -89,7 +89,7 @@ class SweepRequest:
 
 
 @dataclass(frozen=True)
-class _Column:
+class BatchColumn:
     """Where a swept input sits in the batch's columns: name, index, and its quantity.
 
     ``names`` holds two columns for a prismatic section's one outer diameter (both ends).
@@ -114,7 +114,7 @@ def sweep_chunks(
     if request.metric == "reaction" and not 0 <= request.support < len(base.supports):
         msg = f"support {request.support} does not exist (the case has {len(base.supports)})"
         raise InputError("support", msg)
-    column = _column(case_table(base), request.path)
+    column = batch_column(case_table(base), request.path)
     values = np.full(len(request.values), np.nan)
     for start in range(0, len(request.values), chunk):
         part = request.values[start : start + chunk]
@@ -155,8 +155,16 @@ def point_error(document: dict[str, Any], path: Path, value: float) -> str | Non
     return None
 
 
-def _column(table: CaseTable, path: Path) -> _Column | None:
-    """The batch column of a document path, or ``None`` when the input is not one."""
+def batch_column(table: CaseTable, path: Path) -> BatchColumn | None:
+    """The batch column of a document path, or ``None`` when the input is not one.
+
+    Parameters
+    ----------
+    table
+        The base case's columns (:func:`~workbench.solver.columns.case_table`).
+    path
+        Keys and list indices into the case document.
+    """
     quantity = key_quantities().get(str(path[-1]))
     if quantity is None:
         return None
@@ -164,7 +172,7 @@ def _column(table: CaseTable, path: Path) -> _Column | None:
         segments = table.segments
         row = int(segments.shaft_segment_start[int(path[1])]) + int(path[3])
         if path[4:] == ("fillet_radius",):
-            return _Column(("fillet_radius",), (row,), quantity)
+            return BatchColumn(("fillet_radius",), (row,), quantity)
         tail = path[4:]
         layer = int(segments.segment_layer_start[row])
         if tail[:1] == ("layers",) and len(tail) == 4:
@@ -179,29 +187,29 @@ def _column(table: CaseTable, path: Path) -> _Column | None:
             chosen = names[:2]  # a solid's one diameter: both ends, no bore
         else:
             chosen = tuple(name for name, key in zip(names, keys, strict=True) if key == tail[1])
-        return _Column(chosen, (layer,), quantity)
+        return BatchColumn(chosen, (layer,), quantity)
     if path[0] == "supports" and path[2] in ("stiffness", "rotation"):
         if path[2] == "stiffness" and table.support_fixed[int(path[1])]:
             return None
-        return _Column((f"support_{path[2]}",), (int(path[1]),), quantity)
+        return BatchColumn((f"support_{path[2]}",), (int(path[1]),), quantity)
     if path[0] == "gears" and path[3] == "radius":
         end = 0 if path[2] == "a" else 1
         sign = float(np.sign(table.gear_coefficient[0, int(path[1]), end]))
-        return _Column(("gear_coefficient",), (int(path[1]), end), quantity, sign)
+        return BatchColumn(("gear_coefficient",), (int(path[1]), end), quantity, sign)
     if path[0] == "load_cases" and path[-1] in _LINEAR_KEYS:
         case, item = int(path[1]), int(path[3])
         if path[2] == "torques":
             first = int(np.searchsorted(table.torque_case, case))
-            return _Column(("torque",), (first + item,), quantity)
+            return BatchColumn(("torque",), (first + item,), quantity)
         first = int(np.searchsorted(table.load_case, case))
-        return _Column(
+        return BatchColumn(
             ("load_intensity",), (first + item, int(path[4] == "intensity_end")), quantity
         )
     return None
 
 
 def _batch_points(
-    base: Model, request: SweepRequest, column: _Column, part: Sequence[float]
+    base: Model, request: SweepRequest, column: BatchColumn, part: Sequence[float]
 ) -> np.ndarray:
     """The metric at each value of a chunk, every point one variant of one batch."""
     table = case_table(base)
