@@ -27,9 +27,10 @@ from typing import Any
 
 import numpy as np
 
+from workbench.panel.bound import Bound
 from workbench.panel.document import Path, get_at
 from workbench.panel.elevation import Elevation
-from workbench.panel.form import Bound, Form, clean_number
+from workbench.panel.form import Form, clean_number
 from workbench.panel.keys import quantity_of
 from workbench.panel.plotting import HANDLE, SELECTED, bq, set_list
 from workbench.panel.selection import (

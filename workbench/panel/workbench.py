@@ -27,6 +27,7 @@ from IPython.display import display
 
 from workbench.case.errors import InputError
 from workbench.design.checks import CheckReport
+from workbench.panel.bound import Editor
 from workbench.panel.charts import Charts
 from workbench.panel.document import UNIT_CHOICES, result_names, structure
 from workbench.panel.drawing import DrawingEditor
@@ -40,7 +41,7 @@ from workbench.panel.editors import (
     VibrationEditor,
 )
 from workbench.panel.fatigue_section import FatigueSection
-from workbench.panel.form import Editor, Form, sized
+from workbench.panel.form import Form, sized
 from workbench.panel.markup import render
 from workbench.panel.modes_section import ModesSection
 from workbench.panel.plotting import held
