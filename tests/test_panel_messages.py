@@ -241,3 +241,25 @@ def test_in_a_kernel_the_readouts_follow_once_the_edits_pause(demo: Workbench) -
     for chart in charts:  # the curves of the last edit
         assert np.array_equal(chart.now_readout.x, chart.now.x)
         assert np.array_equal(chart.now_readout.y, chart.now.y)
+
+
+def test_points_named_by_their_values_are_matched_by_order(demo: Workbench) -> None:
+    """A tooltip's words change with an edit; the page must not redraw those points anew.
+
+    bqplot's front end matches points to their data by name unless ``names_unique`` is off:
+    a cross named ``utilisation 1.381`` that becomes ``1.379`` would be removed and drawn again.
+    The handles keep their names as identities (the page matches a dragged point by them).
+    """
+    demo.enter(DIAMETER, "56")
+    charts = demo.charts
+    worded = [
+        *charts.stress.details,
+        charts.stress.failing,
+        charts.bar_failing,
+        charts.bar_baseline,
+        charts.drawing.failing,
+    ]
+    assert any(len(mark.names) for mark in worded)  # the demo fails a check: crosses named
+    assert not any(mark.names_unique for mark in worded)
+    handles = demo.drawing_editor.handles
+    assert all(mark.names_unique for mark in (handles.places, handles.segment_marks))

@@ -23,6 +23,7 @@ from workbench.panel.document import unit_label
 from workbench.panel.elevation import Elevation
 from workbench.panel.plotting import (
     BASELINE,
+    BY_ORDER,
     CURRENT,
     DETAIL_STYLES,
     FAIL,
@@ -169,6 +170,7 @@ class StressChart(ResultChart):
                 visible=False,
                 display_names=False,
                 tooltip=bq.Tooltip(fields=["name"], labels=[name], formats=[""]),
+                **BY_ORDER,
             )
             for name, colour, marker in DETAIL_STYLES
         ]
@@ -311,6 +313,7 @@ class Charts:
             default_size=60,
             visible=False,
             tooltip=bq.Tooltip(fields=["name"], labels=["baseline"], formats=[""]),
+            **BY_ORDER,
         )
         self.bar_limit = bq.Lines(
             x=[0],

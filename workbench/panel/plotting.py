@@ -233,6 +233,12 @@ def _replace_tooltip(mark: Any, tooltip: Any) -> None:
         old.close()
 
 
+#: For points whose names are words about their values (read in their tooltips): the page
+#: tells the points apart by their order, not by name. Matched by name, a point whose words
+#: changed with an edit (``utilisation 1.381`` → ``1.379``) is removed and drawn anew.
+BY_ORDER = {"names_unique": False}
+
+
 def failing_mark(scales: dict[str, Any], tooltip: Any) -> Any:
     """Crosses in the failing colour on what fails its check (hidden until something does)."""
     return bq.Scatter(
@@ -245,6 +251,7 @@ def failing_mark(scales: dict[str, Any], tooltip: Any) -> Any:
         stroke="white",
         visible=False,
         tooltip=tooltip,
+        **BY_ORDER,
     )
 
 
