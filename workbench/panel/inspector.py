@@ -34,8 +34,9 @@ from workbench.case.declaration import (
     field_type,
     structs_in,
 )
+from workbench.panel.bound import Bound
 from workbench.panel.document import Path, field_words, get_at, set_at
-from workbench.panel.form import Bound, Form, button
+from workbench.panel.form import Form, button
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
 from workbench.panel.selection import Part, part_label
