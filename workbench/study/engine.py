@@ -31,6 +31,7 @@ from typing import Any
 
 import msgspec
 import numpy as np
+import pyarrow as pa
 import pyarrow.parquet as pq
 
 from workbench.case.errors import InputError
@@ -232,9 +233,11 @@ def run_study(
         if previous is not None:
             signal.signal(signal.SIGINT, previous)
     # However the loop ended (a Ctrl-C may end dask's iterator quietly), fewer rows than the
-    # plan's is a stopped study.
-    stopped = stopped or written.done < count
-    return StudyOutcome(written.path, written.done, count, stopped, written.seconds, width,
+    # plan's is a stopped study. The rows reported are those the closed file holds: a Ctrl-C
+    # landing inside the writer must not leave a count the file does not bear out.
+    kept = written.kept()
+    stopped = stopped or kept < count
+    return StudyOutcome(written.path, kept, count, stopped, written.seconds, width,
                         chunk_size)  # fmt: skip
 
 
@@ -264,6 +267,13 @@ class _Rows:
         if self.writer is not None:
             self.writer.close()
             self.writer = None
+
+    def kept(self) -> int:
+        """Rows the closed file holds, read from its footer (0 if nothing was written)."""
+        try:
+            return int(pq.read_metadata(self.path).num_rows)
+        except (OSError, pa.ArrowException):  # nothing written, or no footer: no row kept
+            return 0
 
 
 def _run_chunks(
