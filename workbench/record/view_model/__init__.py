@@ -25,6 +25,7 @@ from workbench.record.view_model.hand_check import hand_check_view
 from workbench.record.view_model.inputs import inputs_view
 from workbench.record.view_model.results import results_view
 from workbench.record.view_model.vibration import vibration_view
+from workbench.record.view_model.warping import warping_view
 
 __all__ = ["Section", "heading", "record_sections", "verified_sections"]
 
@@ -54,8 +55,11 @@ class Section:
 
 
 def extra_sections(computation: Computation, printed: bool = True) -> list[Section]:
-    """The torsional vibration and fatigue sections, when the case asks for them."""
+    """Restrained warping, torsional vibration and fatigue sections, when the case has them."""
     out = []
+    if computation.results.warping is not None:  # cases whose sections warp, only
+        restrained = warping_view(computation.results, printed)
+        out.append(Section("warping", "Restrained warping", restrained))
     if computation.modes is not None or computation.modes_error is not None:
         view = vibration_view(computation, printed)
         out.append(Section("vibration", "Torsional vibration", view))
@@ -106,6 +110,8 @@ def record_sections(
     model, report = computation.model, computation.report
     hand_check, hand_warnings = hand_check_view(computation)
     warnings = [*report.notes, *hand_warnings]
+    if computation.results.warping is not None:  # the unmodelled restraint, rotations beyond 1 rad
+        warnings = [*computation.results.warnings, *warnings]
     failing = [check for check in report.checks if not check.passes]
     if failing:
         warnings.append(f"{len(failing)} check(s) fail; see Design checks")
