@@ -24,7 +24,7 @@ from workbench.cli import main
 from workbench.design.checks import check_document, run_checks
 from workbench.design.independent import WARPING_NOT_COVERED, NotCovered, independent_check
 from workbench.design.warping_checks import WARPING_KINDS
-from workbench.design.warping_model_checks import SAINT_VENANT_PART
+from workbench.design.warping_model_checks import SAINT_VENANT_PART, WARPING_STRESSES_UNCHECKED
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 
@@ -182,3 +182,27 @@ def test_sizing_a_case_that_warps_is_refused_naming_the_section(
     error = capsys.readouterr().err.strip()
     assert error.startswith("shafts[0].segments[0].section: a section that warps")
     assert "\n" not in error
+
+
+def test_a_polygon_section_that_warps_is_named_as_not_checked(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    # An angle drawn as a polygon: its finite-element warping constant is small but not 0, and
+    # it has no wall mid-line, so the warping checks cannot judge it; the command says so.
+    document = copy.deepcopy(GIRDER)
+    corners = [(0, 0), (100, 0), (100, 10), (10, 10), (10, 100), (0, 100)]
+    document["shafts"][0]["segments"][0]["section"] = {
+        "shape": "polygon",
+        "outer": [{"x": x, "y": y} for x, y in corners],
+    }
+    document["load_cases"][0]["torques"][0]["torque"] = 50
+    path = _write(tmp_path, document)
+    assert main(["check", str(path)]) == 0
+    captured = capsys.readouterr()
+    expected = (
+        "warning: shafts[0].segments[0]: its section warps but has no wall mid-line "
+        f"(finite elements); {WARPING_STRESSES_UNCHECKED}\n"
+    )
+    assert captured.err == expected
+    assert expected.removeprefix("warning: ").strip() in captured.out
+    assert "warping_normal_stress" not in captured.out

@@ -41,7 +41,13 @@ from workbench.solver.open_sections import OpenSectionWarping
 from workbench.solver.warping_sections import OpenWarpingSection
 from workbench.solver.warping_stress import stress_points, torsional_stresses
 
-__all__ = ["SAINT_VENANT_PART", "WarpingRows", "warping_rows"]
+__all__ = ["SAINT_VENANT_PART", "WARPING_STRESSES_UNCHECKED", "WarpingRows", "warping_rows"]
+
+#: The words of a report note on a segment that warps but whose warping stresses the checks
+#: cannot judge (a section by finite elements); the command line repeats such notes as warnings.
+WARPING_STRESSES_UNCHECKED = (
+    "its warping stresses are NOT checked: judge the warping normal stress separately"
+)
 
 #: The report's note where the warping checks judge some segment.
 SAINT_VENANT_PART = (
@@ -111,6 +117,7 @@ def warping_rows(
         return WarpingRows([], np.zeros(count, dtype=bool), [])
     model = results.model
     segments = [segment for shaft in model.shafts for segment in shaft.segments]
+    shaft_numbers = [number for number, shaft in enumerate(model.shafts) for _ in shaft.segments]
     sections: dict[int, int] = {}  # id(section) → its index among the distinct open sections
     properties: list[OpenSectionWarping] = []
     segment_section = np.full(count, -1, dtype=np.intp)
@@ -124,8 +131,9 @@ def warping_rows(
         if not isinstance(section, OpenWarpingSection):
             if section.warping_constant > 0.0:
                 notes.append(
-                    f"{shafts[index]} segment {numbers[index]}: its section warps but has no "
-                    "wall mid-line (finite elements); its warping stresses are not checked"
+                    f"shafts[{shaft_numbers[index]}].segments[{numbers[index]}]: its section "
+                    "warps but has no wall mid-line (finite elements); "
+                    f"{WARPING_STRESSES_UNCHECKED}"
                 )
             continue
         segment_section[index] = sections.setdefault(id(section), len(sections))
