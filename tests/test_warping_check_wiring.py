@@ -206,3 +206,39 @@ def test_a_polygon_section_that_warps_is_named_as_not_checked(
     assert captured.err == expected
     assert expected.removeprefix("warning: ").strip() in captured.out
     assert "warping_normal_stress" not in captured.out
+
+
+def test_size_prints_the_cautions_on_its_results(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    # A 20 m line shaft sized down to 20 mm twists θ = T·L/(G·J) = 150·20/(79.3e9·π·0.02⁴/32)
+    # = 2.41 rad at its end (Gere & Goodno, Mechanics of Materials, 8th ed., §3.3): beyond
+    # the 1 rad of the small-rotation theory, which `size` says as `solve` and `check` do.
+    document = {
+        "units": {"length": "mm", "torque": "N*m", "stress": "MPa", "angle": "deg"},
+        "materials": {
+            "s": {"shear_modulus": 79300, "yield_strength": 350, "ultimate_strength": 500}
+        },
+        "shafts": [
+            {
+                "id": "line",
+                "segments": [
+                    {
+                        "length": 20000,
+                        "material": "s",
+                        "section": {"shape": "solid", "diameter": 80},
+                    }
+                ],
+            }
+        ],
+        "supports": [{"shaft": "line", "x": 0}],
+        "load_cases": [
+            {"name": "drive", "torques": [{"shaft": "line", "x": 20000, "torque": 150}]}
+        ],
+    }
+    path = _write(tmp_path, document)
+    assert main(["size", str(path)]) == 0
+    error = capsys.readouterr().err
+    assert error.startswith("warning: rotations reach ")
+    assert "(2.41 rad;" in error
+    assert error.count("\n") == 1

@@ -107,6 +107,9 @@ def _command_size(arguments: argparse.Namespace) -> int:
     if output is not None:
         with writing(output):
             save_case(outcome.model, output)
+    # The cautions on the sized model's results, as `solve` and `check` print them (a case
+    # whose sections warp is refused before: the batch path solves uniform torsion only).
+    _warn(outcome.report.results.warnings)
     return EXIT_OK if outcome.passes else EXIT_FAILED_CHECK
 
 
