@@ -64,6 +64,9 @@ def test_the_record_of_a_warping_case_verifies(signed: tuple[Path, Path, str]) -
 
 
 def test_it_states_the_method_and_the_equations(signed: tuple[Path, Path, str]) -> None:
+    method = _section(signed[2], "method")
+    assert "Open sections that warp (E·Cw > 0) are solved in restrained torsion" in method
+    assert "warping of non-circular sections is free (no warping restraint)" not in method
     section = _section(signed[2], "warping")
     assert "Vlasov" in section
     assert "the rotation θ and the rate of twist θ′ at every node" in section
@@ -113,5 +116,7 @@ def test_a_round_case_has_no_warping_section(tmp_path: Path) -> None:
     nbformat.write(demo_notebook(LINE_SHAFT_CASE, executed=True), str(notebook))
     text, _ = export_file(notebook, execute=False, signed_at=SIGNED_AT)
     assert 'id="warping"' not in text
+    method = _section(text, "method")
+    assert "warping of non-circular sections is free (no warping restraint)" in method
     assert "What each warping check added" not in text
     assert "warping_normal_stress" not in text

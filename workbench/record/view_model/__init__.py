@@ -17,7 +17,7 @@ import workbench
 from workbench.design.caution import CAUTION
 from workbench.record.computation import Computation
 from workbench.record.view_model.checks import checks_view
-from workbench.record.view_model.common import equations
+from workbench.record.view_model.common import Equation, equations
 from workbench.record.view_model.cover import cover_view, heading
 from workbench.record.view_model.fatigue import fatigue_view
 from workbench.record.view_model.front import SignatureView, purpose_view, revisions_view
@@ -82,6 +82,20 @@ def verified_sections(computation: Computation, earlier: bool = False) -> list[S
     ]
 
 
+@dataclass(frozen=True)
+class WarpingMethodView:
+    """The Method section of a case whose sections warp: its equations, and that it warps."""
+
+    rows: tuple[Equation, ...]
+    warps: bool = True
+
+
+def method_view(computation: Computation) -> tuple[Equation, ...] | WarpingMethodView:
+    """The Method section's view: the equations alone, as every other record has always had."""
+    rows = equations("statics")
+    return rows if computation.results.warping is None else WarpingMethodView(rows)
+
+
 def record_sections(
     computation: Computation,
     title_block: Mapping[str, Any],
@@ -128,7 +142,7 @@ def record_sections(
         ),
         Section("purpose", "Purpose and scope", purpose_view(title_block, model)),
         Section("inputs", "Inputs", inputs_view(model, report.design)),
-        Section("method", "Method and assumptions", equations("statics")),
+        Section("method", "Method and assumptions", method_view(computation)),
         results,
         *extra,
         checks,
