@@ -18,6 +18,11 @@ the reactions, the torques and the warping values at every station and checks eq
 A third row, for information (no target): the torsional stresses at the 10 stress points of an
 I section and the three warping checks, at every node of the same member taken as 1000
 segments of 100 elements, four load cases (the solved one scaled), judged at once.
+
+A fourth row, for information: ``run_checks`` of a case file, an I girder of 1000 segments held
+against warping at both ends under two load cases, beside the share of its warping rows
+(:func:`~workbench.design.warping_model_checks.warping_rows`: stress points, stresses at every
+station, the checks and the 6000 worded rows).
 """
 
 from __future__ import annotations
@@ -197,7 +202,64 @@ def run() -> list[Row]:
         5.0,
         notes=notes,
     )
-    return [ratio, general_row(), _stress_row(member, solution)]
+    return [ratio, general_row(), _stress_row(member, solution), _run_checks_row()]
+
+
+def _run_checks_row() -> Row:
+    """``run_checks`` of a 1000-segment restrained I girder, two load cases."""
+    from workbench.design.checks import run_checks
+    from workbench.design.warping_model_checks import warping_rows
+    from workbench.solver.analysis import solve
+    from workbench.solver.io import parse_case
+
+    count = 1000
+    section = {
+        "shape": "i_beam",
+        "depth": 300,
+        "width": 150,
+        "flange_thickness": 12,
+        "web_thickness": 8,
+    }
+    case = {
+        "units": {"length": "mm", "torque": "N*m", "stress": "MPa"},
+        "materials": {
+            "s": {"shear_modulus": 79300, "elastic_modulus": 207000, "yield_strength": 250}
+        },
+        "shafts": [
+            {
+                "id": "girder",
+                "segments": [
+                    {"length": 8.0, "material": "s", "section": section} for _ in range(count)
+                ],
+            }
+        ],
+        "supports": [
+            {"shaft": "girder", "x": 0, "warping": "restrained"},
+            {"shaft": "girder", "x": 8000, "warping": "restrained"},
+        ],
+        "load_cases": [
+            {"name": name, "torques": [{"shaft": "girder", "x": at, "torque": 900}]}
+            for name, at in (("mid", 4000), ("third", 2664))
+        ],
+    }
+    results = solve(parse_case(case))
+    report = run_checks(results)
+    assert results.warping is not None and len(report.checks) > 6 * count
+    layout = report.static
+    assert layout is not None
+
+    def warping_share() -> object:
+        return warping_rows(
+            results, report.design, layout.inputs.segment_start, layout.shafts, layout.numbers
+        )
+
+    whole, share = time_pair(lambda: run_checks(results), warping_share, repeats=5, warmup=1)
+    notes = (
+        f"run_checks of a {count}-segment restrained I girder, 2 load cases, "
+        f"{len(report.checks):,} rows: median {whole.median * MS:.1f} ms; its warping rows "
+        f"(stress points, stresses, checks, wording) median {share.median * MS:.1f} ms",
+    )
+    return Row("run_checks, 1000-segment warping case", whole.median * MS, "ms", notes=notes)
 
 
 def _stress_row(member: WarpingMember, solution: WarpingSolution) -> Row:

@@ -222,6 +222,27 @@ def _layer_stress(batch: BatchResults, layout: CheckLayout) -> FloatArray:
     return stress
 
 
+def _require_uniform_torsion(segments: Any) -> None:
+    """Refuse a case whose sections warp: the batch path solves uniform torsion only.
+
+    Raises
+    ------
+    InputError
+        On the first segment that warps (E·Cw > 0), saying to check the case alone.
+    """
+    rigidity = segments.warping_rigidity
+    if rigidity is None:
+        return
+    first = int(np.flatnonzero(np.asarray(rigidity).reshape(-1) > 0.0)[0])
+    shaft = int(np.searchsorted(segments.shaft_segment_start, first, side="right")) - 1
+    number = first - int(segments.shaft_segment_start[shaft])
+    msg = (
+        "a section that warps (restrained torsion) cannot be swept, sized or studied; "
+        "solve and check the case itself"
+    )
+    raise InputError(f"shafts[{shaft}].segments[{number}].section", msg)
+
+
 def governing_utilisations(
     model: Any,
     *,
@@ -273,6 +294,7 @@ def governing_utilisations(
     .. [1] Shigley's *Mechanical Engineering Design*, 9th ed., ch. 3, 5, 6 and 7.
     """
     design = model.design if isinstance(model.design, DesignCriteria) else DesignCriteria()
+    _require_uniform_torsion(case_table(model).segments)
     checks_frequency = frequency and bool(model.operating_speeds)
     one_by_one = (
         *(("frequency_separation",) if checks_frequency else ()),

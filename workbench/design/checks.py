@@ -75,6 +75,7 @@ from workbench.design.static_checks import (
     StaticCheckInputs,
     static_utilisations,
 )
+from workbench.design.warping_model_checks import warping_rows
 from workbench.solver.analysis import Results
 
 __all__ = [
@@ -215,9 +216,12 @@ def model_check_inputs(results: Results, design: DesignCriteria) -> ModelCheckIn
     """
     mesh = results.mesh
     layout = check_layout(results.model, mesh, design)
+    # Where sections warp, the shear τ = T·t/J and the twist rate T/(G·J) are the Saint-Venant
+    # part's, G·J·θ′: at a warping restraint the whole torque may be carried by warping.
+    torque = results.torque if results.warping is None else results.warping.saint_venant_torque
     batch = batch_check_inputs(
         layout,
-        results.torque[None],
+        torque[None],
         layout.stress_per_torque[None],
         mesh.station_rigidity[None],
         results.node_angle[None],
@@ -328,9 +332,15 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     token = display_units.set(results.model.units)  # notes quote lengths in the case's units
     try:
         prepared = model_check_inputs(results, design)
+        warping = warping_rows(
+            results, design, prepared.inputs.segment_start, prepared.shafts, prepared.numbers
+        )
         checks, static = _static_rows(results, prepared)
         require_finite_checks(checks, results.model, design)
+        require_finite_checks(warping.rows, results.model, design)
+        checks.extend(warping.rows)
         notes.extend(prepared.report_notes)
+        notes.extend(warping.notes)
         frequency_rows, frequency_notes, modes = frequency_checks(results.model, design)
         checks.extend(frequency_rows)
         notes.extend(frequency_notes)

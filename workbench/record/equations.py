@@ -21,6 +21,8 @@ References
    (rate of twist, shear stress, polar moment, internal torque; §3.8 compatibility).
 .. [2] W. D. Pilkey, *Formulas for Stress, Strain, and Structural Matrices*, 2nd ed., Wiley,
    2005, ch. 14 (element stiffness of a bar in torsion from its flexibility).
+.. [3] V. Z. Vlasov, *Thin-Walled Elastic Beams*, 2nd ed., 1961 (restrained torsion of
+   thin-walled open members: the governing equation, bimoment, warping stresses).
 """
 
 from __future__ import annotations
@@ -70,7 +72,8 @@ class Equation:
         What it states, shown beside it.
     group
         The record section that shows it: ``"statics"`` (Method and assumptions),
-        ``"vibration"`` (Torsional vibration), ``"fatigue"`` (Fatigue) or ``"independent"``
+        ``"vibration"`` (Torsional vibration), ``"fatigue"`` (Fatigue), ``"warping"`` (Restrained
+        warping, cases that warp only) or ``"independent"``
         (Independent check).
     """
 
@@ -209,6 +212,50 @@ EQUATIONS: tuple[Equation, ...] = (
         "unit-load method on the primary structure: t_i, ρ_is internal torque and kept-support "
         "reactions under X_i = 1; T₀, R₀s under the loads",
         "independent",
+    ),
+    # Restrained warping of open sections (Vlasov): shown only in records of cases that warp.
+    Equation(
+        "warping-governing",
+        r"G\,J\,\theta^{\prime\prime} - E\,C_w\,\theta^{\prime\prime\prime\prime} = -m(x)",
+        "G·J·θ″ − E·Cw·θ⁗ = −m(x)",
+        "restrained (non-uniform) torsion of a thin-walled open member; m is the distributed "
+        "torque per unit length",
+        "warping",
+    ),
+    Equation(
+        "warping-torque",
+        r"T = T_{sv} + T_w = G\,J\,\theta^{\prime} - E\,C_w\,\theta^{\prime\prime\prime}",
+        "T = T_sv + T_w = G·J·θ′ − E·Cw·θ‴",
+        "internal torque: the Saint-Venant part and the warping part",
+        "warping",
+    ),
+    Equation(
+        "bimoment",
+        r"B = -E\,C_w\,\theta^{\prime\prime}",
+        "B = −E·Cw·θ″",
+        "bimoment",
+        "warping",
+    ),
+    Equation(
+        "warping-normal-stress",
+        r"\sigma_w = E\,W_n\,\theta^{\prime\prime}",
+        "σ_w = E·Wn·θ″",
+        "warping normal stress; Wn the normalised unit warping at the point",
+        "warping",
+    ),
+    Equation(
+        "warping-shear-stress",
+        r"\tau_w = \dfrac{E\,S_w\,\theta^{\prime\prime\prime}}{t}",
+        "τ_w = E·Sw·θ‴/t",
+        "warping shear stress; Sw the warping statical moment, t the wall's thickness",
+        "warping",
+    ),
+    Equation(
+        "saint-venant-wall-shear",
+        r"\tau_{sv} = G\,t\,\theta^{\prime}",
+        "τ_sv = G·t·θ′",
+        "Saint-Venant shear on the faces of a wall of thickness t",
+        "warping",
     ),
 )
 

@@ -232,6 +232,9 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
         out.append(results.title)
         out.append("=" * len(results.title))
     mesh = results.mesh
+    warping = results.warping
+    bimoment = _derived(units, "torque", -1)
+    bimoment_label = f"{units.label('torque')}·{units.label('length')}"
     for result in results:
         kind = "combination" if result.is_combination else "load case"
         out.append(f"\n{kind} {result.name!r}")
@@ -245,7 +248,13 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
                 support_labels(table), result.reactions, strict=True
             )
         ]
-        out.append(format_table(["support", "kind", f"reaction [{units.label('torque')}]"], rows))
+        headers = ["support", "kind", f"reaction [{units.label('torque')}]"]
+        if warping is not None:  # each restraint's bimoment (0 where warping is free)
+            bimoment_reactions = bimoment(warping.bimoment_reactions[results.index(result.name)])
+            for row, reaction in zip(rows, bimoment_reactions.tolist(), strict=True):
+                row.append(_g(reaction))
+            headers.append(f"bimoment [{bimoment_label}]")
+        out.append(format_table(headers, rows))
         if len(table.gear_x):
             rows = [
                 [
@@ -268,33 +277,33 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
             local = mesh.station_u[window]
             is_end = mesh.station_is_end[window]
             keep = (local == 0.0) | is_end
-            rows = [
-                [
-                    _g(units.from_si(x, "length")),
-                    _g(units.from_si(t, "torque")),
-                    _g(units.from_si(a, "angle")),
-                    _g(units.from_si(s, "stress")),
-                ]
-                for x, t, a, s in zip(
-                    values.x[keep],
-                    values.torque[keep],
-                    values.angle[keep],
-                    values.shear_stress[keep],
-                    strict=True,
-                )
+            columns = [
+                units.from_si(values.x[keep], "length"),
+                units.from_si(values.torque[keep], "torque"),
+                units.from_si(values.angle[keep], "angle"),
+                units.from_si(values.shear_stress[keep], "stress"),
             ]
+            headers = [
+                f"x [{units.label('length')}]",
+                f"torque [{units.label('torque')}]",
+                f"angle [{units.label('angle')}]",
+                f"shear stress [{units.label('stress')}]",
+            ]
+            if warping is not None:  # the torque's two parts and the bimoment
+                at_result = results.index(result.name)
+                columns += [
+                    units.from_si(warping.saint_venant_torque[at_result, window][keep], "torque"),
+                    units.from_si(warping.warping_torque[at_result, window][keep], "torque"),
+                    bimoment(warping.bimoment[at_result, window][keep]),
+                ]
+                headers += [
+                    f"Saint-Venant torque [{units.label('torque')}]",
+                    f"warping torque [{units.label('torque')}]",
+                    f"bimoment [{bimoment_label}]",
+                ]
+            rows = [[_g(value) for value in line] for line in zip(*columns, strict=True)]
             out.append(f"\nshaft {shaft_id!r}")
-            out.append(
-                format_table(
-                    [
-                        f"x [{units.label('length')}]",
-                        f"torque [{units.label('torque')}]",
-                        f"angle [{units.label('angle')}]",
-                        f"shear stress [{units.label('stress')}]",
-                    ],
-                    rows,
-                )
-            )
+            out.append(format_table(headers, rows))
             peak = int(np.argmax(values.shear_stress))
             out.append(
                 f"largest shear stress {_g(units.from_si(values.shear_stress[peak], 'stress'))} "
@@ -302,13 +311,12 @@ def results_text(results: Results, units: UnitSystem | None = None) -> str:
                 f"{units.label('length')}; largest |angle| "
                 f"{_g(units.from_si(np.abs(values.angle).max(), 'angle'))} {units.label('angle')}"
             )
-            if results.warping is not None:  # restrained warping: where the bimoment peaks
-                bimoment = results.warping.bimoment[results.index(result.name), window]
-                at = int(np.argmax(np.abs(bimoment)))
-                value = _derived(units, "torque", -1)(float(bimoment[at]))
+            if warping is not None:  # restrained warping: where the bimoment peaks
+                along = warping.bimoment[results.index(result.name), window]
+                at = int(np.argmax(np.abs(along)))
+                value = bimoment(float(along[at]))
                 out.append(
-                    f"largest |bimoment| {_g(abs(value))} {units.label('torque')}·"
-                    f"{units.label('length')} at x = {_g(units.from_si(values.x[at], 'length'))} "
-                    f"{units.label('length')}"
+                    f"largest |bimoment| {_g(abs(value))} {bimoment_label} at x = "
+                    f"{_g(units.from_si(values.x[at], 'length'))} {units.label('length')}"
                 )
     return "\n".join(out) + "\n"

@@ -16,7 +16,7 @@ from numpy.typing import NDArray
 
 from workbench.case import declaration as declared
 from workbench.case.convert import Converter, unit_system
-from workbench.case.declaration.shapes import FE_SHAPES
+from workbench.case.declaration.shapes import FE_SHAPES, OPEN_SHAPES, Angle, Tee
 from workbench.case.materials import library_material
 from workbench.case.power import torque_from_power
 from workbench.design.independent.sections import LayerRigidity, layer_rigidity
@@ -44,6 +44,11 @@ WARPING_NOT_COVERED = (
     "only, so the torques shared between supports, the bimoments and the warping stresses of "
     "this case are not checked independently"
 )
+
+
+#: The open shapes whose warping constant is not 0 in general (an angle's and a tee's is, by the
+#: thin-walled theory; a polyline's may be).
+_WARPING_SHAPES = tuple(shape for shape in OPEN_SHAPES if shape not in (Angle, Tee))
 
 
 def require_uniform_torsion(warping_restrained: Iterable[bool]) -> None:
@@ -152,6 +157,12 @@ class _Reader:
                 "(sectionproperties): the check has no closed form of its own for it"
             )
             raise NotCovered(msg)
+        if isinstance(entry, OPEN_SHAPES):  # one that does not warp (an angle, a tee)
+            msg = (
+                f"a {entry.__struct_config__.tag} section, whose J comes from its wall "
+                "mid-line: the check has no closed form of its own for it"
+            )
+            raise NotCovered(msg)
         values: dict[str, Any] = {}
         for name in type(entry).__struct_fields__:
             if name == "walls":
@@ -192,7 +203,7 @@ def read_system(case: declared.CaseFile) -> System:
     Raises
     ------
     NotCovered
-        When the case has no load case or no support.
+        When the case has no load case or no support, or warps (:data:`WARPING_NOT_COVERED`).
     """
     reader = _Reader(case)
     si = reader.si
@@ -207,6 +218,11 @@ def read_system(case: declared.CaseFile) -> System:
     constant = np.zeros(len(segment_length))
     tapers: list[tuple[int, float, float, float]] = []
     segments = [segment for shaft in case.shafts for segment in shaft.segments]
+    # A case warps where a support states its warping or an open section that warps is used.
+    require_uniform_torsion(
+        [declared.given(support.warping) for support in _items(case, "supports")]
+        + [isinstance(segment.section, _WARPING_SHAPES) for segment in segments]
+    )
     for number, segment in enumerate(segments):  # reading the file: one struct each
         for layer in reader.layers(segment):
             constant[number] += layer.constant

@@ -17,7 +17,7 @@ import workbench
 from workbench.design.caution import CAUTION
 from workbench.record.computation import Computation
 from workbench.record.view_model.checks import checks_view
-from workbench.record.view_model.common import equations
+from workbench.record.view_model.common import Equation, equations
 from workbench.record.view_model.cover import cover_view, heading
 from workbench.record.view_model.fatigue import fatigue_view
 from workbench.record.view_model.front import SignatureView, purpose_view, revisions_view
@@ -25,6 +25,7 @@ from workbench.record.view_model.hand_check import hand_check_view
 from workbench.record.view_model.inputs import inputs_view
 from workbench.record.view_model.results import results_view
 from workbench.record.view_model.vibration import vibration_view
+from workbench.record.view_model.warping import warping_view
 
 __all__ = ["Section", "heading", "record_sections", "verified_sections"]
 
@@ -54,8 +55,11 @@ class Section:
 
 
 def extra_sections(computation: Computation, printed: bool = True) -> list[Section]:
-    """The torsional vibration and fatigue sections, when the case asks for them."""
+    """Restrained warping, torsional vibration and fatigue sections, when the case has them."""
     out = []
+    if computation.results.warping is not None:  # cases whose sections warp, only
+        restrained = warping_view(computation.results, printed)
+        out.append(Section("warping", "Restrained warping", restrained))
     if computation.modes is not None or computation.modes_error is not None:
         view = vibration_view(computation, printed)
         out.append(Section("vibration", "Torsional vibration", view))
@@ -76,6 +80,20 @@ def verified_sections(computation: Computation, earlier: bool = False) -> list[S
         *extra_sections(computation, printed),
         Section("checks", "Design checks", checks_view(computation.report, printed, printed)),
     ]
+
+
+@dataclass(frozen=True)
+class WarpingMethodView:
+    """The Method section of a case whose sections warp: its equations, and that it warps."""
+
+    rows: tuple[Equation, ...]
+    warps: bool = True
+
+
+def method_view(computation: Computation) -> tuple[Equation, ...] | WarpingMethodView:
+    """The Method section's view: the equations alone, as every other record has always had."""
+    rows = equations("statics")
+    return rows if computation.results.warping is None else WarpingMethodView(rows)
 
 
 def record_sections(
@@ -106,6 +124,8 @@ def record_sections(
     model, report = computation.model, computation.report
     hand_check, hand_warnings = hand_check_view(computation)
     warnings = [*report.notes, *hand_warnings]
+    if computation.results.warping is not None:  # the unmodelled restraint, rotations beyond 1 rad
+        warnings = [*computation.results.warnings, *warnings]
     failing = [check for check in report.checks if not check.passes]
     if failing:
         warnings.append(f"{len(failing)} check(s) fail; see Design checks")
@@ -122,7 +142,7 @@ def record_sections(
         ),
         Section("purpose", "Purpose and scope", purpose_view(title_block, model)),
         Section("inputs", "Inputs", inputs_view(model, report.design)),
-        Section("method", "Method and assumptions", equations("statics")),
+        Section("method", "Method and assumptions", method_view(computation)),
         results,
         *extra,
         checks,

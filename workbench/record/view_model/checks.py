@@ -6,9 +6,10 @@ must come out byte for byte as it always has.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from workbench.design.checks import CHECK_QUANTITIES, CheckReport
+from workbench.design.warping_checks import WARPING_KINDS
 from workbench.record.view_model.common import Rows, number, unit_labels
 
 __all__ = ["ChecksView", "checks_view"]
@@ -33,6 +34,9 @@ class ChecksView:
     row_classes
         The class of each row: ``fail`` for a failing check (shown marked on screen and in
         print), ``""`` otherwise; empty when rows are not marked.
+    warping_notes
+        What each warping check row added and where it governs, one line per row (empty for a
+        case whose sections do not warp, whose section is then as it always was).
     """
 
     passes: bool
@@ -41,6 +45,7 @@ class ChecksView:
     rows: Rows
     allowables: list[str]
     row_classes: list[str]
+    warping_notes: list[str] = field(default_factory=list)
 
 
 def checks_view(report: CheckReport, printed: bool = True, marked: bool = True) -> ChecksView:
@@ -89,4 +94,10 @@ def checks_view(report: CheckReport, printed: bool = True, marked: bool = True) 
             {check.note for check in report.checks if check.kind == "shear_stress" and check.note}
         ),
         row_classes=[("" if check.passes else "fail") for check in report.checks] if marked else [],
+        warping_notes=[
+            f"{check.result}, shaft {check.shaft} segment {check.segment}, {check.kind}: "
+            f"{check.note}"
+            for check in report.checks
+            if check.kind in WARPING_KINDS
+        ],
     )
