@@ -165,6 +165,7 @@ def run_study(
     cancel: Callable[[], bool] | threading.Event | None = None,
     unit: np.ndarray | None = None,
     plan: Plan | None = None,
+    in_process: bool = False,
 ) -> StudyOutcome:
     """Run a study and write its rows to a parquet file.
 
@@ -192,6 +193,9 @@ def run_study(
         Saltelli plan of the Sobol indices); ``plan`` then gives the count.
     plan
         The plan to run (``plan_json`` decoded), when it differs from the text's count.
+    in_process
+        Run the chunks one after another in this thread, with no cluster (a small study in a
+        face: starting a local cluster takes longer than its chunks). The rows are the same.
 
     Returns
     -------
@@ -214,6 +218,9 @@ def run_study(
     running: dict[Any, int] = {}
     stopped, width, previous = False, 1, None
     try:
+        if in_process:
+            stopped = _run_in_process(case_text, plan_json, bounds, design, written, cancel)
+            return _outcome(written, count, stopped, 1, chunk_size)
         with _client(client, workers, scheduler) as active:
             width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
             try:
@@ -231,11 +238,34 @@ def run_study(
         written.close()
         if previous is not None:
             signal.signal(signal.SIGINT, previous)
+    return _outcome(written, count, stopped, width, chunk_size)
+
+
+def _outcome(
+    written: _Rows, count: int, stopped: bool, width: int, chunk_size: int
+) -> StudyOutcome:
     # However the loop ended (a Ctrl-C may end dask's iterator quietly), fewer rows than the
     # plan's is a stopped study.
     stopped = stopped or written.done < count
     return StudyOutcome(written.path, written.done, count, stopped, written.seconds, width,
                         chunk_size)  # fmt: skip
+
+
+def _run_in_process(
+    case_text: str | bytes,
+    plan_json: str | bytes,
+    bounds: list[tuple[int, int]],
+    design: np.ndarray | None,
+    written: _Rows,
+    cancel: Callable[[], bool] | threading.Event | None,
+) -> bool:
+    """The chunks in order in this thread (the same task a worker runs); whether stopped."""
+    for start, stop in bounds:
+        rows = None if design is None else np.ascontiguousarray(design[start:stop])
+        written.write(evaluate_chunk(case_text, plan_json, start, stop, rows))
+        if _stop_asked(cancel):
+            return True
+    return False
 
 
 class _Rows:

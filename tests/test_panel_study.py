@@ -1,0 +1,123 @@
+"""The panel's Study tab in plain pytest: a small study run, one cancelled, results stale after an edit.
+
+Outside check: a solid shaft fixed at one end with an end torque T has τ = 16T/(πd³) (Gere &
+Goodno, *Mechanics of Materials*, 8th ed., §3.3, eq. 3-13); with d normal (μ, σ) the utilisation
+τ/τ_allow exceeds 1 exactly when d < d* = (16T/(π τ_allow))^(1/3), so P = Φ((d* − μ)/σ)
+(scipy.stats.norm). The interval the tab shows must hold it, and Spearman's ρ of a strictly
+decreasing function of d is −1.
+"""
+
+from __future__ import annotations
+
+import copy
+import math
+from pathlib import Path
+
+import numpy as np
+import pyarrow.parquet as pq
+import pytest
+from scipy import stats
+
+from tests.panel_cases import field
+from tests.study_support import SHAFT_CASE
+from workbench.panel import Workbench
+from workbench.panel.study_view import STUDY_MIME_TYPE, file_digest
+
+DIAMETER = "shafts[0].segments[0].section.diameter"
+
+
+def _panel_with_plan(tmp_path: Path, count: int, mean: str = "47", std: str = "1") -> Workbench:
+    panel = Workbench(copy.deepcopy(SHAFT_CASE))
+    form = panel.study.plan_form
+    form.input_path.value = DIAMETER
+    form.kind.value = "normal"
+    entries = {entry.description.split(" [")[0]: entry for entry in form.parameters.children}
+    entries["mean"].value, entries["std"].value = mean, std
+    form.add_input()
+    form.count.value, form.seed.value = str(count), "3"
+    panel.study.rows_file.value = str(tmp_path / "rows.parquet")
+    return panel
+
+
+def test_a_small_study_runs_in_the_panel_and_matches_the_closed_form(tmp_path: Path) -> None:
+    panel = _panel_with_plan(tmp_path, 8000)
+    study = panel.study
+    study.start_study()
+    study.wait(120)
+    assert study.message.value == ""
+    assert study.progress.value == study.progress.max == 8000
+    last = study.last
+    assert last is not None
+    summary = last["summary"]
+    d_star = (16 * 2000.0 / (math.pi * 100e6)) ** (1 / 3) * 1000  # mm
+    exact = stats.norm.cdf((d_star - 47.0) / 1.0)
+    low, high = summary["exceedance"]["interval"]
+    assert low < exact < high
+    # What the tab draws is the rows' own: the bars count every valid variant once.
+    rows = pq.read_table(tmp_path / "rows.parquet")
+    utilisation = rows.column("governing_utilisation").to_numpy()
+    assert sum(study.results.bars.y) + sum(study.results.over.y) == len(utilisation)
+    exceeding = np.count_nonzero(utilisation > 1.0)
+    counts = np.add(study.results.bars.y, study.results.over.y)
+    centres = np.asarray(study.results.bars.x)
+    width = centres[1] - centres[0]
+    assert (
+        counts[centres - width / 2 >= 1.0].sum()
+        <= exceeding
+        <= counts[centres + width / 2 > 1.0].sum()
+    )
+    assert study.results.cumulative_line.y[-1] == pytest.approx(1.0)
+    assert list(study.results.limit.x) == [1.0, 1.0]
+    assert f"{summary['exceedance']['fraction']:.4g}" in study.results.exceedance.value
+    assert list(study.results.sensitivity_bars.x) == [DIAMETER]
+    assert study.results.sensitivity_bars.y[0][0] == pytest.approx(-1.0)
+    worst = int(np.argmax(utilisation))
+    assert f"<td>{worst}</td>" in study.results.worst.value
+    assert last["rows_sha256"] == file_digest(tmp_path / "rows.parquet")
+    bundle = study.bundle()
+    assert bundle is not None and bundle[STUDY_MIME_TYPE]["summary"] == summary
+
+
+def test_cancel_stops_after_the_chunk_and_keeps_its_rows(tmp_path: Path) -> None:
+    panel = _panel_with_plan(tmp_path, 10_000)
+    study = panel.study
+    study.progress.observe(lambda _: study.cancel_study(), "value")  # Cancel at the first report
+    study.start_study()
+    study.wait(120)
+    assert pq.read_metadata(tmp_path / "rows.parquet").num_rows == 4096  # one whole chunk
+    assert "cancelled: 4,096 of 10,000" in study.message.value
+    assert study.last is not None and study.last["stopped"]
+    assert study.last["summary"]["rows"] == 4096
+    assert not study.run.disabled and study.cancel.disabled
+
+
+def test_results_are_stale_after_an_edit_and_fresh_when_it_is_undone(tmp_path: Path) -> None:
+    panel = _panel_with_plan(tmp_path, 2000)
+    panel.study.start_study()
+    panel.study.wait(120)
+    box = panel.study.results.box
+    assert "wb-stale" not in box._dom_classes
+    field(panel, DIAMETER).value = "52"
+    assert "wb-stale" in box._dom_classes
+    assert "edited since" in panel.study.results.note.value
+    field(panel, DIAMETER).value = "50"
+    assert "wb-stale" not in box._dom_classes
+
+
+def test_bad_entries_are_named_beside_the_tab(tmp_path: Path) -> None:
+    panel = Workbench(copy.deepcopy(SHAFT_CASE))
+    study = panel.study
+    study.start_study()
+    assert "add at least one input" in study.message.value
+    form = study.plan_form
+    form.input_path.value = DIAMETER
+    form.parameters.children[0].value = "4x7"
+    form.add_input()
+    assert "study mean" in form.input_message.value
+    assert form.inputs == []
+    form.parameters.children[0].value = "47 mm"
+    form.add_input()
+    form.count.value = "0"
+    study.start_study()
+    assert "study variants" in study.message.value
+    assert not study.running
