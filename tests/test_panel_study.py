@@ -21,7 +21,7 @@ from scipy import stats
 from tests.panel_cases import field
 from tests.study_support import SHAFT_CASE
 from workbench.panel import Workbench
-from workbench.panel.study_view import STUDY_MIME_TYPE, file_digest
+from workbench.study.attached import STUDY_MIME_TYPE, file_digest
 
 DIAMETER = "shafts[0].segments[0].section.diameter"
 

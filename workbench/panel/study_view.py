@@ -19,7 +19,6 @@ edited afterwards, the results say they are of the case as it was (stale) until 
 from __future__ import annotations
 
 import asyncio
-import hashlib
 import json
 import tempfile
 import threading
@@ -29,6 +28,7 @@ from pathlib import Path
 from typing import Any
 
 import ipywidgets as w
+from IPython.display import display
 
 from workbench.case.errors import InputError
 from workbench.panel.document import clone
@@ -36,6 +36,7 @@ from workbench.panel.form import Form, sized
 from workbench.panel.markup import render, render_study
 from workbench.panel.study_plan_form import PlanForm
 from workbench.panel.study_results import StudyResults
+from workbench.study.attached import STUDY_MIME_TYPE, study_output
 from workbench.study.engine import Progress, StudyOutcome, run_study, study_client
 from workbench.study.evaluate import prepare
 from workbench.study.histogram import utilisation_histogram
@@ -43,17 +44,6 @@ from workbench.study.summary import summarise
 
 #: Studies of at most this many variants run in this process, with no cluster (module notes).
 IN_PROCESS_MAX = 10_000
-#: The MIME type of the study output the calculation record reads (the last one in a notebook).
-STUDY_MIME_TYPE = "application/vnd.workbench.study+json"
-
-
-def file_digest(path: Path) -> str:
-    """SHA-256 of a file's bytes, read a megabyte at a time (hex)."""
-    digest = hashlib.sha256()
-    with path.open("rb") as stream:
-        while block := stream.read(1 << 20):
-            digest.update(block)
-    return digest.hexdigest()
 
 
 class StudyView:
@@ -189,7 +179,9 @@ class StudyView:
             engine = self._engine(plan.count)
             outcome = run_study(case_text, plan_json, path, progress=self._report,
                                 cancel=self._stop, **engine)  # fmt: skip
-            found = self._read(case_text, plan, outcome, engine) if outcome.rows else None
+            found = (
+                self._read(case_text, plan_json, plan, outcome, engine) if outcome.rows else None
+            )
         except (InputError, OSError) as error:
             why = str(error)
             self._hand_over(lambda: self._failed(why))
@@ -197,7 +189,12 @@ class StudyView:
         self._hand_over(lambda: self._finished(outcome, found))
 
     def _read(
-        self, case_text: str, plan: Any, outcome: StudyOutcome, engine: dict[str, Any]
+        self,
+        case_text: str,
+        plan_json: str,
+        plan: Any,
+        outcome: StudyOutcome,
+        engine: dict[str, Any],
     ) -> dict[str, Any]:
         summary = summarise(outcome.path, plan, outcome.total)
         if plan.sensitivity.sobol and not outcome.stopped:
@@ -206,15 +203,8 @@ class StudyView:
             sobol_path = outcome.path.with_suffix(".sobol.parquet")
             summary["sobol"], _ = sobol_indices(case_text, plan, sobol_path, cancel=self._stop,
                                                 **engine)  # fmt: skip
-        return {
-            "case_sha256": hashlib.sha256(case_text.encode("utf-8")).hexdigest(),
-            "plan": summary["plan"],
-            "summary": summary,
-            "rows_file": str(outcome.path),
-            "rows_sha256": file_digest(outcome.path),
-            "stopped": outcome.stopped,
-            "histogram": utilisation_histogram(outcome.path),
-        }
+        found = study_output(case_text, plan_json, summary, outcome.path, outcome.stopped)
+        return {**found, "histogram": utilisation_histogram(outcome.path)}
 
     def _hand_over(self, action: Callable[[], None]) -> None:
         """Run ``action`` where widgets may be written: the kernel's loop, or here under a lock."""
@@ -267,6 +257,19 @@ class StudyView:
                 "These results are of the case as it was when the study ran; it has been "
                 "edited since. Run the study again."
             )
+
+    def for_record(self) -> None:
+        """Show the last study as the output the calculation record takes (run in a cell).
+
+        Raises
+        ------
+        InputError
+            No study has finished yet.
+        """
+        bundle = self.bundle()
+        if bundle is None:
+            raise InputError("study", "no study has finished yet: run one in the Study tab first")
+        display(bundle, raw=True)
 
     def bundle(self) -> dict[str, Any] | None:
         """The last study as the output the calculation record reads, or ``None``."""
