@@ -121,3 +121,22 @@ def test_bad_entries_are_named_beside_the_tab(tmp_path: Path) -> None:
     study.start_study()
     assert "study variants" in study.message.value
     assert not study.running
+
+
+def test_sobol_indices_come_with_the_spearman_bars(tmp_path: Path) -> None:
+    """One input drives all the variance: its first-order and total Sobol indices are 1.
+
+    Saltelli et al., Comput. Phys. Commun. 181(2), 2010: S1 = ST = 1 for a function of one
+    input alone (estimates within SALib's own confidence widths).
+    """
+    panel = _panel_with_plan(tmp_path, 1000)
+    form = panel.study.plan_form
+    form.sobol.value, form.base_count.value = True, "512"
+    panel.study.start_study()
+    panel.study.wait(120)
+    bars = panel.study.results.sensitivity_bars
+    assert list(bars.labels) == ["Spearman ρ", "Sobol S1", "Sobol ST"]
+    sobol = panel.study.last["summary"]["sobol"]
+    assert sobol["variants"] == 512 * 3
+    assert bars.y[1][0] == pytest.approx(1.0, abs=max(0.05, 2 * sobol["S1_conf"][0]))
+    assert bars.y[2][0] == pytest.approx(1.0, abs=max(0.05, 2 * sobol["ST_conf"][0]))

@@ -157,3 +157,22 @@ def test_study_rows_on_a_record_without_a_study_is_bad_input(tmp_path: Path) -> 
     record.write_text(text, "utf-8", newline="")
     assert 'id="study"' not in text
     assert cli.main(["verify", str(record), "--study-rows", str(tmp_path / "x.parquet")]) == 2
+
+
+def test_a_signed_summary_that_is_not_the_rows_files_fails(
+    signed: tuple[Path, Path, Path],
+) -> None:
+    """Checked below the signature: a summary number other than the rows file's is named, and a
+    section that is not the one drawn from the signed study is named."""
+    from workbench.record.computation import compute
+    from workbench.record.study import check_study, verify_study
+
+    record, public, rows = signed
+    payload = verify_record(record, public).payload
+    assert payload is not None
+    study = json.loads(json.dumps(payload["study"]))
+    study["summary"]["percentiles"]["governing_utilisation"]["p50"] *= 1.001
+    _, problems = check_study(study, payload["case"], rows)
+    assert problems == ["the study's summary differs from the one made again from its rows file"]
+    _, problems = verify_study(payload["study"], compute(payload["case"]), "", None)
+    assert "the study section written in the record differs from the signed study" in problems

@@ -51,3 +51,17 @@ def test_the_histogram_counts_every_valid_variant(tmp_path: Path) -> None:
     assert np.array_equal(found.counts, expected)
     assert np.allclose(found.edges, edges)
     assert found.cumulative[-1] == 1.0 and found.variants == len(values)
+
+
+def test_the_first_rows_run_again_are_the_studys_own(tmp_path: Path) -> None:
+    """A global design (Latin hypercube) and Monte Carlo: the verifier's re-run of the first
+    rows gives the rows the study wrote."""
+    from workbench.study.attached import CHECKED_ROWS, file_first_rows, first_rows
+
+    for method in ("latin_hypercube", "monte_carlo"):
+        plan = plan_text([diameter_input(kind="uniform", low=45, high=50)], count=5000, seed=4,
+                         method=method)  # fmt: skip
+        outcome = run_study(case_text(), plan, tmp_path / f"{method}.parquet", in_process=True)
+        again = first_rows(case_text(), plan)
+        assert again.num_rows == CHECKED_ROWS
+        assert again.equals(file_first_rows(outcome.path))
