@@ -10,6 +10,7 @@ decreasing function of d is −1.
 from __future__ import annotations
 
 import copy
+import json
 import math
 from pathlib import Path
 
@@ -140,3 +141,26 @@ def test_sobol_indices_come_with_the_spearman_bars(tmp_path: Path) -> None:
     assert sobol["variants"] == 512 * 3
     assert bars.y[1][0] == pytest.approx(1.0, abs=max(0.05, 2 * sobol["S1_conf"][0]))
     assert bars.y[2][0] == pytest.approx(1.0, abs=max(0.05, 2 * sobol["ST_conf"][0]))
+
+
+def test_a_larger_study_runs_on_a_kept_local_cluster_with_the_same_rows(tmp_path: Path) -> None:
+    """Above 10,000 variants the tab starts one local cluster and keeps it for the next run."""
+    from workbench.study.engine import run_study
+
+    panel = _panel_with_plan(tmp_path, 12_288)
+    study = panel.study
+    try:
+        study.start_study()
+        study.wait(180)
+        assert study.message.value == ""
+        client = study._client
+        assert client is not None
+        study.start_study()  # again: the same client, no second cluster
+        study.wait(180)
+        assert study._client is client
+    finally:
+        study.close()
+    assert study._client is None
+    plan = json.dumps(study.last["plan"])
+    here = run_study(panel.case_json(), plan, tmp_path / "here.parquet", in_process=True)
+    assert pq.read_table(here.path).equals(pq.read_table(tmp_path / "rows.parquet"))

@@ -23,7 +23,6 @@ import json
 import tempfile
 import threading
 from collections.abc import Callable
-from contextlib import ExitStack
 from pathlib import Path
 from typing import Any
 
@@ -37,7 +36,7 @@ from workbench.panel.markup import render, render_study
 from workbench.panel.study_plan_form import PlanForm
 from workbench.panel.study_results import StudyResults
 from workbench.study.attached import STUDY_MIME_TYPE, study_output
-from workbench.study.engine import Progress, StudyOutcome, run_study, study_client
+from workbench.study.engine import Progress, StudyOutcome, local_cluster, run_study
 from workbench.study.evaluate import prepare
 from workbench.study.histogram import utilisation_histogram
 from workbench.study.summary import summarise
@@ -85,7 +84,7 @@ class StudyView:
         self._thread: threading.Thread | None = None
         self._lock = threading.Lock()
         self._loop: asyncio.AbstractEventLoop | None = None
-        self._cluster = ExitStack()
+        self._cluster: Any = None
         self._client: Any = None
         self.box = w.VBox(
             [
@@ -163,14 +162,21 @@ class StudyView:
 
     def close(self) -> None:
         """Close the local cluster kept for large studies."""
-        self._cluster.close()
-        self._client = None
+        if self._client is not None:
+            self._client.close()
+            self._cluster.close()
+        self._client = self._cluster = None
 
     def _engine(self, count: int) -> dict[str, Any]:
         if count <= IN_PROCESS_MAX:
             return {"in_process": True}
         if self._client is None:
-            self._client = self._cluster.enter_context(study_client())
+            from dask.distributed import Client  # noqa: PLC0415 - only for a large study
+
+            # Not the default client of the notebook (the engineer's own dask work stays
+            # theirs), and no context entered here: close() may run on another thread.
+            self._cluster = local_cluster()
+            self._client = Client(self._cluster, set_as_default=False)
         return {"client": self._client}
 
     def _work(self, case_text: str, plan_json: str, plan: Any, path: Path) -> None:
@@ -184,6 +190,10 @@ class StudyView:
             )
         except (InputError, OSError) as error:
             why = str(error)
+            self._hand_over(lambda: self._failed(why))
+            return
+        except Exception as error:  # a thread's error has no one to reach but the tab
+            why = f"the study stopped: {type(error).__name__}: {error}"
             self._hand_over(lambda: self._failed(why))
             return
         self._hand_over(lambda: self._finished(outcome, found))

@@ -101,7 +101,7 @@ def study_client(workers: int | None = None, scheduler: str | None = None) -> It
     The local cluster has ``workers`` processes (the machine's cores by default), one thread
     each, BLAS pinned to one thread.
     """
-    from dask.distributed import Client, LocalCluster  # noqa: PLC0415 - heavy; only when running
+    from dask.distributed import Client  # noqa: PLC0415 - heavy; only when running
 
     if scheduler is not None:
         try:
@@ -112,18 +112,26 @@ def study_client(workers: int | None = None, scheduler: str | None = None) -> It
         with client:
             yield client
         return
-    count = workers or os.cpu_count() or 1
+    with local_cluster(workers) as cluster, Client(cluster) as client:
+        yield client
+
+
+def local_cluster(workers: int | None = None) -> Any:
+    """A ``LocalCluster`` of ``workers`` processes (the cores by default), one thread each.
+
+    A face that keeps a cluster across runs makes its own client of it (and closes both).
+    """
+    from dask.distributed import LocalCluster  # noqa: PLC0415 - heavy; only when running
+
     with _workers_ignore_ctrl_c():
-        cluster = LocalCluster(
-            n_workers=count,
+        return LocalCluster(
+            n_workers=workers or os.cpu_count() or 1,
             threads_per_worker=1,
             processes=True,
             dashboard_address=":0",  # its HTTP routes on a free port, never a taken 8787
             silence_logs=logging.ERROR,
             env=ONE_THREAD,
         )
-    with cluster, Client(cluster) as client:
-        yield client
 
 
 @contextmanager
@@ -326,7 +334,10 @@ def _run_chunks(
     queue = iter(range(len(bounds)))
     window = width * IN_FLIGHT_PER_WORKER
     # range first: zip stops on it before taking one more chunk from the queue.
-    finished = as_completed([submit(n) for _, n in zip(range(window), queue, strict=False)])
+    # The client's own loop: it need not be the process's default client (a face's is not).
+    finished = as_completed(
+        [submit(n) for _, n in zip(range(window), queue, strict=False)], loop=active.loop
+    )
     for future in finished:
         number = running.pop(future)
         pending[number] = future.result()
