@@ -9,9 +9,11 @@ decreasing function of d is −1.
 
 from __future__ import annotations
 
+import asyncio
 import copy
 import json
 import math
+import threading
 from pathlib import Path
 
 import numpy as np
@@ -164,3 +166,20 @@ def test_a_larger_study_runs_on_a_kept_local_cluster_with_the_same_rows(tmp_path
     plan = json.dumps(study.last["plan"])
     here = run_study(panel.case_json(), plan, tmp_path / "here.parquet", in_process=True)
     assert pq.read_table(here.path).equals(pq.read_table(tmp_path / "rows.parquet"))
+
+
+def test_with_a_running_loop_the_widgets_are_written_on_its_thread(tmp_path: Path) -> None:
+    """In a kernel the engine's reports reach the widgets through the loop, never the worker."""
+    panel = _panel_with_plan(tmp_path, 10_000)
+    study = panel.study
+    writers: list[threading.Thread] = []
+    study.progress.observe(lambda _: writers.append(threading.current_thread()), "value")
+
+    async def click_and_wait() -> None:
+        study.start_study()
+        while study.running or study.run.disabled:
+            await asyncio.sleep(0.01)
+
+    asyncio.run(click_and_wait())
+    assert study.progress.value == 10_000
+    assert len(writers) >= 3 and set(writers) == {threading.main_thread()}
