@@ -33,6 +33,7 @@ from tests.validation import (
     test_keyway_allowance,
     test_worked_examples,
 )
+from workbench.case.declaration.keys import POSITION_TOLERANCE
 from workbench.case.errors import InputError, MechanismError
 from workbench.case.load import case_file_from_document
 from workbench.design.independent import (
@@ -537,7 +538,10 @@ def conditioned_tolerance(document: dict[str, Any]) -> float:
             for load in case.get("distributed", []):
                 if load["shaft"] == name:
                     points += [load["start"], load["end"]]
+        # Points within the case file's position tolerance (1e-9 m; these documents are in mm)
+        # are one point to the solver: no span between them.
         gaps = np.diff(np.unique(points))
+        gaps = gaps[gaps > POSITION_TOLERANCE * 1e3]
         if gaps.size:
             ratio = max(ratio, length / gaps.min())
     return max(AGREEMENT_TOLERANCE, 100 * np.finfo(float).eps * ratio)

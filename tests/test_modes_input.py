@@ -27,6 +27,8 @@ from workbench.cli import main
 from workbench.solver.io import load_case, parse_case, save_case
 from workbench.solver.modes import natural_modes
 
+ROOT = Path(__file__).resolve().parents[1]
+
 SHEAR_MODULUS = 80e9  # Pa
 DIAMETER = 0.05  # m
 LENGTH = 1.0  # m
@@ -170,3 +172,19 @@ def test_a_rotation_limit_built_in_python_needs_end_beyond_start(start, end):
         RotationLimit("rotor", start, end, 0.01)
     assert raised.value.field == "end"
     assert raised.value.message.startswith("must be greater than start (")
+
+
+@pytest.mark.parametrize("command", ["modes", "check"])
+def test_a_density_whose_frequencies_overflow_is_named(tmp_path, capsys, command):
+    # 1e-297 kg/m³ gives masses of 1e-305 kg·m² (normal numbers) but ω² = k/m beyond the
+    # floats: LAPACK's eigensolver then returns no eigenvalue and no error (found by the fuzzer).
+    document = json.loads((ROOT / "workbench" / "cases" / "press_drive.json").read_text())
+    for material in document["materials"].values():
+        if "density" in material:
+            material["density"] *= 1e-300
+    path = tmp_path / "case.json"
+    path.write_text(json.dumps(document))
+    assert main([command, str(path)]) == 2
+    line = capsys.readouterr().err.strip()
+    assert line.startswith("materials.") and ".density: " in line, line
+    assert "ω² = k/m leaves the range of numbers" in line

@@ -137,6 +137,9 @@ def test_inspector_edits_every_non_circular_shape() -> None:
     for shape in SHAPES:
         inspector.set_shape(("shafts", 0, "segments", 0), shape)
         section = panel.document["shafts"][0]["segments"][0]["section"]
+        if shape == "dxf":  # a drawing has no default file: refused beside its path, stale
+            assert panel.stale and "path: is required" in panel.status.value
+            continue
         assert section["shape"] == shape and not panel.stale, (shape, panel.status.value)
         number_keys = [k for k, v in section.items() if isinstance(v, (int, float))]
         for key in number_keys:

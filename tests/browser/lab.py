@@ -54,8 +54,13 @@ def free_port() -> int:
 
 
 @contextmanager
-def jupyter_lab(scratch: Path, files: Iterable[Path] = DEMO_FILES) -> Iterator[Lab]:
-    """Run JupyterLab on ``scratch/notebooks`` (holding copies of ``files``) until the block ends."""
+def jupyter_lab(
+    scratch: Path, files: Iterable[Path] = DEMO_FILES, root: Path = ROOT
+) -> Iterator[Lab]:
+    """Run JupyterLab on ``scratch/notebooks`` (holding copies of ``files``) until the block ends.
+
+    ``root``: the project tree whose ``workbench`` the kernels import (first on their path).
+    """
     folder = scratch / "notebooks"
     folder.mkdir()
     for source in files:
@@ -70,7 +75,7 @@ def jupyter_lab(scratch: Path, files: Iterable[Path] = DEMO_FILES) -> Iterator[L
         (scratch / name).mkdir()
         environment[key] = str(scratch / name)
     environment["PYTHONPATH"] = os.pathsep.join(
-        part for part in (str(ROOT), environment.get("PYTHONPATH", "")) if part
+        part for part in (str(root), environment.get("PYTHONPATH", "")) if part
     )
     subprocess.run(
         [

@@ -10,6 +10,7 @@ that fails. Colours, legends and shared helpers: :mod:`workbench.panel.plotting`
 
 from __future__ import annotations
 
+import asyncio
 from typing import Any
 
 import ipywidgets as w
@@ -22,6 +23,7 @@ from workbench.panel.document import unit_label
 from workbench.panel.elevation import Elevation
 from workbench.panel.plotting import (
     BASELINE,
+    BY_ORDER,
     CURRENT,
     DETAIL_STYLES,
     FAIL,
@@ -168,6 +170,7 @@ class StressChart(ResultChart):
                 visible=False,
                 display_names=False,
                 tooltip=bq.Tooltip(fields=["name"], labels=[name], formats=[""]),
+                **BY_ORDER,
             )
             for name, colour, marker in DETAIL_STYLES
         ]
@@ -260,10 +263,15 @@ class StressChart(ResultChart):
         return entries
 
 
+#: Seconds after the last redraw of a burst (typing, a drag) that the hover readouts follow.
+READOUT_DELAY = 0.25
+
+
 class Charts:
     """Every chart of the panel, redrawn from (model, results, report) in one synced update."""
 
     def __init__(self) -> None:
+        self._readout_timer: asyncio.TimerHandle | None = None
         self.drawing = Elevation()
         self.elevation = self.drawing.figure
         # The drawing's marks, reachable as before.
@@ -305,6 +313,7 @@ class Charts:
             default_size=60,
             visible=False,
             tooltip=bq.Tooltip(fields=["name"], labels=["baseline"], formats=[""]),
+            **BY_ORDER,
         )
         self.bar_limit = bq.Lines(
             x=[0],
@@ -414,8 +423,29 @@ class Charts:
 
     def draw_readouts(self) -> None:
         """The result charts' readouts, after everything seen is sent (see ``set_curves``)."""
+        if self._readout_timer is not None:
+            self._readout_timer.cancel()
+            self._readout_timer = None
         for chart in (self.torque, self.angle, self.stress):
             chart.draw_readouts()
+
+    def follow_readouts(self) -> None:
+        """Send the readouts now, or in a kernel once a burst of redraws has paused.
+
+        The readouts are invisible points that read a curve's values under the pointer: a copy
+        of each curve, one message each. While a value is typed or a marker dragged, the page
+        would draw those copies between one edit's charts and the next; in an event loop they
+        follow :data:`READOUT_DELAY` after the last redraw (one message per readout per pause),
+        before a person can point at a curve. Without a loop they are sent at once.
+        """
+        try:
+            loop = asyncio.get_running_loop()
+        except RuntimeError:
+            self.draw_readouts()
+            return
+        if self._readout_timer is not None:
+            self._readout_timer.cancel()
+        self._readout_timer = loop.call_later(READOUT_DELAY, self.draw_readouts)
 
     def _draw_bars(
         self,

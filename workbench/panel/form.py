@@ -4,8 +4,8 @@ A :class:`Form` makes the widgets every editor is built from. Each widget is bou
 the case document: an edit is written there, mirrored into the other widgets of the same field
 (a slider and its entry), and handed to the :class:`~workbench.panel.state.CaseState`. An error is
 shown in plain words on the message line nearest to the field it names (the field, else its row,
-else its list), and the field is marked. :class:`Editor` is the base of each editor tab
-(:mod:`workbench.panel.editors`).
+else its list), and the field is marked. The parts built on a form (each editor tab, the
+drawing's handles, the inspector) derive from :mod:`workbench.panel.bound`.
 """
 
 from __future__ import annotations
@@ -304,72 +304,6 @@ class Form:
         self._reshow[field] = reshow
         return field
 
-    def count(
-        self, key: str, description: str, value: int, low: int, high: int, width: str = "160px"
-    ) -> tuple[w.Text, w.HBox]:
-        """A text entry for a whole number that is no case field (a sweep's number of points).
-
-        What is typed is read at once (:meth:`read_count`); a refusal shows on the message line
-        beside the entry, the text kept as typed. Nothing is written to the case.
-
-        Parameters
-        ----------
-        key
-            The entry's name (``whatif.sweep.points``); its message line has the same key.
-        description
-            The words before the entry.
-        value
-            The number shown first.
-        low, high
-            The smallest and largest number taken (inclusive).
-        width
-            CSS width of the entry.
-
-        Returns
-        -------
-        tuple
-            The entry, and the row of the entry with its message line.
-        """
-        field = w.Text(
-            value=str(value),
-            description=description,
-            continuous_update=False,
-            layout=sized(width),
-            style=_initial(w.Text),
-        )
-        field.add_class(f"wb-at-{css_name(parse_path(key))}")
-        message = self.message(key)
-
-        def typed(change: dict[str, Any]) -> None:
-            try:
-                self.read_count(change["new"], low, high, key)
-            except InputError as error:
-                message.value = render("text", plain_words(error.message))
-                field.add_class("wb-bad")
-                return
-            message.value = ""
-            field.remove_class("wb-bad")
-
-        field.observe(typed, "value")
-        return field, w.HBox([field, message], layout=shared_layout(align_items="center"))
-
-    def read_count(self, text: str, low: int, high: int, field: str) -> int:
-        """A typed whole number from ``low`` to ``high`` (``50``, ``1,000``; no unit).
-
-        Raises
-        ------
-        InputError
-            Naming ``field``, for anything else (``7o``, ``2.5``, ``0`` below ``low``).
-        """
-        number = read_quantity(text, "ratio", self.state.units, field)
-        if not number.is_integer():
-            raise InputError(field, f"{text.strip()!r} is not a whole number")
-        if not low <= number <= high:
-            raise InputError(
-                field, f"give a whole number from {low:,} to {high:,}, not {number:,.0f}"
-            )
-        return int(number)
-
     def read(self, text: str, quantity: str | None, field: str) -> float:
         """A typed value (``60``, ``2 1/4 in``) in the document's units of ``quantity``.
 
@@ -633,52 +567,3 @@ class Form:
         for widget in self._bad:
             widget.remove_class("wb-bad")
         self._shown, self._bad = [], []
-
-
-class Bound:
-    """A part of the panel that edits the case document through its :class:`Form`."""
-
-    form: Form
-
-    @property
-    def document(self) -> dict[str, Any]:
-        """The case document edited."""
-        return self.form.document
-
-
-class Editor(Bound):
-    """One editor tab: a box rebuilt from the document after every structural change.
-
-    Parameters
-    ----------
-    form
-        The fields' factory, bound to the case document.
-    shown_shaft
-        The number of the shaft the panel shows (the segment rows and new items follow it).
-    """
-
-    #: The tab's title.
-    title = ""
-
-    def __init__(self, form: Form, shown_shaft: Callable[[], int]) -> None:
-        self.form = form
-        self.shown_shaft = shown_shaft
-        self.box = w.VBox()
-
-    def shaft_ids(self) -> list[str]:
-        """The ids of the document's shafts, in order."""
-        return [s.get("id", "?") for s in self.document.get("shafts", [])]
-
-    def build(self) -> None:
-        """Rebuild the box's rows from the document."""
-        raise NotImplementedError
-
-
-def row(parts: list[w.Widget], *, wrap: bool = True) -> w.HBox:
-    """One editor row: its widgets centred on a line (wrapping when ``wrap``)."""
-    layout = (
-        shared_layout(align_items="center", flex_flow="row wrap")
-        if wrap
-        else shared_layout(align_items="center")
-    )
-    return w.HBox(parts, layout=layout)

@@ -27,9 +27,10 @@ from typing import Any
 
 import numpy as np
 
+from workbench.panel.bound import Bound
 from workbench.panel.document import Path, get_at
 from workbench.panel.elevation import Elevation
-from workbench.panel.form import Bound, Form, clean_number
+from workbench.panel.form import Form, clean_number
 from workbench.panel.keys import quantity_of
 from workbench.panel.plotting import HANDLE, SELECTED, bq, set_list
 from workbench.panel.selection import (
@@ -128,6 +129,8 @@ class Handles(Bound):
         self.place_parts: list[Part] = []
         self._bounds = np.zeros(1)
         self.selected: Part | None = None
+        #: The mark whose point is being dragged (between its first ``drag`` and ``drag_end``).
+        self.dragging: Any = None
 
     # --- drawing --------------------------------------------------------------------------
 
@@ -142,8 +145,8 @@ class Handles(Bound):
             radius = np.zeros(0)
         self.segment_marks.x, self.segment_marks.y = middles, np.zeros(len(middles))
         set_list(self.segment_marks, "names", [str(k) for k in range(len(middles))])
-        self.edges.x, self.edges.y = middles[: len(radius)], radius
-        self.shoulders.x, self.shoulders.y = bounds[1:-1], np.zeros(max(len(bounds) - 2, 0))
+        self._put(self.edges, middles[: len(radius)], radius)
+        self._put(self.shoulders, bounds[1:-1], np.zeros(max(len(bounds) - 2, 0)))
         cases = set(cases_behind(document, result))
         heights = {
             "support": self.elevation.marker_y,
@@ -164,10 +167,20 @@ class Handles(Bound):
             else:
                 y.append(heights[part.kind])
         self.place_parts = places
-        self.places.x, self.places.y = np.array(x, dtype=float), np.array(y, dtype=float)
+        self._put(self.places, np.array(x, dtype=float), np.array(y, dtype=float))
         # Unique names: bqplot's front end matches points to their data by name.
         set_list(self.places, "names", [part_label(part, document) for part in places])
         self.show_selected()
+
+    def _put(self, mark: Any, x: np.ndarray, y: np.ndarray) -> None:
+        """Set a handle mark's points, unless one of them is being dragged.
+
+        The page moves a dragged point itself; sent again on each move, the mark would be drawn
+        anew under the pointer. It takes its points when the drag ends (the page sends the
+        dropped point first, then the drawing follows the document).
+        """
+        if mark is not self.dragging:
+            mark.x, mark.y = x, y
 
     def show_selected(self) -> None:
         """Outline the part picked: a segment's outline, a span, or a line at a station."""
@@ -208,12 +221,14 @@ class Handles(Bound):
         return None
 
     def _clicked(self, mark: Any, event: dict[str, Any]) -> None:
+        self.dragging = None  # a click, or a drag starting: no point is held yet
         index = point_index(event)
         part = self.part_at(mark, index) if index is not None else None
         if part is not None:
             self.pick(part)
 
     def _dragged(self, mark: Any, event: dict[str, Any]) -> None:
+        self.dragging = mark if event.get("event") == "drag" else None
         index, point = point_index(event), event.get("point") or {}
         if index is None:
             return

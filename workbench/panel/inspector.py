@@ -34,8 +34,9 @@ from workbench.case.declaration import (
     field_type,
     structs_in,
 )
+from workbench.panel.bound import Bound
 from workbench.panel.document import Path, field_words, get_at, set_at
-from workbench.panel.form import Bound, Form, button
+from workbench.panel.form import Form, button
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
 from workbench.panel.selection import Part, part_label
@@ -67,7 +68,8 @@ def new_section(shape: str, size: float) -> dict[str, Any]:
 
     Its required sizes: ``size`` across, a bore or inner size of 0.6 of it, an end 0.8 of it, a
     wall a fiftieth of it (thin, as the thin-wall formulas need), an area of its square; walls:
-    four, each ``size`` long; mid-line points: a channel ``size`` deep and wide.
+    four, each ``size`` long; mid-line points: a channel ``size`` deep and wide; a polygon: a
+    square ``size`` across. A drawing's path has no default: the section waits for it.
     """
     cls = SHAPES[shape]
     section: dict[str, Any] = {"shape": shape}
@@ -82,6 +84,9 @@ def new_section(shape: str, size: float) -> dict[str, Any]:
                 {"x": x, "y": y, **({"thickness": wall} if number else {})}
                 for number, (x, y) in enumerate(corners)
             ]
+        elif name == "outer":  # any section by finite elements: a square ``size`` across
+            corners = ((0.0, 0.0), (size, 0.0), (size, size), (0.0, size))
+            section[name] = [{"x": x, "y": y} for x, y in corners]
         elif quantity == "area":
             section[name] = round(size * size, 6)
         elif quantity == "length":

@@ -15,8 +15,9 @@ from typing import Any
 import ipywidgets as w
 
 from workbench.case.errors import InputError
+from workbench.panel.bound import Bound
 from workbench.panel.document import plain_words
-from workbench.panel.form import Bound, Form, button, clean_number, entry_text
+from workbench.panel.form import Form, button, clean_number, entry_text
 from workbench.panel.inspector import section_size
 from workbench.panel.markup import render
 from workbench.panel.selection import Part, boundaries, cases_behind

@@ -119,14 +119,87 @@ def set_array(mark: Any, trait: str, values: Any) -> None:
         setattr(mark, trait, values)
 
 
+#: Intervals an axis is cut into when its limits are rounded (:func:`nice_limits`).
+_AXIS_INTERVALS = 8
+#: A scale keeps its limits while they hold the data and are at most this many times the
+#: rounded extent of the data (:func:`nice_limits`).
+_KEEP_WITHIN = 1.5
+
+
+def nice_step(span: float) -> float:
+    """The step of 1, 2, 2.5 or 5 times a power of ten nearest above ``span``.
+
+    Parameters
+    ----------
+    span
+        A positive length on the axis (its units).
+
+    References
+    ----------
+    Common practice for axis ticks (the 1-2-5 series), no source.
+    """
+    power = 10.0 ** np.floor(np.log10(span))
+    for factor in (1.0, 2.0, 2.5, 5.0, 10.0):
+        if factor * power >= span * (1.0 - 1e-12):
+            return float(factor * power)
+    return float(10.0 * power)  # pragma: no cover - the loop ends at 10 × power ≥ span
+
+
+def nice_limits(
+    low: float, high: float, current: tuple[float | None, float | None] = (None, None)
+) -> tuple[float, float]:
+    """Axis limits that hold ``low``..``high``, rounded out to a step of the 1-2-5 series.
+
+    The limits are kept as they are (``current``) while they hold the data and are no more than
+    :data:`_KEEP_WITHIN` times its rounded extent: an axis that moves on every edit makes the
+    page redraw every mark and axis on it, and during a drag the eye loses the curve's scale.
+
+    Parameters
+    ----------
+    low, high
+        The data's extent (axis units), ``low ≤ high``.
+    current
+        The limits the scale has now (``None`` when unset).
+
+    Returns
+    -------
+    tuple of float
+        (lower, upper) limits, lower < upper.
+
+    References
+    ----------
+    Common practice for axis limits (rounded out to a tick step), no source.
+    """
+    if low == high:  # a flat extent: a unit each way (as the page would centre one value)
+        low, high = low - 1.0, high + 1.0
+    if not np.isfinite(high - low):
+        return low, high  # beyond the range of numbers: the data's own extent
+    step = nice_step((high - low) / _AXIS_INTERVALS)
+    # Rounded to 12 figures: 3 × 0.1 is written 0.3 on the axis, not 0.30000000000000004.
+    nice_low = float(f"{np.floor(low / step) * step:.12g}")
+    nice_high = float(f"{np.ceil(high / step) * step:.12g}")
+    if not (np.isfinite(nice_low) and np.isfinite(nice_high) and nice_low < nice_high):
+        nice_low, nice_high = low, high  # too fine a step for the numbers: the data's extent
+    kept_low, kept_high = current
+    if (
+        kept_low is not None
+        and kept_high is not None
+        and kept_low <= low
+        and high <= kept_high
+        and kept_high - kept_low <= _KEEP_WITHIN * (nice_high - nice_low)
+    ):
+        return float(kept_low), float(kept_high)
+    return float(nice_low), float(nice_high)
+
+
 def fit_scale(scale: Any, marks: list[Any], axis: str = "y", include: float | None = None) -> None:
-    """Fix ``scale`` at the extent of the visible marks' ``axis`` data (NaN left out).
+    """Fix ``scale`` at rounded limits that hold the visible marks' ``axis`` data (NaN left out).
 
     ``include``: a value the extent always holds (the 0 that bars stand on).
 
     A scale left to follow its marks' data changes its domain as each mark's update reaches the
-    page, and every change redraws every mark and axis on it; fixed from here it changes once.
-    A flat extent is widened by 1 each way (as the page would show a single value, centred).
+    page, and every change redraws every mark and axis on it; fixed from here it changes once,
+    and only when the data leaves its limits or shrinks well inside them (:func:`nice_limits`).
     """
     arrays = [
         np.asarray(getattr(mark, axis), dtype=float).ravel() for mark in marks if mark.visible
@@ -137,9 +210,7 @@ def fit_scale(scale: Any, marks: list[Any], axis: str = "y", include: float | No
         data = np.append(data, include)
     if not len(data):
         return
-    low, high = float(data.min()), float(data.max())
-    if low == high:
-        low, high = low - 1.0, high + 1.0
+    low, high = nice_limits(float(data.min()), float(data.max()), (scale.min, scale.max))
     if (scale.min, scale.max) != (low, high):
         with scale.hold_sync():
             scale.min, scale.max = low, high
@@ -162,6 +233,12 @@ def _replace_tooltip(mark: Any, tooltip: Any) -> None:
         old.close()
 
 
+#: For points whose names are words about their values (read in their tooltips): the page
+#: tells the points apart by their order, not by name. Matched by name, a point whose words
+#: changed with an edit (``utilisation 1.381`` → ``1.379``) is removed and drawn anew.
+BY_ORDER = {"names_unique": False}
+
+
 def failing_mark(scales: dict[str, Any], tooltip: Any) -> Any:
     """Crosses in the failing colour on what fails its check (hidden until something does)."""
     return bq.Scatter(
@@ -174,6 +251,7 @@ def failing_mark(scales: dict[str, Any], tooltip: Any) -> Any:
         stroke="white",
         visible=False,
         tooltip=tooltip,
+        **BY_ORDER,
     )
 
 

@@ -85,8 +85,9 @@ class CaseState:
         self._error: InputError | None = None
         #: How many solves have run (a burst of edits in a kernel solves once).
         self.solve_count = 0
-        #: The case output the calculation record reads (``None`` before the first solve).
-        self.case_bundle: dict[str, Any] | None = None
+        # The case output the calculation record reads: made when first asked for after a
+        # solve (after the redraw, not before it), then kept.
+        self._case_bundle: dict[str, Any] | None = None
         # Coalescing: the newest valid model not yet solved, and the error of the last edit when
         # it came after that model; a flush is scheduled while _pending.
         self._queued: Model | None = None
@@ -160,6 +161,17 @@ class CaseState:
         """The error of the document, when :attr:`stale`."""
         self.settle()
         return self._error
+
+    @property
+    def case_bundle(self) -> dict[str, Any] | None:
+        """The case output the calculation record reads (``None`` before the first solve).
+
+        That of the last valid solve: the case it solved and its verdict.
+        """
+        self.settle()
+        if self._case_bundle is None and self._model is not None and self._report is not None:
+            self._case_bundle = _case_output(self._model, self._report)
+        return self._case_bundle
 
     @property
     def pending(self) -> bool:
@@ -241,7 +253,7 @@ class CaseState:
         self._model, self._results, self._report = model, results, report
         self.solve_count += 1
         self._stale, self._error = False, None
-        self.case_bundle = _case_output(model, report)
+        self._case_bundle = None
         self._on_solved()
         return True
 

@@ -20,7 +20,7 @@ from workbench.panel.document import Path, get_at
 from workbench.panel.form import Form, entry_text, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render_study
-from workbench.panel.whatif import numeric_inputs
+from workbench.panel.whatif import count_entry, numeric_inputs, read_count
 from workbench.study.evaluate import parse_path
 from workbench.study.plan import (
     MAX_VARIANTS,
@@ -115,11 +115,11 @@ class PlanForm:
         self.input_message = form.message("study.input")
         methods = _literal_values(Sampling, "method")
         self.method = w.Dropdown(options=list(methods), value="monte_carlo", description="sampling")
-        self.count, count_row = form.count("study.count", "variants", 2000, 1, MAX_VARIANTS)
-        self.levels, levels_row = form.count("study.levels", "grid levels", 5, 1, 10_000)
-        self.seed, seed_row = form.count("study.seed", "seed", 1, *SEED_RANGE)
+        self.count, count_row = count_entry(form, "study.count", "variants", 2000, 1, MAX_VARIANTS)
+        self.levels, levels_row = count_entry(form, "study.levels", "grid levels", 5, 1, 10_000)
+        self.seed, seed_row = count_entry(form, "study.seed", "seed", 1, *SEED_RANGE)
         self.sobol = w.Checkbox(description="Sobol indices (SALib)", value=False)
-        self.base_count, base_row = form.count("study.base_count", "Sobol N", 256, 2, 2**20)
+        self.base_count, base_row = count_entry(form, "study.base_count", "Sobol N", 256, 2, 2**20)
         self.box = w.VBox(
             [
                 self.input_path,
@@ -225,7 +225,10 @@ class PlanForm:
         """
         if not self.inputs:
             raise InputError("study.input", "add at least one input to vary")
-        read = self.form.read_count
+
+        def read(text: str, low: int, high: int, field: str) -> int:
+            return read_count(text, low, high, field, self.form.state.units)
+
         method = self.method.value
         sampling: dict[str, Any] = {
             "method": method,

@@ -132,8 +132,9 @@ class ResultTables:
         self.check_table.add_class("wb-checks")
         self.caution = w.HTML()
         self._shown: tuple[dict[str, float], CheckReport, str, UnitSystem] | None = None
+        self._stale: str | None = None
 
-    def draw(
+    def draw_summary(
         self,
         values: dict[str, float],
         report: CheckReport,
@@ -141,16 +142,24 @@ class ResultTables:
         units: UnitSystem,
         stale: str | None = None,
     ) -> None:
-        """Fill the three from the checks and the headline values (:func:`key_values`).
+        """The summary above the charts from the headline values (:func:`key_values`).
 
         ``stale``: why the case as edited is not solved; these are then the last valid case's,
-        shown dimmed and without a verdict.
+        shown dimmed and without a verdict. The check table follows with :meth:`draw_checks`.
         """
         self._shown = (values, report, result, units)
+        self._stale = stale
         self.summary.value = summary_html(values, report, result, stale)
-        self.check_table.value = checks_html(report, units, stale)
+        self._dim(self.summary, stale is not None)
+
+    def draw_checks(self) -> None:
+        """The check table and the caution below the charts, of the summary last drawn."""
+        if self._shown is None:
+            return
+        _, report, _, units = self._shown
+        self.check_table.value = checks_html(report, units, self._stale)
         self.caution.value = render("caution", CAUTION, report.notes)
-        self._dim(stale is not None)
+        self._dim(self.check_table, self._stale is not None)
 
     def show_stale(self, why: str) -> None:
         """The case as edited is not solved (``why``): no verdict; values and checks dimmed."""
@@ -158,11 +167,12 @@ class ResultTables:
             values, report, result, units = self._shown
             self.summary.value = summary_html(values, report, result, why)
             self.check_table.value = checks_html(report, units, why)
-        self._dim(True)
-
-    def _dim(self, stale: bool) -> None:
         for widget in (self.summary, self.check_table):
-            if stale:
-                widget.add_class("wb-stale")
-            else:
-                widget.remove_class("wb-stale")
+            self._dim(widget, True)
+
+    @staticmethod
+    def _dim(widget: w.HTML, stale: bool) -> None:
+        if stale:
+            widget.add_class("wb-stale")
+        else:
+            widget.remove_class("wb-stale")

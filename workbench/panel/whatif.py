@@ -16,10 +16,11 @@ import ipywidgets as w
 import numpy as np
 
 from workbench.case.display import unit_symbol
+from workbench.case.entry import read_quantity
 from workbench.case.errors import InputError
 from workbench.case.units import UnitSystem
 from workbench.design.sweep import METRICS, SweepRequest, sweep_chunks
-from workbench.panel.document import Path, clone, get_at
+from workbench.panel.document import Path, clone, css_name, get_at, parse_path, plain_words
 from workbench.panel.form import Form, entry_text, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
@@ -37,6 +38,7 @@ from workbench.panel.plotting import (
     readout,
     set_tooltip,
 )
+from workbench.panel.shared import shared_layout, shared_style
 
 #: The sweep's metric whose limit is 1 (a utilisation): the chart draws that line.
 UTILISATION_METRIC = "governing_utilisation"
@@ -86,14 +88,16 @@ class WhatIf:
         self.sweep_from = w.Text(description="from", layout=sized("160px"))
         self.sweep_to = w.Text(description="to", layout=sized("160px"))
         # Whole numbers typed as text (a browser number input read `7o` as 7), refused beside.
-        self.sweep_points, points_row = form.count("whatif.sweep.points", "points", 50, *POINTS)
+        self.sweep_points, points_row = count_entry(
+            form, "whatif.sweep.points", "points", 50, *POINTS
+        )
         self.sweep_metric = w.Dropdown(
             options=[(label, key) for key, (label, _) in METRICS.items()],
             description="follow",
             layout=sized("360px"),
         )
-        self.sweep_support, support_row = form.count(
-            "whatif.sweep.support", "support", 0, *SUPPORT, width="140px"
+        self.sweep_support, support_row = count_entry(
+            form, "whatif.sweep.support", "support", 0, *SUPPORT, width="140px"
         )
         self.sweep_run = w.Button(description="Run sweep", icon="play", button_style="info")
         self.sweep_run.on_click(lambda _: self.start_sweep())
@@ -208,8 +212,9 @@ class WhatIf:
             quantity = quantity_of(path)
             start = self.form.read(self.sweep_from.value, quantity, "sweep from")
             end = self.form.read(self.sweep_to.value, quantity, "sweep to")
-            points = self.form.read_count(self.sweep_points.value, *POINTS, "sweep points")
-            support = self.form.read_count(self.sweep_support.value, *SUPPORT, "sweep support")
+            units = self.form.state.units
+            points = read_count(self.sweep_points.value, *POINTS, "sweep points", units)
+            support = read_count(self.sweep_support.value, *SUPPORT, "sweep support", units)
             values = tuple(np.linspace(start, end, points))
             request = SweepRequest(
                 path, values, self.sweep_metric.value, self._result_shown(), support
@@ -362,3 +367,73 @@ def numeric_inputs(document: dict[str, Any]) -> Iterator[tuple[Path, str]]:
     for key in ("factor_of_safety", "allowable_shear_stress", "max_twist_rate"):
         if isinstance(design.get(key), (int, float)):
             yield ("design", key), f"design · {label(('design', key))}"
+
+
+def count_entry(
+    form: Form, key: str, description: str, value: int, low: int, high: int, width: str = "160px"
+) -> tuple[w.Text, w.HBox]:
+    """A text entry for a whole number that is no case field (a sweep's number of points).
+
+    What is typed is read at once (:func:`read_count`); a refusal shows on the message line
+    beside the entry, the text kept as typed. Nothing is written to the case.
+
+    Parameters
+    ----------
+    form
+        The panel's fields (the entry's message line is one of its lines).
+    key
+        The entry's name (``whatif.sweep.points``); its message line has the same key.
+    description
+        The words before the entry.
+    value
+        The number shown first.
+    low, high
+        The smallest and largest number taken (inclusive).
+    width
+        CSS width of the entry.
+
+    Returns
+    -------
+    tuple
+        The entry, and the row of the entry with its message line.
+    """
+    field = w.Text(
+        value=str(value),
+        description=description,
+        continuous_update=False,
+        layout=sized(width),
+        style=shared_style(w.Text, description_width="initial"),
+    )
+    field.add_class(f"wb-at-{css_name(parse_path(key))}")
+    message = form.message(key)
+
+    def typed(change: dict[str, Any]) -> None:
+        try:
+            read_count(change["new"], low, high, key, form.state.units)
+        except InputError as error:
+            message.value = render("text", plain_words(error.message))
+            field.add_class("wb-bad")
+            return
+        message.value = ""
+        field.remove_class("wb-bad")
+
+    field.observe(typed, "value")
+    return field, w.HBox([field, message], layout=shared_layout(align_items="center"))
+
+
+def read_count(text: str, low: int, high: int, field: str, units: UnitSystem) -> int:
+    """A typed whole number from ``low`` to ``high`` (``50``, ``1,000``; no unit).
+
+    ``units``: the panel's unit system (the reader's; a count has no unit).
+
+    Raises
+    ------
+    InputError
+        Naming ``field``, for anything else (``7o``, ``2.5``, ``0`` below ``low``).
+    """
+    number = read_quantity(text, "ratio", units, field)
+    if not number.is_integer():
+        raise InputError(field, f"{text.strip()!r} is not a whole number")
+    if not low <= number <= high:
+        raise InputError(field, f"give a whole number from {low:,} to {high:,}, not {number:,.0f}")
+    return int(number)

@@ -27,6 +27,7 @@ from IPython.display import display
 
 from workbench.case.errors import InputError
 from workbench.design.checks import CheckReport
+from workbench.panel.bound import Editor
 from workbench.panel.charts import Charts
 from workbench.panel.document import UNIT_CHOICES, result_names, structure
 from workbench.panel.drawing import DrawingEditor
@@ -40,7 +41,7 @@ from workbench.panel.editors import (
     VibrationEditor,
 )
 from workbench.panel.fatigue_section import FatigueSection
-from workbench.panel.form import Editor, Form, sized
+from workbench.panel.form import Form, sized
 from workbench.panel.markup import render
 from workbench.panel.modes_section import ModesSection
 from workbench.panel.plotting import held
@@ -238,6 +239,7 @@ class Workbench:
     def settle(self) -> None:
         """Solve and redraw a pending edit now instead of when the burst of edits ends."""
         self.state.settle()
+        self.charts.draw_readouts()  # and the hover readouts, not after a pause
 
     def refresh(self) -> bool:
         """Solve the document and redraw; on bad input keep the last results, marked stale."""
@@ -484,11 +486,14 @@ class Workbench:
         result = self.result.value if self.result.value in results.names else results.names[0]
         shaft = min(self.shaft.value or 0, len(model.shafts) - 1)
         units = state.units
+        # Sent in the page's order, top to bottom: the summary (verdict, reactions), the
+        # drawing, the charts along the shaft, then the check table below them.
+        values = key_values(results, report, result, units)
+        self.tables.draw_summary(values, report, result, units, stale=self.stale_marks.reason)
         self.charts.draw(model, results, report, result, shaft, state.baseline)
         with held(self.charts.elevation):
             self.drawing_editor.draw(result)
-        values = key_values(results, report, result, units)
-        self.tables.draw(values, report, result, units, stale=self.stale_marks.reason)
+        self.tables.draw_checks()
         baseline = state.baseline
         before = key_values(*baseline, result, units) if baseline is not None else None
         self.difference.value = difference_html(values, before)
@@ -498,4 +503,4 @@ class Workbench:
             self.modes_section.draw(state.modes, state.why_no_modes, shaft, speeds, margin, units)
         elif opened == 1:
             self.fatigue_section.draw(model, report, shaft, units)
-        self.charts.draw_readouts()  # invisible hover points: after all that is seen
+        self.charts.follow_readouts()  # invisible hover points: after all that is seen

@@ -49,7 +49,7 @@ import scipy.sparse.linalg as spla
 
 from workbench.case.declaration import MAX_MODAL_ELEMENTS
 from workbench.case.design import DEFAULT_MODAL_ELEMENTS_PER_SEGMENT
-from workbench.case.errors import InputError
+from workbench.case.errors import InputError, short
 from workbench.case.units import UnitSystem, quote
 from workbench.solver.analysis import Mesh, torsion_stiffness_matrix
 from workbench.solver.columns import case_table
@@ -198,6 +198,35 @@ def _out_of_scale(model: Model, mesh: Mesh) -> InputError:
     return InputError(f"{table.segments.segment_path(row)}.material", f"its stiffness, {words}")
 
 
+def _frequency_out_of_range(
+    model: Model, mesh: Mesh, stiffness: sp.spmatrix, mass: sp.spmatrix
+) -> InputError:
+    """The material whose light elements put ω² = k/m beyond the range of numbers.
+
+    LAPACK's generalised eigensolver returns no eigenvalue at all (no error) when one overflows:
+    a density of 1e-297 kg/m³ gives masses of 1e-305 kg·m², normal numbers, but ω² of 1e309.
+    """
+    with np.errstate(divide="ignore", over="ignore", invalid="ignore"):
+        ratio = np.abs(stiffness.diagonal()) / mass.diagonal()
+    ratio[np.isnan(ratio)] = -1.0  # a massless node: condensed, not the cause
+    node = int(np.argmax(ratio))
+    last = len(mesh.element_length) - 1
+    element = int(np.clip(np.searchsorted(mesh.element_start_node, node, "right") - 1, 0, last))
+    shaft = int(mesh.element_shaft[element])
+    number = int(mesh.element_segment[element])
+    segment = model.shafts[shaft].segments[number]
+    names = [layer.material.name for layer in segment.layers if layer.material.density]
+    msg = (
+        f"the mass of shafts[{shaft}].segments[{number}] is so small beside its stiffness that "
+        f"ω² = k/m leaves the range of numbers ({_beyond(ratio[node])} rad²/s² at one node)"
+    )
+    return InputError(f"materials.{short(names[0] if names else '?')}.density", msg)
+
+
+def _beyond(value: float) -> str:
+    return f"{value:.3g}" if math.isfinite(value) else "beyond 1.8e308"
+
+
 def _sparse_modes(
     stiffness: sp.spmatrix, mass: sp.spmatrix, count: int, shift: float
 ) -> tuple[FloatArray, FloatArray]:
@@ -295,6 +324,8 @@ def natural_modes(
                 values, vectors = _dense_modes(reduced_stiffness, reduced_mass, lowest)
             except _IllConditionedError:
                 raise _out_of_scale(modal_model, mesh) from None
+            if len(values) < min(lowest, massive) or not np.all(np.isfinite(values)):
+                raise _frequency_out_of_range(modal_model, mesh, stiffness, mass)
             if len(values) >= massive or up_to is None or values[-1] > up_to * up_to:
                 break
             lowest *= 2

@@ -31,6 +31,7 @@ from typing import Any
 
 import msgspec
 import numpy as np
+import pyarrow as pa
 import pyarrow.parquet as pq
 
 from workbench.case.errors import InputError
@@ -228,34 +229,30 @@ def run_study(
     try:
         if in_process:
             stopped = _run_in_process(case_text, plan_json, bounds, design, written, cancel)
-            return _outcome(written, count, stopped, 1, chunk_size)
-        with _client(client, workers, scheduler) as active:
-            width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
-            try:
-                stopped = _run_chunks(active, case_text, plan_json, bounds, design, width,
-                                      running, written, cancel)  # fmt: skip
-            except KeyboardInterrupt:
-                stopped = True
-            finally:
-                previous = _ignore_ctrl_c()  # stopping or done: the closing must finish
-                if running:
-                    active.cancel(list(running))
+        else:
+            with _client(client, workers, scheduler) as active:
+                width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
+                try:
+                    stopped = _run_chunks(active, case_text, plan_json, bounds, design, width,
+                                          running, written, cancel)  # fmt: skip
+                except KeyboardInterrupt:
+                    stopped = True
+                finally:
+                    previous = _ignore_ctrl_c()  # stopping or done: the closing must finish
+                    if running:
+                        active.cancel(list(running))
     except KeyboardInterrupt:  # while the cluster was starting: nothing written
         stopped = True
     finally:
         written.close()
         if previous is not None:
             signal.signal(signal.SIGINT, previous)
-    return _outcome(written, count, stopped, width, chunk_size)
-
-
-def _outcome(
-    written: _Rows, count: int, stopped: bool, width: int, chunk_size: int
-) -> StudyOutcome:
     # However the loop ended (a Ctrl-C may end dask's iterator quietly), fewer rows than the
-    # plan's is a stopped study.
-    stopped = stopped or written.done < count
-    return StudyOutcome(written.path, written.done, count, stopped, written.seconds, width,
+    # plan's is a stopped study. The rows reported are those the closed file holds: a Ctrl-C
+    # landing inside the writer must not leave a count the file does not bear out.
+    kept = written.kept()
+    stopped = stopped or kept < count
+    return StudyOutcome(written.path, kept, count, stopped, written.seconds, width,
                         chunk_size)  # fmt: skip
 
 
@@ -302,6 +299,13 @@ class _Rows:
         if self.writer is not None:
             self.writer.close()
             self.writer = None
+
+    def kept(self) -> int:
+        """Rows the closed file holds, read from its footer (0 if nothing was written)."""
+        try:
+            return int(pq.read_metadata(self.path).num_rows)
+        except (OSError, pa.ArrowException):  # nothing written, or no footer: no row kept
+            return 0
 
 
 def _run_chunks(

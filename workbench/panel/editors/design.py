@@ -8,9 +8,10 @@ import ipywidgets as w
 
 from workbench.case.declaration.criteria import word_options
 from workbench.case.design import SHEAR_CRITERIA
+from workbench.panel.bound import Editor, row
 from workbench.panel.document import Path, get_at, shaft_length
 from workbench.panel.editors.fatigue import FatigueEditor
-from workbench.panel.form import Editor, Form, button, clean_number, row, sized
+from workbench.panel.form import Form, button, clean_number, sized
 from workbench.panel.markup import render
 
 

@@ -7,8 +7,9 @@ import ipywidgets as w
 from workbench.case.declaration.criteria import word_options
 from workbench.case.design import FATIGUE_CRITERIA, MEAN_CONCENTRATIONS, SURFACE_FINISHES
 from workbench.design.fatigue import RELIABILITY_FACTORS
+from workbench.panel.bound import row
 from workbench.panel.document import Path, get_at, result_names
-from workbench.panel.form import Form, row, sized
+from workbench.panel.form import Form, sized
 from workbench.panel.markup import render
 
 #: How the two torque states are given.

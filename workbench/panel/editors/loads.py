@@ -6,8 +6,9 @@ from collections.abc import Callable
 
 import ipywidgets as w
 
+from workbench.panel.bound import Editor, row
 from workbench.panel.document import Path, set_at, shaft_length
-from workbench.panel.form import Editor, Form, button, row
+from workbench.panel.form import Form, button
 
 
 class LoadsEditor(Editor):

@@ -7,8 +7,9 @@ from typing import Any
 
 import ipywidgets as w
 
+from workbench.panel.bound import Editor, row
 from workbench.panel.document import Path, clone, get_at, set_at
-from workbench.panel.form import Editor, Form, button, row, sized
+from workbench.panel.form import Form, button, sized
 from workbench.panel.markup import render
 from workbench.panel.shared import close_tree
 

@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import ipywidgets as w
 
+from workbench.panel.bound import Editor, row
 from workbench.panel.document import Path, shaft_length
-from workbench.panel.form import Editor, button, row, sized
+from workbench.panel.form import button, sized
 
 #: The kinds of support offered (a prescribed rotation is a fixed support with a rotation).
 SUPPORT_KINDS = ("fixed", "spring", "prescribed rotation")

@@ -5,8 +5,9 @@ from __future__ import annotations
 import ipywidgets as w
 
 from workbench.case.design import DEFAULT_FREQUENCY_MARGIN
+from workbench.panel.bound import Editor, row
 from workbench.panel.document import Path, shaft_length
-from workbench.panel.form import Editor, button, clean_number, row, sized
+from workbench.panel.form import button, clean_number, sized
 from workbench.panel.markup import render
 
 
