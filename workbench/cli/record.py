@@ -100,9 +100,13 @@ def _command_verify(arguments: argparse.Namespace) -> int:
     if is_package:
         if arguments.trusted is not None:
             raise InputError("--trusted", "checks a record's signatures, not a package's")
+        if arguments.study_rows is not None:
+            raise InputError("--study-rows", "checks a record's study, not a package's")
         outcome = verify_package(arguments.record, arguments.public_key)
     else:
-        outcome = verify_record(arguments.record, arguments.public_key, arguments.trusted)
+        outcome = verify_record(
+            arguments.record, arguments.public_key, arguments.trusted, arguments.study_rows
+        )
     for line in outcome.lines():
         sys.stdout.write(line + "\n")
     return EXIT_OK if outcome.ok else EXIT_NOT_VERIFIED
@@ -214,6 +218,12 @@ def register(commands: Any) -> None:
         metavar="SIGNERS",
         help="trusted-signers file (fingerprint, roles, name a line): name each signature's "
         "signer, fail on a key not on it",
+    )
+    verify.add_argument(
+        "--study-rows",
+        metavar="PARQUET",
+        help="the rows file of the record's study: check its SHA-256 and summary against the "
+        "signed ones",
     )
     verify.set_defaults(run=_command_verify)
 

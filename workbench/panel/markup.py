@@ -14,13 +14,13 @@ import jinja2
 
 
 @functools.cache
-def _macros() -> Any:
+def _macros(template: str = "panel.html.j2") -> Any:
     environment = jinja2.Environment(
         loader=jinja2.PackageLoader("workbench.panel", "templates"),
         autoescape=True,
         undefined=jinja2.StrictUndefined,
     )
-    return environment.get_template("panel.html.j2").module
+    return environment.get_template(template).module
 
 
 def render(macro: str, /, *args: Any, **values: Any) -> str:
@@ -32,3 +32,8 @@ def render(macro: str, /, *args: Any, **values: Any) -> str:
     '<i>&lt;b&gt; &amp; co</i>'
     """
     return str(getattr(_macros(), macro)(*args, **values))
+
+
+def render_study(macro: str, /, *args: Any, **values: Any) -> str:
+    """The HTML of one macro of the Study tab's template (``templates/study.html.j2``)."""
+    return str(getattr(_macros("study.html.j2"), macro)(*args, **values))

@@ -48,6 +48,7 @@ from workbench.panel.plotting import held
 from workbench.panel.shared import close_tree
 from workbench.panel.stale import StaleMarks
 from workbench.panel.state import CaseState
+from workbench.panel.study_view import StudyView
 from workbench.panel.summary import ResultTables, difference_html, key_values
 from workbench.panel.whatif import WhatIf
 from workbench.solver.analysis import Results
@@ -158,6 +159,7 @@ class Workbench:
         self.whatif = WhatIf(
             self.form, lambda: self.result.value, self.pin_baseline, self.clear_baseline
         )
+        self.study = StudyView(self.form, self.state.case_json, lambda: self.state.path)
         self.drawing_editor = DrawingEditor(
             self.charts.drawing, self.form, shown, lambda: self.result.value
         )
@@ -262,7 +264,7 @@ class Workbench:
         self.save_button = w.Button(description="Save case", icon="save", button_style="primary")
         self.save_button.on_click(self._on_save)
         self.save_message = w.HTML()
-        tabs: list[Editor | WhatIf] = [*self._editors, self.whatif]
+        tabs: list[Editor | WhatIf | StudyView] = [*self._editors, self.whatif, self.study]
         self.editors = w.Tab(children=[tab.box for tab in tabs])
         for number, tab in enumerate(tabs):
             self.editors.set_title(number, tab.title)
@@ -372,6 +374,7 @@ class Workbench:
             kept = {id(child) for editor in self._editors for child in editor.box.children}
             close_tree(*(child for child in old if id(child) not in kept))
             self.whatif.refresh_inputs()
+            self.study.refresh_inputs()
             self.drawing_editor.build()
 
     # --- what the state tells ---------------------------------------------------------------
@@ -385,6 +388,7 @@ class Workbench:
         )
         self.charts_box.remove_class("wb-stale")
         self.stale_marks.clear()
+        self.study.case_changed()
         self._redraw()
         if self._handle is not None:  # the case output the calculation record reads
             self._handle.update(self.case_bundle, raw=True)
@@ -397,6 +401,7 @@ class Workbench:
         self.status.value = render("not_solved", words)
         why = self.stale_marks.mark(error, self.document)
         self.tables.show_stale(why)  # no verdict of the last valid case stands for this one
+        self.study.case_changed()
 
     # --- the panel's own controls -----------------------------------------------------------
 
@@ -427,6 +432,7 @@ class Workbench:
         if structure(self.document) == fields:
             self.form.reshow(before)
             self.whatif.refresh_inputs()
+            self.study.refresh_inputs()
             self.drawing_editor.reshow()
         else:
             self._rebuild()

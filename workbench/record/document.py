@@ -95,6 +95,7 @@ def render_record(
     case_source: str = "cell output",
     notebook_name: str = "",
     extra_css: str = "",
+    study: dict[str, Any] | None = None,
 ) -> str:
     """Write the whole record: body, page, digests, payload and (optionally) signature.
 
@@ -116,6 +117,8 @@ def render_record(
         Where the case came from; the notebook's file name.
     extra_css
         Stylesheets for the notebook cells (nbconvert's ``lab`` CSS), from templates only.
+    study
+        A study to record and sign (:func:`workbench.record.study.study_payload`), or ``None``.
 
     Returns
     -------
@@ -142,6 +145,7 @@ def render_record(
         signed_at=signed_at,
         fingerprint=fingerprint,
         case_source=case_source,
+        study=study,
     )
     before, after = render_page(
         sections, heading(title_block, computation.model), extra_css, footer_css(title_block)
@@ -159,6 +163,8 @@ def render_record(
         "content_digest": content_digest(before + after),
         "content_rule": "sha256 of the file without its signature block",
     }
+    if study is not None:  # records without a study keep the payload they always had
+        payload["study"] = study
     token = None
     if private_key is not None:
         token = sign_compact(canonicalize(payload), private_key, {"typ": "JOSE"})

@@ -20,6 +20,7 @@ from traitlets import Bool, Dict, Unicode, default
 from workbench.record.document import compute, render_record
 from workbench.record.notebook import find_case, has_case_output, title_block_from
 from workbench.record.sanitize import sanitize_notebook_html
+from workbench.record.study import find_study, study_payload
 from workbench.record.templating import templates_dir
 
 __all__ = ["RecordExporter", "execute_notebook"]
@@ -99,6 +100,8 @@ class RecordExporter(HTMLExporter):
             nb = execute_notebook(copy.deepcopy(nb), folder)
         case, source = find_case(nb, folder)
         computation = compute(case)
+        found = find_study(nb)
+        study = study_payload(found, computation.case, folder) if found is not None else None
         title_block = title_block_from(nb, dict(self.title_block))
         private_key = (
             load_private_key(self.key_file, self.key_passphrase) if self.key_file else None
@@ -116,6 +119,7 @@ class RecordExporter(HTMLExporter):
             case_source=source,
             notebook_name=f"{name}.ipynb" if name else "",
             extra_css=self._lab_css() + "\n" + inlined,
+            study=study,
         )
         resources["workbench_case"] = computation.case
         resources["workbench_results_digest"] = computation.results_digest

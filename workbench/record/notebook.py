@@ -24,6 +24,7 @@ __all__ = [
     "TITLE_FIELDS",
     "find_case",
     "has_case_output",
+    "outputs_of",
     "title_block_from",
 ]
 
@@ -42,6 +43,11 @@ def _outputs(nb: Any, mime_type: str = CASE_MIME_TYPE) -> list[Any]:
             if mime_type in data:
                 found.append(data[mime_type])
     return found
+
+
+def outputs_of(nb: Any, mime_type: str) -> list[Any]:
+    """The data of every code cell output of ``mime_type``, in order (a study's, say)."""
+    return _outputs(nb, mime_type)
 
 
 def has_case_output(nb: Any) -> bool:

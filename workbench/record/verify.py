@@ -38,7 +38,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from workbench.case.errors import WorkbenchError
+from workbench.case.errors import InputError, WorkbenchError
 from workbench.record.document import (
     BLOCK_END,
     BLOCK_START,
@@ -131,6 +131,7 @@ def verify_record(
     path: str | Path,
     public_key_path: str | Path | Sequence[str | Path] | None = None,
     trusted_path: str | Path | None = None,
+    study_rows: str | Path | None = None,
 ) -> Verification:
     """Check a record file; see :func:`verify_text`.
 
@@ -142,6 +143,8 @@ def verify_record(
         One public key file, or several (the preparer's and the countersigners').
     trusted_path
         A trusted-signers file (:mod:`workbench.signing.trusted`).
+    study_rows
+        The rows file (parquet) of the record's study, to check against its signed SHA-256.
 
     Raises
     ------
@@ -149,10 +152,13 @@ def verify_record(
         When the file, a key file or the trusted-signers file cannot be read.
     """
     trusted = read_trusted(trusted_path)
-    return verify_text(*read_with_key(path, "record", public_key_path), trusted)
+    rows = Path(study_rows) if study_rows is not None else None
+    return verify_text(*read_with_key(path, "record", public_key_path), trusted, study_rows=rows)
 
 
-def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Verification:
+def verify_text(
+    data: bytes, public_key: Any = None, trusted: Any = None, *, study_rows: Path | None = None
+) -> Verification:
     """Check the bytes of a record and the chain of its signatures.
 
     Parameters
@@ -167,6 +173,8 @@ def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Ver
         Trusted signers by fingerprint (:func:`workbench.signing.read_trusted_signers`): each
         signature is named after its signer, and one by a key not on the list, or in a role
         the list does not give its signer, fails.
+    study_rows
+        The rows file of the record's study (:func:`workbench.record.study.check_study`).
 
     Returns
     -------
@@ -347,6 +355,15 @@ def verify_text(data: bytes, public_key: Any = None, trusted: Any = None) -> Ver
             "re-solving the embedded case gives results other than those signed "
             "(results digest mismatch)"
         )
+    study = payload.get("study")
+    if study is not None:
+        from workbench.record.study import verify_study  # noqa: PLC0415 - only with a study
+
+        study_facts, study_problems = verify_study(study, computation, written, study_rows)
+        outcome.facts += study_facts
+        problems += study_problems
+    elif study_rows is not None:
+        raise InputError("--study-rows", "the record has no study section to check it against")
     outcome.ok = signed and not problems
     return outcome
 

@@ -102,7 +102,7 @@ def study_client(workers: int | None = None, scheduler: str | None = None) -> It
     The local cluster has ``workers`` processes (the machine's cores by default), one thread
     each, BLAS pinned to one thread.
     """
-    from dask.distributed import Client, LocalCluster  # noqa: PLC0415 - heavy; only when running
+    from dask.distributed import Client  # noqa: PLC0415 - heavy; only when running
 
     if scheduler is not None:
         try:
@@ -113,18 +113,26 @@ def study_client(workers: int | None = None, scheduler: str | None = None) -> It
         with client:
             yield client
         return
-    count = workers or os.cpu_count() or 1
+    with local_cluster(workers) as cluster, Client(cluster) as client:
+        yield client
+
+
+def local_cluster(workers: int | None = None) -> Any:
+    """A ``LocalCluster`` of ``workers`` processes (the cores by default), one thread each.
+
+    A face that keeps a cluster across runs makes its own client of it (and closes both).
+    """
+    from dask.distributed import LocalCluster  # noqa: PLC0415 - heavy; only when running
+
     with _workers_ignore_ctrl_c():
-        cluster = LocalCluster(
-            n_workers=count,
+        return LocalCluster(
+            n_workers=workers or os.cpu_count() or 1,
             threads_per_worker=1,
             processes=True,
             dashboard_address=":0",  # its HTTP routes on a free port, never a taken 8787
             silence_logs=logging.ERROR,
             env=ONE_THREAD,
         )
-    with cluster, Client(cluster) as client:
-        yield client
 
 
 @contextmanager
@@ -166,6 +174,7 @@ def run_study(
     cancel: Callable[[], bool] | threading.Event | None = None,
     unit: np.ndarray | None = None,
     plan: Plan | None = None,
+    in_process: bool = False,
 ) -> StudyOutcome:
     """Run a study and write its rows to a parquet file.
 
@@ -193,6 +202,9 @@ def run_study(
         Saltelli plan of the Sobol indices); ``plan`` then gives the count.
     plan
         The plan to run (``plan_json`` decoded), when it differs from the text's count.
+    in_process
+        Run the chunks one after another in this thread, with no cluster (a small study in a
+        face: starting a local cluster takes longer than its chunks). The rows are the same.
 
     Returns
     -------
@@ -215,17 +227,20 @@ def run_study(
     running: dict[Any, int] = {}
     stopped, width, previous = False, 1, None
     try:
-        with _client(client, workers, scheduler) as active:
-            width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
-            try:
-                stopped = _run_chunks(active, case_text, plan_json, bounds, design, width,
-                                      running, written, cancel)  # fmt: skip
-            except KeyboardInterrupt:
-                stopped = True
-            finally:
-                previous = _ignore_ctrl_c()  # stopping or done: the closing must finish
-                if running:
-                    active.cancel(list(running))
+        if in_process:
+            stopped = _run_in_process(case_text, plan_json, bounds, design, written, cancel)
+        else:
+            with _client(client, workers, scheduler) as active:
+                width = len(active.scheduler_info(n_workers=-1)["workers"]) or 1
+                try:
+                    stopped = _run_chunks(active, case_text, plan_json, bounds, design, width,
+                                          running, written, cancel)  # fmt: skip
+                except KeyboardInterrupt:
+                    stopped = True
+                finally:
+                    previous = _ignore_ctrl_c()  # stopping or done: the closing must finish
+                    if running:
+                        active.cancel(list(running))
     except KeyboardInterrupt:  # while the cluster was starting: nothing written
         stopped = True
     finally:
@@ -239,6 +254,23 @@ def run_study(
     stopped = stopped or kept < count
     return StudyOutcome(written.path, kept, count, stopped, written.seconds, width,
                         chunk_size)  # fmt: skip
+
+
+def _run_in_process(
+    case_text: str | bytes,
+    plan_json: str | bytes,
+    bounds: list[tuple[int, int]],
+    design: np.ndarray | None,
+    written: _Rows,
+    cancel: Callable[[], bool] | threading.Event | None,
+) -> bool:
+    """The chunks in order in this thread (the same task a worker runs); whether stopped."""
+    for start, stop in bounds:
+        rows = None if design is None else np.ascontiguousarray(design[start:stop])
+        written.write(evaluate_chunk(case_text, plan_json, start, stop, rows))
+        if _stop_asked(cancel):
+            return True
+    return False
 
 
 class _Rows:
@@ -306,7 +338,10 @@ def _run_chunks(
     queue = iter(range(len(bounds)))
     window = width * IN_FLIGHT_PER_WORKER
     # range first: zip stops on it before taking one more chunk from the queue.
-    finished = as_completed([submit(n) for _, n in zip(range(window), queue, strict=False)])
+    # The client's own loop: it need not be the process's default client (a face's is not).
+    finished = as_completed(
+        [submit(n) for _, n in zip(range(window), queue, strict=False)], loop=active.loop
+    )
     for future in finished:
         number = running.pop(future)
         pending[number] = future.result()

@@ -24,10 +24,11 @@ from workbench.record.view_model.front import SignatureView, purpose_view, revis
 from workbench.record.view_model.hand_check import hand_check_view
 from workbench.record.view_model.inputs import inputs_view
 from workbench.record.view_model.results import results_view
+from workbench.record.view_model.study import study_view
 from workbench.record.view_model.vibration import vibration_view
 from workbench.record.view_model.warping import warping_view
 
-__all__ = ["Section", "heading", "record_sections", "verified_sections"]
+__all__ = ["Section", "heading", "record_sections", "study_section", "verified_sections"]
 
 
 @dataclass(frozen=True)
@@ -96,6 +97,11 @@ def method_view(computation: Computation) -> tuple[Equation, ...] | WarpingMetho
     return rows if computation.results.warping is None else WarpingMethodView(rows)
 
 
+def study_section(study: dict[str, Any], computation: Computation) -> Section:
+    """The study section, drawn from the signed study alone (the verifier draws it again)."""
+    return Section("study", "Study", study_view(study, computation.model.units))
+
+
 def record_sections(
     computation: Computation,
     title_block: Mapping[str, Any],
@@ -105,6 +111,7 @@ def record_sections(
     signed_at: str,
     fingerprint: str | None,
     case_source: str,
+    study: dict[str, Any] | None = None,
 ) -> list[Section]:
     """Every section of the record, in order.
 
@@ -120,6 +127,9 @@ def record_sections(
         Who signs, when (ISO 8601 UTC) and the key's thumbprint (``None``: unsigned).
     case_source
         Where the case came from (``cell output`` or ``case file …``).
+    study
+        The study signed with the record (:func:`workbench.record.study.study_payload`), or
+        ``None``: then no study section.
     """
     model, report = computation.model, computation.report
     hand_check, hand_warnings = hand_check_view(computation)
@@ -146,6 +156,7 @@ def record_sections(
         results,
         *extra,
         checks,
+        *([study_section(study, computation)] if study is not None else []),
         Section("hand-check", "Independent check", hand_check),
         Section("warnings", "Warnings", warnings),
         Section("caution", "Caution", CAUTION),
