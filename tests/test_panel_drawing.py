@@ -137,8 +137,9 @@ def test_inspector_edits_every_non_circular_shape() -> None:
     for shape in SHAPES:
         inspector.set_shape(("shafts", 0, "segments", 0), shape)
         section = panel.document["shafts"][0]["segments"][0]["section"]
-        if shape == "dxf":  # a drawing has no default file: refused beside its path, stale
-            assert panel.stale and "path: is required" in panel.status.value
+        if shape == "dxf":  # no drawing to start from: its path is asked for beside the field
+            assert panel.stale and "path" in panel.status.value
+            _inspector_entry(panel, "shafts[0].segments[0].section.path")
             continue
         assert section["shape"] == shape and not panel.stale, (shape, panel.status.value)
         number_keys = [k for k, v in section.items() if isinstance(v, (int, float))]
@@ -148,6 +149,8 @@ def test_inspector_edits_every_non_circular_shape() -> None:
             _inspector_entry(panel, "shafts[0].segments[0].section.walls[3].thickness")
         if "points" in section:
             _inspector_entry(panel, "shafts[0].segments[0].section.points[3].thickness")
+        if "outer" in section:
+            _inspector_entry(panel, "shafts[0].segments[0].section.outer[3].y")
     inspector.set_shape(("shafts", 0, "segments", 0), "thin_open")
     _inspector_entry(panel, "shafts[0].segments[0].section.walls[0].thickness").value = "5"
     assert panel.document["shafts"][0]["segments"][0]["section"]["walls"][0]["thickness"] == 5
