@@ -16,7 +16,7 @@ import ipywidgets as w
 import numpy as np
 import pytest
 
-from tests.panel_cases import field, simple_case
+from tests.panel_cases import field, inspector_entry, simple_case, widgets_in
 from workbench.panel import Workbench
 from workbench.panel.selection import Part
 from workbench.panel.warping_section import bimoment_unit
@@ -31,21 +31,8 @@ def open_case() -> dict[str, Any]:
     return json.loads(FIXTURE.read_text(encoding="utf-8"))
 
 
-def _widgets(root: w.Widget) -> list[w.Widget]:
-    found = [root]
-    for child in getattr(root, "children", ()):
-        found += _widgets(child)
-    return found
-
-
-def inspector_entry(panel: Workbench, path: str) -> w.Text:
-    inside = _widgets(panel.drawing_editor.inspector.box)
-    (entry,) = [x for x in panel.form.fields[path] if x in inside and isinstance(x, w.Text)]
-    return entry
-
-
 def inspector_button(panel: Workbench, text: str) -> w.Button:
-    inside = _widgets(panel.drawing_editor.inspector.box)
+    inside = widgets_in(panel.drawing_editor.inspector.box)
     buttons = [x for x in inside if isinstance(x, w.Button) and x.description == text]
     return buttons[0]
 
@@ -196,7 +183,7 @@ def test_unstated_restraint_warning_beside_the_support_and_in_the_summary() -> N
     beside = [x.value for x in panel.form.messages["supports[0].warping"]]
     assert beside and all("may govern" in value for value in beside)
     # The choice says the key is left out: it shows no value the solver does not take.
-    inspector = _widgets(panel.drawing_editor.inspector.box)
+    inspector = widgets_in(panel.drawing_editor.inspector.box)
     (choice,) = [
         x
         for x in panel.form.fields["supports[0].warping"]
