@@ -97,7 +97,12 @@ def test_section_view_draws_round_sections_and_follows_the_pick() -> None:
     panel = Workbench(case)
     assert panel.warping.section is None  # a case that does not warp builds no view at first
     assert panel.warping.charts is None
-    panel.warping.section_box.selected_index = 0
+    field(panel, "shafts[0].segments[0].length").value = "0"
+    assert panel.stale
+    panel.warping.section_box.selected_index = 0  # opened while not solved: the last, dimmed
+    assert "wb-stale" in panel.stale_marks.outputs["cross-section"]._dom_classes
+    field(panel, "shafts[0].segments[0].length").value = "1000"
+    assert not panel.stale
     view = panel.warping.section
     assert view is not None
     pick_segment(panel, 0, 0)
@@ -156,6 +161,14 @@ def test_warping_charts_only_for_a_warping_case_and_stale_on_a_bad_value() -> No
     field(panel, "shafts[0].segments[0].length").value = "1500"
     assert not panel.stale
     assert "wb-stale" not in panel.stale_marks.outputs["bimoment"]._dom_classes
+    # US customary: lbf·in² (1 lbf = 4.4482216152605 N, 1 in = 0.0254 m; NIST SP 811, App. B).
+    panel.units.value = next(v for _, v in panel.units.options if v != panel.units.value)
+    assert charts.bimoment.figure.axes[1].label == "B [lbf·in²]"
+    per_unit = 4.4482216152605 * 0.0254**2
+    shown = warping.bimoment[row, window] / per_unit
+    np.testing.assert_allclose(
+        charts.bimoment.lines.y, shown, rtol=1e-9, atol=1e-9 * abs(shown).max()
+    )
 
 
 def test_bimoment_unit_is_torque_times_its_length() -> None:
