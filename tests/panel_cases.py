@@ -77,3 +77,18 @@ def shown_messages(panel: Workbench) -> list[str]:
         assert len(texts) <= 1, texts
         shown += sorted(texts)
     return shown
+
+
+def widgets_in(root: w.Widget) -> list[w.Widget]:
+    """``root`` and every widget under it, depth-first through boxes and tabs."""
+    found = [root]
+    for child in getattr(root, "children", ()):
+        found += widgets_in(child)
+    return found
+
+
+def inspector_entry(panel: Workbench, path: str) -> w.Text:
+    """The inspector's text entry of the field at ``path`` (the part picked shows it)."""
+    inside = widgets_in(panel.drawing_editor.inspector.box)
+    (entry,) = [x for x in panel.form.fields[path] if x in inside and isinstance(x, w.Text)]
+    return entry

@@ -16,12 +16,11 @@ import math
 from pathlib import Path
 from typing import Any
 
-import ipywidgets as w
 import ipywidgets.widgets.widget as widget_module
 import numpy as np
 import pytest
 
-from tests.panel_cases import open_demo, simple_case
+from tests.panel_cases import inspector_entry, open_demo, simple_case, widgets_in
 from workbench.panel import Workbench
 from workbench.panel.selection import KINDS, Part
 
@@ -90,26 +89,13 @@ def test_inspector_edits_a_segment_and_the_stress_follows() -> None:
     editor = panel.drawing_editor
     assert editor.selected == Part("segment", ("shafts", 0, "segments", 0))
     path = "shafts[0].segments[0].section.diameter"
-    (entry,) = [x for x in panel.form.fields[path] if x in _widgets(editor.inspector.box)]
+    (entry,) = [x for x in panel.form.fields[path] if x in widgets_in(editor.inspector.box)]
     entry.value = "2 in"  # 50.8 mm
     assert panel.document["shafts"][0]["segments"][0]["section"]["diameter"] == 50.8
     tau = 16 * 500.0 / (math.pi * 0.0508**3) / 1e6  # MPa
     assert float(np.max(panel.charts.stress.now.y)) == pytest.approx(tau, rel=1e-9)
     entry.value = "7o"  # refused beside the inspector's field, nothing solved
     assert panel.stale and "7o" in panel.status.value
-
-
-def _widgets(root: w.Widget) -> list[w.Widget]:
-    found = [root]
-    for child in getattr(root, "children", ()):
-        found += _widgets(child)
-    return found
-
-
-def _inspector_entry(panel: Workbench, path: str) -> w.Text:
-    inside = _widgets(panel.drawing_editor.inspector.box)
-    (entry,) = [x for x in panel.form.fields[path] if x in inside and isinstance(x, w.Text)]
-    return entry
 
 
 def test_inspector_edits_a_layered_segment(demo: Workbench) -> None:
@@ -120,8 +106,8 @@ def test_inspector_edits_a_layered_segment(demo: Workbench) -> None:
         "[0].section.inner_diameter",
         "[1].section.diameter",
     ):
-        _inspector_entry(demo, base + field)
-    _inspector_entry(demo, base + "[0].section.outer_diameter").value = "80"
+        inspector_entry(demo, base + field)
+    inspector_entry(demo, base + "[0].section.outer_diameter").value = "80"
     layer = demo.document["shafts"][0]["segments"][3]["layers"][0]
     assert layer["section"]["outer_diameter"] == 80 and not demo.stale
 
@@ -137,23 +123,26 @@ def test_inspector_edits_every_non_circular_shape() -> None:
     for shape in SHAPES:
         inspector.set_shape(("shafts", 0, "segments", 0), shape)
         section = panel.document["shafts"][0]["segments"][0]["section"]
-        if shape == "dxf":  # a drawing has no default file: refused beside its path, stale
-            assert panel.stale and "path: is required" in panel.status.value
+        if shape == "dxf":  # no drawing to start from: its path is asked for beside the field
+            assert panel.stale and "path" in panel.status.value
+            inspector_entry(panel, "shafts[0].segments[0].section.path")
             continue
         assert section["shape"] == shape and not panel.stale, (shape, panel.status.value)
         number_keys = [k for k, v in section.items() if isinstance(v, (int, float))]
         for key in number_keys:
-            _inspector_entry(panel, f"shafts[0].segments[0].section.{key}")
+            inspector_entry(panel, f"shafts[0].segments[0].section.{key}")
         if "walls" in section:
-            _inspector_entry(panel, "shafts[0].segments[0].section.walls[3].thickness")
+            inspector_entry(panel, "shafts[0].segments[0].section.walls[3].thickness")
         if "points" in section:
-            _inspector_entry(panel, "shafts[0].segments[0].section.points[3].thickness")
+            inspector_entry(panel, "shafts[0].segments[0].section.points[3].thickness")
+        if "outer" in section:
+            inspector_entry(panel, "shafts[0].segments[0].section.outer[3].y")
     inspector.set_shape(("shafts", 0, "segments", 0), "thin_open")
-    _inspector_entry(panel, "shafts[0].segments[0].section.walls[0].thickness").value = "5"
+    inspector_entry(panel, "shafts[0].segments[0].section.walls[0].thickness").value = "5"
     assert panel.document["shafts"][0]["segments"][0]["section"]["walls"][0]["thickness"] == 5
     assert not panel.stale
     inspector.set_shape(("shafts", 0, "segments", 0), "rectangle")
-    _inspector_entry(panel, "shafts[0].segments[0].section.height").value = "30 mm"
+    inspector_entry(panel, "shafts[0].segments[0].section.height").value = "30 mm"
     assert panel.document["shafts"][0]["segments"][0]["section"]["height"] == 30
     assert not panel.stale
 
@@ -235,7 +224,7 @@ def test_parts_list_picks_and_the_inspector_edits_without_a_mouse(demo: Workbenc
     assert "load case 'jam' · torque 0" in labels and "gear mesh 0 · end a" in labels
     editor.parts_list.value = "load_cases/1/torques/0"  # what arrow keys in the list do
     assert editor.selected == Part("torque", ("load_cases", 1, "torques", 0))
-    entry = _inspector_entry(demo, "load_cases[1].torques[0].torque")
+    entry = inspector_entry(demo, "load_cases[1].torques[0].torque")
     assert entry.value == "1,400"
     entry.value = "1,250 N·m"
     assert demo.document["load_cases"][1]["torques"][0]["torque"] == 1250 and not demo.stale
@@ -247,7 +236,7 @@ def test_the_finder_picks_a_part_by_its_name_typed(demo: Workbench) -> None:
     editor.finder.value = "support 1"  # typed, then Enter
     assert editor.selected == Part("support", ("supports", 1))
     assert editor.parts_list.value == "supports/1"
-    _inspector_entry(demo, "supports[1].x").value = "850"
+    inspector_entry(demo, "supports[1].x").value = "850"
     assert demo.document["supports"][1]["x"] == 850 and not demo.stale
     # The drawing names its handles by the parts' names (unique: the page matches points so).
     names = list(editor.handles.places.names)

@@ -5,6 +5,10 @@ Kernel side (no browser):
 * One edit of a 20-segment case → every chart trait set: p95 ≤ 20 ms (no event loop: the edit
   solves and redraws before the assignment returns). Also reported: the widget messages an edit
   sends (each is a redraw in the page), and those of a drag move.
+* The same edit with the cross-section view open (a segment picked that the edit leaves alone):
+  p95 ≤ 20 ms, the new views cost a case nothing they do not draw. Also reported: an edit of the
+  open-shapes fixture (a section that warps: its cross-section and the bimoment, torque-part and
+  σ_w charts redrawn each time).
 * One drag move of a point torque on the drawing of that case (the ``drag`` message bqplot's
   front end sends, through the mark's own handler) → every chart trait set: p95 ≤ 100 ms. Also
   reported: a shoulder dragged (two lengths written, one solve).
@@ -55,6 +59,7 @@ import numpy as np
 from tests.benchmarks.common import Row, time_calls
 
 CASE = Path(__file__).resolve().parents[2] / "notebooks" / "press_drive.json"
+OPEN_SHAPES = Path(__file__).resolve().parents[1] / "fixtures" / "open_shapes.json"
 
 
 def twenty_segment_case() -> dict[str, Any]:
@@ -117,6 +122,21 @@ def run() -> list[Row]:
     )
     panel.more_charts.selected_index = None
 
+    # The cross-section view open (segment 0 picked, the edit elsewhere): nothing to resend.
+    panel.warping.section_box.selected_index = 0
+    section_timing = time_calls(edit, repeats=300, warmup=5)
+    rows.append(
+        Row(
+            "edit → all charts set, cross-section view open (p95)",
+            section_timing.p95 * 1e3,
+            "ms",
+            20.0,
+            notes=(f"median {section_timing.median * 1e3:.2f} ms",),
+        )
+    )
+    panel.warping.section_box.selected_index = None
+    rows.append(warping_case_row())
+
     rows.append(_burst(panel, field))
 
     path = ("shafts", 0, "segments", 4, "section", "diameter")
@@ -137,6 +157,29 @@ def run() -> list[Row]:
     rows.append(unit_switch_row())
     rows += browser_rows()
     return rows
+
+
+def warping_case_row() -> Row:
+    """An edit of the open-shapes case: its section and its warping charts redrawn too."""
+    from workbench.panel import Workbench
+
+    document = json.loads(OPEN_SHAPES.read_text(encoding="utf-8"))
+    panel = Workbench(document)
+    field = panel.form.fields["shafts[0].segments[0].section.depth"][0]
+    panel.drawing_editor.pick(panel.drawing_editor.parts[0])
+    depths = iter(np.tile(np.linspace(280.0, 320.0, 41), 20))
+
+    def edit() -> None:
+        field.value = f"{next(depths):g}"
+
+    timing = time_calls(edit, repeats=200, warmup=5)
+    return Row(
+        "edit → all charts set, open sections that warp: section and warping charts (p95)",
+        timing.p95 * 1e3,
+        "ms",
+        None,
+        notes=(f"median {timing.median * 1e3:.2f} ms; 6 open segments on 2 shafts",),
+    )
 
 
 def drag_rows(panel: Any) -> list[Row]:

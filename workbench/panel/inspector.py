@@ -19,11 +19,13 @@ import msgspec
 
 from workbench.case.declaration import (
     SHAPES,
+    BoundaryPoint,
     Disc,
     DistributedTorque,
     Gear,
     Keys,
     Layer,
+    MidlinePoint,
     Notch,
     Segment,
     Support,
@@ -34,9 +36,9 @@ from workbench.case.declaration import (
     field_type,
     structs_in,
 )
-from workbench.panel.bound import Bound
+from workbench.panel.bound import Bound, row
 from workbench.panel.document import Path, field_words, get_at, set_at
-from workbench.panel.form import Form, button
+from workbench.panel.form import Form, button, clean_number
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render
 from workbench.panel.selection import Part, part_label
@@ -53,6 +55,8 @@ PART_OBJECTS: dict[str, type[Keys]] = {
 }
 #: The choice, beside the declared shapes, that makes a segment of bonded layers.
 LAYERED = "bonded layers"
+#: Points edited as a small table, one row each, with the fewest rows a list may have.
+POINT_TABLES: dict[type[Keys], int] = {MidlinePoint: 2, BoundaryPoint: 3}
 
 
 def _words(name: str) -> str:
@@ -125,6 +129,8 @@ class Inspector(Bound):
         self.box.add_class("wb-inspector")
         self.part: Part | None = None
         self._made: list[tuple[str, w.Widget]] = []
+        #: Called after each :meth:`show` (views that follow the part picked).
+        self.on_show: list[Callable[[], None]] = []
 
     def show(self, part: Part | None) -> None:
         """Show the fields of ``part`` (nothing picked: a hint), closing the fields shown before."""
@@ -146,6 +152,8 @@ class Inspector(Bound):
             self.box.children = [self.heading, *rows]
         close_tree(*old)
         self.form.state.show_current_error()
+        for follow in self.on_show:
+            follow()
 
     # --- fields from the declaration ------------------------------------------------------
 
@@ -181,6 +189,11 @@ class Inspector(Bound):
             return self._section(path[:-1], item, tip)
         if declared.tags("shape"):
             return self._section(path[:-1], item, tip, layered=False)
+        if lists and structs and structs[0] in POINT_TABLES:
+            nested = typing.get_origin(Unwrapped(typing.get_args(lists[0])[0]).bases[0]) is list
+            if nested:  # a polygon's holes: each a boundary of its own
+                return self._holes(path, value or [])
+            return self._points(path, structs[0], value or [], words)
         if lists and structs:
             return self._items(path, structs[0], value or [], words)
         if structs:
@@ -199,8 +212,16 @@ class Inspector(Bound):
         if bool in declared.bases:
             return [_tip(form.flag(path, words), tip)]
         if literals:
-            options = list(typing.get_args(literals[0]))
-            return [self._choice(path, words, options, tip)]
+            options: list[Any] = list(typing.get_args(literals[0]))
+            if required:
+                return [self._choice(path, words, options, tip)]
+            # Left out, the default applies: say so rather than show a value ("" writes none).
+            stated = [(str(option), option) for option in options]
+            options = [(f"not stated ({default_of(cls, name)})", ""), *stated]
+            line = self.form.choice(
+                path, words, options, lambda new: self.form.write(path, new or None), "230px"
+            )
+            return [_tip(line, tip)]
         if {float, int} & set(declared.bases):
             default = default_of(cls, name)
             shown = float(default) if isinstance(default, (int, float)) else 0.0
@@ -261,6 +282,46 @@ class Inspector(Bound):
         rows.append(w.HBox([add, form.message(path)]))
         return rows
 
+    def _points(self, path: Path, cls: type[Keys], points: list[Any], words: str) -> list[w.Widget]:
+        """A list of points as a small table: a row of its coordinates each, add and remove."""
+        form = self.form
+        fewest = POINT_TABLES[cls]
+        rows: list[w.Widget] = [w.HTML(render("heading", words, ""))]
+        for number in range(len(points)):
+            cells: list[w.Widget] = [w.Label(f"{number}", layout=shared_layout(width="22px"))]
+            for name in cls.__struct_fields__:
+                if name == "thickness" and number == 0:
+                    continue  # the first mid-line point ends no wall
+                optional = name not in _required(cls)
+                cells.append(
+                    form.number(
+                        (*path, number, name),
+                        name,
+                        optional=optional,
+                        width="120px" if name != "thickness" else "150px",
+                    )
+                )
+            if len(points) > fewest:
+                remove = button("✕", lambda n=number: form.remove(path, n))
+                remove.tooltip = f"remove point {number}"
+                cells.append(remove)
+            rows.append(row(cells))
+        add = button("add point", lambda: self.add_point(path, cls), width="110px")
+        rows.append(w.HBox([add, form.message(path)]))
+        return rows
+
+    def _holes(self, path: Path, holes: list[Any]) -> list[w.Widget]:
+        """A polygon's holes: each its table of corners and a remove button; an add button."""
+        rows: list[w.Widget] = []
+        for number, hole in enumerate(holes):
+            remove = button("✕", lambda n=number: self.form.remove(path, n, drop_empty=True))
+            remove.tooltip = f"remove hole {number}"
+            rows += self._points((*path, number), BoundaryPoint, hole or [], f"hole {number}")
+            rows.append(remove)
+        add = button("add hole", lambda: self.add_hole(path), width="110px")
+        rows.append(w.HBox([add, self.form.message(path)]))
+        return rows
+
     # --- structural edits -------------------------------------------------------------------
 
     def set_shape(self, base: Path, shape: str) -> None:
@@ -281,6 +342,38 @@ class Inspector(Bound):
             owner["section"] = new_section(shape, size)
 
         self.form.structural(change)
+
+    def add_point(self, path: Path, cls: type[Keys]) -> None:
+        """Add a point to a table of points.
+
+        A mid-line goes on by its last wall; a boundary gets its closing edge's middle (a convex
+        polygon stays simple).
+        """
+        points = get_at(self.document, path)
+        first, before, last = points[0], points[-2], points[-1]
+        if cls is MidlinePoint:
+            point = {**last, "x": 2 * last["x"] - before["x"], "y": 2 * last["y"] - before["y"]}
+        else:
+            point = {"x": 0.5 * (last["x"] + first["x"]), "y": 0.5 * (last["y"] + first["y"])}
+        point.update({k: clean_number(round(float(point[k]), 6)) for k in ("x", "y")})
+        self.form.structural(lambda: points.append(point))
+
+    def add_hole(self, path: Path) -> None:
+        """Add a square hole a quarter of the outer boundary's size, round its middle."""
+        outer = get_at(self.document, (*path[:-1], "outer")) or []
+        xs = [float(p["x"]) for p in outer] or [0.0]
+        ys = [float(p["y"]) for p in outer] or [0.0]
+        middle = (0.5 * (min(xs) + max(xs)), 0.5 * (min(ys) + max(ys)))
+        half = 0.125 * min(max(xs) - min(xs), max(ys) - min(ys))
+        hole = [
+            {
+                "x": clean_number(round(middle[0] + a * half, 6)),
+                "y": clean_number(round(middle[1] + b * half, 6)),
+            }
+            for a, b in ((-1, -1), (1, -1), (1, 1), (-1, 1))
+        ]
+        section = get_at(self.document, path[:-1])
+        self.form.structural(lambda: section.setdefault(path[-1], []).append(hole))
 
     def add_item(self, path: Path) -> None:
         """Add a wall (a copy of the last) or a layer (a tube round the outermost) to a list."""

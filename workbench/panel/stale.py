@@ -46,9 +46,15 @@ class StaleMarks:
         self.reason: str | None = None
 
     def output(self, name: str, widget: w.DOMWidget) -> w.DOMWidget:
-        """Register ``widget`` (a chart, a table) as derived from the solve."""
+        """Register ``widget`` (a chart, a table) as derived from the solve.
+
+        A view built late (the cross-section, opened while the case is not solved) is dimmed at
+        once.
+        """
         self.outputs[name] = widget
         widget.add_class("wb-derived")
+        if self.reason is not None:
+            widget.add_class("wb-stale")
         return widget
 
     def note(self, what: str) -> w.HTML:

@@ -55,22 +55,29 @@ def key_values(
 
 
 def summary_html(
-    values: dict[str, float], report: CheckReport, result: str, stale: str | None = None
+    values: dict[str, float],
+    report: CheckReport,
+    result: str,
+    stale: str | None = None,
+    warnings: tuple[str, ...] = (),
 ) -> str:
     """The verdict, where it governs, and the headline ``values`` of the result shown.
 
     ``stale``: why the case as edited is not solved (the field and its message). There is then
     no verdict, only the last valid case's values (a pass of that case is no pass of this one).
+    ``warnings``: the results' cautions (:attr:`Results.warnings`), each a line under the verdict.
     """
+    cautions = "".join(render("warning", f"Warning: {text}") for text in warnings)
     if stale is not None:
-        return render("summary", f"{STALE_VERDICT} — {stale}", None, result, _cells(values))
+        verdict = f"{STALE_VERDICT} — {stale}"
+        return render("summary", verdict, None, result, _cells(values)) + cautions
     governing = report.governing
     where = None
     if governing is not None:
         kind = governing.kind.replace("_", " ")
         where = (kind, governing.shaft, governing.segment, governing.result)
     verdict = "all checks pass" if report.passes else "SOME CHECKS FAIL"
-    return render("summary", verdict, where, result, _cells(values))
+    return render("summary", verdict, where, result, _cells(values)) + cautions
 
 
 #: The summary's verdict while the case as edited is not solved (the reason follows).
@@ -131,7 +138,9 @@ class ResultTables:
         self.check_table = w.HTML()
         self.check_table.add_class("wb-checks")
         self.caution = w.HTML()
-        self._shown: tuple[dict[str, float], CheckReport, str, UnitSystem] | None = None
+        self._shown: (
+            tuple[dict[str, float], CheckReport, str, UnitSystem, tuple[str, ...]] | None
+        ) = None
         self._stale: str | None = None
 
     def draw_summary(
@@ -141,22 +150,23 @@ class ResultTables:
         result: str,
         units: UnitSystem,
         stale: str | None = None,
+        warnings: tuple[str, ...] = (),
     ) -> None:
         """The summary above the charts from the headline values (:func:`key_values`).
 
         ``stale``: why the case as edited is not solved; these are then the last valid case's,
-        shown dimmed and without a verdict. The check table follows with :meth:`draw_checks`.
+        shown dimmed and without a verdict. ``warnings``: the results' cautions. The check table follows with :meth:`draw_checks`.
         """
-        self._shown = (values, report, result, units)
+        self._shown = (values, report, result, units, warnings)
         self._stale = stale
-        self.summary.value = summary_html(values, report, result, stale)
+        self.summary.value = summary_html(values, report, result, stale, warnings)
         self._dim(self.summary, stale is not None)
 
     def draw_checks(self) -> None:
         """The check table and the caution below the charts, of the summary last drawn."""
         if self._shown is None:
             return
-        _, report, _, units = self._shown
+        _, report, _, units, _ = self._shown
         self.check_table.value = checks_html(report, units, self._stale)
         self.caution.value = render("caution", CAUTION, report.notes)
         self._dim(self.check_table, self._stale is not None)
@@ -164,8 +174,8 @@ class ResultTables:
     def show_stale(self, why: str) -> None:
         """The case as edited is not solved (``why``): no verdict; values and checks dimmed."""
         if self._shown is not None:
-            values, report, result, units = self._shown
-            self.summary.value = summary_html(values, report, result, why)
+            values, report, result, units, warnings = self._shown
+            self.summary.value = summary_html(values, report, result, why, warnings)
             self.check_table.value = checks_html(report, units, why)
         for widget in (self.summary, self.check_table):
             self._dim(widget, True)

@@ -50,6 +50,7 @@ from workbench.panel.stale import StaleMarks
 from workbench.panel.state import CaseState
 from workbench.panel.study_view import StudyView
 from workbench.panel.summary import ResultTables, difference_html, key_values
+from workbench.panel.warping_section import WarpingSection
 from workbench.panel.whatif import WhatIf
 from workbench.solver.analysis import Results
 from workbench.solver.io import decode_case_text
@@ -148,6 +149,7 @@ class Workbench:
         self.fatigue_section = FatigueSection()
         self.tables = ResultTables()
         self.stale_marks = StaleMarks()
+        self.warping = WarpingSection(self.charts.x_scale, self.stale_marks, self.form)
         shown = self._shown_shaft
         self.segments_editor = SegmentsEditor(self.form, shown)
         self.supports_editor = SupportsEditor(self.form, shown)
@@ -163,6 +165,7 @@ class Workbench:
         self.drawing_editor = DrawingEditor(
             self.charts.drawing, self.form, shown, lambda: self.result.value
         )
+        self.drawing_editor.inspector.on_show.append(self._follow_pick)
         self._build()
         parts = self.drawing_editor.parts
         self.drawing_editor.pick(parts[0] if parts else None)  # the first segment, to start
@@ -298,6 +301,7 @@ class Workbench:
             selected_index=None,
         )
         self.more_charts.observe(lambda _: self._redraw(), "selected_index")
+        self.warping.section_box.observe(lambda _: self._follow_pick(), "selected_index")
         editing = self.drawing_editor
         self.drawing_box = w.HBox(
             [
@@ -310,6 +314,7 @@ class Workbench:
                         editing.finder,
                         editing.parts_list,
                         editing.inspector.box,
+                        self.warping.section_box,
                     ]
                 ),
             ]
@@ -330,6 +335,7 @@ class Workbench:
                 self.charts.angle.box,
                 self.charts.stress.box,
                 self.charts.utilisation_box,
+                self.warping.charts_holder,  # a case that warps: bimoment, torque parts, σ_w
                 self.more_charts,
             ]
         )
@@ -478,6 +484,13 @@ class Workbench:
         """Headline values of a result in the panel's units (for the summary and the diff)."""
         return key_values(results, report, result, self.state.units)
 
+    def _follow_pick(self) -> None:
+        """The cross-section view follows the part picked; the warnings follow rebuilt fields."""
+        model = self.state.model
+        if model is not None and self.warping.opened:
+            self.warping.draw_section(model, self.drawing_editor.selected)
+        self.warping.show_warning()
+
     def _redraw(self) -> None:
         state = self.state
         model, results, report = state.model, state.results, state.report
@@ -489,8 +502,11 @@ class Workbench:
         # Sent in the page's order, top to bottom: the summary (verdict, reactions), the
         # drawing, the charts along the shaft, then the check table below them.
         values = key_values(results, report, result, units)
-        self.tables.draw_summary(values, report, result, units, stale=self.stale_marks.reason)
+        self.tables.draw_summary(
+            values, report, result, units, self.stale_marks.reason, results.warnings
+        )
         self.charts.draw(model, results, report, result, shaft, state.baseline)
+        self.warping.draw(model, results, result, shaft, self.drawing_editor.selected)
         with held(self.charts.elevation):
             self.drawing_editor.draw(result)
         self.tables.draw_checks()

@@ -259,12 +259,15 @@ def torsional_stresses(
     shear = np.broadcast_to(np.asarray(shear_modulus, dtype=float), section.shape)[:, None]
     elastic = np.broadcast_to(np.asarray(elastic_modulus, dtype=float), section.shape)[:, None]
     rate_, second_, third_ = (np.asarray(a, dtype=float)[..., None] for a in (rate, second, third))
-    return TorsionalStresses(
-        saint_venant_shear=(shear * thickness) * rate_,
-        warping_shear=(elastic * per_thickness) * third_,
-        warping_normal=(elastic * warping) * second_,
-        valid=valid,
-    )
+    # A product beyond the floats is refused by the checks that read it, naming its cause
+    # (design.finite_checks), so it may overflow here without a warning.
+    with np.errstate(over="ignore", invalid="ignore"):
+        return TorsionalStresses(
+            saint_venant_shear=(shear * thickness) * rate_,
+            warping_shear=(elastic * per_thickness) * third_,
+            warping_normal=(elastic * warping) * second_,
+            valid=valid,
+        )
 
 
 __all__ = [

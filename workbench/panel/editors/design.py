@@ -66,6 +66,20 @@ class DesignEditor(Editor):
                     form.message(("design", "rotation_limits")),
                 ]
             ),
+            w.HTML(
+                render(
+                    "heading",
+                    "Coexisting stresses",
+                    ": from bending, by segment (warping checks of open sections)",
+                )
+            ),
+            *self._coexisting_rows(),
+            w.HBox(
+                [
+                    button("add coexisting stresses", self.add_coexisting, width="190px"),
+                    form.message(("design", "coexisting_stresses")),
+                ]
+            ),
             *self.fatigue.rows(),
             form.message("design"),
         ]
@@ -87,6 +101,35 @@ class DesignEditor(Editor):
             ]
             rows.append(row(parts))
         return rows
+
+    def _coexisting_rows(self) -> list[w.Widget]:
+        form = self.form
+        rows: list[w.Widget] = []
+        entries = get_at(self.document, ("design", "coexisting_stresses")) or []
+        for n in range(len(entries)):
+            base: Path = ("design", "coexisting_stresses", n)
+            parts = [
+                w.Label(f"{n}", layout=sized("24px")),
+                form.choice((*base, "shaft"), "shaft", self.shaft_ids(), width="160px"),
+                form.number((*base, "segment"), "segment", width="120px"),
+                form.number((*base, "normal_stress"), "normal", optional=True, width="150px"),
+                form.number((*base, "shear_stress"), "shear", optional=True, width="150px"),
+                button("✕", lambda n=n: self.remove_coexisting(n)),
+                form.message(base),
+            ]
+            rows.append(row(parts))
+        return rows
+
+    def add_coexisting(self) -> None:
+        """Stated bending stresses on the first segment of the shaft shown, none yet."""
+        shaft = self.document["shafts"][self.shown_shaft()]
+        entry = {"shaft": shaft["id"], "segment": 0, "normal_stress": 0, "shear_stress": 0}
+        design = self.document.setdefault("design", {})
+        self.form.structural(lambda: design.setdefault("coexisting_stresses", []).append(entry))
+
+    def remove_coexisting(self, n: int) -> None:
+        """Remove coexisting-stress entry ``n`` (and the list, when it was the last)."""
+        self.form.remove(("design", "coexisting_stresses"), n, drop_empty=True)
 
     def add_rotation_limit(self) -> None:
         """A new limit over the whole shaft shown, 1 angle unit (to be set by the engineer)."""
