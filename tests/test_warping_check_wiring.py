@@ -271,3 +271,24 @@ def test_size_prints_the_cautions_on_its_results(
     assert error.startswith("warning: rotations reach ")
     assert "(2.41 rad;" in error
     assert error.count("\n") == 1
+
+
+def test_open_and_polygon_segments_of_one_girder_are_each_judged_at_their_own_points() -> None:
+    # Half the girder as i_beam, half as the same I drawn as a polygon: both segments get the
+    # three rows, each at its own kind of stress point (the open one's walls, the polygon's node).
+    document = _polygon_girder(POLYGON_I, 9000)
+    segments = document["shafts"][0]["segments"]
+    polygon_half = {**segments[0], "length": 2000}
+    open_half = {**GIRDER["shafts"][0]["segments"][0], "length": 2000}
+    document["shafts"][0]["segments"] = [open_half, polygon_half]
+    report = run_checks(solve(parse_case(document)))
+    notes = {
+        (row.segment, row.kind): row.note for row in report.checks if row.kind in WARPING_KINDS
+    }
+    assert set(notes) == {(segment, kind) for segment in (0, 1) for kind in WARPING_KINDS}
+    assert "at wall" not in notes[1, "warping_normal_stress"]
+    assert "mesh node of largest |Wn|" in notes[1, "warping_normal_stress"]
+    assert "governs at wall" in notes[0, "warping_normal_stress"]
+    assert "warping shear not computed" in notes[1, "warping_shear_stress"]
+    assert "warping shear not computed" not in notes[0, "warping_shear_stress"]
+    assert SAINT_VENANT_PART in report.notes and FINITE_ELEMENT_SHEAR in report.notes
