@@ -24,7 +24,7 @@ from workbench.cli import main
 from workbench.design.checks import check_document, run_checks
 from workbench.design.independent import WARPING_NOT_COVERED, NotCovered, independent_check
 from workbench.design.warping_checks import WARPING_KINDS
-from workbench.design.warping_model_checks import SAINT_VENANT_PART, WARPING_STRESSES_UNCHECKED
+from workbench.design.warping_model_checks import FINITE_ELEMENT_SHEAR, SAINT_VENANT_PART
 from workbench.solver.analysis import solve
 from workbench.solver.io import parse_case
 
@@ -184,28 +184,57 @@ def test_sizing_a_case_that_warps_is_refused_naming_the_section(
     assert "\n" not in error
 
 
-def test_a_polygon_section_that_warps_is_named_as_not_checked(
-    tmp_path: Path, capsys: pytest.CaptureFixture[str]
-) -> None:
-    # An angle drawn as a polygon: its finite-element warping constant is small but not 0, and
-    # it has no wall mid-line, so the warping checks cannot judge it; the command says so.
+def _polygon_girder(corners: list[tuple[float, float]], torque: float) -> dict[str, Any]:
     document = copy.deepcopy(GIRDER)
-    corners = [(0, 0), (100, 0), (100, 10), (10, 10), (10, 100), (0, 100)]
     document["shafts"][0]["segments"][0]["section"] = {
         "shape": "polygon",
         "outer": [{"x": x, "y": y} for x, y in corners],
     }
-    document["load_cases"][0]["torques"][0]["torque"] = 50
-    path = _write(tmp_path, document)
+    document["load_cases"][0]["torques"][0]["torque"] = torque
+    return document
+
+
+#: The girder's I drawn as a polygon (mm), web on x = 0.
+POLYGON_I = [
+    (-75, 0), (75, 0), (75, 12), (4, 12), (4, 288), (75, 288), (75, 300), (-75, 300),
+    (-75, 288), (-4, 288), (-4, 12), (-75, 12),
+]  # fmt: skip
+
+
+def test_a_polygon_section_that_warps_gets_warping_rows_and_the_shear_left_out_is_said(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    # An angle drawn as a polygon: its finite-element warping constant is small but not 0; its
+    # warping normal stress is judged at the mesh node of largest |Wn|, its warping shear is
+    # not computed (no wall mid-line) and the command says so.
+    corners = [(0, 0), (100, 0), (100, 10), (10, 10), (10, 100), (0, 100)]
+    path = _write(tmp_path, _polygon_girder(corners, 50))
     assert main(["check", str(path)]) == 0
     captured = capsys.readouterr()
-    expected = (
-        "warning: shafts[0].segments[0]: its section warps but has no wall mid-line "
-        f"(finite elements); {WARPING_STRESSES_UNCHECKED}\n"
-    )
-    assert captured.err == expected
-    assert expected.removeprefix("warning: ").strip() in captured.out
-    assert "warping_normal_stress" not in captured.out
+    assert captured.err == f"warning: {FINITE_ELEMENT_SHEAR}\n"
+    assert f"note: {FINITE_ELEMENT_SHEAR}" in captured.out
+    for kind in WARPING_KINDS:
+        assert f" {kind} " in captured.out
+    assert "NOT checked" not in captured.out
+
+
+def test_a_polygon_whose_warping_normal_stress_exceeds_sy_over_fos_fails_check(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    # The restrained girder's I as a polygon: σ_w ≈ 300 MPa at its ends (the closed form
+    # above, see tests/validation/test_fe_warping_stress.py) against Sy/FoS = 125 MPa.
+    girder = _polygon_girder(POLYGON_I, 9000)
+    path = _write(tmp_path, girder)
+    assert main(["check", "--json", str(path)]) == 1
+    document = json.loads(capsys.readouterr().out)
+    rows = {row["kind"]: row for row in document["checks"] if row["kind"] in WARPING_KINDS}
+    normal = rows["warping_normal_stress"]
+    assert normal["passes"] is False
+    assert normal["value"] > normal["limit"] == pytest.approx(125.0, rel=1e-12)
+    assert rows["warping_combined_stress"]["passes"] is False
+    notes = {row.kind: row.note for row in run_checks(solve(parse_case(girder))).checks}
+    assert "mesh node of largest |Wn|" in notes["warping_normal_stress"]
+    assert "warping shear not computed" in notes["warping_shear_stress"]
 
 
 def test_size_prints_the_cautions_on_its_results(
@@ -242,3 +271,24 @@ def test_size_prints_the_cautions_on_its_results(
     assert error.startswith("warning: rotations reach ")
     assert "(2.41 rad;" in error
     assert error.count("\n") == 1
+
+
+def test_open_and_polygon_segments_of_one_girder_are_each_judged_at_their_own_points() -> None:
+    # Half the girder as i_beam, half as the same I drawn as a polygon: both segments get the
+    # three rows, each at its own kind of stress point (the open one's walls, the polygon's node).
+    document = _polygon_girder(POLYGON_I, 9000)
+    segments = document["shafts"][0]["segments"]
+    polygon_half = {**segments[0], "length": 2000}
+    open_half = {**GIRDER["shafts"][0]["segments"][0], "length": 2000}
+    document["shafts"][0]["segments"] = [open_half, polygon_half]
+    report = run_checks(solve(parse_case(document)))
+    notes = {
+        (row.segment, row.kind): row.note for row in report.checks if row.kind in WARPING_KINDS
+    }
+    assert set(notes) == {(segment, kind) for segment in (0, 1) for kind in WARPING_KINDS}
+    assert "at wall" not in notes[1, "warping_normal_stress"]
+    assert "mesh node of largest |Wn|" in notes[1, "warping_normal_stress"]
+    assert "governs at wall" in notes[0, "warping_normal_stress"]
+    assert "warping shear not computed" in notes[1, "warping_shear_stress"]
+    assert "warping shear not computed" not in notes[0, "warping_shear_stress"]
+    assert SAINT_VENANT_PART in report.notes and FINITE_ELEMENT_SHEAR in report.notes

@@ -37,7 +37,12 @@ from workbench.design.warping_checks import (
 from workbench.solver.io import case_to_dict, parse_case
 from workbench.solver.open_shapes import angle_section, channel_section, i_section, z_section
 from workbench.solver.warping_member import WarpingMember, recover, solve_member
-from workbench.solver.warping_stress import stress_points, torsional_stresses
+from workbench.solver.warping_stress import (
+    join_stress_points,
+    node_stress_points,
+    stress_points,
+    torsional_stresses,
+)
 
 STEEL = Material("test steel", 79.3e9, 250e6, 400e6, elastic_modulus=207e9)
 I_BEAM = i_section(0.3, 0.15, 0.15, 0.012, 0.012, 0.008)
@@ -144,6 +149,24 @@ def test_stress_points_of_the_shapes() -> None:
     assert np.abs(points.unit_warping[1]).max() == pytest.approx(abs(CHANNEL.peak_warping))
     assert points.describe(0, 0, "mm", 1000.0) == "wall 0 start at (0, 294) mm"
     assert points.describe(1, 9) == "no stress point"
+
+
+def test_a_node_of_a_section_by_finite_elements_follows_the_open_sections() -> None:
+    # One node (Wn, where, (τ/T)·J) per section by finite elements, after the open ones and
+    # padded to their width; σ_w = E·Wn·θ″ and τ_sv = G·t·θ′ there, no warping shear (Sw = 0).
+    nodes = node_stress_points([2e-3], [[0.05, 0.01]], [4e-3])
+    points = join_stress_points(stress_points([I_BEAM]), nodes)
+    assert points.valid.shape == (2, 10)
+    assert points.valid[1].tolist() == [True] + [False] * 9
+    assert points.unit_warping[1, 0] == 2e-3 and points.thickness[1, 0] == 4e-3
+    assert points.wall[1, 1:].tolist() == [-1] * 9 and points.statical_moment[1].sum() == 0.0
+    assert points.describe(1, 0, "mm", 1000.0) == (
+        "mesh node of largest |Wn| (finite elements) at (50, 10) mm"
+    )
+    stresses = torsional_stresses(points, [1], [1e-3], [2e-3], [5e-3], 80e9, 200e9)
+    assert stresses.warping_normal[0, 0] == pytest.approx(200e9 * 2e-3 * 2e-3, rel=1e-15)
+    assert stresses.saint_venant_shear[0, 0] == pytest.approx(80e9 * 4e-3 * 1e-3, rel=1e-15)
+    assert stresses.warping_shear[0, 0] == 0.0 and not stresses.valid[0, 1:].any()
 
 
 def test_section_of_no_warping_is_not_checked() -> None:

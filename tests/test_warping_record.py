@@ -17,7 +17,7 @@ from pathlib import Path
 import nbformat
 import pytest
 
-from tests.test_warping_check_wiring import GIRDER
+from tests.test_warping_check_wiring import GIRDER, POLYGON_I, _polygon_girder
 from workbench.case.materials import FROM_MEMORY
 from workbench.design.independent import WARPING_NOT_COVERED
 from workbench.record.demo import LINE_SHAFT_CASE, demo_notebook
@@ -120,3 +120,20 @@ def test_a_round_case_has_no_warping_section(tmp_path: Path) -> None:
     assert "warping of non-circular sections is free (no warping restraint)" in method
     assert "What each warping check added" not in text
     assert "warping_normal_stress" not in text
+
+
+def test_a_polygon_section_that_warps_is_described_where_its_stresses_are_taken(
+    tmp_path: Path, signed: tuple[Path, Path, str]
+) -> None:
+    # The girder's I drawn as a polygon: the method says where its stresses are taken and that
+    # its warping shear is not computed; the record of the open I does not.
+    sentence = "Sections by finite elements (polygon, dxf) that warp have no wall mid-line"
+    notebook = tmp_path / "polygon.ipynb"
+    case = _polygon_girder(POLYGON_I, 9000)
+    nbformat.write(demo_notebook(case, executed=True), str(notebook))
+    text, _ = export_file(notebook, execute=False, signed_at=SIGNED_AT)
+    method = _section(text, "warping")
+    assert sentence in method
+    assert "Their warping shear τ_w is NOT computed" in method
+    assert "mesh node of largest |Wn| (finite elements)" in _section(text, "checks")
+    assert sentence not in signed[2]

@@ -61,7 +61,7 @@ def run() -> list[Row]:
     PolygonSection(outer)
     cached = time_calls(lambda: PolygonSection(outer), repeats=200, warmup=3)
     case = {
-        "materials": {"steel": {"shear_modulus": 79.3e9}},
+        "materials": {"steel": {"shear_modulus": 79.3e9, "elastic_modulus": 200e9}},
         "shafts": [{"id": "s", "segments": [{"length": 2.0, "material": "steel", "section": {
             "shape": "polygon", "outer": [{"x": x, "y": y} for x, y in outer]}}]}],
         "supports": [{"shaft": "s", "x": 0.0}],

@@ -15,7 +15,8 @@ the section is not known here (an upper bound; the row's note says what was adde
   Sy/FoS.
 
 Each is the largest over the points of the section and the stations of the segment, result by
-result; a segment with no open section is not checked (NaN). Shapes: R results (any leading
+result; a segment with no stress point (no open section, nor one by finite elements that
+warps) is not checked (NaN). Shapes: R results (any leading
 axes), S stations, P stress points, G segments.
 
 References
@@ -342,6 +343,9 @@ class WarpingRowPlaces:
         (S,) index of each station's section into the stress points (−1: none).
     points
         The stress points of the sections.
+    finite_element
+        (G,) whether the segment's section is one by finite elements (no wall mid-line: its
+        warping shear is not computed); all False when not given.
     """
 
     results: tuple[str, ...]
@@ -350,6 +354,7 @@ class WarpingRowPlaces:
     station_x: FloatArray
     station_section: IntArray
     points: StressPoints
+    finite_element: np.ndarray | None = None
 
 
 def warping_check_rows(
@@ -373,17 +378,22 @@ def warping_check_rows(
         from_bending = f"from bending ({COEXISTING_STRESS_ORIGIN})"
         material = int(limits.segment_material[index])
         normal_basis, shear_basis = limits.normal_basis[material], limits.shear_basis[material]
+        finite = places.finite_element is not None and bool(places.finite_element[index])
+        # A section by finite elements: no wall, so no t or Sw; τ_sv is the section's largest.
+        tau = (
+            "τ = (τ/T)·G·J·|θ′| (largest Saint-Venant shear; warping shear not computed: no "
+            f"wall mid-line) + {bending_shear}"
+            if finite
+            else f"τ = G·t·|θ′| + E·|Sw·θ‴|/t + {bending_shear}"
+        )
         added = {
             "warping_normal_stress": (
                 f"σ = |E·Wn·θ″| + {bending_normal} {from_bending}; limit {normal_basis}"
             ),
-            "warping_shear_stress": (
-                f"τ = G·t·|θ′| + E·|Sw·θ‴|/t + {bending_shear} {from_bending}; limit {shear_basis}"
-            ),
+            "warping_shear_stress": f"{tau} {from_bending}; limit {shear_basis}",
             "warping_combined_stress": (
                 f"√(σ² + 3τ²) at one point, σ = |E·Wn·θ″| + {bending_normal} and "
-                f"τ = G·t·|θ′| + E·|Sw·θ‴|/t + {bending_shear} {from_bending}; "
-                f"limit {normal_basis}"
+                f"{tau} {from_bending}; limit {normal_basis}"
             ),
         }
         for kind_number, kind in enumerate(WARPING_KINDS):

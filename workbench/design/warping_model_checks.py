@@ -7,9 +7,15 @@ the three rows of :mod:`workbench.design.warping_checks` — warping normal stre
 and combination, the torsional stresses taken at every station and stress point of the section.
 The segment's ``shear_stress`` row stays: it is the Saint-Venant shear G·t_max·θ′ alone, which
 the ``warping_shear_stress`` row contains at the same wall, so for open sections the latter
-governs shear; a report note (:data:`SAINT_VENANT_PART`) says so. A section that warps but has no wall
-mid-line (a polygon or drawing section by finite elements) has no stress points: its warping
-stresses are not checked, and the report says so in a note.
+governs shear; a report note (:data:`SAINT_VENANT_PART`) says so.
+
+A section that warps but has no wall mid-line (a polygon or drawing section by finite elements)
+has one stress point, the mesh node of largest |Wn| (:mod:`workbench.solver.fe_sections`), where
+σ_w = E·Wn·θ″ peaks; its Saint-Venant shear there is taken as the section's largest,
+(τ/T)·T_sv, wherever that peaks (an upper bound). Its warping shear is not computed — thin-wall
+theory's E·Sw·θ‴/t needs a wall mid-line — so its ``warping_shear_stress`` row is the
+Saint-Venant shear plus the stated bending shear, and the row's note says the warping shear is
+left out (:data:`FINITE_ELEMENT_SHEAR`).
 
 References
 ----------
@@ -38,15 +44,25 @@ from workbench.design.warping_checks import (
 )
 from workbench.solver.analysis import Results
 from workbench.solver.open_sections import OpenSectionWarping
+from workbench.solver.polygon_sections import FiniteElementSection
 from workbench.solver.warping_sections import OpenWarpingSection
-from workbench.solver.warping_stress import stress_points, torsional_stresses
+from workbench.solver.warping_stress import (
+    StressPoints,
+    join_stress_points,
+    node_stress_points,
+    stress_points,
+    torsional_stresses,
+)
 
-__all__ = ["SAINT_VENANT_PART", "WARPING_STRESSES_UNCHECKED", "WarpingRows", "warping_rows"]
+__all__ = ["FINITE_ELEMENT_SHEAR", "SAINT_VENANT_PART", "WarpingRows", "warping_rows"]
 
-#: The words of a report note on a segment that warps but whose warping stresses the checks
-#: cannot judge (a section by finite elements); the command line repeats such notes as warnings.
-WARPING_STRESSES_UNCHECKED = (
-    "its warping stresses are NOT checked: judge the warping normal stress separately"
+#: The report's note where a section by finite elements is judged in restrained torsion.
+FINITE_ELEMENT_SHEAR = (
+    "sections by finite elements (polygon, dxf) in restrained torsion: warping normal stress "
+    "E·Wn·θ″ at the mesh node of largest |Wn|; their warping shear is NOT computed (thin-wall "
+    "theory's E·Sw·θ‴/t needs a wall mid-line), so warping_shear_stress is the largest "
+    "Saint-Venant shear (τ/T)·T_sv plus the stated bending shear: judge the warping shear "
+    "separately where the section is thin-walled"
 )
 
 #: The report's note where the warping checks judge some segment.
@@ -66,9 +82,10 @@ class WarpingRows:
     rows
         The check rows, by segment, kind and result.
     checked
-        (G,) whether each segment's warping stresses were judged (an open section).
+        (G,) whether each segment's warping stresses were judged (an open section, or one by
+        finite elements that warps).
     notes
-        Remarks for the report (sections that warp but have no stress points).
+        Remarks for the report (what the shear rows hold).
     """
 
     rows: list[Check]
@@ -117,45 +134,48 @@ def warping_rows(
         return WarpingRows([], np.zeros(count, dtype=bool), [])
     model = results.model
     segments = [segment for shaft in model.shafts for segment in shaft.segments]
-    shaft_numbers = [number for number, shaft in enumerate(model.shafts) for _ in shaft.segments]
     sections: dict[int, int] = {}  # id(section) → its index among the distinct open sections
     properties: list[OpenSectionWarping] = []
+    finite: dict[int, int] = {}  # id(section) → its index among the distinct FE sections
+    finite_sections: list[FiniteElementSection] = []
+    segment_finite = np.full(count, -1, dtype=np.intp)
     segment_section = np.full(count, -1, dtype=np.intp)
     materials: dict[int, int] = {}
     distinct_materials: list[Material] = []
     segment_material = np.zeros(count, dtype=np.intp)
-    notes = []
     for index, segment in enumerate(segments):  # reading the segment objects: one pass
         layer = segment.layers[0]
         section = layer.section
-        if not isinstance(section, OpenWarpingSection):
-            if section.warping_constant > 0.0:
-                notes.append(
-                    f"shafts[{shaft_numbers[index]}].segments[{numbers[index]}]: its section "
-                    "warps but has no wall mid-line (finite elements); "
-                    f"{WARPING_STRESSES_UNCHECKED}"
-                )
+        if isinstance(section, OpenWarpingSection):
+            segment_section[index] = sections.setdefault(id(section), len(sections))
+            if len(properties) < len(sections):
+                properties.append(section.properties)
+        elif isinstance(section, FiniteElementSection) and section.warping_constant > 0.0:
+            segment_finite[index] = finite.setdefault(id(section), len(finite))
+            if len(finite_sections) < len(finite):
+                finite_sections.append(section)
+        else:
             continue
-        segment_section[index] = sections.setdefault(id(section), len(sections))
-        if len(properties) < len(sections):
-            properties.append(section.properties)
         material = layer.material
         if material.elastic_modulus is None:  # refused when the model was built; named here too
-            msg = "an open section in restrained torsion needs the elastic modulus E"
+            msg = "a section in restrained torsion needs the elastic modulus E"
             raise InputError(f"materials.{short(material.name)}.elastic_modulus", msg)
         segment_material[index] = materials.setdefault(id(material), len(materials))
         if len(distinct_materials) < len(materials):
             distinct_materials.append(material)
+    # The sections by finite elements follow the open ones in the stress points.
+    is_finite = segment_finite >= 0
+    segment_section[is_finite] = len(properties) + segment_finite[is_finite]
     checked = segment_section >= 0
     if not checked.any():
-        return WarpingRows([], checked, notes)
+        return WarpingRows([], checked, [])
     stations = int(results.mesh.station_x.shape[0])
     station_segment = station_segments(segment_start, stations)
     station_section = segment_section[station_segment]
     moduli = np.array(
         [[m.shear_modulus, m.elastic_modulus or 0.0] for m in distinct_materials], dtype=float
     )[segment_material[station_segment]]
-    points = stress_points(properties)
+    points = _stress_points(properties, finite_sections)
     stresses = torsional_stresses(
         points,
         station_section,
@@ -181,8 +201,24 @@ def warping_rows(
     with np.errstate(over="ignore", invalid="ignore"):  # out of range: refused by the caller
         judged = warping_utilisations(inputs)
     places = WarpingRowPlaces(
-        results.names, shafts, numbers, results.mesh.station_x, station_section, points
+        results.names, shafts, numbers, results.mesh.station_x, station_section, points, is_finite
     )
-    return WarpingRows(
-        warping_check_rows(inputs, judged, places), checked, [SAINT_VENANT_PART, *notes]
+    notes = [SAINT_VENANT_PART] if properties else []
+    if finite_sections:
+        notes.append(FINITE_ELEMENT_SHEAR)
+    return WarpingRows(warping_check_rows(inputs, judged, places), checked, notes)
+
+
+def _stress_points(
+    open_sections: list[OpenSectionWarping], finite_sections: list[FiniteElementSection]
+) -> StressPoints:
+    """The open sections' stress points, then one node of each section by finite elements."""
+    nodes = node_stress_points(
+        [section.properties.unit_warping_peak for section in finite_sections],
+        np.array([section.properties.unit_warping_peak_at for section in finite_sections]),
+        [section.shear_stress_per_torque * section.torsion_constant for section in finite_sections],
     )
+    if not open_sections:
+        return nodes
+    walls = stress_points(open_sections)
+    return join_stress_points(walls, nodes) if finite_sections else walls

@@ -20,6 +20,7 @@ from workbench.panel.document import Path, get_at
 from workbench.panel.form import Form, entry_text, sized
 from workbench.panel.keys import quantity_of
 from workbench.panel.markup import render_study
+from workbench.panel.shared import close_tree
 from workbench.panel.whatif import count_entry, numeric_inputs, read_count
 from workbench.study.evaluate import parse_path
 from workbench.study.plan import (
@@ -151,9 +152,13 @@ class PlanForm:
     def _show_parameters(self) -> None:
         path, kind = self.input_path.value, self.kind.value
         if path is None:
+            close_tree(*(entry for entry in self.parameters.children if entry is not self.shape))
             self.parameters.children = ()
             return
         start = _starting_values(kind, self._nominal(path))
+        # The entries replaced are closed (the shape choice is kept): else each refresh leaves
+        # models in the kernel and on the page.
+        close_tree(*(entry for entry in self.parameters.children if entry is not self.shape))
         entries: list[w.Widget] = []
         for name in _parameters(kind):
             if name == "shape":

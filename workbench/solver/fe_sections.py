@@ -94,7 +94,7 @@ _FINE_MESH = 400
 #: Two successive changes both below this fraction of the value are round-off, not a trend.
 _ROUND_OFF = 1e-5
 #: Changes the digest when the method changes (so no result of another method is reused).
-_METHOD = b"fe-sections/1"
+_METHOD = b"fe-sections/2"
 
 
 @dataclass(frozen=True)
@@ -119,6 +119,13 @@ class FESectionProperties:
         Largest Saint-Venant shear stress over the mesh's nodes per unit torque (1/m³). At a
         sharp re-entrant corner the exact stress is unbounded and this value grows as the mesh
         is refined: round such corners, or read it as the value at this mesh.
+    unit_warping_peak
+        Normalised unit warping Wn (m²) at the mesh node where |Wn| is largest, signed as the
+        thin-wall theory's (σ_w = E·Wn·θ″): Wn = −ω_n, ω_n the Saint-Venant warping function
+        taken about the shear centre and made orthogonal to 1 (its mean over the area is 0).
+        0 for a section that does not warp.
+    unit_warping_peak_at
+        That node (x, y) in the boundary's own coordinates (m).
     depth
         Overall height of the section, the extent in y (m).
     elements
@@ -136,6 +143,8 @@ class FESectionProperties:
     warping_constant: float
     shear_centre: tuple[float, float]
     shear_stress_per_torque: float
+    unit_warping_peak: float
+    unit_warping_peak_at: tuple[float, float]
     depth: float
     elements: int
     torsion_error: float
@@ -433,6 +442,7 @@ def _analyse(polygon: shapely.Polygon) -> FESectionProperties:
     shear = float(np.hypot(stress["sig_zx_mzz"], stress["sig_zy_mzz"]).max())
     centroid_x, centroid_y = section.get_c()
     centre_x, centre_y = section.get_sc()
+    peak, node = _unit_warping_peak(section)
     return FESectionProperties(
         area=float(section.get_area()) * size**2,
         centroid=(left + float(centroid_x) * size, bottom + float(centroid_y) * size),
@@ -441,6 +451,8 @@ def _analyse(polygon: shapely.Polygon) -> FESectionProperties:
         warping_constant=max(float(section.get_gamma()), 0.0) * size**6,
         shear_centre=(left + float(centre_x) * size, bottom + float(centre_y) * size),
         shear_stress_per_torque=shear / size**3,
+        unit_warping_peak=peak * size**2,
+        unit_warping_peak_at=(left + float(node[0]) * size, bottom + float(node[1]) * size),
         depth=top - bottom,
         elements=history[-1][0],
         torsion_error=torsion_error,
@@ -449,3 +461,39 @@ def _analyse(polygon: shapely.Polygon) -> FESectionProperties:
             (count, float(j) * size**4, float(gamma) * size**6) for count, j, gamma in history
         ),
     )
+
+
+def _unit_warping_peak(section: FESection) -> tuple[float, FloatArray]:
+    """Wn at the mesh node of largest |Wn|, and the node (the mesh's own coordinates).
+
+    sectionproperties solves the Saint-Venant warping function ω about the centroid; about the
+    shear centre (Trefftz: x_st, y_st from the centroid) and with its mean removed it is
+    ω_n = ω − ω̄ + x_st·y − y_st·x, whose ∫ω_n² dA is sectionproperties' Γ (= Cw). Thin-wall
+    theory's normalised unit warping has the opposite sign (σ_w = E·Wn·θ″, the axial
+    displacement −Wn·θ′), so Wn = −ω_n. On a thin wall Wn then matches the mid-line
+    sectorial coordinate plus the through-thickness part (±s·t/2 at a face), which thin-wall
+    theory drops.
+
+    References
+    ----------
+    .. [1] sectionproperties 3 documentation, "Theory" (warping function, Trefftz shear centre,
+       Γ = I_ω − Q_ω²/A − y_s·I_xω + x_s·I_yω).
+    .. [2] Pilkey, *Analysis and Design of Elastic Beams*, 2002, ch. 6 (normalised warping
+       function about the shear centre; 6-node triangle shape functions; from memory).
+    """
+    properties = section.section_props
+    omega = np.asarray(properties.omega, dtype=float)
+    centroid = np.asarray(section.get_c(), dtype=float)
+    x, y = (np.asarray(section.mesh["vertices"], dtype=float) - centroid).T
+    triangles = np.asarray(section.mesh["triangles"], dtype=np.intp)
+    corners, middles = triangles[:, :3], triangles[:, 3:6]
+    # ω̄ exactly for the quadratic field: over a straight 6-node triangle the corner shape
+    # functions integrate to 0 and each mid-side one to A/3.
+    edges = np.stack([x[corners], y[corners]], axis=-1)
+    first, second = edges[:, 1] - edges[:, 0], edges[:, 2] - edges[:, 0]
+    area = 0.5 * np.abs(first[:, 0] * second[:, 1] - first[:, 1] * second[:, 0])
+    mean = float(np.sum(area * omega[middles].mean(axis=1)) / area.sum())
+    centre_x, centre_y = np.asarray(section.get_sc_t(), dtype=float) - centroid  # x_st, y_st
+    unit = -(omega - mean + centre_x * y - centre_y * x)
+    node = int(np.argmax(np.abs(unit)))
+    return float(unit[node]), np.array([x[node], y[node]]) + centroid

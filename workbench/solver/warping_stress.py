@@ -45,7 +45,14 @@ IntArray = npt.NDArray[np.intp]
 BoolArray = npt.NDArray[np.bool_]
 
 #: What each stress point of a wall is, by the code in :attr:`StressPoints.kind`.
-POINT_KINDS: tuple[str, ...] = ("start", "end", "inside (Wn = 0)")
+POINT_KINDS: tuple[str, ...] = (
+    "start",
+    "end",
+    "inside (Wn = 0)",
+    "mesh node of largest |Wn| (finite elements)",
+)
+#: The code in :attr:`StressPoints.kind` of a section by finite elements' one stress point.
+NODE_KIND = 3
 
 #: Relative size (of a section's largest |Wn|) below which Wn counts as zero at a wall's end.
 _ROUND_OFF = 1e-9
@@ -95,6 +102,8 @@ class StressPoints:
         x, y = (scale * self.location[section, point]).tolist()
         kind = POINT_KINDS[int(self.kind[section, point])]
         wall = int(self.wall[section, point])
+        if wall < 0:  # a section by finite elements: no walls
+            return f"{kind} at ({x:.4g}, {y:.4g}) {length_label}"
         return f"wall {wall} {kind} at ({x:.4g}, {y:.4g}) {length_label}"
 
 
@@ -180,6 +189,65 @@ def stress_points(sections: Sequence[OpenSectionWarping]) -> StressPoints:
         statical_moment=sw,
         statical_per_thickness=per_thickness,
     )
+
+
+def node_stress_points(
+    unit_warping: npt.ArrayLike, location: npt.ArrayLike, shear_thickness: npt.ArrayLike
+) -> StressPoints:
+    """One stress point for each of N sections by finite elements: its node of largest |Wn|.
+
+    Parameters
+    ----------
+    unit_warping
+        (N,) Wn at that node (m²), signed as thin-wall theory's (σ_w = E·Wn·θ″).
+    location
+        (N, 2) the node (m), in the section's coordinates.
+    shear_thickness
+        (N,) (τ/T)·J (m): the length that makes G·t·θ′ the section's largest Saint-Venant
+        shear, (τ/T)·G·J·θ′ — taken at this point though it peaks elsewhere (an upper bound).
+
+    Returns
+    -------
+    StressPoints
+        (N, 1) arrays; no warping statical moment (Sw = 0): the warping shear of a section
+        without a wall mid-line is not found by thin-wall theory and is not computed.
+
+    References
+    ----------
+    .. [1] Vlasov, *Thin-Walled Elastic Beams*, ch. V (σ_w = E·Wn·θ″), as in the module's
+       references.
+    """
+    warping = np.asarray(unit_warping, dtype=float).reshape(-1, 1)
+    count = warping.shape[0]
+    return StressPoints(
+        valid=np.ones((count, 1), dtype=bool),
+        wall=np.full((count, 1), -1, dtype=np.intp),
+        kind=np.full((count, 1), NODE_KIND, dtype=np.intp),
+        location=np.asarray(location, dtype=float).reshape(count, 1, 2),
+        thickness=np.asarray(shear_thickness, dtype=float).reshape(count, 1),
+        unit_warping=warping,
+        statical_moment=np.zeros((count, 1)),
+        statical_per_thickness=np.zeros((count, 1)),
+    )
+
+
+def join_stress_points(first: StressPoints, second: StressPoints) -> StressPoints:
+    """The sections of ``first`` then those of ``second``, padded to the wider of the two."""
+    width = max(first.valid.shape[1], second.valid.shape[1])
+
+    def padded(points: StressPoints, name: str, fill: float | int) -> npt.NDArray:
+        array = getattr(points, name)
+        pad = [(0, 0), (0, width - array.shape[1])] + [(0, 0)] * (array.ndim - 2)
+        return np.pad(array, pad, constant_values=fill)
+
+    fills = {"valid": False, "wall": -1, "kind": -1}
+    joined = {
+        name: np.concatenate(
+            [padded(first, name, fills.get(name, 0.0)), padded(second, name, fills.get(name, 0.0))]
+        )
+        for name in StressPoints.__dataclass_fields__
+    }
+    return StressPoints(**joined)
 
 
 @dataclass(frozen=True)
@@ -271,9 +339,12 @@ def torsional_stresses(
 
 
 __all__ = [
+    "NODE_KIND",
     "POINT_KINDS",
     "StressPoints",
     "TorsionalStresses",
+    "join_stress_points",
+    "node_stress_points",
     "stress_points",
     "torsional_stresses",
 ]

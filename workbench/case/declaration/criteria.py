@@ -120,7 +120,7 @@ def _bending_stress(kind: str) -> Meta:
 
 
 class CoexistingStress(Keys):
-    """Stresses from bending that act with torsion on one segment of an open section.
+    """Stresses from bending that act with torsion on one segment of a section that warps.
 
     The warping checks add them at full value, with the sign of the torsional stress, at every
     point of the segment's section (their distribution over the section is not known here).
@@ -318,8 +318,8 @@ class Design(Keys):
         Annotated[
             list[CoexistingStress],
             key(
-                "Bending stresses acting with torsion, by segment (warping checks of open "
-                "sections); a segment not listed has none",
+                "Bending stresses acting with torsion, by segment (warping checks of sections "
+                "that warp); a segment not listed has none",
                 max_length=MAX_ITEMS,
             ),
         ]

@@ -25,6 +25,7 @@ from workbench.record.drawing import data_uri
 from workbench.record.figures import line_diagram_svg
 from workbench.record.view_model.common import Equation, Rows, equations, number, unit_labels
 from workbench.solver.analysis import Results
+from workbench.solver.polygon_sections import FiniteElementSection
 from workbench.solver.warping_supports import unstated_restraint_warning
 
 __all__ = ["WarpingBlock", "WarpingView", "warping_view"]
@@ -69,6 +70,9 @@ class WarpingView:
         The sentence that the independent check does not cover restrained warping.
     blocks
         One per result.
+    finite_element
+        Whether a section by finite elements (polygon, dxf) warps: the method then says where
+        its stresses are taken and that its warping shear is not computed.
     """
 
     units: dict[str, str]
@@ -76,6 +80,7 @@ class WarpingView:
     unstated: str | None
     not_covered: str
     blocks: list[WarpingBlock]
+    finite_element: bool = False
 
 
 def _peak(x: np.ndarray, values: np.ndarray) -> tuple[str, str]:
@@ -153,4 +158,10 @@ def warping_view(results: Results, printed: bool = True) -> WarpingView:
         unstated_restraint_warning(results.table),
         WARPING_NOT_COVERED,
         blocks,
+        any(
+            isinstance(segment.layers[0].section, FiniteElementSection)
+            and segment.layers[0].section.warping_constant > 0.0
+            for shaft in model.shafts
+            for segment in shaft.segments
+        ),
     )
