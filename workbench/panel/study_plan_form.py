@@ -156,9 +156,22 @@ class PlanForm:
             self.parameters.children = ()
             return
         start = _starting_values(kind, self._nominal(path))
+        names = _parameters(kind)
+        shown = self.parameters.children
+        if len(shown) == len(names) and all(
+            (entry is self.shape) == (name == "shape")
+            for entry, name in zip(shown, names, strict=True)
+        ):
+            # The same kind of distribution (a unit switch, another input): the entries are
+            # shown again in place; no widget model is made or closed.
+            for entry, name in zip(shown, names, strict=True):
+                if entry is not self.shape:
+                    entry.description = name + self._unit(path, name)
+                    entry.value = start[name]
+            return
         # The entries replaced are closed (the shape choice is kept): else each refresh leaves
         # models in the kernel and on the page.
-        close_tree(*(entry for entry in self.parameters.children if entry is not self.shape))
+        close_tree(*(entry for entry in shown if entry is not self.shape))
         entries: list[w.Widget] = []
         for name in _parameters(kind):
             if name == "shape":
