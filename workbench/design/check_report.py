@@ -119,6 +119,12 @@ class CheckReport:
     static
         The arrays the static checks judged (:class:`StaticArrays`), for drawing the stresses
         the rows report; ``None`` for a report built from rows alone.
+    frequencies_pending
+        ``None`` once every check has run. Otherwise the report is partial: the case has
+        running speeds but its frequency-separation checks are still to run (``run_checks(...,
+        frequencies=False)``), and this is where their rows and notes go (an index in
+        ``checks`` and one in ``notes``); :func:`workbench.design.checks.with_frequency_checks`
+        completes it. A partial report's :attr:`passes` is no verdict.
     """
 
     results: Results
@@ -128,6 +134,12 @@ class CheckReport:
     fatigue_points: tuple[FatiguePoint, ...] = field(default=())
     modes: Any = None
     static: StaticArrays | None = field(default=None, repr=False, compare=False)
+    frequencies_pending: tuple[int, int] | None = None
+
+    @property
+    def complete(self) -> bool:
+        """Whether every check of the case has run (see :attr:`frequencies_pending`)."""
+        return self.frequencies_pending is None
 
     @property
     def passes(self) -> bool:

@@ -37,7 +37,7 @@ licensed professional practice.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -92,6 +92,7 @@ __all__ = [
     "model_check_inputs",
     "plastic_reserves",
     "run_checks",
+    "with_frequency_checks",
 ]
 
 
@@ -297,7 +298,9 @@ def _static_rows(results: Results, prepared: ModelCheckInputs) -> tuple[list[Che
     return rows, StaticArrays(prepared.inputs, judged, prepared.shafts, prepared.numbers)
 
 
-def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckReport:
+def run_checks(
+    results: Results, design: DesignCriteria | None = None, *, frequencies: bool = True
+) -> CheckReport:
     """Check every segment of every shaft in every load case and combination.
 
     Parameters
@@ -307,6 +310,10 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
     design
         Criteria; default: the model's ``design``, else :class:`DesignCriteria` defaults (von
         Mises, factor of safety 2, no twist limit), noted in the report.
+    frequencies
+        Whether to run the frequency-separation checks (an eigensolve). With ``False`` and a
+        case with running speeds, the report is partial (``frequencies_pending``):
+        :func:`with_frequency_checks` completes it, the same report as with ``True``.
 
     Returns
     -------
@@ -341,9 +348,15 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
         checks.extend(warping.rows)
         notes.extend(prepared.report_notes)
         notes.extend(warping.notes)
-        frequency_rows, frequency_notes, modes = frequency_checks(results.model, design)
-        checks.extend(frequency_rows)
-        notes.extend(frequency_notes)
+        pending = None
+        if frequencies:
+            frequency_rows, frequency_notes, modes = frequency_checks(results.model, design)
+            checks.extend(frequency_rows)
+            notes.extend(frequency_notes)
+        else:
+            modes = None
+            if results.model.operating_speeds:
+                pending = (len(checks), len(dict.fromkeys(notes)))
         fatigue_points: tuple[FatiguePoint, ...] = ()
         if design.fatigue is not None:
             rows, points = fatigue_checks(results, design.fatigue, notes)
@@ -361,4 +374,37 @@ def run_checks(results: Results, design: DesignCriteria | None = None) -> CheckR
         fatigue_points,
         modes,
         static,
+        pending,
+    )
+
+
+def with_frequency_checks(report: CheckReport) -> CheckReport:
+    """A partial report (``run_checks(..., frequencies=False)``) with its frequency checks run.
+
+    The same report as ``run_checks(results)`` would give: the frequency-separation rows and
+    notes in their places, the modes they used. A complete report is returned as it is.
+
+    Parameters
+    ----------
+    report
+        A report from :func:`run_checks`.
+
+    References
+    ----------
+    .. [1] Separation of natural frequencies from running speeds by a margin: common practice,
+       no source (see :func:`workbench.design.frequency.frequency_checks`).
+    """
+    if report.frequencies_pending is None:
+        return report
+    at_check, at_note = report.frequencies_pending
+    model = report.results.model
+    rows, notes, modes = frequency_checks(model, report.design)
+    checks = (*report.checks[:at_check], *rows, *report.checks[at_check:])
+    merged = (*report.notes[:at_note], *notes, *report.notes[at_note:])
+    return replace(
+        report,
+        checks=checks,
+        notes=tuple(dict.fromkeys(merged)),
+        modes=modes,
+        frequencies_pending=None,
     )

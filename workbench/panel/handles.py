@@ -228,7 +228,19 @@ class Handles(Bound):
             self.pick(part)
 
     def _dragged(self, mark: Any, event: dict[str, Any]) -> None:
-        self.dragging = mark if event.get("event") == "drag" else None
+        moving = event.get("event") == "drag"
+        self.dragging = mark if moving else None
+        state = self.form.state
+        # While a point is dragged, each move redraws the charts and reactions; the natural
+        # frequencies (an eigensolve) and so the verdict wait until it is let go.
+        state.checks_held = moving
+        try:
+            self._move(mark, event)
+        finally:
+            if not moving:
+                state.release_checks()
+
+    def _move(self, mark: Any, event: dict[str, Any]) -> None:
         index, point = point_index(event), event.get("point") or {}
         if index is None:
             return

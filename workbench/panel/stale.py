@@ -44,6 +44,7 @@ class StaleMarks:
         self.notes: dict[str, w.HTML] = {}
         #: Why the case as edited is not solved, or ``None``.
         self.reason: str | None = None
+        self._updating: tuple[tuple[str, ...], str] | None = None
 
     def output(self, name: str, widget: w.DOMWidget) -> w.DOMWidget:
         """Register ``widget`` (a chart, a table) as derived from the solve.
@@ -74,8 +75,29 @@ class StaleMarks:
             note.value = render("stale_note", what, self.reason, field)
         return self.reason
 
+    def updating(self, names: tuple[str, ...], what: str) -> None:
+        """Dim the outputs ``names`` and say, in the note over ``what``, they are being updated.
+
+        For outputs that follow the rest of a solve (the modes): the case is solved, but what
+        they show is still the last case's.
+        """
+        for name in names:
+            self.outputs[name].add_class("wb-stale")
+        self.notes[what].value = render("updating_note", what)
+        self._updating = (names, what)
+
+    def clear_updating(self) -> None:
+        """The outputs marked by :meth:`updating` are current (unless all is stale)."""
+        if self.reason is None and self._updating is not None:
+            names, what = self._updating
+            for name in names:
+                self.outputs[name].remove_class("wb-stale")
+            self.notes[what].value = ""
+        self._updating = None
+
     def clear(self) -> None:
         """The case is solved: nothing is stale."""
+        self._updating = None
         self.reason = None
         for widget in self.outputs.values():
             widget.remove_class("wb-stale")

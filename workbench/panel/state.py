@@ -5,13 +5,17 @@
 copy to the solver (:func:`~workbench.solver.io.parse_case`,
 :func:`~workbench.solver.analysis.solve`, :func:`~workbench.design.checks.run_checks`); bad input
 raises :class:`~workbench.case.errors.InputError`, and the last good results stay, marked stale.
-It tells the panel through two callbacks: ``on_solved()`` after a solve, ``on_error(error)`` when
-the document is bad.
+It tells the panel through callbacks: ``on_solved()`` after a solve, ``on_error(error)`` when
+the document is bad, and ``on_checked()`` when the checks that follow a solve are complete.
 
 In a kernel (an event loop running), every edit is checked at once (``parse_case``), so a bad
 value is flagged the moment it is typed, but the solve and the redraw wait until the burst of
 edits ends (the loop runs queued callbacks after the current message or cell) and then run once,
-on the newest valid document. Reading :attr:`CaseState.results` (or ``model``, ``report``,
+on the newest valid document. A case with running speeds is then drawn in two steps: the solve
+and its static and fatigue checks first (``on_solved``, the report partial: see
+:attr:`~workbench.design.check_report.CheckReport.frequencies_pending`, which the panel shows as
+being updated), then, once that is sent, the natural modes and the frequency checks
+(``on_checked``, the report complete): the eigensolve no longer delays the charts. Reading :attr:`CaseState.results` (or ``model``, ``report``,
 ``stale``, ``error``) or calling :meth:`CaseState.settle` finishes that work at once. Without a
 loop (plain scripts, tests) every edit solves and redraws before the assignment returns.
 """
@@ -26,7 +30,7 @@ from typing import Any
 
 from workbench.case.errors import InputError, one_line
 from workbench.case.units import UnitSystem
-from workbench.design.checks import CheckReport, run_checks
+from workbench.design.checks import CheckReport, run_checks, with_frequency_checks
 from workbench.panel import CASE_MIME_TYPE
 from workbench.panel.document import Path, clone, plain_words, unit_key, unit_system
 from workbench.panel.keys import quantity_of
@@ -35,6 +39,12 @@ from workbench.solver.build import read_beside
 from workbench.solver.io import case_to_dict, parse_case, save_case
 from workbench.solver.model import Model
 from workbench.solver.modes import Modes, natural_modes
+
+#: Seconds after a solve is drawn that its frequency checks (an eigensolve) run, in a kernel: the
+#: page takes about 60-90 ms to draw the charts (measured with tests.benchmarks.paired_browser on
+#: a 2-core machine), and an eigensolve run meanwhile takes the CPU it needs. The verdict, the
+#: check table and the Modes section say they are being updated until then.
+FREQUENCY_DELAY = 0.1
 
 
 class CaseState:
@@ -51,6 +61,8 @@ class CaseState:
         Called after every successful solve (the panel redraws).
     on_error
         Called with the error of a bad document (the panel shows it beside its field).
+    on_checked
+        Called when a partial report (drawn by ``on_solved``) has been completed.
     """
 
     def __init__(
@@ -59,6 +71,7 @@ class CaseState:
         path: str | FilePath | None,
         on_solved: Callable[[], None],
         on_error: Callable[[InputError], None],
+        on_checked: Callable[[], None] = lambda: None,
     ) -> None:
         self.path = FilePath(path) if path is not None else None
         with read_beside(self.path):  # drawing sections named relative to the case file
@@ -70,7 +83,13 @@ class CaseState:
         self.document: dict[str, Any] = (
             clone(document) if key is not None else case_to_dict(model, unit_system("si"))
         )
-        self._on_solved, self._on_error = on_solved, on_error
+        self._on_solved, self._on_error, self._on_checked = on_solved, on_error, on_checked
+        # A partial report drawn, its frequency checks due (a kernel only): finished by the loop
+        # once the page has drawn the rest (FREQUENCY_DELAY), or at once by settle().
+        self._checks_due = False
+        self._checks_timer: asyncio.TimerHandle | None = None
+        #: Whether the frequency checks wait while this is set (a drag: they run once it ends).
+        self.checks_held = False
         self._model: Model | None = None
         self._results: Results | None = None
         self._report: CheckReport | None = None
@@ -169,6 +188,8 @@ class CaseState:
         That of the last valid solve: the case it solved and its verdict.
         """
         self.settle()
+        if self.checks_pending:
+            return None  # no verdict before every check has run
         if self._case_bundle is None and self._model is not None and self._report is not None:
             self._case_bundle = _case_output(self._model, self._report)
         return self._case_bundle
@@ -180,17 +201,21 @@ class CaseState:
 
     # --- edits, solves, and their coalescing --------------------------------------------------
 
+    @property
+    def checks_pending(self) -> bool:
+        """Whether the report drawn is partial, its frequency checks still to run."""
+        return self._report is not None and not self._report.complete
+
     def settle(self) -> None:
         """Solve and redraw a pending edit now instead of when the burst of edits ends."""
         if self._queued is not None:
             self._flush()
+        if self._checks_due:
+            self._finish_checks()
 
     def edited(self) -> None:
         """An edit happened: check it now; solve and redraw now, or once the burst ends."""
-        try:
-            loop = asyncio.get_running_loop()
-        except RuntimeError:
-            loop = None
+        loop = _running_loop()
         if loop is None:
             self.refresh()
             return
@@ -241,9 +266,11 @@ class CaseState:
 
     def _solve(self, model: Model) -> bool:
         """Solve and check a valid model, then let the panel redraw everything from it."""
+        # In a kernel the eigensolve of the frequency checks waits until the rest is sent.
+        loop = _running_loop()
         try:
             results = solve(model)
-            report = run_checks(results)
+            report = run_checks(results, frequencies=loop is None)
         except InputError as error:
             self._fail(error)
             return False
@@ -254,8 +281,51 @@ class CaseState:
         self.solve_count += 1
         self._stale, self._error = False, None
         self._case_bundle = None
+        self._checks_due = False
         self._on_solved()
+        if loop is not None and not report.complete:
+            self._checks_due = True
+            self._schedule_checks(loop)
         return True
+
+    def _schedule_checks(self, loop: asyncio.AbstractEventLoop) -> None:
+        if self._checks_timer is not None:
+            self._checks_timer.cancel()  # a newer solve: its own checks, after its own redraw
+            self._checks_timer = None
+        if not self.checks_held:
+            self._checks_timer = loop.call_later(FREQUENCY_DELAY, self._finish_checks)
+
+    def release_checks(self) -> None:
+        """End :attr:`checks_held` (a drag ended): the frequency checks due follow."""
+        self.checks_held = False
+        loop = _running_loop()
+        if self._checks_due:
+            if loop is None:
+                self._finish_checks()
+            else:
+                self._schedule_checks(loop)
+
+    def _finish_checks(self) -> None:
+        """Complete the partial report drawn (the frequency checks), then let the panel show it."""
+        if self._checks_timer is not None:
+            self._checks_timer.cancel()
+            self._checks_timer = None
+        if not self._checks_due:
+            return  # done already (settle)
+        self._checks_due = False
+        report = self._report
+        if report is None or report.complete:
+            return
+        try:
+            self._report = with_frequency_checks(report)
+        except InputError as error:
+            self._fail(error)
+            return
+        except Exception as error:
+            self._fail(_unexpected(error))
+            return
+        self._case_bundle = None
+        self._on_checked()
 
     def _fail(self, error: InputError) -> None:
         self._stale, self._error = True, error
@@ -381,6 +451,14 @@ def _modes_of(model: Model) -> tuple[Modes | None, str]:
         return natural_modes(model), ""
     except InputError as error:
         return None, f"No natural modes: {plain_words(error.message)}"
+
+
+def _running_loop() -> asyncio.AbstractEventLoop | None:
+    """The event loop running (a kernel), or ``None`` (a plain script, a test)."""
+    try:
+        return asyncio.get_running_loop()
+    except RuntimeError:
+        return None
 
 
 def _unexpected(error: Exception) -> InputError:

@@ -71,6 +71,8 @@ def summary_html(
     if stale is not None:
         verdict = f"{STALE_VERDICT} — {stale}"
         return render("summary", verdict, None, result, _cells(values)) + cautions
+    if not report.complete:
+        return render("summary", UPDATING_VERDICT, None, result, _cells(values), True) + cautions
     governing = report.governing
     where = None
     if governing is not None:
@@ -82,6 +84,11 @@ def summary_html(
 
 #: The summary's verdict while the case as edited is not solved (the reason follows).
 STALE_VERDICT = "NOT SOLVED: no verdict (values of the last valid case, dimmed)"
+
+
+#: The summary's verdict while the frequency checks of the case as edited still run (its values
+#: are current; a verdict without those checks could pass a case they fail).
+UPDATING_VERDICT = "CHECKING: natural frequencies being worked out, no verdict yet"
 
 
 def _cells(values: dict[str, float]) -> list[tuple[str, str]]:
@@ -110,7 +117,7 @@ def checks_html(report: CheckReport, units: UnitSystem, stale: str | None = None
         )
         for check in report.governing_by_kind()
     ]
-    return render("checks", unit_label(units, "length"), rows, stale)
+    return render("checks", unit_label(units, "length"), rows, stale, not report.complete)
 
 
 def difference_html(now: dict[str, float], before: dict[str, float] | None) -> str:

@@ -55,6 +55,10 @@ from workbench.panel.whatif import WhatIf
 from workbench.solver.analysis import Results
 from workbench.solver.io import decode_case_text
 
+#: The outputs of the Modes section (stale marks' names) and the note over them.
+MODES_OUTPUTS = ("mode shapes", "modes against speeds", "frequency table")
+MODES_NOTE = "Natural modes are those"
+
 
 class _Part:
     """An attribute of the panel that lives on one of its parts (kept where notebooks find it)."""
@@ -141,7 +145,7 @@ class Workbench:
     sweep_values = _Part("whatif")
 
     def __init__(self, document: dict[str, Any], path: str | FilePath | None = None) -> None:
-        self.state = CaseState(document, path, self._on_solved, self._on_error)
+        self.state = CaseState(document, path, self._on_solved, self._on_error, self._on_checked)
         self.form = Form(self.state, self._rebuild)
         self._handle: Any = None
         self.charts = Charts()
@@ -279,9 +283,9 @@ class Workbench:
         ):
             marks.output(name, figure)
         for name, widget in (
-            ("mode shapes", self.modes_section.chart.shapes),
-            ("modes against speeds", self.modes_section.chart.against),
-            ("frequency table", self.modes_section.table),
+            (MODES_OUTPUTS[0], self.modes_section.chart.shapes),
+            (MODES_OUTPUTS[1], self.modes_section.chart.against),
+            (MODES_OUTPUTS[2], self.modes_section.table),
             ("fatigue diagram", self.fatigue_section.chart.figure),
             ("fatigue table", self.fatigue_section.table),
             ("sweep", self.whatif.sweep_figure),
@@ -294,7 +298,7 @@ class Workbench:
         )
         self.more_charts = w.Accordion(
             children=[
-                w.VBox([marks.note("Natural modes are those"), self.modes_section.box]),
+                w.VBox([marks.note(MODES_NOTE), self.modes_section.box]),
                 w.VBox([marks.note("The fatigue points are those"), self.fatigue_section.box]),
             ],
             titles=("Modes: natural frequencies and mode shapes", "Fatigue diagram"),
@@ -396,8 +400,27 @@ class Workbench:
         self.stale_marks.clear()
         self.study.case_changed()
         self._redraw()
-        if self._handle is not None:  # the case output the calculation record reads
-            self._handle.update(self.case_bundle, raw=True)
+        self._update_record_output()
+
+    def _update_record_output(self) -> None:
+        bundle = self.state.case_bundle  # none while checks are pending: no verdict yet
+        if self._handle is not None and bundle is not None:
+            self._handle.update(bundle, raw=True)
+
+    def _on_checked(self) -> None:
+        """The frequency checks of the case drawn have run: the verdict, the tables, the modes."""
+        state = self.state
+        model, results, report = state.model, state.results, state.report
+        if model is None or results is None or report is None or state.stale:
+            return
+        result = self.result.value if self.result.value in results.names else results.names[0]
+        values = key_values(results, report, result, state.units)
+        self.tables.draw_summary(values, report, result, state.units, None, results.warnings)
+        self.tables.draw_checks()
+        self.stale_marks.clear_updating()
+        if self.more_charts.selected_index == 0:
+            self._draw_modes(model, report)
+        self._update_record_output()
 
     def _on_error(self, error: InputError) -> None:
         """The message beside the field the error names, in the status line; all else stale."""
@@ -480,6 +503,12 @@ class Workbench:
 
     # --- drawing ----------------------------------------------------------------------------
 
+    def _draw_modes(self, model: Any, report: CheckReport) -> None:
+        shaft = min(self.shaft.value or 0, len(model.shafts) - 1)
+        state = self.state
+        speeds, margin = model.operating_speeds, report.design.frequency_margin
+        self.modes_section.draw(state.modes, state.why_no_modes, shaft, speeds, margin, state.units)
+
     def key_values(self, results: Results, report: CheckReport, result: str) -> dict[str, float]:
         """Headline values of a result in the panel's units (for the summary and the diff)."""
         return key_values(results, report, result, self.state.units)
@@ -502,9 +531,8 @@ class Workbench:
         # Sent in the page's order, top to bottom: the summary (verdict, reactions), the
         # drawing, the charts along the shaft, then the check table below them.
         values = key_values(results, report, result, units)
-        self.tables.draw_summary(
-            values, report, result, units, self.stale_marks.reason, results.warnings
-        )
+        reason = self.stale_marks.reason
+        self.tables.draw_summary(values, report, result, units, reason, results.warnings)
         self.charts.draw(model, results, report, result, shaft, state.baseline)
         self.warping.draw(model, results, result, shaft, self.drawing_editor.selected)
         with held(self.charts.elevation):
@@ -514,9 +542,12 @@ class Workbench:
         before = key_values(*baseline, result, units) if baseline is not None else None
         self.difference.value = difference_html(values, before)
         opened = self.more_charts.selected_index  # a closed section is drawn when it opens
-        if opened == 0:
-            speeds, margin = model.operating_speeds, report.design.frequency_margin
-            self.modes_section.draw(state.modes, state.why_no_modes, shaft, speeds, margin, units)
-        elif opened == 1:
+        if opened == 0 and not report.complete and reason is None:
+            # The modes and the frequency checks follow once this is sent (CaseState): until
+            # then the modes drawn are the last case's, and say so.
+            self.stale_marks.updating(MODES_OUTPUTS, MODES_NOTE)
+        elif opened == 0:
+            self._draw_modes(model, report)
+        if opened == 1:
             self.fatigue_section.draw(model, report, shaft, units)
         self.charts.follow_readouts()  # invisible hover points: after all that is seen
